@@ -1,0 +1,235 @@
+/**
+ * Reactor: reactions written as chemical equations, each with a key reactant and a fractional
+ * conversion per pass (of the key's inlet flow), or a fixed extent (mol/s). Parallel on the
+ * inlet by default; `sequence: true` applies them one after another.
+ *
+ * A fixed conversion that would take more of a reactant than reaches the reactor is no
+ * steady state: the extents are scaled down to what is available (so the solvers see a
+ * continuous map), and the block reports the shortfall as an infeasibility.
+ */
+import type { UnitSpecBase } from '../flowsheet/model.js';
+import { parseEquation, elementImbalance, EquationError } from '../thermo/reaction.js';
+import type { EvaluationFailure } from '../solve/types.js';
+import type { BlockDef, Stream } from './types.js';
+
+export interface ReactionSpec {
+  equation: string;
+  nu: Float64Array;
+  key: number;
+  conversion?: number;
+  extent?: number;
+}
+
+export interface ReactorSpec extends UnitSpecBase {
+  type: 'reactor';
+  reactions: ReactionSpec[];
+  sequence: boolean;
+  T?: number;
+  P?: number;
+}
+
+/** Relative shortfall below which a reactant is taken as exactly used up (rounding). */
+const SHORTFALL_TOL = 1e-12;
+
+export const reactor: BlockDef<ReactorSpec> = {
+  type: 'reactor',
+  description: 'reactions by fixed conversion of a key reactant or fixed extent',
+  keys: ['in', 'out', 'reactions', 'sequence', 'T', 'P'],
+  read(name, f) {
+    const inlet = f.streams('in', { required: true });
+    const out = f.stream('out', { required: true });
+    const T = f.quantity('T', 'temperature', { above: 0, example: '250 degC' });
+    const P = f.quantity('P', 'pressure', { above: 0, example: '29 barg' });
+    const sequence = f.boolean('sequence') ?? false;
+    const items = f.items('reactions', { required: true, what: 'reaction' });
+    if (!items) return undefined;
+    const reactions: ReactionSpec[] = [];
+    let ok = true;
+    for (const it of items) {
+      it.checkKeys(['equation', 'key', 'conversion', 'extent']);
+      const eq = it.string('equation', { required: true, example: '"CO2 + 3 H2 -> CH3OH + H2O"' });
+      const key = it.component('key', { required: true });
+      const hasX = it.has('conversion');
+      const hasE = it.has('extent');
+      if (hasX === hasE) {
+        it.error(null, `${it.what} needs exactly one of \`conversion\` (per pass, 0 to 1) and \`extent\` (mol/s)`, 'for example `conversion: 0.25`');
+        ok = false;
+      }
+      const conversion = hasX ? it.number('conversion', { min: 0, max: 1, example: '0.25' }) : undefined;
+      const extent = hasE ? it.quantity('extent', 'molarFlow', { min: 0, example: '0.8 mol/s' }) : undefined;
+      if (eq === undefined || key === undefined || (hasX && conversion === undefined) || (hasE && extent === undefined)) {
+        ok = false;
+        continue;
+      }
+      let nu: Float64Array;
+      try {
+        nu = parseEquation(eq, f.componentIds).nu;
+      } catch (e) {
+        if (!(e instanceof EquationError)) throw e;
+        it.error('equation', e.message, e.help);
+        ok = false;
+        continue;
+      }
+      const bad = elementImbalance(nu, f.elements);
+      const els = Object.keys(bad);
+      if (els.length > 0) {
+        const desc = els.map((el) => `${el} (${bad[el] > 0 ? '+' : ''}${Number(bad[el].toPrecision(6))} on the product side)`).join(', ');
+        it.error('equation', `equation \`${eq}\` is not balanced in ${desc}`, 'check the coefficients and the component formulas');
+        ok = false;
+        continue;
+      }
+      if (!(nu[key] < 0)) {
+        it.error('key', `the key \`${f.componentIds[key]}\` is not a reactant of \`${eq}\``, 'the key must appear on the left of the arrow');
+        ok = false;
+        continue;
+      }
+      reactions.push({ equation: eq, nu, key, conversion, extent });
+    }
+    if (!ok || !inlet || !out) return undefined;
+    if (!sequence) {
+      // Parallel reactions sharing a key: their conversions add up.
+      const byKey = new Map<number, number>();
+      for (const rx of reactions) if (rx.conversion !== undefined) byKey.set(rx.key, (byKey.get(rx.key) ?? 0) + rx.conversion);
+      for (const [k, sum] of byKey) {
+        if (sum > 1 + 1e-12) {
+          f.error('reactions', `the conversions of \`${f.componentIds[k]}\` in parallel reactions of \`${name}\` add up to ${Number(sum.toPrecision(8))}, more than 1`, 'lower them, or set `sequence: true` so that each applies to what the one before leaves');
+          return undefined;
+        }
+      }
+    }
+    return { name, type: 'reactor', inlets: inlet, outlets: [out], reactions, sequence, T, P };
+  },
+  build(spec, ctx) {
+    const ids = ctx.model.ids;
+    const n = ids.length;
+    const R = spec.reactions.length;
+    const ext = new Float64Array(R);
+    const req = new Float64Array(R);
+    const gen = new Float64Array(n);
+    const keyIn = new Float64Array(R);
+    const cons = new Float64Array(n);
+    let problem: EvaluationFailure | null = null;
+
+    const shortfall = (i: number, need: number, have: number, rx: ReactionSpec | null): EvaluationFailure => {
+      const what = rx
+        ? `reaction \`${rx.equation}\` (${rx.conversion !== undefined ? `conversion ${rx.conversion} of ${ids[rx.key]}` : `extent ${rx.extent} mol/s`})`
+        : `its reactions (${spec.reactions.map((r) => r.equation).join('; ')})`;
+      return {
+        kind: 'infeasible',
+        unit: spec.name,
+        component: ids[i],
+        message: `reactor \`${spec.name}\`: ${what} needs ${fmt(need)} mol/s of ${ids[i]}, but only ${fmt(have)} mol/s reaches it`,
+        help: `lower the conversion or extent, feed more ${ids[i]}, or let ${ids[i]} leave the loop less (a smaller purge)`,
+      };
+    };
+
+    return {
+      spec,
+      compute(ins: readonly Stream[], outs: Stream[]) {
+        const o = outs[0];
+        const f = o.flows;
+        f.fill(0);
+        let pMin = Infinity;
+        let tSum = 0;
+        let fSum = 0;
+        for (const s of ins) {
+          let tot = 0;
+          for (let i = 0; i < n; i++) {
+            f[i] += s.flows[i];
+            tot += s.flows[i];
+          }
+          if (s.P < pMin) pMin = s.P;
+          if (tot > 0 && Number.isFinite(s.T)) {
+            tSum += s.T * tot;
+            fSum += tot;
+          }
+        }
+        problem = null;
+        gen.fill(0);
+        if (!spec.sequence) {
+          // Extents on the inlet, then scaled together if a reactant would go negative.
+          cons.fill(0);
+          for (let r = 0; r < R; r++) {
+            const rx = spec.reactions[r];
+            keyIn[r] = f[rx.key];
+            req[r] = rx.conversion !== undefined ? (rx.conversion * f[rx.key]) / -rx.nu[rx.key] : rx.extent!;
+            ext[r] = req[r];
+            for (let i = 0; i < n; i++) if (rx.nu[i] < 0) cons[i] -= rx.nu[i] * req[r];
+          }
+          let scale = 1;
+          let worst = -1;
+          for (let i = 0; i < n; i++) {
+            if (cons[i] > f[i] * (1 + SHORTFALL_TOL) + 1e-300) {
+              const s = f[i] / cons[i];
+              if (s < scale) {
+                scale = s;
+                worst = i;
+              }
+            }
+          }
+          if (worst >= 0) {
+            problem = shortfall(worst, cons[worst], f[worst], R === 1 ? spec.reactions[0] : null);
+            for (let r = 0; r < R; r++) ext[r] *= scale;
+          }
+          for (let r = 0; r < R; r++) {
+            const nu = spec.reactions[r].nu;
+            for (let i = 0; i < n; i++) gen[i] += nu[i] * ext[r];
+          }
+          for (let i = 0; i < n; i++) {
+            const v = f[i] + gen[i];
+            f[i] = v > 0 ? v : 0;
+          }
+        } else {
+          for (let r = 0; r < R; r++) {
+            const rx = spec.reactions[r];
+            keyIn[r] = f[rx.key];
+            req[r] = rx.conversion !== undefined ? (rx.conversion * f[rx.key]) / -rx.nu[rx.key] : rx.extent!;
+            let e = req[r];
+            let worst = -1;
+            for (let i = 0; i < n; i++) {
+              if (rx.nu[i] < 0) {
+                const need = -rx.nu[i] * e;
+                if (need > f[i] * (1 + SHORTFALL_TOL) + 1e-300) {
+                  const cap = f[i] / -rx.nu[i];
+                  if (cap < e || worst < 0) {
+                    if (worst < 0 && !problem) problem = shortfall(i, need, f[i], rx);
+                    e = Math.min(e, cap);
+                    worst = i;
+                  }
+                }
+              }
+            }
+            ext[r] = e;
+            for (let i = 0; i < n; i++) {
+              gen[i] += rx.nu[i] * e;
+              const v = f[i] + rx.nu[i] * e;
+              f[i] = v > 0 ? v : 0;
+            }
+          }
+        }
+        o.T = spec.T ?? (fSum > 0 ? tSum / fSum : ins[0].T);
+        o.P = spec.P ?? pMin;
+        o.vf = Number.NaN;
+      },
+      issue: () => problem,
+      generation: () => gen,
+      summary() {
+        return {
+          figures: spec.reactions.map((rx, r) => ({ label: `extent of ${rx.equation}`, value: ext[r], kind: 'molarFlow' as const, key: `extent.${r}` })),
+          notes: spec.T === undefined ? ['outlet T carried from the inlet (no energy balance yet)'] : [],
+          reactions: spec.reactions.map((rx, r) => ({
+            equation: rx.equation,
+            key: ids[rx.key],
+            extent: ext[r],
+            conversion: keyIn[r] > 0 ? (ext[r] * -rx.nu[rx.key]) / keyIn[r] : 0,
+            requested: rx.conversion,
+          })),
+        };
+      },
+    };
+  },
+};
+
+function fmt(v: number): string {
+  return Number(v.toPrecision(6)).toString();
+}

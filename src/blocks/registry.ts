@@ -1,0 +1,20 @@
+/** The unit blocks a file may use: adding a block is one file and one line here. */
+import type { BlockDef } from './types.js';
+import { mixer } from './mixer.js';
+import { reactor } from './reactor.js';
+import { condenser, flash } from './condenser.js';
+import { splitter } from './splitter.js';
+import { separator } from './separator.js';
+
+export const BLOCKS: Readonly<Record<string, BlockDef<any>>> = {
+  mixer,
+  reactor,
+  condenser,
+  flash,
+  splitter,
+  separator,
+};
+
+export function blockTypes(): string[] {
+  return Object.keys(BLOCKS);
+}

@@ -1,0 +1,84 @@
+/**
+ * Separator with fixed recoveries: the fraction of each component's inlet flow sent to each
+ * named outlet. One outlet may take the rest; a component not named for an outlet sends it
+ * nothing (or, for the `rest` outlet, the remainder).
+ */
+import type { UnitSpecBase } from '../flowsheet/model.js';
+import type { BlockDef, Stream } from './types.js';
+
+export interface SeparatorSpec extends UnitSpecBase {
+  type: 'separator';
+  /** recovery[k][i]: fraction of component i to outlet k. */
+  recovery: Float64Array[];
+  T?: number;
+  P?: number;
+}
+
+export const separator: BlockDef<SeparatorSpec> = {
+  type: 'separator',
+  description: 'sends a fixed fraction of each component to each outlet',
+  keys: ['in', 'out', 'T', 'P'],
+  read(name, f) {
+    const inlet = f.stream('in', { required: true });
+    const outs = f.outlets('out');
+    const T = f.quantity('T', 'temperature', { above: 0, example: '40 degC' });
+    const P = f.quantity('P', 'pressure', { above: 0, example: '29 barg' });
+    if (!inlet || !outs) return undefined;
+    const n = f.componentIds.length;
+    if (outs.length < 2) {
+      f.error('out', `separator \`${name}\` needs at least two outlets`, 'for example `out: { product: { CH3OH: 0.99 }, recycle: rest }`');
+      return undefined;
+    }
+    let rest = -1;
+    const recovery: Float64Array[] = [];
+    for (let k = 0; k < outs.length; k++) {
+      const o = outs[k];
+      if (o.value === 'rest') {
+        if (rest >= 0) {
+          o.report(`separator \`${name}\`: only one outlet may say \`rest\``);
+          return undefined;
+        }
+        rest = k;
+        recovery.push(new Float64Array(n));
+      } else if (typeof o.value === 'number') {
+        recovery.push(new Float64Array(n).fill(o.value));
+      } else {
+        recovery.push(o.value.map((v) => (Number.isNaN(v) ? 0 : v)));
+      }
+    }
+    for (let i = 0; i < n; i++) {
+      let s = 0;
+      for (let k = 0; k < outs.length; k++) if (k !== rest) s += recovery[k][i];
+      if (rest >= 0) {
+        if (s > 1 + 1e-12) {
+          f.error('out', `separator \`${name}\` sends ${Number(s.toPrecision(10))} of \`${f.componentIds[i]}\` to its outlets before \`rest\``, 'the recoveries of a component must add up to at most 1');
+          return undefined;
+        }
+        recovery[rest][i] = Math.max(0, 1 - s);
+      } else if (Math.abs(s - 1) > 1e-9) {
+        f.error('out', `the recoveries of \`${f.componentIds[i]}\` in separator \`${name}\` add up to ${Number(s.toPrecision(10))}, not 1`, 'make each component\'s recoveries add up to 1, or let one outlet take the `rest`');
+        return undefined;
+      }
+    }
+    return { name, type: 'separator', inlets: [inlet], outlets: outs.map((o) => o.stream), recovery, T, P };
+  },
+  build(spec) {
+    return {
+      spec,
+      compute(ins: readonly Stream[], outs: Stream[]) {
+        const s = ins[0];
+        const n = s.flows.length;
+        for (let k = 0; k < outs.length; k++) {
+          const o = outs[k];
+          const r = spec.recovery[k];
+          for (let i = 0; i < n; i++) o.flows[i] = r[i] * s.flows[i];
+          o.T = spec.T ?? s.T;
+          o.P = spec.P ?? s.P;
+          o.vf = Number.NaN;
+        }
+      },
+      issue: () => null,
+      summary: () => ({ figures: [], notes: [] }),
+    };
+  },
+};

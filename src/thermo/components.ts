@@ -1,0 +1,195 @@
+/**
+ * Built-in table of pure-component constants for the equations of state: molar mass,
+ * critical temperature, critical pressure and acentric factor of the gases and vapours met
+ * in gas-phase reaction loops (synthesis gas, ammonia, methanol, hydrogenation, oxidation).
+ *
+ * Values: Poling, Prausnitz and O'Connell, The Properties of Gases and Liquids, 5th ed.
+ * (McGraw-Hill, 2001), Appendix A (property data bank). The book could not be consulted
+ * while the table was written, so every row says "(from memory)" in its `source`; the
+ * tests cross-check the table against independent published values (IAPWS for water,
+ * textbook tables reproduced on public pages) with tolerances that catch transcription
+ * and unit slips, but they do not replace a check against the book itself.
+ *
+ * Rows are written in the book's units (g/mol, K, bar) and converted once, here, to SI
+ * (kg/mol, K, Pa). Molar masses agree with the formula and the IUPAC (CIAAW 2021) atomic
+ * weights to better than 0.05 % (checked by test/thermo/components.test.ts).
+ *
+ * Ids: the formula where it is unambiguous in this table ("CH4", "CH3OH"); a condensed
+ * structural formula where isomers share a formula ("CH3OCH3" vs "C2H5OH", "CH3CHO" vs
+ * ethylene oxide "C2H4O"); a prefix for alkane isomers ("nC4H10", "iC4H10"). The
+ * `formula` field is always parseable by parseFormula for element balances.
+ */
+import type { ComponentData } from './types.js';
+
+const POLING_5 =
+  "Poling, Prausnitz and O'Connell, The Properties of Gases and Liquids, 5th ed. (McGraw-Hill, 2001), Appendix A (from memory)";
+
+const BAR = 1e5; // Pa
+
+/** One row in handbook units (g/mol, K, bar) converted to SI. */
+function row(
+  id: string,
+  name: string,
+  formula: string,
+  M_gPerMol: number,
+  Tc_K: number,
+  Pc_bar: number,
+  omega: number,
+  source: string = POLING_5,
+): ComponentData {
+  return Object.freeze({
+    id,
+    name,
+    formula,
+    MW: M_gPerMol * 1e-3,
+    Tc: Tc_K,
+    Pc: Pc_bar * BAR,
+    omega,
+    source,
+  });
+}
+
+/** The built-in component table, in a fixed order (light gases, hydrocarbons, polar, sulfur/chlorine/nitrogen species, oxygenates, aromatics). */
+export const COMPONENTS: readonly ComponentData[] = Object.freeze([
+  //  id          name                 formula    M g/mol  Tc K     Pc bar   omega
+  row('H2', 'hydrogen', 'H2', 2.016, 33.19, 13.13, -0.216),
+  row('He', 'helium', 'He', 4.003, 5.19, 2.27, -0.39),
+  row('Ne', 'neon', 'Ne', 20.18, 44.4, 27.6, -0.029),
+  row('Ar', 'argon', 'Ar', 39.948, 150.86, 48.98, -0.002),
+  row('N2', 'nitrogen', 'N2', 28.014, 126.2, 33.98, 0.037),
+  row('O2', 'oxygen', 'O2', 31.999, 154.58, 50.43, 0.022),
+  row('CO', 'carbon monoxide', 'CO', 28.01, 132.85, 34.94, 0.045),
+  row('CO2', 'carbon dioxide', 'CO2', 44.01, 304.12, 73.74, 0.225),
+  row('CH4', 'methane', 'CH4', 16.043, 190.56, 45.99, 0.011),
+  row('C2H6', 'ethane', 'C2H6', 30.07, 305.32, 48.72, 0.099),
+  row('C2H4', 'ethylene', 'C2H4', 28.054, 282.34, 50.41, 0.087),
+  row('C2H2', 'acetylene', 'C2H2', 26.038, 308.3, 61.14, 0.189),
+  row('C3H8', 'propane', 'C3H8', 44.097, 369.83, 42.48, 0.152),
+  row('C3H6', 'propylene', 'C3H6', 42.081, 364.9, 46.0, 0.142),
+  row('nC4H10', 'n-butane', 'C4H10', 58.123, 425.12, 37.96, 0.2),
+  row('iC4H10', 'isobutane', 'C4H10', 58.123, 407.85, 36.4, 0.186),
+  row('nC5H12', 'n-pentane', 'C5H12', 72.15, 469.7, 33.7, 0.252),
+  row('iC5H12', 'isopentane', 'C5H12', 72.15, 460.39, 33.81, 0.229),
+  row('nC6H14', 'n-hexane', 'C6H14', 86.177, 507.6, 30.25, 0.3),
+  row('H2O', 'water', 'H2O', 18.015, 647.14, 220.64, 0.344),
+  row('NH3', 'ammonia', 'NH3', 17.031, 405.65, 112.8, 0.253),
+  row('CH3OH', 'methanol', 'CH3OH', 32.042, 512.64, 80.97, 0.565),
+  row('C2H5OH', 'ethanol', 'C2H5OH', 46.069, 513.92, 61.48, 0.649),
+  row('H2S', 'hydrogen sulfide', 'H2S', 34.082, 373.4, 89.63, 0.09),
+  row('SO2', 'sulfur dioxide', 'SO2', 64.065, 430.75, 78.84, 0.245),
+  row('SO3', 'sulfur trioxide', 'SO3', 80.064, 490.85, 82.1, 0.424),
+  row('COS', 'carbonyl sulfide', 'COS', 60.076, 378.8, 63.49, 0.097),
+  row('Cl2', 'chlorine', 'Cl2', 70.906, 416.9, 79.8, 0.09),
+  row('HCl', 'hydrogen chloride', 'HCl', 36.461, 324.65, 83.09, 0.131),
+  row('N2O', 'nitrous oxide', 'N2O', 44.013, 309.57, 72.45, 0.142),
+  row('NO', 'nitric oxide', 'NO', 30.006, 180.15, 64.8, 0.583),
+  row('C2H4O', 'ethylene oxide', 'C2H4O', 44.053, 469.15, 71.9, 0.197),
+  row('CH3CHO', 'acetaldehyde', 'CH3CHO', 44.053, 466.0, 55.7, 0.291),
+  row('CH3COOH', 'acetic acid', 'CH3COOH', 60.053, 592.0, 57.86, 0.467),
+  row('CH2O', 'formaldehyde', 'CH2O', 30.026, 408.0, 65.9, 0.282),
+  row('CH3OCH3', 'dimethyl ether', 'CH3OCH3', 46.069, 400.1, 53.7, 0.2),
+  row('C6H6', 'benzene', 'C6H6', 78.114, 562.05, 48.95, 0.21),
+  row('C7H8', 'toluene', 'C7H8', 92.141, 591.75, 41.08, 0.264),
+  row('C6H12', 'cyclohexane', 'C6H12', 84.161, 553.5, 40.73, 0.211),
+]);
+
+/** Extra names accepted by findComponent besides each row's `name` (matched case-insensitively). */
+const EXTRA_NAMES: Readonly<Record<string, string>> = Object.freeze({
+  butane: 'nC4H10',
+  'normal butane': 'nC4H10',
+  'i-butane': 'iC4H10',
+  '2-methylpropane': 'iC4H10',
+  pentane: 'nC5H12',
+  'i-pentane': 'iC5H12',
+  '2-methylbutane': 'iC5H12',
+  hexane: 'nC6H14',
+  ethene: 'C2H4',
+  ethyne: 'C2H2',
+  propene: 'C3H6',
+  'methyl alcohol': 'CH3OH',
+  'ethyl alcohol': 'C2H5OH',
+  'hydrogen sulphide': 'H2S',
+  'sulphur dioxide': 'SO2',
+  'sulphur trioxide': 'SO3',
+  'carbonyl sulphide': 'COS',
+  'dinitrogen monoxide': 'N2O',
+  'nitrogen monoxide': 'NO',
+  oxirane: 'C2H4O',
+  ethanal: 'CH3CHO',
+  'ethanoic acid': 'CH3COOH',
+  methanal: 'CH2O',
+  methoxymethane: 'CH3OCH3',
+  methylbenzene: 'C7H8',
+});
+
+/** id -> row, and lower-case name -> row; built once from the frozen table. */
+const BY_ID: ReadonlyMap<string, ComponentData> = new Map(COMPONENTS.map((c) => [c.id, c]));
+const BY_NAME: ReadonlyMap<string, ComponentData> = (() => {
+  const m = new Map<string, ComponentData>();
+  const put = (name: string, c: ComponentData): void => {
+    const key = name.toLowerCase();
+    const had = m.get(key);
+    if (had && had !== c) throw new Error(`component table: name "${name}" is used by ${had.id} and ${c.id}`);
+    m.set(key, c);
+  };
+  for (const c of COMPONENTS) put(c.name, c);
+  for (const [name, id] of Object.entries(EXTRA_NAMES)) {
+    const c = BY_ID.get(id);
+    if (!c) throw new Error(`component table: alias "${name}" points to unknown id ${id}`);
+    put(name, c);
+  }
+  return m;
+})();
+
+/**
+ * The row for an id (exact, case-sensitive: "CO" and "Co" differ), or for a name such as
+ * "hydrogen", "n-butane", "Methanol" (case-insensitive). undefined when nothing matches.
+ */
+export function findComponent(id: string): ComponentData | undefined {
+  return BY_ID.get(id) ?? BY_NAME.get(id.trim().toLowerCase());
+}
+
+/** All ids in table order (a fresh array). */
+export function componentIds(): string[] {
+  return COMPONENTS.map((c) => c.id);
+}
+
+/**
+ * Levenshtein edit distance (insertions, deletions, substitutions each cost 1), computed
+ * with the two-row dynamic programme of Wagner and Fischer, J. ACM 21 (1974) 168-173.
+ */
+function editDistance(a: string, b: string): number {
+  if (a === b) return 0;
+  let prev = new Array<number>(b.length + 1);
+  let cur = new Array<number>(b.length + 1);
+  for (let j = 0; j <= b.length; j++) prev[j] = j;
+  for (let i = 1; i <= a.length; i++) {
+    cur[0] = i;
+    for (let j = 1; j <= b.length; j++) {
+      const sub = prev[j - 1] + (a[i - 1] === b[j - 1] ? 0 : 1);
+      cur[j] = Math.min(sub, prev[j] + 1, cur[j - 1] + 1);
+    }
+    [prev, cur] = [cur, prev];
+  }
+  return prev[b.length];
+}
+
+/**
+ * The k ids closest to `id` for "did you mean" messages. Distance is the smaller of the
+ * edit distance to the id and (case-insensitively) to the row's name; a difference in
+ * letter case only counts half so that "co2" suggests "CO2" first. Ties keep table order.
+ */
+export function nearestComponentIds(id: string, k = 3): string[] {
+  if (!(k > 0)) return [];
+  const q = id.trim();
+  const ql = q.toLowerCase();
+  const scored = COMPONENTS.map((c, order) => {
+    const exact = editDistance(q, c.id);
+    const folded = editDistance(ql, c.id.toLowerCase());
+    const byId = Math.min(exact, folded + 0.5 * (exact - folded > 0 ? 1 : 0));
+    const byName = editDistance(ql, c.name.toLowerCase());
+    return { id: c.id, d: Math.min(byId, byName), order };
+  });
+  scored.sort((x, y) => x.d - y.d || x.order - y.order);
+  return scored.slice(0, Math.floor(k)).map((s) => s.id);
+}

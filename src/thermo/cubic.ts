@@ -1,0 +1,74 @@
+/**
+ * Real roots of the monic cubic Z^3 + c2 Z^2 + c1 Z + c0 = 0.
+ *
+ * Method: reduce to the depressed cubic t^3 + p t + q = 0 with Z = t - c2/3, then
+ *  - one real root (discriminant D = (q/2)^2 + (p/3)^3 > 0): Cardano's formula written in the
+ *    cancellation-free form u = cbrt(-q/2 - sign(q) sqrt(D)), t = u - p/(3u);
+ *  - three real roots (D <= 0): Viete's trigonometric form
+ *    t_k = 2 sqrt(-p/3) cos( (1/3) acos( (3q/(2p)) sqrt(-3/p) ) - 2 pi k / 3 ), k = 0, 1, 2.
+ * (e.g. Press, Teukolsky, Vetterling and Flannery, Numerical Recipes, 3rd ed., section 5.6.)
+ * Each real root is then polished by Newton's method on the original cubic until the relative
+ * step is at most 1e-12 (or the step stops shrinking), which removes the rounding error of the
+ * closed forms near double roots and for widely separated roots.
+ */
+
+const TWO_PI_3 = (2 * Math.PI) / 3;
+
+/** Newton-polish one root of the monic cubic. */
+export function polishCubicRoot(c2: number, c1: number, c0: number, z: number): number {
+  for (let it = 0; it < 8; it++) {
+    const f = ((z + c2) * z + c1) * z + c0;
+    const df = (3 * z + 2 * c2) * z + c1;
+    if (df === 0 || !Number.isFinite(df)) break;
+    const dz = f / df;
+    z -= dz;
+    if (Math.abs(dz) <= 1e-12 * Math.max(Math.abs(z), 1e-300)) break;
+  }
+  return z;
+}
+
+/**
+ * Writes the real roots, ascending, to out[0..k-1] and returns k (1 or 3). With three real
+ * roots of which two coincide (D = 0 exactly), the double root is written twice.
+ * Allocation-free.
+ */
+export function solveCubic(c2: number, c1: number, c0: number, out: Float64Array): 1 | 3 {
+  const s = c2 / 3;
+  const p = c1 - c2 * s;
+  const q = ((2 * s * s - c1) * s) + c0; // = 2 c2^3/27 - c1 c2/3 + c0
+  const D = 0.25 * q * q + (p * p * p) / 27;
+  if (D > 0) {
+    const sq = Math.sqrt(D);
+    const u = Math.cbrt(q >= 0 ? -0.5 * q - sq : -0.5 * q + sq);
+    const t = u === 0 ? 0 : u - p / (3 * u);
+    out[0] = polishCubicRoot(c2, c1, c0, t - s);
+    return 1;
+  }
+  if (p === 0) {
+    // triple root (q = 0 as well since D <= 0)
+    const z = -s;
+    out[0] = z;
+    out[1] = z;
+    out[2] = z;
+    return 3;
+  }
+  const r = Math.sqrt(-p / 3);
+  let arg = (1.5 * q) / (p * r); // = (3q/(2p)) sqrt(-3/p)
+  if (arg > 1) arg = 1;
+  else if (arg < -1) arg = -1;
+  const phi = Math.acos(arg) / 3;
+  const twoR = 2 * r;
+  // phi is in [0, pi/3]: k = 0 gives the largest, k = 1 the middle, k = 2 the smallest root
+  let z3 = polishCubicRoot(c2, c1, c0, twoR * Math.cos(phi) - s);
+  let z2 = polishCubicRoot(c2, c1, c0, twoR * Math.cos(phi - TWO_PI_3) - s);
+  let z1 = polishCubicRoot(c2, c1, c0, twoR * Math.cos(phi - 2 * TWO_PI_3) - s);
+  // sort ascending (polishing near a double root can swap neighbours)
+  let tmp: number;
+  if (z1 > z2) { tmp = z1; z1 = z2; z2 = tmp; }
+  if (z2 > z3) { tmp = z2; z2 = z3; z3 = tmp; }
+  if (z1 > z2) { tmp = z1; z1 = z2; z2 = tmp; }
+  out[0] = z1;
+  out[1] = z2;
+  out[2] = z3;
+  return 3;
+}

@@ -1,0 +1,54 @@
+/** Shared thermodynamic types. SI throughout: K, Pa, kg/mol, m3/mol. */
+
+/** Constants of one component, as the equations of state need them. */
+export interface ComponentData {
+  /** Identifier used in flowsheet files, e.g. "H2", "CH3OH", "nC4H10". */
+  id: string;
+  name: string;
+  /** Hill-style or condensed formula parsed for element balances, e.g. "CH3OH". */
+  formula: string;
+  /** Molar mass, kg/mol. */
+  MW: number;
+  /** Critical temperature, K. */
+  Tc: number;
+  /** Critical pressure, Pa. */
+  Pc: number;
+  /** Acentric factor (dimensionless). */
+  omega: number;
+  /** Where the row comes from (author, title, edition, table), "(from memory)" where recalled. */
+  source: string;
+}
+
+export type EosName = 'SRK' | 'PR' | 'ideal';
+
+/** Which root of the cubic to take. 'stable' takes the one with the lower Gibbs energy. */
+export type RootChoice = 'vapor' | 'liquid' | 'stable';
+
+export interface RootResult {
+  /** Compressibility factor of the chosen root. */
+  Z: number;
+  /** Which root it is: the largest ('vapor') or the smallest ('liquid'); 'vapor' when there is one real root and it is gas-like. */
+  root: 'vapor' | 'liquid';
+  /** Number of real roots above B (1 or 3). */
+  nRoots: 1 | 3;
+  /** Dimensionless mixture parameters of the cubic. */
+  A: number;
+  B: number;
+}
+
+/**
+ * An equation of state prepared for one set of components (constants that do not change with
+ * T, P or composition are computed once). Every method is allocation-free in its hot path when
+ * the caller passes the output arrays.
+ */
+export interface Eos {
+  readonly name: EosName;
+  readonly n: number;
+  readonly components: readonly ComponentData[];
+  /** Compressibility factor of composition x (mole fractions, length n) at T (K), P (Pa). */
+  z(T: number, P: number, x: ArrayLike<number>, which?: RootChoice): RootResult;
+  /** Molar volume, m3/mol. */
+  molarVolume(T: number, P: number, x: ArrayLike<number>, which?: RootChoice): number;
+  /** ln of the fugacity coefficients of every component, written to out; returns the root used. */
+  lnPhi(T: number, P: number, x: ArrayLike<number>, which: RootChoice, out: Float64Array): RootResult;
+}

@@ -1,0 +1,29 @@
+/** Units at the edges of loopclose: quantity parsing, display conversion, standard volume flows. */
+export {
+  parseQuantity,
+  acceptedUnits,
+  toUnit,
+  fromUnit,
+  clearUnitCache,
+  UnitError,
+  STANDARD_ATMOSPHERE,
+} from './quantity.js';
+export type { Dimension, Quantity, UnitContext, UnitErrorKind } from './quantity.js';
+export {
+  R_GAS,
+  PSI,
+  NORMAL,
+  STANDARD_ISO,
+  STANDARD_US,
+  BUILTIN_STANDARDS,
+  defineStandard,
+  standardsWith,
+  findStandard,
+  idealMolarVolume,
+  molarFlowFromStandard,
+  standardFromMolarFlow,
+  convertStandard,
+  matchStandardSpelling,
+  STANDARD_SPELLINGS,
+} from './standard.js';
+export type { StandardRef, StandardSpelling } from './standard.js';
