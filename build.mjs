@@ -2,7 +2,9 @@
 // `loopclose` short: only the parts of mathjs that the unit parser uses are loaded.
 import { build } from 'esbuild';
 
-const common = { bundle: true, platform: 'node', format: 'esm', target: 'node20', sourcemap: true, logLevel: 'warning' };
+// CommonJS dependencies (commander) call require(); give the ESM bundle one.
+const banner = { js: "import { createRequire as __loopcloseRequire } from 'node:module'; const require = __loopcloseRequire(import.meta.url);" };
+const common = { bundle: true, platform: 'node', format: 'esm', target: 'node20', sourcemap: true, logLevel: 'warning', banner };
 await build({ ...common, entryPoints: ['src/cli/main.ts'], outfile: 'dist/cli.mjs' });
 await build({ ...common, entryPoints: ['src/index.ts'], outfile: 'dist/index.mjs', packages: 'external' });
-await build({ ...common, entryPoints: ['src/study/worker.ts'], outfile: 'dist/worker.mjs' }).catch(() => {});
+

@@ -16,6 +16,8 @@ export {
   STANDARD_ISO,
   STANDARD_US,
   BUILTIN_STANDARDS,
+  STANDARD_REFERENCES,
+  REFERENCE_NAME,
   defineStandard,
   standardsWith,
   findStandard,

@@ -271,7 +271,7 @@ function mathUnit(u: string): Unit | undefined {
  * the parts' SI values (kmol/h: 1000/3600 and 3600/1000), so toUnit(1, 'molarFlow', 'kmol/h') is
  * exactly 3.6 rather than 1/(1/3.6).
  */
-function factors(source: string, full: Unit): { factor: number; inverse: number } {
+function factors(source: string): { factor: number; inverse: number } {
   const parts = source.split('/');
   if (parts.length === 2 && !/[()]/.test(source)) {
     const num = mathUnit(parts[0]);
@@ -283,7 +283,6 @@ function factors(source: string, full: Unit): { factor: number; inverse: number 
     }
   }
   const f = math().unit(1, source).value;
-  void full;
   return { factor: f, inverse: 1 / f };
 }
 
@@ -301,7 +300,7 @@ function classifyMath(u: Unit, source: string): UnitInfo {
     return { kind: 'si', dimension, factor: f, inverse: inv, offset: o, gauge: false };
   }
   // Without an offset, mathjs keeps a unit's value in SI base units (kg, m, s, mol, K).
-  return { kind: 'si', dimension, ...factors(source, u), offset: 0, gauge: false };
+  return { kind: 'si', dimension, ...factors(source), offset: 0, gauge: false };
 }
 
 const GAUGE_RE = /^(.+?)\s*(?:\(g\)|\(a\)|\s+g|\s+a|g|a)$/;
@@ -310,13 +309,13 @@ const GAUGE_RE = /^(.+?)\s*(?:\(g\)|\(a\)|\s+g|\s+a|g|a)$/;
 function classify(unit: string): UnitInfo {
   if (unit === '%') return { kind: 'si', dimension: 'dimensionless', factor: 0.01, inverse: 100, offset: 0, gauge: false };
   if (unit === 'ppm') return { kind: 'si', dimension: 'dimensionless', factor: 1e-6, inverse: 1e6, offset: 0, gauge: false };
-  for (const word of unit.match(/[A-Za-z]+/g) ?? []) {
+  for (const word of toMathSyntax(unit).match(/[A-Za-z]+/g) ?? []) {
     if (Object.hasOwn(AMBIGUOUS, word)) return { kind: 'unknown', help: AMBIGUOUS[word] };
   }
 
   // Standard volume flow: fixed spellings, or "<actual volume flow>@<reference name>".
   const spelled = matchStandardSpelling(unit);
-  if (spelled) return { kind: 'standard', factor: spelled.factor, inverse: 1 / spelled.factor, refName: spelled.refName };
+  if (spelled) return { kind: 'standard', factor: spelled.factor, inverse: spelled.inverse, refName: spelled.refName };
   const at = /^(.*?)\s*@\s*([A-Za-z][A-Za-z0-9_.-]*)$/.exec(unit);
   if (at) {
     const vol = unitInfo(at[1]);

@@ -62,7 +62,13 @@ export const BUILTIN_STANDARDS: ReadonlyMap<string, StandardRef> = new Map(
   [NORMAL, STANDARD_ISO, STANDARD_US].map((r) => [r.name, r] as const),
 );
 
-const NAME_RE = /^[A-Za-z][A-Za-z0-9_.-]*$/;
+/** The built-in references as a record: { normal, standard, 'us-standard' }. */
+export const STANDARD_REFERENCES: Readonly<Record<string, StandardRef>> = Object.freeze(
+  Object.fromEntries(BUILTIN_STANDARDS),
+);
+
+/** Names that can be written after "@" in a unit, e.g. "m3/h@plant". */
+export const REFERENCE_NAME = /^[A-Za-z][A-Za-z0-9_.-]*$/;
 
 function fmt(x: number): string {
   return String(Number(x.toPrecision(6)));
@@ -70,16 +76,13 @@ function fmt(x: number): string {
 
 /**
  * A named reference defined by the flowsheet file, e.g. defineStandard('contract', { T: 288.706, P: 101560 }).
- * The caller parses T and P with units; this checks they are usable (finite, positive) and the
- * name can be written after "@" in a unit ("1200 m3/h@contract").
- * Throws RangeError for a bad name or a non-positive or non-finite T or P.
+ * The caller parses T and P with units and checks them; this guards that they are usable
+ * (finite, positive). Only names matching REFERENCE_NAME can be written after "@" in a unit
+ * ("1200 m3/h@contract"); others can still be referred to by the caller.
+ * Throws RangeError for an empty name or a non-positive or non-finite T or P.
  */
 export function defineStandard(name: string, ref: { T: number; P: number }, label?: string): StandardRef {
-  if (!NAME_RE.test(name)) {
-    throw new RangeError(
-      `standard reference name "${name}" must start with a letter and use only letters, digits, "_", "." or "-"`,
-    );
-  }
+  if (name.trim() === '') throw new RangeError('a standard reference needs a name');
   if (!Number.isFinite(ref.T) || ref.T <= 0) {
     throw new RangeError(`standard reference "${name}": temperature must be a positive absolute temperature, got ${ref.T} K`);
   }
@@ -144,6 +147,12 @@ export interface StandardSpelling {
   refName: string;
   /** (m3/s at the reference) per (1 unit as written). */
   factor: number;
+  /** 1/factor, formed as (s per time unit) / (m3 per volume unit) so it is exact where the parts are. */
+  inverse: number;
+}
+
+function spelling(refName: string, m3: number, seconds: number): StandardSpelling {
+  return { refName, factor: m3 / seconds, inverse: seconds / m3 };
 }
 
 /** Seconds per time unit (exact). */
@@ -162,18 +171,18 @@ export function matchStandardSpelling(unit: string): StandardSpelling | undefine
   if (m) {
     const vol = m[2] === 'm3' ? 1 : 1e-3;
     if (m[1] === 'S' && vol !== 1) return undefined; // "SL" is not a common spelling; keep to Sm3
-    return { refName: m[1] === 'N' ? NORMAL.name : STANDARD_ISO.name, factor: vol / TIME[m[3]] };
+    return spelling(m[1] === 'N' ? NORMAL.name : STANDARD_ISO.name, vol, TIME[m[3]]);
   }
   m = /^(MM)?SCF([MHD])$/i.exec(u);
   if (m) {
     const t = { M: 60, H: 3600, D: 86400 }[m[2].toUpperCase() as 'M' | 'H' | 'D'];
-    return { refName: STANDARD_US.name, factor: ((m[1] ? 1e6 : 1) * FT ** 3) / t };
+    return spelling(STANDARD_US.name, (m[1] ? 1e6 : 1) * FT ** 3, t);
   }
   m = /^(MM)?SCF\/(s|min|h|hr|d|day)$/i.exec(u);
   if (m) {
     const t = TIME[m[2].toLowerCase()];
     if (t === undefined) return undefined;
-    return { refName: STANDARD_US.name, factor: ((m[1] ? 1e6 : 1) * FT ** 3) / t };
+    return spelling(STANDARD_US.name, (m[1] ? 1e6 : 1) * FT ** 3, t);
   }
   return undefined;
 }

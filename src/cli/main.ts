@@ -1,0 +1,95 @@
+/** The loopclose command line. */
+import { Command, CommanderError } from 'commander';
+import { InputError, formatDiagnostics } from '../diagnostics.js';
+import { EXIT, exitCodeOf } from './exit.js';
+import { writeErr, writeFileAtomic, writeOut } from './io.js';
+import { runMeter } from './meter.js';
+import { runSolve } from './solve.js';
+import { readFileSync } from 'node:fs';
+
+const VERSION = '0.1.0';
+
+async function reportError(e: unknown, debug: boolean): Promise<number> {
+  if (e instanceof InputError) {
+    const sources = new Map<string, string>();
+    for (const d of e.diagnostics) {
+      const f = d.span?.file;
+      if (f && !sources.has(f)) {
+        try {
+          sources.set(f, readFileSync(f, 'utf8'));
+        } catch {
+          /* the message stands without the source line */
+        }
+      }
+    }
+    const errors = e.diagnostics.filter((d) => d.severity === 'error').length;
+    await writeErr(`${formatDiagnostics(e.diagnostics, sources)}\n\n${errors} error${errors === 1 ? '' : 's'}; nothing was computed.`);
+    return EXIT.input;
+  }
+  const msg = e instanceof Error ? e.message : String(e);
+  await writeErr(debug && e instanceof Error && e.stack ? `internal error: ${e.stack}` : `internal error: ${msg} (run again with --debug for details, and report it)`);
+  return EXIT.internal;
+}
+
+async function emit(text: string, out?: string): Promise<void> {
+  if (out) writeFileAtomic(out, text.endsWith('\n') ? text : `${text}\n`);
+  else await writeOut(text);
+}
+
+export async function main(argv: string[]): Promise<void> {
+  const debug = argv.includes('--debug');
+  let code: number = EXIT.ok;
+  const program = new Command();
+  program
+    .name('loopclose')
+    .description('Steady state of gas-phase reaction loops from one YAML file.')
+    .version(VERSION)
+    .option('--debug', 'show details of internal errors')
+    .exitOverride()
+    .configureOutput({ writeErr: (s) => process.stderr.write(s) });
+
+  program
+    .command('meter')
+    .description('convert gas-meter readings to molar flows with a real-gas equation of state')
+    .argument('[file]', 'flowsheet file whose feeds are converted')
+    .option('--json', 'print the result as JSON in SI units')
+    .option('--gas <fractions>', 'one reading: mole fractions, e.g. "H2=0.985,N2=0.015"')
+    .option('--flow <quantity>', 'actual volume flow at the meter, e.g. "12.6 m3/h"')
+    .option('--pressure <quantity>', 'line pressure, e.g. "30 barg"')
+    .option('--temperature <quantity>', 'line temperature, e.g. "35 degC"')
+    .option('--eos <name>', 'SRK, PR or ideal')
+    .option('--atmosphere <quantity>', 'local atmosphere for gauge readings (default 101.325 kPa)')
+    .option('--flow-unit <unit>', 'display unit of molar flows')
+    .option('--out <file>', 'write the report to a file')
+    .action(async (file: string | undefined, o) => {
+      await emit(runMeter(file, o), o.out);
+    });
+
+  program
+    .command('solve')
+    .description('solve a flowsheet: stream table, units, loop figures and balance closure')
+    .argument('<file>', 'flowsheet file')
+    .option('--json', 'print the result as JSON in SI units')
+    .option('--csv', 'print the stream table as CSV')
+    .option('--method <name>', 'direct, wegstein, newton or auto (Wegstein, then Newton)')
+    .option('--flow-unit <unit>', 'display unit of molar flows, e.g. kmol/h')
+    .option('--max-passes <n>', 'budget of flowsheet passes')
+    .option('--tolerance <rtol>', 'relative tolerance on every tear variable (default 1e-10)')
+    .option('--out <file>', 'write the report to a file')
+    .action(async (file: string, o) => {
+      const { text, result } = runSolve(file, o);
+      await emit(text, o.out);
+      code = exitCodeOf(result.status);
+    });
+
+  try {
+    await program.parseAsync(argv);
+  } catch (e) {
+    if (e instanceof CommanderError) {
+      code = e.exitCode === 0 ? EXIT.ok : EXIT.input;
+    } else {
+      code = await reportError(e, debug);
+    }
+  }
+  process.exitCode = code;
+}

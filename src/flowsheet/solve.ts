@@ -1,0 +1,238 @@
+/**
+ * Solving a flowsheet: the tear streams' component flows, T and P are the unknowns of a
+ * fixed-point problem x = g(x), one full pass of the calculation order per evaluation.
+ * The result is never a solution unless it converged with every flow non-negative and
+ * every reactor able to meet its specification.
+ */
+import { solveFixedPoint } from '../solve/index.js';
+import type { FixedPointProblem, MethodName, SolveResult, Status, EvaluationFailure, HistoryEntry } from '../solve/types.js';
+import type { FeedResult } from '../blocks/feed.js';
+import type { Stream, UnitSummary } from '../blocks/types.js';
+import { computeBalance, type Balance } from './balance.js';
+import { buildRuntime, type Runtime } from './runtime.js';
+import type { Model } from './model.js';
+import type { Eos } from '../thermo/types.js';
+
+export interface SolveFlowsheetOptions {
+  method?: MethodName;
+  rtol?: number;
+  maxPasses?: number;
+  /** Start from these tear values (length tears * (n + 2)), e.g. a neighbour's solution. */
+  start?: Float64Array;
+  eos?: Eos;
+  /** Reuse a built runtime (sweeps): blocks and streams are reset and recomputed. */
+  runtime?: Runtime;
+}
+
+export interface StreamResult {
+  flows: Float64Array;
+  total: number;
+  fractions: Float64Array;
+  T: number;
+  P: number;
+  vaporFraction: number;
+  /** kg/s */
+  massFlow: number;
+}
+
+export interface LoopFigures {
+  /** Recycle streams (closing a loop into a unit that also takes fresh material). */
+  recycles: string[];
+  /** Total recycle / total fresh feed (molar). */
+  recycleRatio: number;
+  freshFeed: number;
+  /** Per key reactant: single-pass conversion (in its reactor) and overall (fresh feed to products). */
+  conversions: Record<string, { unit: string; singlePass: number; overall: number }>;
+}
+
+export interface FlowsheetResult {
+  status: Status;
+  method: string;
+  passes: number;
+  iterations: number;
+  jacobians: number;
+  residual: number;
+  scaledResidual: number;
+  history: HistoryEntry[];
+  message?: string;
+  failure?: EvaluationFailure;
+  /** Largest residuals at the end (not-converged). */
+  worst?: SolveResult['worst'];
+  tears: string[];
+  order: string[];
+  loops: string[][];
+  feeds: FeedResult[];
+  streams: Map<string, StreamResult>;
+  streamOrder: string[];
+  products: string[];
+  units: Map<string, UnitSummary & { type: string }>;
+  balance: Balance;
+  loop: LoopFigures;
+  /** The converged tear vector (to start a neighbour). */
+  x: Float64Array;
+  warnings: string[];
+  model: Model;
+}
+
+export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): FlowsheetResult {
+  const rt = opts.runtime ?? buildRuntime(model, opts.eos);
+  for (const b of rt.blocks) b.reset?.();
+  const { n } = rt;
+  const T = rt.tearStreams.length;
+  const m = rt.perTear;
+  const N = T * m;
+  const rtol = opts.rtol ?? model.solver.rtol;
+  let feedTotal = 0;
+  for (const f of rt.feeds) feedTotal += f.molarFlow;
+  const warnings: string[] = [...model.warnings.map((w) => w.message), ...rt.feeds.flatMap((f) => f.warnings)];
+
+  let result: SolveResult;
+  if (N === 0) {
+    rt.pass();
+    result = { status: 'converged', method: 'sequential', x: new Float64Array(0), residual: 0, scaledResidual: 0, passes: 1, iterations: 0, jacobians: 0, history: [] };
+  } else {
+    const x0 = new Float64Array(N);
+    if (opts.start && opts.start.length === N) x0.set(opts.start);
+    else {
+      for (let t = 0; t < T; t++) {
+        x0[t * m + n] = rt.tearStreams[t].T;
+        x0[t * m + n + 1] = rt.tearStreams[t].P;
+      }
+    }
+    const lower = new Float64Array(N);
+    const atol = new Float64Array(N);
+    const names: string[] = [];
+    for (let t = 0; t < T; t++) {
+      for (let i = 0; i < n; i++) {
+        atol[t * m + i] = Math.max(1e-300, feedTotal * 1e-15);
+        names.push(`${rt.plan.tears[t]}.${model.ids[i]}`);
+      }
+      lower[t * m + n] = 1e-6;
+      lower[t * m + n + 1] = 1e-6;
+      atol[t * m + n] = 1e-9;
+      atol[t * m + n + 1] = 1e-6;
+      names.push(`${rt.plan.tears[t]}.T`, `${rt.plan.tears[t]}.P`);
+    }
+    const problem: FixedPointProblem = {
+      n: N,
+      x0,
+      lower,
+      atol,
+      names,
+      g(x, out) {
+        setTears(rt, x);
+        rt.pass();
+        readTears(rt, out);
+      },
+    };
+    result = solveFixedPoint(problem, opts.method ?? model.solver.method, { rtol, maxPasses: opts.maxPasses ?? model.solver.maxPasses });
+    // Leave every stream at the final iterate.
+    setTears(rt, result.x);
+    rt.pass();
+    result.passes += 1;
+  }
+
+  let status: Status = result.status;
+  let message = result.message;
+  let failure = result.failure;
+  if (status === 'converged') {
+    const issues = rt.issues();
+    if (issues.length > 0) {
+      const first = issues[0].failure;
+      status = first.kind === 'infeasible' ? 'infeasible' : 'not-converged';
+      failure = first;
+      message = first.message;
+    } else {
+      const neg = negativeFlow(rt);
+      if (neg) {
+        status = 'infeasible';
+        message = neg;
+        failure = { kind: 'infeasible', message: neg };
+      }
+    }
+  } else if (status === 'not-converged') {
+    const issues = rt.issues();
+    if (issues.length > 0 && issues[0].failure.kind === 'infeasible') {
+      // The loop drifted towards a state that needs more reactant than exists.
+      message = `${result.message ?? 'not converged'}; in the last pass: ${issues[0].failure.message}`;
+    }
+  }
+
+  const streams = new Map<string, StreamResult>();
+  for (const name of rt.streamOrder) streams.set(name, streamResult(rt, rt.streams.get(name)!));
+  const units = new Map<string, UnitSummary & { type: string }>();
+  for (const { block, ins, outs } of rt.sequence) units.set(block.spec.name, { type: block.spec.type, ...block.summary(ins, outs) });
+  for (const b of rt.blocks) if (!units.has(b.spec.name)) units.set(b.spec.name, { type: b.spec.type, figures: [], notes: [] });
+  const balance = computeBalance(rt);
+  const loop = loopFigures(rt, streams, balance, feedTotal);
+  return {
+    status, method: result.method, passes: result.passes, iterations: result.iterations, jacobians: result.jacobians,
+    residual: result.residual, scaledResidual: result.scaledResidual, history: result.history, message, failure, worst: result.worst,
+    tears: rt.plan.tears, order: rt.plan.order, loops: rt.plan.loops,
+    feeds: rt.feeds, streams, streamOrder: rt.streamOrder, products: rt.products, units, balance, loop,
+    x: Float64Array.from(result.x), warnings, model,
+  };
+}
+
+function setTears(rt: Runtime, x: Float64Array): void {
+  const { n, perTear: m } = rt;
+  rt.tearStreams.forEach((s, t) => {
+    for (let i = 0; i < n; i++) s.flows[i] = x[t * m + i];
+    s.T = x[t * m + n];
+    s.P = x[t * m + n + 1];
+  });
+}
+
+function readTears(rt: Runtime, out: Float64Array): void {
+  const { n, perTear: m } = rt;
+  rt.tearStreams.forEach((s, t) => {
+    for (let i = 0; i < n; i++) out[t * m + i] = s.flows[i];
+    out[t * m + n] = s.T;
+    out[t * m + n + 1] = s.P;
+  });
+}
+
+function negativeFlow(rt: Runtime): string | undefined {
+  for (const name of rt.streamOrder) {
+    const s = rt.streams.get(name)!;
+    for (let i = 0; i < rt.n; i++) {
+      if (!(s.flows[i] >= 0)) return `stream \`${name}\` would need a ${Number.isNaN(s.flows[i]) ? 'undefined' : 'negative'} flow of ${rt.model.ids[i]}`;
+    }
+  }
+  return undefined;
+}
+
+function streamResult(rt: Runtime, s: Stream): StreamResult {
+  let total = 0;
+  let mass = 0;
+  for (let i = 0; i < rt.n; i++) {
+    total += s.flows[i];
+    mass += s.flows[i] * rt.model.components[i].MW;
+  }
+  const fractions = new Float64Array(rt.n);
+  if (total > 0) for (let i = 0; i < rt.n; i++) fractions[i] = s.flows[i] / total;
+  return { flows: Float64Array.from(s.flows), total, fractions, T: s.T, P: s.P, vaporFraction: s.vf, massFlow: mass };
+}
+
+function loopFigures(rt: Runtime, streams: Map<string, StreamResult>, balance: Balance, feedTotal: number): LoopFigures {
+  const recycleTotal = rt.recycles.reduce((a, s) => a + (streams.get(s)?.total ?? 0), 0);
+  const conversions: LoopFigures['conversions'] = {};
+  for (const u of rt.model.units) {
+    if (u.type !== 'reactor') continue;
+    const summary = rt.byName.get(u.name)!.summary([], []);
+    const ins = u.inlets.map((s) => streams.get(s)!);
+    for (const rx of summary.reactions ?? []) {
+      const i = rt.model.index.get(rx.key)!;
+      const keyIn = ins.reduce((a, s) => a + s.flows[i], 0);
+      const cb = balance.components[rx.key];
+      const prev = conversions[rx.key];
+      const consumed = (prev && prev.unit === u.name ? prev.singlePass * keyIn : 0) + rx.conversion * (keyIn > 0 ? keyIn : 0);
+      conversions[rx.key] = {
+        unit: u.name,
+        singlePass: keyIn > 0 ? consumed / keyIn : 0,
+        overall: cb.in > 0 ? (cb.in - cb.out) / cb.in : 0,
+      };
+    }
+  }
+  return { recycles: rt.recycles, recycleRatio: feedTotal > 0 ? recycleTotal / feedTotal : 0, freshFeed: feedTotal, conversions };
+}

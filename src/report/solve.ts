@@ -1,0 +1,178 @@
+/**
+ * Reporters for `loopclose solve`: the status first, then (only for a converged state) the
+ * stream table, the units, the loop figures and the balance. A state that is not a solution
+ * is shown as a diagnosis, never as a stream table.
+ */
+import type { FlowsheetResult } from '../flowsheet/solve.js';
+import { toUnit } from '../units/index.js';
+import { CAUTION, csvLine, num, pct, table, toJson } from './format.js';
+
+export interface SolveReportOptions {
+  flowUnit?: string;
+}
+
+function record(ids: string[], a: Float64Array): Record<string, number> {
+  const o: Record<string, number> = {};
+  ids.forEach((id, i) => (o[id] = a[i]));
+  return o;
+}
+
+/** The result in SI as a plain object (the JSON output and the basis of study outputs). */
+export function resultObject(r: FlowsheetResult): Record<string, unknown> {
+  const ids = r.model.ids;
+  const ok = r.status === 'converged';
+  const base: Record<string, unknown> = {
+    status: r.status,
+    method: r.method,
+    passes: r.passes,
+    iterations: r.iterations,
+    jacobians: r.jacobians,
+    residual: r.residual,
+    ...(r.message ? { message: r.message } : {}),
+    ...(r.failure ? { failure: r.failure } : {}),
+    tears: r.tears,
+    order: r.order,
+    feeds: Object.fromEntries(r.feeds.map((f) => [f.name, {
+      Z: f.Z, molarVolume: f.molarVolume, molarFlow: f.molarFlow,
+      ...(f.idealMolarFlow !== undefined ? { idealMolarFlow: f.idealMolarFlow, idealError: f.idealError } : {}),
+      phase: f.phase, flows: record(ids, f.flows), T: f.T, P: f.P, basis: f.basis,
+      ...(f.reference ? { reference: f.reference } : {}),
+    }])),
+  };
+  if (ok) {
+    base.streams = Object.fromEntries(r.streamOrder.map((name) => {
+      const s = r.streams.get(name)!;
+      return [name, { flows: record(ids, s.flows), total: s.total, fractions: record(ids, s.fractions), T: s.T, P: s.P, vaporFraction: s.vaporFraction, massFlow: s.massFlow }];
+    }));
+    base.products = r.products;
+    base.units = Object.fromEntries([...r.units].map(([name, u]) => [name, {
+      type: u.type,
+      ...Object.fromEntries(u.figures.map((f) => [f.key, f.value])),
+      ...(u.reactions ? { reactions: u.reactions } : {}),
+      ...(u.notes.length ? { notes: u.notes } : {}),
+    }]));
+    base.loop = { recycleRatio: r.loop.recycleRatio, recycles: r.loop.recycles, freshFeed: r.loop.freshFeed, conversions: r.loop.conversions };
+    base.balance = r.balance;
+  } else {
+    base.lastIterate = r.x;
+    base.worst = r.worst;
+  }
+  base.history = r.history.map((h) => ({ pass: h.pass, residual: h.residual, scaled: h.scaled, method: h.method }));
+  base.warnings = r.warnings;
+  base.caution = CAUTION;
+  return base;
+}
+
+export function solveJson(r: FlowsheetResult): string {
+  return toJson(resultObject(r));
+}
+
+export function solveCsv(r: FlowsheetResult, opts: SolveReportOptions = {}): string {
+  const ids = r.model.ids;
+  const fu = opts.flowUnit ?? r.model.display.flowUnit;
+  const ctx = { atmosphere: r.model.thermo.atmosphere };
+  const pu = r.model.display.pressureUnit;
+  const tu = r.model.display.temperatureUnit;
+  const lines = [csvLine(['stream', ...ids.map((id) => `${id} [${fu}]`), `total [${fu}]`, ...ids.map((id) => `x ${id}`), `T [${tu}]`, `P [${pu}]`, 'vapour fraction'])];
+  if (r.status !== 'converged') return `${lines[0]}\n`;
+  for (const name of r.streamOrder) {
+    const s = r.streams.get(name)!;
+    lines.push(csvLine([
+      name,
+      ...ids.map((_, i) => toUnit(s.flows[i], 'molarFlow', fu, ctx)),
+      toUnit(s.total, 'molarFlow', fu, ctx),
+      ...ids.map((_, i) => s.fractions[i]),
+      Number.isFinite(s.T) ? toUnit(s.T, 'temperature', tu, ctx) : '',
+      Number.isFinite(s.P) ? toUnit(s.P, 'pressure', pu, ctx) : '',
+      Number.isFinite(s.vaporFraction) ? s.vaporFraction : '',
+    ]));
+  }
+  return lines.join('\n') + '\n';
+}
+
+export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): string {
+  const m = r.model;
+  const ids = m.ids;
+  const fu = opts.flowUnit ?? m.display.flowUnit;
+  const pu = m.display.pressureUnit;
+  const tu = m.display.temperatureUnit;
+  const ctx = { atmosphere: m.thermo.atmosphere };
+  const F = (v: number) => num(toUnit(v, 'molarFlow', fu, ctx), 5);
+  const out: string[] = [];
+  const head = `status: ${r.status}`;
+  out.push(`${head}  (${r.method}: ${r.passes} passes, ${r.iterations} iterations${r.jacobians ? `, ${r.jacobians} Jacobians` : ''}, residual ${r.residual.toExponential(2)})`);
+  out.push(`${m.title ? `${m.title} - ` : ''}${m.file} (equation of state: ${m.thermo.eos})`);
+  if (r.tears.length) out.push(`tear streams: ${r.tears.join(', ')}; calculation order: ${r.order.join(' -> ')}`);
+  if (r.status !== 'converged') {
+    out.push('');
+    out.push(r.status === 'infeasible' ? 'No steady state exists as specified:' : 'The loop did not converge; this is not a solution:');
+    if (r.message) out.push(`  ${r.message}`);
+    if (r.failure?.help) out.push(`  help: ${r.failure.help}`);
+    if (r.worst?.length) {
+      out.push('  largest residuals at the last iterate:');
+      for (const w of r.worst) out.push(`    ${w.name ?? `#${w.index}`}: ${w.residual.toExponential(3)} (${num(w.scaled, 3)} x tolerance)`);
+    }
+    const hist = r.history;
+    if (hist.length) {
+      const pick = hist.length <= 8 ? hist : [...hist.slice(0, 4), ...hist.slice(-4)];
+      out.push(`  residual history (pass: scaled residual): ${pick.map((h) => `${h.pass}: ${num(h.scaled, 3)}`).join(', ')}`);
+    }
+    if (r.status === 'not-converged') out.push('  try: another method (--method newton or --method direct), more passes (--max-passes), or check the specifications');
+    for (const w of r.warnings) out.push(`warning: ${w}`);
+    out.push(`note: ${CAUTION}`);
+    return out.join('\n');
+  }
+
+  out.push('');
+  out.push(`Streams (flows in ${fu}, T in ${tu}, P in ${pu})`);
+  const names = r.streamOrder;
+  const rows: string[][] = [];
+  ids.forEach((id, i) => rows.push([id, ...names.map((s) => F(r.streams.get(s)!.flows[i]))]));
+  rows.push(['total', ...names.map((s) => F(r.streams.get(s)!.total))]);
+  ids.forEach((id, i) => rows.push([`x ${id}`, ...names.map((s) => num(r.streams.get(s)!.fractions[i], 4))]));
+  rows.push(['T', ...names.map((s) => num(toUnit(r.streams.get(s)!.T, 'temperature', tu, ctx), 5))]);
+  rows.push(['P', ...names.map((s) => num(toUnit(r.streams.get(s)!.P, 'pressure', pu, ctx), 5))]);
+  rows.push(['vapour fraction', ...names.map((s) => num(r.streams.get(s)!.vaporFraction, 4))]);
+  out.push(table(['', ...names], rows));
+
+  out.push('');
+  out.push('Units');
+  for (const [name, u] of r.units) {
+    const parts: string[] = [];
+    for (const rx of u.reactions ?? []) parts.push(`${rx.equation}: extent ${F(rx.extent)} ${fu}, conversion of ${rx.key} ${num(rx.conversion, 5)}`);
+    for (const f of u.figures) {
+      if (f.key.startsWith('extent.')) continue;
+      parts.push(`${f.label} ${f.kind === 'molarFlow' ? `${F(f.value)} ${fu}` : num(f.value, 5)}`);
+    }
+    out.push(`  ${name} (${u.type}): ${parts.join('; ') || '-'}${u.notes.length ? `  [${u.notes.join('; ')}]` : ''}`);
+  }
+
+  out.push('');
+  out.push('Loop');
+  out.push(`  fresh feed ${F(r.loop.freshFeed)} ${fu}; recycle ratio (recycle / fresh feed) ${num(r.loop.recycleRatio, 5)}${r.loop.recycles.length ? ` (recycle: ${r.loop.recycles.join(', ')})` : ''}`);
+  for (const [key, c] of Object.entries(r.loop.conversions)) {
+    out.push(`  ${key}: single-pass conversion ${num(c.singlePass, 5)} (${c.unit}), overall conversion ${num(c.overall, 5)}`);
+  }
+  out.push(`  products: ${r.products.join(', ')}`);
+
+  out.push('');
+  out.push(`Balance (${fu}; closure = (in + generated - out) / scale)`);
+  const b = r.balance;
+  out.push(table(['component', 'in', 'out', 'generated', 'closure'], ids.map((id) => {
+    const c = b.components[id];
+    return [id, F(c.in), F(c.out), F(c.generated), num(c.closure, 2)];
+  })));
+  out.push('');
+  out.push(table(['element', 'in mol/s', 'out mol/s', 'closure'], Object.entries(b.elements).map(([el, e]) => [el, num(e.in, 6), num(e.out, 6), num(e.closure, 2)])));
+  out.push(`  total mass: in ${num(b.mass.in * 3600, 6)} kg/h, out ${num(b.mass.out * 3600, 6)} kg/h, closure ${num(b.mass.closure, 2)}`);
+  if (r.feeds.length) {
+    out.push('');
+    out.push('Feeds');
+    for (const f of r.feeds) {
+      out.push(`  ${f.name}: ${F(f.molarFlow)} ${fu} (${f.basis}), Z ${num(f.Z, 5)}, ${f.phase}${f.idealError !== undefined ? `, ideal-gas error ${pct(f.idealError)}` : ''}${f.reference ? `, standard volume at ${f.reference.label}` : ''}`);
+    }
+  }
+  for (const w of r.warnings) out.push(`warning: ${w}`);
+  out.push(`note: ${CAUTION}`);
+  return out.join('\n');
+}

@@ -1,0 +1,91 @@
+/**
+ * Generic solvers: problem, method, result. Non-convergence is a result, never an exception.
+ *
+ *   solveFixedPoint(problem, method, options)  x = g(x) by 'direct' | 'wegstein' | 'newton' | 'auto'
+ *   solveRoot(problem, options)                F(x) = 0 by Newton
+ *
+ * 'auto' runs bounded Wegstein within its pass budget (options.wegstein.maxPasses, default
+ * 200); if it has not converged (and did not stop on an evaluation failure) Newton continues
+ * from Wegstein's last iterate when that is no worse than the start (else from the start),
+ * with the remaining budget of options.maxPasses (default 2000 for the whole solve).
+ * Run alone, Wegstein's budget is options.wegstein.maxPasses, else options.maxPasses, else 200;
+ * direct substitution's is options.maxPasses (default 2000); Newton's is options.maxPasses
+ * (default 2000) with newton.maxIterations (default 100) and newton.maxJacobians.
+ */
+import { solveDirect } from './direct.js';
+import { NEWTON_DEFAULTS, solveNewtonFixedPoint } from './newton.js';
+import { solveWegstein } from './wegstein.js';
+import type { FixedPointProblem, MethodName, SolveOptions, SolveResult } from './types.js';
+
+export { solveDirect, DIRECT_MAX_PASSES } from './direct.js';
+export { solveWegstein, WEGSTEIN_DEFAULTS } from './wegstein.js';
+export { solveRoot, solveNewtonFixedPoint, columnGroups, NEWTON_DEFAULTS } from './newton.js';
+export {
+  DEFAULT_ATOL,
+  DEFAULT_RTOL,
+  HistoryRecorder,
+  measureFixedPoint,
+  measureScaled,
+  newMeasure,
+  worstResiduals,
+  worstFixedPoint,
+} from './convergence.js';
+export type { Measure, Tolerances } from './convergence.js';
+export type * from './types.js';
+
+export function solveFixedPoint(
+  problem: FixedPointProblem,
+  method: MethodName = 'auto',
+  options: SolveOptions = {},
+): SolveResult {
+  switch (method) {
+    case 'direct':
+      return solveDirect(problem, options);
+    case 'wegstein':
+      return solveWegstein(problem, options);
+    case 'newton':
+      return solveNewtonFixedPoint(problem, options);
+    case 'auto':
+      return solveAuto(problem, options);
+    default: {
+      const never: never = method;
+      return {
+        status: 'invalid',
+        method: String(never),
+        x: Float64Array.from(problem.x0),
+        residual: Infinity,
+        scaledResidual: Infinity,
+        passes: 0,
+        iterations: 0,
+        jacobians: 0,
+        history: [],
+        message: `unknown method "${String(never)}"; use direct, wegstein, newton or auto`,
+      };
+    }
+  }
+}
+
+function solveAuto(problem: FixedPointProblem, options: SolveOptions): SolveResult {
+  const total = options.maxPasses ?? NEWTON_DEFAULTS.maxPasses;
+  const wBudget = Math.min(options.wegstein?.maxPasses ?? 200, total);
+  const w = solveWegstein(problem, { ...options, wegstein: { ...options.wegstein, maxPasses: wBudget } });
+  if (w.status !== 'not-converged') return w;
+  const remaining = total - w.passes;
+  if (remaining <= 0) return w;
+  const startScaled = w.history.length > 0 ? w.history[0].scaled : Infinity;
+  const fromWegstein = Number.isFinite(w.scaledResidual) && w.scaledResidual <= startScaled;
+  const x0 = fromWegstein ? w.x : problem.x0;
+  const n = solveNewtonFixedPoint({ ...problem, x0 }, { ...options, maxPasses: remaining });
+  const history = w.history.concat(n.history.map((e) => ({ ...e, pass: e.pass + w.passes })));
+  const result: SolveResult = {
+    ...n,
+    method: 'wegstein+newton',
+    passes: w.passes + n.passes,
+    iterations: w.iterations + n.iterations,
+    jacobians: n.jacobians,
+    history,
+  };
+  const note = `Wegstein stopped after ${w.passes} passes (scaled residual ${w.scaledResidual.toPrecision(3)}); Newton continued from ${fromWegstein ? "Wegstein's last iterate" : 'the start point'}`;
+  result.message = n.message ? `${note}; ${n.message}` : note;
+  return result;
+}

@@ -1,0 +1,205 @@
+/**
+ * Tangent-plane stability test of a mixture at T, P (Michelsen, M. L., "The isothermal flash
+ * problem. Part I. Stability", Fluid Phase Equilibria 9 (1982) 1-19).
+ *
+ * With d_i = ln z_i + ln phi_i(z), the modified tangent-plane distance of a trial phase with mole
+ * numbers W_i is
+ *   tm(W) = 1 + sum_i W_i (ln W_i + ln phi_i(w) - d_i - 1),  w = W / sum W,
+ * and its stationary points satisfy ln W_i = d_i - ln phi_i(w), which is iterated by successive
+ * substitution. At a stationary point tm = 1 - sum W and the tangent-plane distance of the
+ * normalised trial phase is tpd = sum_i w_i (ln w_i + ln phi_i(w) - d_i) = -ln(sum W).
+ * The feed is unstable if any stationary point has tpd < 0. Two trial phases are started from
+ * Wilson's K (wilson.ts): vapour-like W_i = z_i K_i and liquid-like W_i = z_i / K_i.
+ * Every evaluation uses the root of lower Gibbs energy ('stable').
+ * Every 5th step the iteration is extrapolated along the dominant eigenvector (Michelsen 1982,
+ * Part II, FPE 9, 21: lambda = (D_k . D_k)/(D_k-1 . D_k), step D_k lambda/(1 - lambda)); the
+ * extrapolation is kept only if tm decreases.
+ * A trial that converges to the feed itself (sum (ln W_i - ln z_i)^2 small) is the trivial
+ * solution and counts as tpd = 0.
+ */
+import type { Eos } from './types.js';
+import { wilsonK } from './wilson.js';
+
+export interface StabilityOptions {
+  /** Convergence on max |change of ln W_i| (default 1e-10). */
+  tol?: number;
+  /** Successive-substitution steps per trial phase (default 500). */
+  maxIterations?: number;
+}
+
+export interface StabilityResult {
+  stable: boolean;
+  /** Smallest tangent-plane distance found (0 for the trivial solution), dimensionless (G/RT). */
+  tpd: number;
+  /** Composition of the trial phase with the smallest tpd, when the feed is unstable. */
+  trial?: Float64Array;
+  /** Equilibrium-ratio estimate y/x for a following flash, when the feed is unstable. */
+  K?: Float64Array;
+  /** Total successive-substitution steps of both trials. */
+  iterations: number;
+  /** Number of fugacity-coefficient evaluations. */
+  evaluations: number;
+  /** True when a trial ran out of steps before converging. */
+  incomplete?: boolean;
+}
+
+/** Threshold below which a tangent-plane distance counts as negative. */
+export const TPD_NEGATIVE = -1e-10;
+
+interface TrialOutcome {
+  tpd: number;
+  trivial: boolean;
+  converged: boolean;
+  w: Float64Array;
+  iterations: number;
+  evaluations: number;
+}
+
+function runTrial(
+  eos: Eos, T: number, P: number, z: Float64Array, d: Float64Array, present: Uint8Array,
+  lnW0: Float64Array, tol: number, maxIt: number,
+): TrialOutcome {
+  const n = eos.n;
+  const lnW = Float64Array.from(lnW0);
+  const W = new Float64Array(n);
+  const w = new Float64Array(n);
+  const lnPhi = new Float64Array(n);
+  const prevStep = new Float64Array(n);
+  const step = new Float64Array(n);
+  const saved = new Float64Array(n);
+  let savedTm = Infinity;
+  let accelPending = false;
+  let evaluations = 0;
+  let tm = Infinity;
+  let tpd = 0;
+  let it = 0;
+  for (it = 1; it <= maxIt; it++) {
+    let sumW = 0;
+    for (let i = 0; i < n; i++) {
+      W[i] = present[i] ? Math.exp(lnW[i]) : 0;
+      sumW += W[i];
+    }
+    for (let i = 0; i < n; i++) w[i] = W[i] / sumW;
+    eos.lnPhi(T, P, w, 'stable', lnPhi);
+    evaluations++;
+    tm = 1;
+    tpd = 0;
+    for (let i = 0; i < n; i++) {
+      if (!present[i]) continue;
+      const g = lnW[i] + lnPhi[i] - d[i];
+      tm += W[i] * (g - 1);
+      tpd += w[i] * (g - Math.log(sumW));
+    }
+    if (accelPending) {
+      accelPending = false;
+      if (!(tm < savedTm)) {
+        // the extrapolated point is worse: go back to the plain substitution point
+        lnW.set(saved);
+        prevStep.fill(0);
+        continue;
+      }
+    }
+    let maxStep = 0;
+    let trivialNorm = 0;
+    let dot1 = 0;
+    let dot0 = 0;
+    for (let i = 0; i < n; i++) {
+      if (!present[i]) continue;
+      const next = d[i] - lnPhi[i];
+      const s = next - lnW[i];
+      step[i] = s;
+      dot1 += s * s;
+      dot0 += s * prevStep[i];
+      if (Math.abs(s) > maxStep) maxStep = Math.abs(s);
+      lnW[i] = next;
+      const dz = next - Math.log(z[i]);
+      trivialNorm += dz * dz;
+    }
+    if (trivialNorm < 1e-8) return { tpd: 0, trivial: true, converged: true, w, iterations: it, evaluations };
+    if (maxStep <= tol) return { tpd, trivial: false, converged: true, w, iterations: it, evaluations };
+    if (it % 5 === 0 && dot0 > 0) {
+      const lambda = dot1 / dot0;
+      if (lambda > 0 && lambda < 1) {
+        saved.set(lnW);
+        savedTm = tm;
+        const f = lambda / (1 - lambda);
+        for (let i = 0; i < n; i++) if (present[i]) lnW[i] += f * step[i];
+        accelPending = true;
+        prevStep.fill(0);
+        continue;
+      }
+    }
+    prevStep.set(step);
+  }
+  return { tpd, trivial: false, converged: false, w, iterations: maxIt, evaluations };
+}
+
+/**
+ * Tangent-plane stability test of composition z (mole fractions, normalised internally) at
+ * T (K), P (Pa). Components with z_i = 0 are left out of the trial phases.
+ */
+export function stabilityTest(eos: Eos, T: number, P: number, z: ArrayLike<number>, opts: StabilityOptions = {}): StabilityResult {
+  const n = eos.n;
+  const tol = opts.tol ?? 1e-10;
+  const maxIt = opts.maxIterations ?? 500;
+  if (z.length !== n) throw new RangeError(`stabilityTest: composition has ${z.length} entries, expected ${n}`);
+  const zz = new Float64Array(n);
+  let s = 0;
+  for (let i = 0; i < n; i++) {
+    const zi = z[i];
+    if (!(zi >= 0) || zi === Infinity) throw new RangeError(`stabilityTest: mole fraction ${i} must be finite and >= 0, got ${zi}`);
+    s += zi;
+  }
+  if (!(s > 0)) throw new RangeError('stabilityTest: composition must have a positive sum');
+  const present = new Uint8Array(n);
+  let nPresent = 0;
+  for (let i = 0; i < n; i++) {
+    zz[i] = z[i] / s;
+    if (zz[i] > 0) {
+      present[i] = 1;
+      nPresent++;
+    }
+  }
+  if (nPresent === 1) return { stable: true, tpd: 0, iterations: 0, evaluations: 0 };
+
+  const lnPhiZ = new Float64Array(n);
+  eos.lnPhi(T, P, zz, 'stable', lnPhiZ);
+  const d = new Float64Array(n);
+  for (let i = 0; i < n; i++) d[i] = present[i] ? Math.log(zz[i]) + lnPhiZ[i] : 0;
+  const K = wilsonK(eos.components, T, P, new Float64Array(n));
+  const lnW = new Float64Array(n);
+
+  let iterations = 0;
+  let evaluations = 1;
+  let incomplete = false;
+  const outcomes: Array<TrialOutcome & { vaporLike: boolean }> = [];
+  for (const vaporLike of [true, false]) {
+    for (let i = 0; i < n; i++) lnW[i] = present[i] ? Math.log(zz[i]) + (vaporLike ? 1 : -1) * Math.log(K[i]) : 0;
+    const o = runTrial(eos, T, P, zz, d, present, lnW, tol, maxIt);
+    iterations += o.iterations;
+    evaluations += o.evaluations;
+    if (!o.converged) incomplete = true;
+    outcomes.push({ ...o, vaporLike });
+  }
+  const [v, l] = outcomes;
+  const vNeg = !v.trivial && v.tpd < TPD_NEGATIVE;
+  const lNeg = !l.trivial && l.tpd < TPD_NEGATIVE;
+  const tpd = Math.min(v.trivial ? 0 : v.tpd, l.trivial ? 0 : l.tpd);
+  const base = { iterations, evaluations, ...(incomplete ? { incomplete } : {}) };
+  if (!vNeg && !lNeg) return { stable: true, tpd, ...base };
+
+  const Kout = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    if (!present[i]) {
+      Kout[i] = K[i];
+    } else if (vNeg && lNeg) {
+      Kout[i] = v.w[i] / l.w[i];
+    } else if (vNeg) {
+      Kout[i] = v.w[i] / zz[i];
+    } else {
+      Kout[i] = zz[i] / l.w[i];
+    }
+  }
+  const best = vNeg && (!lNeg || v.tpd <= l.tpd) ? v : l;
+  return { stable: false, tpd, trial: best.w, K: Kout, ...base };
+}

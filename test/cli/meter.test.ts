@@ -1,0 +1,72 @@
+import { describe, expect, it } from 'vitest';
+import { cli, tempFile } from '../helpers/cli.js';
+
+describe('loopclose meter', () => {
+  it('reports every feed of a file as JSON in SI', () => {
+    const r = cli(['meter', 'flowsheets/methanol-pilot.yaml', '--json']);
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout);
+    const h = j.feeds.hydrogen;
+    expect(h.T).toBeCloseTo(308.15, 10);
+    expect(h.P).toBeCloseTo(3101325, 5);
+    expect(h.phase).toBe('vapor');
+    expect(h.molarFlow).toBeCloseTo(0.0035 / h.molarVolume, 12);
+    expect(h.idealError).toBeCloseTo((h.idealMolarFlow - h.molarFlow) / h.molarFlow, 12);
+    expect(h.flows.H2 + h.flows.N2).toBeCloseTo(h.molarFlow, 12);
+    expect(j.warnings).toEqual([]);
+  });
+
+  it('does one reading from the command line, with the human table showing the ideal-gas error', () => {
+    const r = cli(['meter', '--gas', 'H2=0.985,N2=0.015', '--flow', '12.6 m3/h', '--pressure', '30 barg', '--temperature', '35 degC']);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/ideal-gas error/);
+    expect(r.stdout).toMatch(/\+1\.\d\d %/);
+    expect(r.stdout).toMatch(/qualified engineer/);
+  });
+
+  it('takes --eos PR and gives a different Z from SRK', () => {
+    const a = JSON.parse(cli(['meter', '--gas', 'CO2=1', '--flow', '10 m3/h', '--pressure', '20 barg', '--temperature', '30 degC', '--json']).stdout);
+    const b = JSON.parse(cli(['meter', '--gas', 'CO2=1', '--flow', '10 m3/h', '--pressure', '20 barg', '--temperature', '30 degC', '--eos', 'PR', '--json']).stdout);
+    expect(a.feeds.reading.Z).not.toBeCloseTo(b.feeds.reading.Z, 4);
+    expect(a.eos).toBe('SRK');
+    expect(b.eos).toBe('PR');
+  });
+
+  it('refuses a pressure without a unit (exit 2, no stack trace)', () => {
+    const r = cli(['meter', '--gas', 'H2=1', '--flow', '12.6 m3/h', '--pressure', '30', '--temperature', '35 degC']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/--pressure: `30` has no unit/);
+    expect(r.stderr).not.toMatch(/at .*\.m?js:\d+/);
+  });
+
+  const bad: [string, string, RegExp, number, number][] = [
+    ['unknown component', 'components: { H2: {}, Xx: {} }\nfeeds:\n  a: { composition: { H2: 1 }, molar-flow: 1 mol/s, T: 300 K, P: 1 bar }\n', /unknown component `Xx`/, 1, 23],
+    ['fractions not summing to 1', 'components: { H2: {}, N2: {} }\nfeeds:\n  a:\n    composition: { H2: 0.72, N2: 0.24 }\n    molar-flow: 1 mol/s\n    T: 300 K\n    P: 1 bar\n', /sums to 0\.96, not 1/, 4, 18],
+    ['missing unit', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 12.6 m3/h, pressure: 30, temperature: 35 degC }\n', /has no unit/, 5, 42],
+    ['unknown unit', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 12.6 m3/h, pressure: 30 bargs, temperature: 35 degC }\n', /unknown unit `bargs`/, 5, 42],
+    ['zero flow', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 0 m3/h, pressure: 30 barg, temperature: 35 degC }\n', /must be above zero/, 5, 20],
+    ['negative absolute temperature', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 1 m3/h, pressure: 30 barg, temperature: -300 degC }\n', /must be above zero/, 5, 55],
+    ['vacuum below zero absolute', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 1 m3/h, pressure: -2 barg, temperature: 35 degC }\n', /absolute, after any gauge conversion/, 5, 39],
+    ['missing field', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 1 m3/h, temperature: 35 degC }\n', /meter pressure of feed `a` is missing/, 5, 5],
+    ['wrong dimension', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 1 kg/h, pressure: 3 barg, temperature: 35 degC }\n', /expected/, 5, 20],
+  ];
+  for (const [what, text, msg, line, col] of bad) {
+    it(`bad input: ${what} -> message at file:line:column, exit 2`, () => {
+      const f = tempFile('bad.yaml', text);
+      const r = cli(['meter', f]);
+      expect(r.code).toBe(2);
+      expect(r.stderr).toMatch(msg);
+      expect(r.stderr).toContain(`${f}:${line}:${col}`);
+      expect(r.stderr).not.toMatch(/\n\s+at /);
+    });
+  }
+
+  it('reports every problem of a file in one run', () => {
+    const f = tempFile('bad.yaml', 'components: { H2: {}, N2: {} }\nfeeds:\n  a: { composition: { H2: 0.5 }, molar-flow: 1 mol/s, T: 300 K, P: 1 bar }\n  b: { composition: { N2: 1 }, molar-flow: 1, T: 300 K, P: 1 bar }\n');
+    const r = cli(['meter', f]);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/sums to 0\.5/);
+    expect(r.stderr).toMatch(/`1` has no unit/);
+    expect(r.stderr).toMatch(/2 errors/);
+  });
+});

@@ -1,0 +1,160 @@
+import { describe, expect, it } from 'vitest';
+import { validateText, loadFlowsheet } from '../../src/flowsheet/validate.js';
+import { solveFlowsheet } from '../../src/flowsheet/solve.js';
+import { InputError } from '../../src/diagnostics.js';
+
+/**
+ * A linear loop with a closed-form steady state: fresh feed of reactant A (with inert I),
+ * fixed per-pass conversion X of A -> B, all B removed, a fraction p of the gas purged.
+ * The recycle and purge relations are those derived in Felder and Rousseau, Elementary
+ * Principles of Chemical Processes, 3rd ed., Section 4.7 (recycle and purge) (from memory):
+ *   R_A = (1-p)(1-X) F_A / (1 - (1-p)(1-X)),   R_I = (1-p) F_I / p,
+ *   overall conversion of A = X / (1 - (1-p)(1-X)).
+ */
+function linearLoop(X: number, p: number, FA = 10, FI = 0.2) {
+  return `
+components:
+  A: { Tc: 190.6 K, Pc: 46 bar, omega: 0.011, formula: C2H4 }
+  B: { Tc: 305 K, Pc: 49 bar, omega: 0.1, formula: C4H8 }
+  I: { Tc: 126.2 K, Pc: 34 bar, omega: 0.037, formula: N2 }
+feeds:
+  fresh: { flows: { A: ${FA} mol/s, I: ${FI} mol/s }, T: 300 K, P: 20 bar }
+units:
+  mix: { type: mixer, in: [fresh, recycle], out: r-in }
+  reactor:
+    type: reactor
+    in: r-in
+    out: r-out
+    reactions: [ { equation: "2 A -> B", key: A, conversion: ${X} } ]
+  sep:
+    type: separator
+    in: r-out
+    out: { product: { B: 1 }, gas: rest }
+  split:
+    type: splitter
+    in: gas
+    out: { purge: ${p}, recycle: rest }
+`;
+}
+
+describe('recycle loop against the closed-form recycle and purge relations', () => {
+  for (const [X, p] of [[0.25, 0.03], [0.1, 0.01], [0.6, 0.2]] as const) {
+    it(`X = ${X}, p = ${p}: direct, Wegstein and Newton agree with the closed form to 1e-8`, () => {
+      const { model } = validateText('loop.yaml', linearLoop(X, p));
+      const a = (1 - p) * (1 - X);
+      const RA = (a * 10) / (1 - a);
+      const RI = ((1 - p) * 0.2) / p;
+      for (const method of ['direct', 'wegstein', 'newton', 'auto'] as const) {
+        const r = solveFlowsheet(model, { method, maxPasses: 20000 });
+        expect(r.status, method).toBe('converged');
+        const rec = r.streams.get('recycle')!;
+        expect(Math.abs(rec.flows[0] - RA) / RA, method).toBeLessThan(1e-8);
+        expect(Math.abs(rec.flows[2] - RI) / RI, method).toBeLessThan(1e-8);
+        expect(Math.abs(r.loop.conversions.A.overall - X / (1 - a)), method).toBeLessThan(1e-8);
+        expect(r.loop.conversions.A.singlePass).toBeCloseTo(X, 12);
+        expect(r.loop.recycleRatio).toBeCloseTo((RA + RI) / 10.2, 6);
+      }
+    });
+  }
+
+  it('Wegstein needs far fewer passes than direct substitution at a high recycle ratio', () => {
+    const { model } = validateText('loop.yaml', linearLoop(0.1, 0.01));
+    const d = solveFlowsheet(model, { method: 'direct', maxPasses: 20000 });
+    const w = solveFlowsheet(model, { method: 'wegstein', maxPasses: 20000 });
+    expect(d.passes).toBeGreaterThan(1000);
+    expect(w.passes * 5).toBeLessThan(d.passes);
+  });
+});
+
+describe('infeasible specifications are never printed as a solution', () => {
+  it('a fixed conversion that needs more of a co-reactant than the loop supplies ends infeasible, naming it', () => {
+    const { model } = validateText('x.yaml', `
+components: { H2: {}, N2: {}, NH3: {} }
+feeds:
+  gas: { flows: { H2: 1 mol/s, N2: 1 mol/s }, T: 300 K, P: 100 bar }
+units:
+  r:
+    type: reactor
+    in: gas
+    out: out
+    reactions: [ { equation: "N2 + 3 H2 -> 2 NH3", key: N2, conversion: 0.9 } ]
+`);
+    const r = solveFlowsheet(model);
+    expect(r.status).toBe('infeasible');
+    expect(r.failure?.component).toBe('H2');
+    expect(r.failure?.unit).toBe('r');
+    expect(r.message).toMatch(/needs 2\.7 mol\/s of H2, but only 1 mol\/s/);
+  });
+
+  it('in a loop: hydrogen short of stoichiometric, the key N2 accumulates until its conversion cannot be met', () => {
+    const { model } = validateText('x.yaml', `
+components: { H2: {}, N2: {}, NH3: {} }
+feeds:
+  gas: { flows: { H2: 2 mol/s, N2: 1 mol/s }, T: 300 K, P: 100 bar }
+units:
+  mix: { type: mixer, in: [gas, recycle], out: r-in }
+  r:
+    type: reactor
+    in: r-in
+    out: r-out
+    reactions: [ { equation: "N2 + 3 H2 -> 2 NH3", key: N2, conversion: 0.5 } ]
+  sep: { type: separator, in: r-out, out: { product: { NH3: 1 }, gas-out: rest } }
+  split: { type: splitter, in: gas-out, out: { purge: 0.001, recycle: rest } }
+`);
+    const r = solveFlowsheet(model, { maxPasses: 5000 });
+    expect(r.status).not.toBe('converged');
+    expect(r.message ?? '').toMatch(/H2/);
+  });
+});
+
+describe('demo flowsheets', () => {
+  for (const f of ['methanol-pilot', 'methanol-pilot-split', 'ammonia-loop', 'benzene-hydrogenation']) {
+    it(`${f}: converges with the default method and closes every balance to 1e-9`, () => {
+      const { model } = loadFlowsheet(`flowsheets/${f}.yaml`);
+      const r = solveFlowsheet(model);
+      expect(r.status).toBe('converged');
+      for (const [id, c] of Object.entries(r.balance.components)) expect(Math.abs(c.closure), id).toBeLessThanOrEqual(1e-9);
+      for (const [el, c] of Object.entries(r.balance.elements)) expect(Math.abs(c.closure), el).toBeLessThanOrEqual(1e-9);
+      expect(Math.abs(r.balance.mass.closure)).toBeLessThanOrEqual(1e-9);
+      for (const s of r.streams.values()) for (const v of s.flows) expect(v).toBeGreaterThanOrEqual(0);
+    });
+  }
+
+  it('the methods agree on the two-loop benzene plant to 1e-8', () => {
+    const { model } = loadFlowsheet('flowsheets/benzene-hydrogenation.yaml');
+    expect(solveFlowsheet(model).tears.length).toBeGreaterThanOrEqual(1);
+    const rs = (['direct', 'wegstein', 'newton'] as const).map((method) => solveFlowsheet(model, { method, maxPasses: 20000 }));
+    for (const r of rs) expect(r.status).toBe('converged');
+    for (const name of ['gas-recycle', 'benzene-recycle', 'cyclohexane']) {
+      const ref = rs[2].streams.get(name)!;
+      for (const r of rs) {
+        const s = r.streams.get(name)!;
+        s.flows.forEach((v, i) => expect(Math.abs(v - ref.flows[i]) / Math.max(ref.total, 1e-30)).toBeLessThan(1e-8));
+      }
+    }
+  });
+});
+
+describe('reactions are checked for element balance', () => {
+  it('an unbalanced equation is an input error naming the element', () => {
+    let err: InputError | undefined;
+    try {
+      validateText('x.yaml', `
+components: { CO2: {}, H2: {}, CH3OH: {}, H2O: {} }
+feeds:
+  gas: { flows: { H2: 3 mol/s, CO2: 1 mol/s }, T: 300 K, P: 50 bar }
+units:
+  r:
+    type: reactor
+    in: gas
+    out: out
+    reactions: [ { equation: "CO2 + 2 H2 -> CH3OH + H2O", key: CO2, conversion: 0.2 } ]
+`);
+    } catch (e) {
+      err = e as InputError;
+    }
+    expect(err).toBeInstanceOf(InputError);
+    expect(err!.diagnostics[0].message).toMatch(/not balanced in H/);
+    expect(err!.diagnostics[0].span?.line).toBe(10);
+  });
+});
