@@ -63,6 +63,9 @@ export interface SolverSpec {
   method: 'direct' | 'wegstein' | 'newton' | 'auto';
   rtol: number;
   maxPasses?: number;
+  /** Wegstein bounds on q (default -5 <= q <= 0). */
+  qMin?: number;
+  qMax?: number;
 }
 
 export interface Model {

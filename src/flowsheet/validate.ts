@@ -253,7 +253,7 @@ export function validateText(path: string, text: string, bag = new DiagnosticBag
   const solE = get('solver');
   if (solE) {
     const f = r.entries(solE.value, '`solver`', solE.keyNode) ?? [];
-    r.checkKeys(f, ['method', 'tolerance', 'max-passes'], '`solver`');
+    r.checkKeys(f, ['method', 'tolerance', 'max-passes', 'q-min', 'q-max'], '`solver`');
     const m = r.find(f, 'method');
     if (m) {
       const v = r.string(m.value, '`solver.method`');
@@ -273,6 +273,17 @@ export function validateText(path: string, text: string, bag = new DiagnosticBag
       const v = r.number(mp.value, '`solver.max-passes`', '500');
       if (v !== undefined && !(Number.isInteger(v) && v >= 1)) bag.error('`solver.max-passes` must be a whole number >= 1', r.at(mp.value));
       else if (v !== undefined) solver.maxPasses = v;
+    }
+    for (const [key, prop] of [['q-min', 'qMin'], ['q-max', 'qMax']] as const) {
+      const q = r.find(f, key);
+      if (!q) continue;
+      const v = r.number(q.value, `\`solver.${key}\``, key === 'q-min' ? '-5' : '0');
+      if (v === undefined) continue;
+      if (!(v <= 0 && v >= -1000)) r.bag.error(`\`solver.${key}\` is ${v}; Wegstein's q is bounded within -1000 to 0`, r.at(q.value), 'the default bounds are -5 <= q <= 0');
+      else solver[prop] = v;
+    }
+    if (solver.qMin !== undefined && solver.qMax !== undefined && solver.qMin > solver.qMax) {
+      r.bag.error('`solver.q-min` is above `solver.q-max`', r.at(solE.keyNode));
     }
   }
 

@@ -18,12 +18,17 @@
  * At fixed T, P, x the root with the lower G^R has the lower Gibbs energy, since the ideal part
  * sum x_i ln x_i is the same for both.
  *
- * Root classification when the cubic has only one physical root (documented rule): the root is
- * called 'liquid' when T is below the pseudo-critical temperature sum x_i Tc_i (Kay's rule) and
- * its molar volume is below the model's critical volume V/b < Zc/Omega_b (3.85 for SRK, 3.95
- * for PR); otherwise 'vapor'. For a pure component below Tc this is exact (the liquid spinodal
- * volume lies below Vc and the vapour spinodal above it), for mixtures it is a heuristic; the
- * tangent-plane stability test (stability.ts) decides phase splitting of mixtures.
+ * Root classification when the cubic has only one physical root (documented rule): the mixture
+ * is treated as a pseudo-pure fluid with its own a(T) and b. That fluid is below its critical
+ * temperature exactly when a/(bRT) > Omega_a/Omega_b (i.e. A/B > Omega_a/Omega_b; at a pure
+ * component's Tc the two are equal and a(T)/T falls with T). Below it, the single root is
+ * 'liquid' when its volume is below the pseudo-critical volume, V/b < Zc/Omega_b (3.85 SRK,
+ * 3.95 PR), else 'vapor'; above it, 'vapor'. For a pure component this is exact (below Tc the
+ * liquid spinodal volume lies below Vc and the vapour spinodal above it). For mixtures it is a
+ * label only; it keeps the dense phase above a bubble point 'liquid' where Kay's rule
+ * (sum x_i Tc_i) would not, e.g. methane + n-butane at 310 K. The tangent-plane stability test
+ * (stability.ts) decides whether a mixture splits; with three roots 'stable' compares Gibbs
+ * energies.
  *
  * Everything that depends only on the components (a_c,i, b_i, m_i, 1 - k_ij) is computed once
  * in the constructor; per temperature only sqrt(a_i(T)), cached for the last T. The hot path
@@ -73,20 +78,20 @@ export class CubicEos implements EosModel {
   readonly b: Float64Array;
   private readonly m: Float64Array;
   private readonly invTc: Float64Array;
-  private readonly Tc: Float64Array;
   /** 1 - k_ij, row-major; null when every k_ij is zero. */
   private readonly oneMinusK: Float64Array | null;
-  private readonly volumeCriterion: number;
 
   // T-dependent cache
   private lastT = NaN;
   private readonly sqrtA: Float64Array;
+  /** Omega_a/Omega_b and Zc/Omega_b of the model (single-root classification). */
+  private readonly critRatio: number;
+  private readonly critVolume: number;
   // per-call scratch
   private readonly sumA: Float64Array; // sum_j x_j a_ij (normalized x)
   private readonly roots = new Float64Array(3);
   private aMix = 0;
   private bMix = 0;
-  private tpc = 0;
   // last solve
   private zSel = 0;
   private rootSel = ROOT_VAPOR;
@@ -107,7 +112,6 @@ export class CubicEos implements EosModel {
     this.b = new Float64Array(n);
     this.m = new Float64Array(n);
     this.invTc = new Float64Array(n);
-    this.Tc = new Float64Array(n);
     for (let i = 0; i < n; i++) {
       const c = comps[i];
       if (!(c.Tc > 0) || !(c.Pc > 0) || !Number.isFinite(c.omega)) {
@@ -117,7 +121,6 @@ export class CubicEos implements EosModel {
       this.b[i] = (params.omegaB * R * c.Tc) / c.Pc;
       this.m[i] = params.m(c.omega);
       this.invTc[i] = 1 / c.Tc;
-      this.Tc[i] = c.Tc;
     }
     let anyK = false;
     if (kij !== undefined) {
@@ -139,8 +142,9 @@ export class CubicEos implements EosModel {
     } else {
       this.oneMinusK = null;
     }
-    this.volumeCriterion = params.zc / params.omegaB;
     this.sqrtA = new Float64Array(n);
+    this.critRatio = params.omegaA / params.omegaB;
+    this.critVolume = params.zc / params.omegaB;
     this.sumA = new Float64Array(n);
   }
 
@@ -162,20 +166,17 @@ export class CubicEos implements EosModel {
     const sumA = this.sumA;
     let xs = 0;
     let bm = 0;
-    let tpc = 0;
     let S = 0;
     for (let i = 0; i < n; i++) {
       const xi = x[i];
       if (!(xi >= 0)) throw new RangeError(`mole fraction ${i} must be >= 0, got ${xi}`);
       xs += xi;
       bm += xi * this.b[i];
-      tpc += xi * this.Tc[i];
       S += xi * sa[i];
     }
     if (!(xs > 0) || xs === Infinity) throw new RangeError('composition must have a positive finite sum');
     const inv = 1 / xs;
     this.bMix = bm * inv;
-    this.tpc = tpc * inv;
     const omk = this.oneMinusK;
     if (omk === null) {
       S *= inv;
@@ -243,7 +244,7 @@ export class CubicEos implements EosModel {
     this.nPhys = nPhys;
     if (nPhys === 1) {
       this.zSel = zv;
-      this.rootSel = T < this.tpc && zv < this.volumeCriterion * B ? ROOT_LIQUID : ROOT_VAPOR;
+      this.rootSel = A > this.critRatio * B && zv < this.critVolume * B ? ROOT_LIQUID : ROOT_VAPOR;
       return;
     }
     let useLiquid: boolean;

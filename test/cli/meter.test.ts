@@ -39,19 +39,22 @@ describe('loopclose meter', () => {
     expect(r.stderr).not.toMatch(/at .*\.m?js:\d+/);
   });
 
-  const bad: [string, string, RegExp, number, number][] = [
-    ['unknown component', 'components: { H2: {}, Xx: {} }\nfeeds:\n  a: { composition: { H2: 1 }, molar-flow: 1 mol/s, T: 300 K, P: 1 bar }\n', /unknown component `Xx`/, 1, 23],
-    ['fractions not summing to 1', 'components: { H2: {}, N2: {} }\nfeeds:\n  a:\n    composition: { H2: 0.72, N2: 0.24 }\n    molar-flow: 1 mol/s\n    T: 300 K\n    P: 1 bar\n', /sums to 0\.96, not 1/, 4, 18],
-    ['missing unit', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 12.6 m3/h, pressure: 30, temperature: 35 degC }\n', /has no unit/, 5, 42],
-    ['unknown unit', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 12.6 m3/h, pressure: 30 bargs, temperature: 35 degC }\n', /unknown unit `bargs`/, 5, 42],
-    ['zero flow', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 0 m3/h, pressure: 30 barg, temperature: 35 degC }\n', /must be above zero/, 5, 20],
-    ['negative absolute temperature', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 1 m3/h, pressure: 30 barg, temperature: -300 degC }\n', /must be above zero/, 5, 55],
-    ['vacuum below zero absolute', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 1 m3/h, pressure: -2 barg, temperature: 35 degC }\n', /absolute, after any gauge conversion/, 5, 39],
-    ['missing field', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 1 m3/h, temperature: 35 degC }\n', /meter pressure of feed `a` is missing/, 5, 5],
-    ['wrong dimension', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 1 kg/h, pressure: 3 barg, temperature: 35 degC }\n', /expected/, 5, 20],
+  // [what, file text, message, line, the text the caret must point at]
+  const bad: [string, string, RegExp, number, string][] = [
+    ['unknown component', 'components: { H2: {}, Xx: {} }\nfeeds:\n  a: { composition: { H2: 1 }, molar-flow: 1 mol/s, T: 300 K, P: 1 bar }\n', /unknown component `Xx`/, 1, 'Xx'],
+    ['fractions not summing to 1', 'components: { H2: {}, N2: {} }\nfeeds:\n  a:\n    composition: { H2: 0.72, N2: 0.24 }\n    molar-flow: 1 mol/s\n    T: 300 K\n    P: 1 bar\n', /sums to 0\.96, not 1/, 4, '{ H2: 0.72'],
+    ['missing unit', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 12.6 m3/h, pressure: 30, temperature: 35 degC }\n', /has no unit/, 5, '30,'],
+    ['unknown unit', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 12.6 m3/h, pressure: 30 bargs, temperature: 35 degC }\n', /unknown unit `bargs`/, 5, '30 bargs'],
+    ['zero flow', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 0 m3/h, pressure: 30 barg, temperature: 35 degC }\n', /must be above zero/, 5, '0 m3/h'],
+    ['negative absolute temperature', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 1 m3/h, pressure: 30 barg, temperature: -300 degC }\n', /must be above zero/, 5, '-300 degC'],
+    ['vacuum below zero absolute', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 1 m3/h, pressure: -2 barg, temperature: 35 degC }\n', /absolute, after any gauge conversion/, 5, '-2 barg'],
+    ['missing field', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 1 m3/h, temperature: 35 degC }\n', /meter pressure of feed `a` is missing/, 5, 'meter'],
+    ['wrong dimension', 'components: { H2: {} }\nfeeds:\n  a:\n    composition: { H2: 1 }\n    meter: { flow: 1 kg/h, pressure: 3 barg, temperature: 35 degC }\n', /expected/, 5, '1 kg/h'],
   ];
-  for (const [what, text, msg, line, col] of bad) {
+  for (const [what, text, msg, line, marker] of bad) {
     it(`bad input: ${what} -> message at file:line:column, exit 2`, () => {
+      const col = text.split('\n')[line - 1].indexOf(marker) + 1;
+      expect(col).toBeGreaterThan(0);
       const f = tempFile('bad.yaml', text);
       const r = cli(['meter', f]);
       expect(r.code).toBe(2);
