@@ -16,7 +16,7 @@ export class SourceFile {
   readonly doc: Document.Parsed;
   private aliasBudget = MAX_ALIASES;
 
-  constructor(readonly path: string, readonly text: string, readonly bag: DiagnosticBag) {
+  constructor(readonly path: string, readonly text: string, public bag: DiagnosticBag) {
     this.lines = new LineCounter();
     this.doc = parseDocument(text, {
       lineCounter: this.lines,
@@ -32,6 +32,12 @@ export class SourceFile {
     for (const w of this.doc.warnings) {
       bag.warning(firstLine(w.message), this.span(w.pos));
     }
+  }
+
+  /** Starts a new validation of the (possibly edited) document with a fresh bag. */
+  restart(bag: DiagnosticBag): void {
+    this.bag = bag;
+    this.aliasBudget = MAX_ALIASES;
   }
 
   /** The span of a byte range. */

@@ -13,6 +13,7 @@ import { Reader, SourceFile, MAX_FILE_BYTES, type Entry } from './source.js';
 import type { FieldReader, NumberRule, OutletEntry } from './fields.js';
 import type { FeedBasis, FeedSpec, MeterDesign, Model, UnitSpecBase } from './model.js';
 import { BLOCKS, blockTypes } from '../blocks/registry.js';
+import { checkStructure } from './structure.js';
 
 const TOP_KEYS = ['title', 'components', 'thermo', 'display', 'feeds', 'units', 'tears', 'solver', 'targets'] as const;
 const FEED_KEYS = ['composition', 'mass-composition', 'normalize', 'meter', 'molar-flow', 'mass-flow', 'standard-flow', 'flows', 'T', 'P'];
@@ -28,26 +29,41 @@ export interface LoadedFile {
 
 /** Reads and validates a flowsheet file. Throws InputError with every problem found. */
 export function loadFlowsheet(path: string, overrides?: (root: Node, reader: Reader) => void): LoadedFile {
-  const bag = new DiagnosticBag();
-  let text: string;
+  return validateText(path, readFlowsheetFile(path), new DiagnosticBag(), overrides);
+}
+
+/** A flowsheet file's text, refusing folders, missing files and files over the size limit. */
+export function readFlowsheetFile(path: string): string {
   try {
     const st = statSync(path);
     if (st.isDirectory()) throw new InputError([{ severity: 'error', message: `${path} is a folder, not a flowsheet file`, help: 'give the path of a .yaml file' }]);
     if (st.size > MAX_FILE_BYTES) {
       throw new InputError([{ severity: 'error', message: `${path} is ${st.size} bytes; the limit is ${MAX_FILE_BYTES}`, help: 'a flowsheet file is a few kilobytes; check that this is the right file' }]);
     }
-    text = readFileSync(path, 'utf8');
+    return readFileSync(path, 'utf8');
   } catch (e) {
     if (e instanceof InputError) throw e;
     const code = (e as NodeJS.ErrnoException).code;
     throw new InputError([{ severity: 'error', message: `cannot read ${path}${code === 'ENOENT' ? ': no such file' : code ? ` (${code})` : ''}`, help: 'check the path' }]);
   }
-  return validateText(path, text, bag, overrides);
 }
 
 export function validateText(path: string, text: string, bag = new DiagnosticBag(), overrides?: (root: Node, reader: Reader) => void): LoadedFile {
+  const src = parseSource(path, text, bag);
+  return validateSource(src, bag, overrides);
+}
+
+/** Parses the text; throws InputError on YAML syntax errors. */
+export function parseSource(path: string, text: string, bag = new DiagnosticBag()): SourceFile {
   const src = new SourceFile(path, text, bag);
   if (bag.hasErrors) throw new InputError(bag.items);
+  return src;
+}
+
+/** Validates a parsed (possibly edited) document into a model. Throws InputError with every problem. */
+export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overrides?: (root: Node, reader: Reader) => void): LoadedFile {
+  src.restart(bag);
+  const path = src.path;
   const r = new Reader(src);
   const root = src.root();
   if (root === null || (r.isScalar(root) && (root.value === null || root.value === ''))) {
@@ -291,9 +307,13 @@ export function validateText(path: string, text: string, bag = new DiagnosticBag
   const model: Model = {
     file: path, title: title ?? undefined, components, ids, index, elements,
     thermo: { eos, kij, atmosphere, standards }, display, feeds, units, tears, solver,
-    streamSpans, unitSpans, warnings: bag.warnings(),
+    streamSpans, unitSpans, warnings: [],
   };
   void compSpans;
+  // Structure: whether a steady state can exist at all (see structure.ts).
+  checkStructure(model, bag);
+  if (bag.hasErrors) throw new InputError(bag.items);
+  model.warnings = bag.warnings();
   return { model, source: src, targetsNode: get('targets')?.value ?? null, reader: r };
 }
 

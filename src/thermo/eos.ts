@@ -9,8 +9,8 @@
  * a_ij = sqrt(a_i a_j)(1 - k_ij), b = sum_i x_i b_i.
  *
  * Fugacity coefficients (e.g. Michelsen and Mollerup, Thermodynamic Models: Fundamentals and
- * Computational Aspects, 2nd ed., chapter 3; for SRK, Soave 1972 eq. 18; for PR, Peng and
- * Robinson 1976 eq. 15):
+ * Computational Aspects, 2nd ed., chapter 3; the SRK and PR special cases are given in Soave
+ * 1972 and Peng and Robinson 1976):
  *   ln phi_i = (b_i/b)(Z - 1) - ln(Z - B)
  *              - A/((d1 - d2) B) * (2 sum_j x_j a_ij / a - b_i/b) * ln((Z + d1 B)/(Z + d2 B))
  * and the residual Gibbs energy of the mixture (used to choose between roots)
@@ -25,10 +25,11 @@
  * 'liquid' when its volume is below the pseudo-critical volume, V/b < Zc/Omega_b (3.85 SRK,
  * 3.95 PR), else 'vapor'; above it, 'vapor'. For a pure component this is exact (below Tc the
  * liquid spinodal volume lies below Vc and the vapour spinodal above it). For mixtures it is a
- * label only; it keeps the dense phase above a bubble point 'liquid' where Kay's rule
- * (sum x_i Tc_i) would not, e.g. methane + n-butane at 310 K. The tangent-plane stability test
- * (stability.ts) decides whether a mixture splits; with three roots 'stable' compares Gibbs
- * energies.
+ * label only, and near the critical region of an asymmetric mixture it can call a dense phase
+ * 'vapor' just above its bubble point (methane + n-butane 0.6/0.4 at 310 K, SRK: bubble point
+ * about 122 bar, single phase above it labelled 'vapor'), as any pseudo-critical rule does.
+ * The tangent-plane stability test (stability.ts) decides whether a mixture splits; with three
+ * roots 'stable' compares Gibbs energies.
  *
  * Everything that depends only on the components (a_c,i, b_i, m_i, 1 - k_ij) is computed once
  * in the constructor; per temperature only sqrt(a_i(T)), cached for the last T. The hot path

@@ -58,8 +58,11 @@ export interface FlashResult {
   history: number[];
   /** Tangent-plane distance of the stability test, when it ran. */
   tpd?: number;
-  /** Which path produced the answer. */
-  method: 'from-K0' | 'stability' | 'stability+split';
+  /**
+   * Which path produced the answer: 'direct' (one component present, or the ideal-gas model),
+   * 'from-K0' (split from the caller's K), 'stability' (stable feed), 'stability+split'.
+   */
+  method: 'direct' | 'from-K0' | 'stability' | 'stability+split';
   /**
    * Two-phase only: true when both phases sit on the liquid root (a liquid-liquid split, e.g.
    * water-methanol with k_ij = 0); beta is then the fraction of the lighter liquid.
@@ -85,16 +88,21 @@ interface SplitState {
 
 type EvalOutcome = 'ok' | 'single-liquid' | 'single-vapor';
 
-/** From ln K: Rachford-Rice, compositions and fugacity coefficients. Returns the residual. */
-function evaluate(eos: Eos, T: number, P: number, s: SplitState, res: Float64Array): { outcome: EvalOutcome; residual: number; gibbs: number } {
+/**
+ * From ln K: Rachford-Rice, compositions and fugacity coefficients. Returns the residual and the
+ * Gibbs energy of the split, gRT = sum_i [(1 - beta) x_i ln(x_i phi_i^L) + beta y_i ln(y_i phi_i^V)]
+ * (G/RT per mole of feed, less the constant ln P), which the acceleration and the fast path
+ * compare.
+ */
+function evaluate(eos: Eos, T: number, P: number, s: SplitState, res: Float64Array): { outcome: EvalOutcome; residual: number; gRT: number } {
   const n = s.n;
   for (let i = 0; i < n; i++) {
     const l = s.lnK[i];
     s.K[i] = Math.exp(l > 600 ? 600 : l < -600 ? -600 : l);
   }
   const rr = solveRachfordRice(s.z, s.K);
-  if (rr.kind === 'all-liquid') return { outcome: 'single-liquid', residual: Infinity, gibbs: Infinity };
-  if (rr.kind === 'all-vapor') return { outcome: 'single-vapor', residual: Infinity, gibbs: Infinity };
+  if (rr.kind === 'all-liquid') return { outcome: 'single-liquid', residual: Infinity, gRT: Infinity };
+  if (rr.kind === 'all-vapor') return { outcome: 'single-vapor', residual: Infinity, gRT: Infinity };
   s.beta = rr.beta;
   rachfordRiceCompositions(s.z, s.K, rr.beta, s.x, s.y);
   eos.lnPhi(T, P, s.x, 'stable', s.phiL);
@@ -116,7 +124,7 @@ function evaluate(eos: Eos, T: number, P: number, s: SplitState, res: Float64Arr
     if (xi > 0) g += (1 - b) * xi * (Math.log(xi) + s.phiL[i]);
     if (yi > 0) g += b * yi * (Math.log(yi) + s.phiV[i]);
   }
-  return { outcome: 'ok', residual: r, gibbs: g };
+  return { outcome: 'ok', residual: r, gRT: g };
 }
 
 function trivialNorm(s: SplitState): number {
@@ -129,7 +137,7 @@ interface SplitOutcome {
   kind: 'converged' | 'trivial' | 'single-liquid' | 'single-vapor' | 'not-converged';
   iterations: number;
   residual: number;
-  gibbs: number;
+  gRT: number;
   history: number[];
 }
 
@@ -178,10 +186,10 @@ function phaseSplit(eos: Eos, T: number, P: number, s: SplitState, tol: number, 
   let it = 0;
   let ev = evaluate(eos, T, P, s, res);
   for (;;) {
-    if (ev.outcome !== 'ok') return { kind: ev.outcome, iterations: it, residual: Infinity, gibbs: Infinity, history };
+    if (ev.outcome !== 'ok') return { kind: ev.outcome, iterations: it, residual: Infinity, gRT: Infinity, history };
     if (accelPending) {
       accelPending = false;
-      if (!(ev.gibbs < savedG)) {
+      if (!(ev.gRT < savedG)) {
         s.lnK.set(saved);
         prevStep.fill(0);
         ev = evaluate(eos, T, P, s, res);
@@ -190,8 +198,8 @@ function phaseSplit(eos: Eos, T: number, P: number, s: SplitState, tol: number, 
     }
     history.push(ev.residual);
     if (ev.residual <= tol) break;
-    if (trivialNorm(s) < TRIVIAL_NORM) return { kind: 'trivial', iterations: it, residual: ev.residual, gibbs: ev.gibbs, history };
-    if (it >= maxIt) return { kind: 'not-converged', iterations: it, residual: ev.residual, gibbs: ev.gibbs, history };
+    if (trivialNorm(s) < TRIVIAL_NORM) return { kind: 'trivial', iterations: it, residual: ev.residual, gRT: ev.gRT, history };
+    if (it >= maxIt) return { kind: 'not-converged', iterations: it, residual: ev.residual, gRT: ev.gRT, history };
     it++;
     // slow substitution (ratio near 1, typically close to a critical point): switch to Newton
     slow = ev.residual > 0.6 * prevResidual ? slow + 1 : 0;
@@ -214,7 +222,7 @@ function phaseSplit(eos: Eos, T: number, P: number, s: SplitState, tol: number, 
       const lambda = dot1 / dot0;
       if (lambda > 0 && lambda < 1) {
         saved.set(s.lnK);
-        savedG = ev.gibbs;
+        savedG = ev.gRT;
         const f = Math.min(lambda / (1 - lambda), 50);
         for (let i = 0; i < n; i++) s.lnK[i] += f * step[i];
         accelPending = true;
@@ -226,7 +234,7 @@ function phaseSplit(eos: Eos, T: number, P: number, s: SplitState, tol: number, 
     prevStep.set(step);
     ev = evaluate(eos, T, P, s, res);
   }
-  return { kind: 'converged', iterations: it, residual: ev.residual, gibbs: ev.gibbs, history };
+  return { kind: 'converged', iterations: it, residual: ev.residual, gRT: ev.gRT, history };
 }
 
 /**
@@ -244,11 +252,11 @@ function newtonSplit(
   const du = new Float64Array(n);
   let it = it0;
   let ev = evaluate(eos, T, P, s, res);
-  if (ev.outcome !== 'ok') return { kind: ev.outcome, iterations: it, residual: Infinity, gibbs: Infinity, history };
+  if (ev.outcome !== 'ok') return { kind: ev.outcome, iterations: it, residual: Infinity, gRT: Infinity, history };
   for (;;) {
-    if (ev.residual <= tol) return { kind: 'converged', iterations: it, residual: ev.residual, gibbs: ev.gibbs, history };
-    if (trivialNorm(s) < TRIVIAL_NORM) return { kind: 'trivial', iterations: it, residual: ev.residual, gibbs: ev.gibbs, history };
-    if (it >= maxIt) return { kind: 'not-converged', iterations: it, residual: ev.residual, gibbs: ev.gibbs, history };
+    if (ev.residual <= tol) return { kind: 'converged', iterations: it, residual: ev.residual, gRT: ev.gRT, history };
+    if (trivialNorm(s) < TRIVIAL_NORM) return { kind: 'trivial', iterations: it, residual: ev.residual, gRT: ev.gRT, history };
+    if (it >= maxIt) return { kind: 'not-converged', iterations: it, residual: ev.residual, gRT: ev.gRT, history };
     it++;
     u.set(s.lnK);
     for (let i = 0; i < n; i++) F[i] = s.present[i] ? res[i] : s.lnK[i] - (s.phiL[i] - s.phiV[i]);
@@ -269,7 +277,7 @@ function newtonSplit(
     if (!ok || !solveLinear(J, du, n)) {
       s.lnK.set(u);
       evaluate(eos, T, P, s, res);
-      return { kind: 'not-converged', iterations: it, residual: r0, gibbs: ev.gibbs, history };
+      return { kind: 'not-converged', iterations: it, residual: r0, gRT: ev.gRT, history };
     }
     let t = 1;
     for (let k = 0; k < 12; k++) {
@@ -278,7 +286,7 @@ function newtonSplit(
       if (ev.outcome === 'ok' && ev.residual < r0) break;
       t *= 0.5;
     }
-    if (ev.outcome !== 'ok') return { kind: ev.outcome, iterations: it, residual: Infinity, gibbs: Infinity, history };
+    if (ev.outcome !== 'ok') return { kind: ev.outcome, iterations: it, residual: Infinity, gRT: Infinity, history };
     history.push(ev.residual);
   }
 }
@@ -356,10 +364,10 @@ export function flashTP(eos: Eos, T: number, P: number, z: ArrayLike<number>, op
 
   if (eos.name === 'ideal') {
     // no liquid in the model
-    return single('vapor', 'stability', wilsonK(eos.components, T, P, new Float64Array(n)), { note: 'ideal-gas model: no liquid phase' });
+    return single('vapor', 'direct', wilsonK(eos.components, T, P, new Float64Array(n)), { note: 'ideal-gas model: no liquid phase' });
   }
   if (nPresent === 1) {
-    return single(labelOfFeed(), 'stability', wilsonK(eos.components, T, P, new Float64Array(n)));
+    return single(labelOfFeed(), 'direct', wilsonK(eos.components, T, P, new Float64Array(n)));
   }
 
   // 1. fast path from the caller's K
@@ -378,7 +386,7 @@ export function flashTP(eos: Eos, T: number, P: number, z: ArrayLike<number>, op
         const gFeed = feedGibbs(eos, T, P, zz, present);
         s.evaluations++;
         // the split is lower in Gibbs energy than the feed: accept
-        if (o.gibbs < gFeed) {
+        if (o.gRT < gFeed) {
           evaluateK(s);
           return twoPhase('from-K0', o.residual);
         }

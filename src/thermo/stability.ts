@@ -43,8 +43,12 @@ export interface StabilityResult {
   incomplete?: boolean;
 }
 
-/** Threshold below which a tangent-plane distance counts as negative. */
-export const TPD_NEGATIVE = -1e-10;
+/**
+ * Threshold below which a tangent-plane distance counts as negative. It sits above the noise of
+ * a converged flash (ln f equal to 1e-10 gives tpd of that order at the equilibrium tangent), so
+ * a phase at its own saturation point is reported stable.
+ */
+export const TPD_NEGATIVE = -1e-8;
 
 interface TrialOutcome {
   tpd: number;

@@ -292,3 +292,18 @@ describe('input checks', () => {
     expect(eos.zValue(250, 50e5, [2, 2])).toBeCloseTo(eos.zValue(250, 50e5, [0.5, 0.5]), 14);
   });
 });
+
+describe('Peng-Robinson m(omega)', () => {
+  it('1976 polynomial by default; the 1978 form only on request and only above omega = 0.49', async () => {
+    const { prM1976, prM1978 } = await import('../../src/thermo/pr.js');
+    // Peng and Robinson 1976: m = 0.37464 + 1.54226 w - 0.26992 w^2
+    expect(prM1976(0.2)).toBeCloseTo(0.37464 + 1.54226 * 0.2 - 0.26992 * 0.04, 14);
+    // Robinson and Peng 1978 (GPA RR-28): m = 0.379642 + 1.48503 w - 0.164423 w^2 + 0.016666 w^3
+    expect(prM1978(0.564)).toBeCloseTo(0.379642 + 1.48503 * 0.564 - 0.164423 * 0.564 ** 2 + 0.016666 * 0.564 ** 3, 14);
+    expect(prM1978(0.3)).toBe(prM1976(0.3));
+    const z76 = makeEos('PR', [methanol]).zValue(400, 5e5, [1]);
+    const z78 = makeEos('PR', [methanol], undefined, { pr78: true }).zValue(400, 5e5, [1]);
+    expect(z78).not.toBe(z76);
+    expect(makeEos('PR', [nButane], undefined, { pr78: true }).zValue(350, 5e5, [1])).toBe(makeEos('PR', [nButane]).zValue(350, 5e5, [1]));
+  });
+});
