@@ -108,6 +108,15 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
           help: 'check T and P against the mixture; a point near the mixture critical point is hard',
         };
       }
+      if (r.liquidLiquid) {
+        // Two liquids, no vapour: a vapour outlet fed a liquid would be no solution.
+        problem = {
+          kind: 'invalid',
+          unit: spec.name,
+          message: `the flash in \`${spec.name}\` finds two liquid phases and no vapour at the set T and P`,
+          help: 'set binary interaction parameters for the polar pairs under `thermo.kij` (from a fit to phase-equilibrium data), or use `model: split`',
+        };
+      }
       if (r.phase === 'two-phase') {
         K0 = Float64Array.from(r.K);
         for (let i = 0; i < n; i++) {

@@ -9,6 +9,10 @@ import { readFileSync } from 'node:fs';
 
 const VERSION = '0.1.0';
 
+function collect(value: string, previous: string[]): string[] {
+  return [...previous, value];
+}
+
 async function reportError(e: unknown, debug: boolean): Promise<number> {
   if (e instanceof InputError) {
     const sources = new Map<string, string>();
@@ -75,6 +79,9 @@ export async function main(argv: string[]): Promise<void> {
     .option('--flow-unit <unit>', 'display unit of molar flows, e.g. kmol/h')
     .option('--max-passes <n>', 'budget of flowsheet passes')
     .option('--tolerance <rtol>', 'relative tolerance on every tear variable (default 1e-10)')
+    .option('--target <spec>', 'hold an output at a value, e.g. "streams.recycle.fractions.N2 = 0.10" (repeatable)', collect, [])
+    .option('--by <input>', 'the input adjusted for the matching --target, e.g. purge-split.out.recycle', collect, [])
+    .option('--within <low:high>', 'bounds of that input, e.g. 0.8:0.999 or "10:14 m3/h"', collect, [])
     .option('--out <file>', 'write the report to a file')
     .action(async (file: string, o) => {
       const { text, result } = runSolve(file, o);

@@ -1,12 +1,17 @@
 /** `loopclose solve`: the steady state of a flowsheet file. */
 import { InputError } from '../diagnostics.js';
-import { loadFlowsheet } from '../flowsheet/validate.js';
+import { ParametricFlowsheet } from '../study/params.js';
+import { parseTarget, solvePoint, type TargetReport } from '../study/point.js';
+import { fileTargets } from '../study/file-targets.js';
 import { solveFlowsheet, type FlowsheetResult } from '../flowsheet/solve.js';
 import { solveCsv, solveJson, solveText } from '../report/solve.js';
 import type { MethodName } from '../solve/types.js';
 import { parseQuantity, UnitError } from '../units/index.js';
 
 export interface SolveCliOptions {
+  target?: string[];
+  by?: string[];
+  within?: string[];
   json?: boolean;
   csv?: boolean;
   method?: string;
@@ -42,8 +47,23 @@ export function runSolve(file: string, o: SolveCliOptions): { text: string; resu
   }
   if (o.json && o.csv) errs.push('give --json or --csv, not both');
   if (errs.length) throw new InputError(errs.map((message) => ({ severity: 'error' as const, message })));
-  const { model } = loadFlowsheet(file);
-  const result = solveFlowsheet(model, { method, maxPasses, rtol });
+  const cliTargets = o.target ?? [];
+  if ((o.by ?? []).length !== cliTargets.length) errs.push(`give one --by for each --target (${cliTargets.length} targets, ${(o.by ?? []).length} --by)`);
+  if ((o.within ?? []).length > cliTargets.length) errs.push('more --within than --target');
+  if (errs.length) throw new InputError(errs.map((message) => ({ severity: 'error' as const, message })));
+  const p = new ParametricFlowsheet(file);
+  const targets = [...fileTargets(p), ...cliTargets.map((t, j) => parseTarget(p, t, o.by![j], o.within?.[j]))];
+  let result: FlowsheetResult;
+  let targetReports: TargetReport[] | undefined;
+  if (targets.length === 0) {
+    result = solveFlowsheet(p.base.model, { method, maxPasses, rtol });
+  } else {
+    const pr = solvePoint(p, [], { targets, method, maxPasses });
+    if (!pr.result) throw new InputError([{ severity: 'error', message: pr.message ?? 'the targets cannot be set up' }]);
+    result = pr.result;
+    targetReports = pr.targets;
+  }
+  result.targets = targetReports;
   const text = o.json ? solveJson(result) : o.csv ? solveCsv(result, { flowUnit: o.flowUnit }) : solveText(result, { flowUnit: o.flowUnit });
   return { text, result };
 }

@@ -79,6 +79,8 @@ export interface FlowsheetResult {
   x: Float64Array;
   warnings: string[];
   model: Model;
+  /** Targets held, when the solve had any. */
+  targets?: { text: string; output: number; target: number; input: number; inputPath: string; met: boolean; bound?: 'lower' | 'upper' }[];
 }
 
 export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): FlowsheetResult {
@@ -106,32 +108,7 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
         x0[t * m + n + 1] = rt.tearStreams[t].P;
       }
     }
-    const lower = new Float64Array(N);
-    const atol = new Float64Array(N);
-    const names: string[] = [];
-    for (let t = 0; t < T; t++) {
-      for (let i = 0; i < n; i++) {
-        atol[t * m + i] = Math.max(1e-300, feedTotal * 1e-15);
-        names.push(`${rt.plan.tears[t]}.${model.ids[i]}`);
-      }
-      lower[t * m + n] = 1e-6;
-      lower[t * m + n + 1] = 1e-6;
-      atol[t * m + n] = 1e-9;
-      atol[t * m + n + 1] = 1e-6;
-      names.push(`${rt.plan.tears[t]}.T`, `${rt.plan.tears[t]}.P`);
-    }
-    const problem: FixedPointProblem = {
-      n: N,
-      x0,
-      lower,
-      atol,
-      names,
-      g(x, out) {
-        setTears(rt, x);
-        rt.pass();
-        readTears(rt, out);
-      },
-    };
+    const problem = tearProblem(rt, x0, feedTotal);
     const method = opts.method ?? model.solver.method;
     const maxPasses = opts.maxPasses ?? model.solver.maxPasses ?? 2000;
     const wegstein = { qMin: model.solver.qMin, qMax: model.solver.qMax, maxPasses: method === 'auto' ? AUTO_WEGSTEIN_PASSES : undefined };
@@ -173,7 +150,7 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
     const issues = rt.issues();
     if (issues.length > 0) {
       const first = issues[0].failure;
-      status = first.kind === 'infeasible' ? 'infeasible' : 'not-converged';
+      status = first.kind === 'infeasible' ? 'infeasible' : first.kind === 'invalid' ? 'invalid' : 'not-converged';
       failure = first;
       message = first.message;
     } else {
@@ -192,6 +169,16 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
     }
   }
 
+  return collectResult(rt, { ...result, status, message, failure }, feedTotal, warnings);
+}
+
+/**
+ * Everything reported of a runtime's current state (streams as the last pass left them),
+ * under the given solver result.
+ */
+export function collectResult(rt: Runtime, result: SolveResult, feedTotal: number, warnings: string[]): FlowsheetResult {
+  const { status, message, failure } = result;
+  const model = rt.model;
   const streams = new Map<string, StreamResult>();
   for (const name of rt.streamOrder) streams.set(name, streamResult(rt, rt.streams.get(name)!));
   const units = new Map<string, UnitSummary & { type: string }>();
@@ -208,6 +195,48 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
   };
 }
 
+/** Total fresh feed, mol/s. */
+export function freshFeed(rt: Runtime): number {
+  let t = 0;
+  for (const f of rt.feeds) t += f.molarFlow;
+  return t;
+}
+
+/** The tear variables of a runtime as a fixed-point problem: bounds, absolute floors and names. */
+export function tearProblem(rt: Runtime, x0: Float64Array, feedTotal: number): FixedPointProblem {
+  const { n, model } = rt;
+  const m = rt.perTear;
+  const T = rt.tearStreams.length;
+  const N = T * m;
+  const lower = new Float64Array(N);
+  const atol = new Float64Array(N);
+  const names: string[] = [];
+  for (let t = 0; t < T; t++) {
+    for (let i = 0; i < n; i++) {
+      // Flows: a floor far below any flow that matters (1e-15 of the fresh feed).
+      atol[t * m + i] = Math.max(1e-300, feedTotal * 1e-15);
+      names.push(`${rt.plan.tears[t]}.${model.ids[i]}`);
+    }
+    lower[t * m + n] = 1e-6;
+    lower[t * m + n + 1] = 1e-6;
+    atol[t * m + n] = 1e-9;
+    atol[t * m + n + 1] = 1e-6;
+    names.push(`${rt.plan.tears[t]}.T`, `${rt.plan.tears[t]}.P`);
+  }
+  return {
+    n: N,
+    x0,
+    lower,
+    atol,
+    names,
+    g(x, out) {
+      setTears(rt, x);
+      rt.pass();
+      readTears(rt, out);
+    },
+  };
+}
+
 function mergeResults(a: SolveResult, b: SolveResult): SolveResult {
   const method = a.method === b.method || a.method.endsWith(`+${b.method}`) ? a.method : `${a.method}+${b.method}`;
   return {
@@ -220,7 +249,7 @@ function mergeResults(a: SolveResult, b: SolveResult): SolveResult {
   };
 }
 
-function setTears(rt: Runtime, x: Float64Array): void {
+export function setTears(rt: Runtime, x: Float64Array): void {
   const { n, perTear: m } = rt;
   rt.tearStreams.forEach((s, t) => {
     for (let i = 0; i < n; i++) s.flows[i] = x[t * m + i];
@@ -229,7 +258,7 @@ function setTears(rt: Runtime, x: Float64Array): void {
   });
 }
 
-function readTears(rt: Runtime, out: Float64Array): void {
+export function readTears(rt: Runtime, out: Float64Array): void {
   const { n, perTear: m } = rt;
   rt.tearStreams.forEach((s, t) => {
     for (let i = 0; i < n; i++) out[t * m + i] = s.flows[i];

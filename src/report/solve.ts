@@ -57,6 +57,7 @@ export function resultObject(r: FlowsheetResult): Record<string, unknown> {
     base.lastIterate = r.x;
     base.worst = r.worst;
   }
+  if (r.targets) base.targets = r.targets;
   base.history = r.history.map((h) => ({ pass: h.pass, residual: h.residual, scaled: h.scaled, method: h.method }));
   base.warnings = r.warnings;
   base.caution = CAUTION;
@@ -103,6 +104,11 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
   out.push(`${head}  (${r.method}: ${r.passes} passes, ${r.iterations} iterations${r.jacobians ? `, ${r.jacobians} Jacobians` : ''}, residual ${r.residual.toExponential(2)})`);
   out.push(`${m.title ? `${m.title} - ` : ''}${m.file} (equation of state: ${m.thermo.eos})`);
   if (r.tears.length) out.push(`tear streams: ${r.tears.join(', ')}; calculation order: ${r.order.join(' -> ')}`);
+  if (r.targets?.length) {
+    out.push('');
+    out.push('Targets');
+    for (const t of r.targets) out.push(`  ${t.text}: reached ${num(t.output, 8)} by ${t.inputPath} = ${num(t.input, 8)}${t.met ? '' : ` (not met${t.bound ? `: stopped by its ${t.bound} bound` : ''})`}`);
+  }
   if (r.status !== 'converged') {
     out.push('');
     out.push(r.status === 'infeasible' ? 'No steady state exists as specified:' : 'The loop did not converge; this is not a solution:');

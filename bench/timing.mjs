@@ -1,0 +1,78 @@
+// Timing helpers for the benchmarks: medians of repeated batches after a warm-up.
+import { spawnSync } from 'node:child_process';
+
+export function median(xs) {
+  const s = [...xs].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : 0.5 * (s[m - 1] + s[m]);
+}
+
+/**
+ * Median time per call of fn, in milliseconds. fn runs for at least warmupMs (and warmupCalls
+ * calls) first; then the calls per batch are chosen so that one batch lasts about batchMs, and
+ * `batches` batches are timed. Returns { ms, samples, perBatch, last } with last = fn's last value.
+ */
+export function measure(fn, { warmupMs = 300, warmupCalls = 3, batchMs = 100, batches = 7 } = {}) {
+  let last;
+  let calls = 0;
+  const t0 = performance.now();
+  while (calls < warmupCalls || performance.now() - t0 < warmupMs) {
+    last = fn();
+    calls++;
+  }
+  const perCall = (performance.now() - t0) / calls;
+  const perBatch = Math.max(1, Math.round(batchMs / Math.max(perCall, 1e-6)));
+  const samples = [];
+  for (let b = 0; b < batches; b++) {
+    const s = performance.now();
+    for (let k = 0; k < perBatch; k++) last = fn();
+    samples.push((performance.now() - s) / perBatch);
+  }
+  return { ms: median(samples), samples, perBatch, last };
+}
+
+/** Median wall time (ms) of a whole process, spawned `runs` times after `warmup` unrecorded runs. */
+export function processTime(cmd, args, { runs = 11, warmup = 2, cwd } = {}) {
+  const samples = [];
+  let status = 0;
+  for (let k = 0; k < warmup + runs; k++) {
+    const s = performance.now();
+    const r = spawnSync(cmd, args, { cwd, stdio: ['ignore', 'ignore', 'pipe'] });
+    const t = performance.now() - s;
+    status = r.status ?? -1;
+    if (k >= warmup) samples.push(t);
+  }
+  return { ms: median(samples), samples, status };
+}
+
+/** Least-squares slope of log(y) against log(x). */
+export function logLogSlope(xs, ys) {
+  const lx = xs.map(Math.log);
+  const ly = ys.map(Math.log);
+  const mx = lx.reduce((a, b) => a + b, 0) / lx.length;
+  const my = ly.reduce((a, b) => a + b, 0) / ly.length;
+  let num = 0;
+  let den = 0;
+  for (let k = 0; k < lx.length; k++) {
+    num += (lx[k] - mx) * (ly[k] - my);
+    den += (lx[k] - mx) ** 2;
+  }
+  return num / den;
+}
+
+/** A number for a table: 3 significant digits, exponent form outside 1e-3..1e6. */
+export function fmt(x, digits = 3) {
+  if (x === undefined || x === null || Number.isNaN(x)) return '-';
+  if (!Number.isFinite(x)) return String(x);
+  const a = Math.abs(x);
+  if (a !== 0 && (a < 1e-3 || a >= 1e7)) return x.toExponential(digits - 1);
+  return String(Number(x.toPrecision(digits)));
+}
+
+/** Plain-text table with right-aligned columns except the first. */
+export function table(headers, rows) {
+  const cells = [headers, ...rows].map((r) => r.map((c) => String(c)));
+  const widths = headers.map((_, j) => Math.max(...cells.map((r) => (r[j] ?? '').length)));
+  const line = (r) => r.map((c, j) => (j === 0 ? c.padEnd(widths[j]) : c.padStart(widths[j]))).join('  ');
+  return [line(cells[0]), widths.map((w) => '-'.repeat(w)).join('  '), ...cells.slice(1).map(line)].join('\n');
+}

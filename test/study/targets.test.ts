@@ -1,0 +1,69 @@
+import { describe, expect, it } from 'vitest';
+import { ParametricFlowsheet } from '../../src/study/params.js';
+import { parseTarget, solvePoint } from '../../src/study/point.js';
+import { solveFlowsheet } from '../../src/flowsheet/solve.js';
+import { cli } from '../helpers/cli.js';
+import type { InputError } from '../../src/diagnostics.js';
+
+describe('targets held by Newton together with the tear equations', () => {
+  const p = new ParametricFlowsheet('flowsheets/methanol-pilot.yaml');
+
+  it('meets a recycle-composition target to its tolerance, and a plain solve at the found input agrees', () => {
+    const t = parseTarget(p, 'streams.recycle.fractions.N2 = 0.10', 'purge-split.out.recycle', '0.8:0.999');
+    const r = solvePoint(p, [], { targets: [t] });
+    expect(r.status).toBe('converged');
+    const rep = r.targets![0];
+    expect(Math.abs(rep.output - 0.1)).toBeLessThanOrEqual(t.tolerance * 10);
+    // Independent check: set the input the target found and solve without targets.
+    const again = solvePoint(p, [{ ref: p.input('purge-split.out.recycle'), value: rep.input }]);
+    expect(again.status).toBe('converged');
+    const y = again.result!.streams.get('recycle')!.fractions[p.base.model.index.get('N2')!];
+    expect(Math.abs(y - 0.1)).toBeLessThan(1e-8);
+  });
+
+  it('a target with a unit: the purge total held at 2 kmol/h by the hydrogen meter flow', () => {
+    const t = parseTarget(p, 'streams.purge.total = 2 kmol/h', 'feeds.hydrogen.meter.flow', '8:20 m3/h');
+    const r = solvePoint(p, [], { targets: [t] });
+    expect(r.status).toBe('converged');
+    expect(r.result!.streams.get('purge')!.total).toBeCloseTo(2 / 3.6, 8);
+  });
+
+  it('an impossible target is infeasible, with the closest value and the bound that stopped it', () => {
+    const t = parseTarget(p, 'streams.recycle.fractions.N2 = 0.5', 'purge-split.out.recycle', '0.8:0.999');
+    const r = solvePoint(p, [], { targets: [t] });
+    expect(r.status).toBe('infeasible');
+    expect(r.targets![0].bound).toBe('upper');
+    expect(r.message).toMatch(/closest is 0\.34\d+ at its upper bound 0\.999/);
+    const t2 = parseTarget(p, 'streams.recycle.fractions.N2 = 0.02', 'purge-split.out.recycle', '0.8:0.999');
+    const r2 = solvePoint(p, [], { targets: [t2] });
+    expect(r2.status).toBe('infeasible');
+    expect(r2.targets![0].bound).toBe('lower');
+  });
+
+  it('refuses a target on an unknown output with a suggestion', () => {
+    let help = '';
+    try {
+      parseTarget(p, 'streams.recycel.fractions.N2 = 0.1', 'purge-split.out.recycle', '0.8:0.999');
+    } catch (e) {
+      help = (e as InputError).diagnostics[0].help ?? '';
+    }
+    expect(help).toMatch(/did you mean `recycle`/);
+  });
+
+  it('the CLI holds a target and exits 0; an impossible one exits 4 without a stream table', () => {
+    const ok = cli(['solve', 'flowsheets/methanol-pilot.yaml', '--target', 'streams.recycle.fractions.N2 = 0.10', '--by', 'purge-split.out.recycle', '--within', '0.8:0.999', '--json']);
+    expect(ok.code).toBe(0);
+    const j = JSON.parse(ok.stdout);
+    expect(j.targets[0].met).toBe(true);
+    const bad = cli(['solve', 'flowsheets/methanol-pilot.yaml', '--target', 'streams.recycle.fractions.N2 = 0.5', '--by', 'purge-split.out.recycle', '--within', '0.8:0.999']);
+    expect(bad.code).toBe(4);
+    expect(bad.stdout).not.toMatch(/^Streams/m);
+    expect(bad.stdout).toMatch(/stopped by its upper bound/);
+  });
+
+  it('solving with no targets equals a plain solve', () => {
+    const a = solvePoint(p, []);
+    const b = solveFlowsheet(p.base.model);
+    expect(a.result!.streams.get('purge')!.total).toBe(b.streams.get('purge')!.total);
+  });
+});
