@@ -13,3 +13,7 @@ export { InputError, formatDiagnostics } from './diagnostics.js';
 export type { Diagnostic } from './diagnostics.js';
 export type * from './solve/types.js';
 export type * from './thermo/types.js';
+export { ParametricFlowsheet } from './study/params.js';
+export { solvePoint, parseTarget } from './study/point.js';
+export type { PointResult, TargetSpec, InputValue } from './study/point.js';
+export { parseOutput, outputValue } from './study/outputs.js';
