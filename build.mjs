@@ -6,5 +6,9 @@ import { build } from 'esbuild';
 const banner = { js: "import { createRequire as __loopcloseRequire } from 'node:module'; const require = __loopcloseRequire(import.meta.url);" };
 const common = { bundle: true, platform: 'node', format: 'esm', target: 'node20', sourcemap: true, logLevel: 'warning', banner };
 await build({ ...common, entryPoints: ['src/cli/main.ts'], outfile: 'dist/cli.mjs' });
-await build({ ...common, entryPoints: ['src/index.ts'], outfile: 'dist/index.mjs', packages: 'external' });
+// The library is bundled with its dependencies as well: importing mathjs as a package loads its
+// whole function set (about a second), where the bundle keeps only the unit machinery.
+await build({ ...common, entryPoints: ['src/index.ts'], outfile: 'dist/index.mjs' });
+// The worker thread of `loopclose sweep --jobs N`, loaded from next to dist/cli.mjs.
+await build({ ...common, entryPoints: ['src/study/worker.ts'], outfile: 'dist/worker.mjs' });
 

@@ -20,8 +20,20 @@ export function measure(fn, { warmupMs = 300, warmupCalls = 3, batchMs = 100, ba
     last = fn();
     calls++;
   }
-  const perCall = (performance.now() - t0) / calls;
-  const perBatch = Math.max(1, Math.round(batchMs / Math.max(perCall, 1e-6)));
+  // Calibrate after the warm-up (the first calls may include one-time set-up).
+  let perBatch = 1;
+  if (batchMs > 0) {
+    for (;;) {
+      const s = performance.now();
+      for (let k = 0; k < perBatch; k++) last = fn();
+      const t = performance.now() - s;
+      if (t >= batchMs / 4) {
+        perBatch = Math.max(1, Math.round((perBatch * batchMs) / t));
+        break;
+      }
+      perBatch *= 4;
+    }
+  }
   const samples = [];
   for (let b = 0; b < batches; b++) {
     const s = performance.now();

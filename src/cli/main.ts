@@ -5,6 +5,8 @@ import { EXIT, exitCodeOf } from './exit.js';
 import { writeErr, writeFileAtomic, writeOut } from './io.js';
 import { runMeter } from './meter.js';
 import { runSolve } from './solve.js';
+import { registerSweep } from './sweep.js';
+import { registerMerge } from './merge.js';
 import { readFileSync } from 'node:fs';
 
 const VERSION = '0.1.0';
@@ -36,8 +38,25 @@ async function reportError(e: unknown, debug: boolean): Promise<number> {
 }
 
 async function emit(text: string, out?: string): Promise<void> {
-  if (out) writeFileAtomic(out, text.endsWith('\n') ? text : `${text}\n`);
-  else await writeOut(text);
+  if (out) {
+    try {
+      writeFileAtomic(out, text.endsWith('\n') ? text : `${text}\n`);
+    } catch (e) {
+      const code = (e as NodeJS.ErrnoException).code;
+      if (!code) throw e;
+      const why = code === 'ENOENT' ? 'its folder does not exist' : code === 'EACCES' || code === 'EPERM' ? 'permission denied' : code === 'EISDIR' ? 'it is a folder' : code;
+      throw new InputError([{ severity: 'error', message: `--out: cannot write ${out}: ${why}`, help: 'give the path of a file in an existing folder that you may write to' }]);
+    }
+  } else await writeOut(text);
+}
+
+/**
+ * Test hook: with LOOPCLOSE_FAULT=1 in the environment, every command fails with an
+ * internal error before it reads its input (to test how internal errors are reported: one
+ * line and a pointer to --debug, exit 1). It changes nothing else.
+ */
+function faultHook(): void {
+  if (process.env.LOOPCLOSE_FAULT === '1') throw new Error('fault injected by LOOPCLOSE_FAULT=1 (test hook)');
 }
 
 export async function main(argv: string[]): Promise<void> {
@@ -66,6 +85,7 @@ export async function main(argv: string[]): Promise<void> {
     .option('--flow-unit <unit>', 'display unit of molar flows')
     .option('--out <file>', 'write the report to a file')
     .action(async (file: string | undefined, o) => {
+      faultHook();
       await emit(runMeter(file, o), o.out);
     });
 
@@ -84,10 +104,18 @@ export async function main(argv: string[]): Promise<void> {
     .option('--within <low:high>', 'bounds of that input, e.g. 0.8:0.999 or "10:14 m3/h"', collect, [])
     .option('--out <file>', 'write the report to a file')
     .action(async (file: string, o) => {
+      faultHook();
       const { text, result } = runSolve(file, o);
       await emit(text, o.out);
       code = exitCodeOf(result.status);
     });
+
+  registerSweep(program, (c) => {
+    code = c;
+  });
+  registerMerge(program, (c) => {
+    code = c;
+  });
 
   try {
     await program.parseAsync(argv);

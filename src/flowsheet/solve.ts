@@ -10,6 +10,7 @@ import type { FeedResult } from '../blocks/feed.js';
 import type { Stream, UnitSummary } from '../blocks/types.js';
 import { computeBalance, type Balance } from './balance.js';
 import { buildRuntime, type Runtime } from './runtime.js';
+import { tearStructure } from './jacobian-structure.js';
 import type { Model } from './model.js';
 import type { Eos } from '../thermo/types.js';
 
@@ -103,9 +104,11 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
     const x0 = new Float64Array(N);
     if (opts.start && opts.start.length === N) x0.set(opts.start);
     else {
+      // Tears start at zero flow, at the conditions of the first feed (never at what a
+      // previous solve on the same runtime left, so that a solve does not depend on it).
       for (let t = 0; t < T; t++) {
-        x0[t * m + n] = rt.tearStreams[t].T;
-        x0[t * m + n + 1] = rt.tearStreams[t].P;
+        x0[t * m + n] = rt.feeds[0]?.T ?? 298.15;
+        x0[t * m + n + 1] = rt.feeds[0]?.P ?? 101325;
       }
     }
     const problem = tearProblem(rt, x0, feedTotal);
@@ -132,10 +135,21 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
       setTears(rt, result.x);
       rt.pass();
       if (computeBalance(rt).worst <= CLOSURE_TOL) break;
-      const more = solveFixedPoint({ ...problem, x0: Float64Array.from(result.x) }, method === 'auto' ? 'newton' : method, {
-        rtol: rtol * 10 ** -(k + 1), maxPasses: Math.max(1, maxPasses - result.passes), wegstein,
+      const tighter = 10 ** -(k + 1);
+      const atol = Float64Array.from(problem.atol ?? [], (v) => Math.max(1e-300, v * tighter * tighter));
+      const more = solveFixedPoint({ ...problem, atol, x0: Float64Array.from(result.x) }, method === 'auto' ? 'newton' : method, {
+        rtol: rtol * tighter, maxPasses: Math.max(1, maxPasses - result.passes), wegstein,
       });
       result = mergeResults(result, more);
+    }
+    if (result.status === 'converged') {
+      setTears(rt, result.x);
+      rt.pass();
+      const open = openBalance(rt);
+      if (open) {
+        result = { ...result, status: 'not-converged', message: `the tear streams meet their tolerance, but ${open}; this is not a solution`, };
+        result.worst = undefined;
+      }
     }
     // Leave every stream at the final iterate.
     setTears(rt, result.x);
@@ -229,6 +243,8 @@ export function tearProblem(rt: Runtime, x0: Float64Array, feedTotal: number): F
     lower,
     atol,
     names,
+    // Which tears each tear's perturbation can reach: Newton skips or groups columns.
+    structure: tearStructure(rt),
     g(x, out) {
       setTears(rt, x);
       rt.pass();
@@ -265,6 +281,28 @@ export function readTears(rt: Runtime, out: Float64Array): void {
     out[t * m + n] = s.T;
     out[t * m + n + 1] = s.P;
   });
+}
+
+/** The worst open balance after a converged tear test, described; undefined when all close. */
+function openBalance(rt: Runtime): string | undefined {
+  const b = computeBalance(rt);
+  if (b.worst <= CLOSURE_TOL) return undefined;
+  let worst = '';
+  let v = 0;
+  for (const [id, c] of Object.entries(b.components)) {
+    if (Math.abs(c.closure) > v) {
+      v = Math.abs(c.closure);
+      worst = `the balance of ${id} closes only to ${Math.abs(c.closure).toExponential(2)} (in ${c.in.toExponential(3)} mol/s, out ${c.out.toExponential(3)} mol/s)`;
+    }
+  }
+  for (const [el, c] of Object.entries(b.elements)) {
+    if (Math.abs(c.closure) > v) {
+      v = Math.abs(c.closure);
+      worst = `the balance of element ${el} closes only to ${Math.abs(c.closure).toExponential(2)}`;
+    }
+  }
+  if (Math.abs(b.mass.closure) > v) worst = `the mass balance closes only to ${Math.abs(b.mass.closure).toExponential(2)}`;
+  return `${worst} (a trace component far below the others, or a split close to 0 or 1, can do this: try --method newton, a tighter --tolerance, or set such a trace to zero)`;
 }
 
 function negativeFlow(rt: Runtime): string | undefined {

@@ -197,10 +197,15 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
   // Feeds.
   const feeds: FeedSpec[] = [];
   const feedsE = get('feeds');
+  // Streams that a feed or unit with errors may make: not reported again as unknown.
+  const maybeMade = new Set<string>();
+  let feedsUnreadable = false;
   if (!feedsE) {
     bag.error('the file has no `feeds:`', src.at(root), 'give at least one feed with its composition and flow');
   } else {
-    for (const e of r.entries(feedsE.value, '`feeds`', feedsE.keyNode) ?? []) {
+    const feedEntries = r.entries(feedsE.value, '`feeds`', feedsE.keyNode);
+    if (!feedEntries) feedsUnreadable = true;
+    for (const e of feedEntries ?? []) {
       if (streamSpans.has(e.key)) {
         bag.error(`stream \`${e.key}\` is made twice`, r.at(e.keyNode), 'give each feed and unit outlet its own stream name');
         continue;
@@ -219,11 +224,15 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
     for (const e of r.entries(unitsE.value, '`units`', unitsE.keyNode) ?? []) {
       if (unitSpans.has(e.key)) {
         bag.error(`the name \`${e.key}\` is used twice (a feed or unit has it already)`, r.at(e.keyNode), 'give every feed and unit its own name');
+        for (const s of guessOutlets(r, e)) maybeMade.add(s);
         continue;
       }
       unitSpans.set(e.key, r.at(e.keyNode));
       const u = readUnit(r, e, ids, index, atmosphere, elements);
-      if (!u) continue;
+      if (!u) {
+        for (const s of guessOutlets(r, e)) maybeMade.add(s);
+        continue;
+      }
       units.push(u);
       u.outlets.forEach((s) => {
         if (streamSpans.has(s)) {
@@ -237,7 +246,7 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
   const takenBy = new Map<string, string>();
   for (const u of units) {
     for (const s of u.inlets) {
-      if (!streamSpans.has(s)) {
+      if (!streamSpans.has(s) && !maybeMade.has(s) && !feedsUnreadable) {
         bag.error(`unit \`${u.name}\` takes stream \`${s}\`, which no feed or unit makes`, u.span,
           didYouMean(s, streamSpans.keys()) ?? 'add a feed of that name, or take the outlet of another unit');
       }
@@ -258,8 +267,9 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
     for (const t of r.list(tearsE.value, '`tears`', true) ?? []) {
       const s = r.string(t, 'a tear stream name');
       if (s === undefined) continue;
-      if (!streamSpans.has(s)) bag.error(`tear stream \`${s}\` does not exist`, r.at(t), didYouMean(s, streamSpans.keys()) ?? 'name a stream that a unit makes');
-      else if (!takenBy.has(s)) bag.error(`tear stream \`${s}\` is a product (no unit takes it)`, r.at(t), 'a tear stream must lie in a recycle loop');
+      if (!streamSpans.has(s)) {
+        if (!maybeMade.has(s) && !feedsUnreadable) bag.error(`tear stream \`${s}\` does not exist`, r.at(t), didYouMean(s, streamSpans.keys()) ?? 'name a stream that a unit makes');
+      } else if (!takenBy.has(s)) bag.error(`tear stream \`${s}\` is a product (no unit takes it)`, r.at(t), 'a tear stream must lie in a recycle loop');
       else tears.push(s);
     }
   }
@@ -384,6 +394,7 @@ function fmt(v: number): string {
 function requiredQuantity(r: Reader, entries: Entry[], key: string, dim: Dimension | readonly Dimension[], what: string, parent: Node | null, rule: NumberRule, ctx: { atmosphere: number; standards?: Map<string, StandardRef> }) {
   const e = r.find(entries, key);
   if (!e) {
+    if (r.strayNear(entries, key)) return undefined;
     r.bag.error(`${what} is missing`, r.at(parent), rule.example ? `add \`${key}: ${rule.example}\`` : undefined);
     return undefined;
   }
@@ -490,6 +501,7 @@ function readFeed(r: Reader, e: Entry, ids: string[], index: Map<string, number>
   const n = ids.length;
   const forms = FLOW_FORMS.filter((k) => get(k));
   if (forms.length === 0) {
+    if (r.strayNear(f, ...FLOW_FORMS)) return undefined; // a misspelt flow key is reported already
     r.bag.error(`${what} has no flow`, r.at(e.keyNode), 'give one of `meter: { flow, pressure, temperature }`, `molar-flow`, `mass-flow`, `standard-flow` or `flows`');
     return undefined;
   }
@@ -505,42 +517,46 @@ function readFeed(r: Reader, e: Entry, ids: string[], index: Map<string, number>
   let flowsSI: Float64Array | undefined;
   const molE = get('composition');
   const massE = get('mass-composition');
-  if (form === 'flows') {
-    if (molE || massE) r.bag.error(`${what} gives \`flows\` per component, so it takes no composition`, r.at((molE ?? massE)!.keyNode), 'remove the composition: it follows from the flows');
-    flowsSI = readFractionMap(r, get('flows')!.value, `\`flows\` of ${what}`, get('flows')!.keyNode, ids, index, { dimension: 'molarFlow' }, ctx);
-    if (!flowsSI) return undefined;
-    const total = flowsSI.reduce((a, b) => a + b, 0);
-    if (!(total > 0)) {
-      r.bag.error(`the flows of ${what} add up to zero`, r.at(get('flows')!.keyNode), 'give at least one positive component flow');
-      return undefined;
+  // A problem here is reported, and the rest of the feed is still read (all problems at once).
+  readComposition: {
+    if (form === 'flows') {
+      if (molE || massE) r.bag.error(`${what} gives \`flows\` per component, so it takes no composition`, r.at((molE ?? massE)!.keyNode), 'remove the composition: it follows from the flows');
+      flowsSI = readFractionMap(r, get('flows')!.value, `\`flows\` of ${what}`, get('flows')!.keyNode, ids, index, { dimension: 'molarFlow' }, ctx);
+      if (!flowsSI) break readComposition;
+      const total = flowsSI.reduce((a, b) => a + b, 0);
+      if (!(total > 0)) {
+        r.bag.error(`the flows of ${what} add up to zero`, r.at(get('flows')!.keyNode), 'give at least one positive component flow');
+        break readComposition;
+      }
+      composition = flowsSI.map((v) => v / total);
+    } else {
+      if (molE && massE) {
+        r.bag.error(`${what} gives both \`composition\` and \`mass-composition\``, r.at(massE.keyNode), 'keep one of them');
+        break readComposition;
+      }
+      const ce = molE ?? massE;
+      if (!ce) {
+        if (r.strayNear(f, 'composition', 'mass-composition')) break readComposition;
+        r.bag.error(`${what} has no composition`, r.at(e.keyNode), 'add `composition: { H2: 0.985, N2: 0.015 }` (mole fractions) or `mass-composition`');
+        break readComposition;
+      }
+      const frac = readFractionMap(r, ce.value, `\`${ce.key}\` of ${what}`, ce.keyNode, ids, index, { min: 0, max: normalize ? Infinity : 1 }, ctx);
+      if (!frac) break readComposition;
+      const sum = frac.reduce((a, b) => a + b, 0);
+      if (!(sum > 0)) {
+        r.bag.error(`the ${ce.key} of ${what} is all zero`, r.at(ce.value), 'give at least one positive fraction');
+        break readComposition;
+      }
+      if (Math.abs(sum - 1) > 1e-6 && !normalize) {
+        r.bag.error(`${ce.key} of ${what} sums to ${Number(sum.toPrecision(8))}, not 1`, r.at(ce.value), 'give every component, or add `normalize: true` to scale the fractions to 1');
+        break readComposition;
+      }
+      if (ce.key === 'mass-composition') {
+        const moles = frac.map((w, i) => w / comps[i].MW);
+        const t = moles.reduce((a, b) => a + b, 0);
+        composition = moles.map((m) => m / t);
+      } else composition = frac.map((v) => v / sum);
     }
-    composition = flowsSI.map((v) => v / total);
-  } else {
-    if (molE && massE) {
-      r.bag.error(`${what} gives both \`composition\` and \`mass-composition\``, r.at(massE.keyNode), 'keep one of them');
-      return undefined;
-    }
-    const ce = molE ?? massE;
-    if (!ce) {
-      r.bag.error(`${what} has no composition`, r.at(e.keyNode), 'add `composition: { H2: 0.985, N2: 0.015 }` (mole fractions) or `mass-composition`');
-      return undefined;
-    }
-    const frac = readFractionMap(r, ce.value, `\`${ce.key}\` of ${what}`, ce.keyNode, ids, index, { min: 0, max: normalize ? Infinity : 1 }, ctx);
-    if (!frac) return undefined;
-    const sum = frac.reduce((a, b) => a + b, 0);
-    if (!(sum > 0)) {
-      r.bag.error(`the ${ce.key} of ${what} is all zero`, r.at(ce.value), 'give at least one positive fraction');
-      return undefined;
-    }
-    if (Math.abs(sum - 1) > 1e-6 && !normalize) {
-      r.bag.error(`${ce.key} of ${what} sums to ${Number(sum.toPrecision(8))}, not 1`, r.at(ce.value), 'give every component, or add `normalize: true` to scale the fractions to 1');
-      return undefined;
-    }
-    if (ce.key === 'mass-composition') {
-      const moles = frac.map((w, i) => w / comps[i].MW);
-      const t = moles.reduce((a, b) => a + b, 0);
-      composition = moles.map((m) => m / t);
-    } else composition = frac.map((v) => v / sum);
   }
   void n;
 
@@ -641,19 +657,48 @@ function readFeed(r: Reader, e: Entry, ids: string[], index: Map<string, number>
     }
     const ref = refName ? standards.get(refName)! : q.standard!;
     basis = { kind: 'standard-flow', flow: q.value, reference: ref, realGas };
-  } else {
-    basis = { kind: 'flows', flows: flowsSI! };
+  } else if (flowsSI) {
+    basis = { kind: 'flows', flows: flowsSI };
   }
   const te = get('T');
   const pe = get('P');
   if (te) T = quantityAt(r, te.value, 'temperature', `\`T\` of ${what}`, { above: 0, example: '35 degC' }, ctx);
   if (pe) P = quantityAt(r, pe.value, 'pressure', `\`P\` of ${what}`, { above: 0, example: '30 barg' }, ctx);
   if (form !== 'meter') {
-    if (!te) r.bag.error(`${what} has no temperature`, r.at(e.keyNode), 'add `T: 35 degC` (the stream temperature)');
-    if (!pe) r.bag.error(`${what} has no pressure`, r.at(e.keyNode), 'add `P: 30 barg` (the stream pressure)');
+    if (!te && !r.strayNear(f, 'T')) r.bag.error(`${what} has no temperature`, r.at(e.keyNode), 'add `T: 35 degC` (the stream temperature)');
+    if (!pe && !r.strayNear(f, 'P')) r.bag.error(`${what} has no pressure`, r.at(e.keyNode), 'add `P: 30 barg` (the stream pressure)');
   }
   if (T === undefined || P === undefined || !basis || !composition) return undefined;
   return { name: e.key, span: r.at(e.keyNode), composition, basis, T, P };
+}
+
+/**
+ * The stream names a unit entry seems to make (`out`, `vapor`, `liquid`), read without
+ * reporting anything: used only so that a unit with errors does not also make every stream
+ * downstream of it "unknown".
+ */
+const NOT_OUTLET_KEYS = ['type', 'in', 'T', 'P', 'reactions', 'sequence', 'model', 'split'];
+
+function guessOutlets(r: Reader, e: Entry): string[] {
+  const out: string[] = [];
+  const body = r.src.peek(e.value);
+  if (!r.isMap(body)) return out;
+  for (const item of body.items) {
+    const k = r.src.peek(item.key as Node);
+    // `out`, `vapor`, `liquid`, or a key that is none of the others (perhaps a misspelt `out`).
+    if (!r.isScalar(k) || NOT_OUTLET_KEYS.includes(String(k.value))) continue;
+    const v = r.src.peek(item.value as Node);
+    if (r.isScalar(v) && typeof v.value === 'string') out.push(v.value);
+    else if (r.isSeq(v)) for (const x of v.items) {
+      const xs = r.src.peek(x as Node);
+      if (r.isScalar(xs) && typeof xs.value === 'string') out.push(xs.value);
+    }
+    else if (r.isMap(v)) for (const p of v.items) {
+      const ks = r.src.peek(p.key as Node);
+      if (r.isScalar(ks)) out.push(String(ks.value));
+    }
+  }
+  return out;
 }
 
 function readUnit(r: Reader, e: Entry, ids: string[], index: Map<string, number>, atmosphere: number, elements: Record<string, number>[]): UnitSpecBase | undefined {
@@ -699,6 +744,7 @@ export class YamlFields implements FieldReader {
   }
 
   private missing(key: string, example?: string) {
+    if (this.r.strayNear(this.entries, key)) return; // a misspelling of it is reported already
     this.r.bag.error(`${this.what} has no \`${key}\``, this.r.at(this.owner), example ? `add \`${key}: ${example}\`` : undefined);
   }
 
@@ -831,6 +877,7 @@ export class YamlFields implements FieldReader {
     const list = this.r.entries(e.value, `\`${key}\` of ${this.what}`, e.keyNode);
     if (!list) return undefined;
     const out: OutletEntry[] = [];
+    let bad = false;
     for (const o of list) {
       const report = (message: string, help?: string) => this.r.bag.error(message, this.r.at(o.keyNode), help);
       const v = o.value;
@@ -838,15 +885,22 @@ export class YamlFields implements FieldReader {
         out.push({ stream: o.key, value: 'rest', report });
       } else if (this.r.isScalar(v)) {
         const num = this.r.number(v, `the fraction to \`${o.key}\` in ${this.what}`, '0.97');
-        if (num === undefined) continue;
+        if (num === undefined) {
+          bad = true;
+          continue;
+        }
         if (num < 0 || num > 1) {
           this.r.bag.error(`the fraction to \`${o.key}\` in ${this.what} is ${num}; it must lie between 0 and 1`, this.r.at(v));
+          bad = true;
           continue;
         }
         out.push({ stream: o.key, value: num, report });
       } else if (this.r.isMap(v)) {
         const arr = readFractionMap(this.r, v, `the recoveries to \`${o.key}\` in ${this.what}`, o.keyNode, [...this.componentIds], this.index, { min: 0, max: 1 }, { atmosphere: this.atmosphere });
-        if (!arr) continue;
+        if (!arr) {
+          bad = true;
+          continue;
+        }
         const given = new Set((this.r.entries(v, '') ?? []).map((x) => x.key));
         const dense = new Float64Array(this.componentIds.length).fill(Number.NaN);
         this.componentIds.forEach((id, i) => {
@@ -855,9 +909,10 @@ export class YamlFields implements FieldReader {
         out.push({ stream: o.key, value: dense, report });
       } else {
         this.r.bag.error(`the outlet \`${o.key}\` of ${this.what} needs a fraction, \`rest\` or per-component recoveries`, this.r.at(o.keyNode));
+        bad = true;
       }
     }
-    return out;
+    return bad ? undefined : out;
   }
 
   items(key: string, opts: { required?: boolean; what?: string } = {}): FieldReader[] | undefined {

@@ -17,7 +17,15 @@ function record(ids: string[], a: Float64Array): Record<string, number> {
   return o;
 }
 
-/** The result in SI as a plain object (the JSON output and the basis of study outputs). */
+/** A number, or null where it was not computed (a mixer's vapour fraction, the T of an empty stream). */
+function orNull(v: number): number | null {
+  return Number.isFinite(v) ? v : null;
+}
+
+/**
+ * The result in SI as a plain object (the JSON output and the basis of study outputs). Every
+ * number in it is finite: what was not computed is null.
+ */
 export function resultObject(r: FlowsheetResult): Record<string, unknown> {
   const ids = r.model.ids;
   const ok = r.status === 'converged';
@@ -42,12 +50,12 @@ export function resultObject(r: FlowsheetResult): Record<string, unknown> {
   if (ok) {
     base.streams = Object.fromEntries(r.streamOrder.map((name) => {
       const s = r.streams.get(name)!;
-      return [name, { flows: record(ids, s.flows), total: s.total, fractions: record(ids, s.fractions), T: s.T, P: s.P, vaporFraction: s.vaporFraction, massFlow: s.massFlow }];
+      return [name, { flows: record(ids, s.flows), total: s.total, fractions: record(ids, s.fractions), T: orNull(s.T), P: orNull(s.P), vaporFraction: orNull(s.vaporFraction), massFlow: s.massFlow }];
     }));
     base.products = r.products;
     base.units = Object.fromEntries([...r.units].map(([name, u]) => [name, {
       type: u.type,
-      ...Object.fromEntries(u.figures.map((f) => [f.key, f.value])),
+      ...Object.fromEntries(u.figures.map((f) => [f.key, orNull(f.value)])),
       ...(u.reactions ? { reactions: u.reactions } : {}),
       ...(u.notes.length ? { notes: u.notes } : {}),
     }]));
@@ -55,6 +63,7 @@ export function resultObject(r: FlowsheetResult): Record<string, unknown> {
     base.balance = r.balance;
   } else {
     base.lastIterate = r.x;
+    base.lastTears = Object.fromEntries(lastTears(r).map((t) => [t.stream, { flows: t.flows, T: orNull(t.T), P: orNull(t.P) }]));
     base.worst = r.worst;
   }
   if (r.targets) base.targets = r.targets;
@@ -62,6 +71,19 @@ export function resultObject(r: FlowsheetResult): Record<string, unknown> {
   base.warnings = r.warnings;
   base.caution = CAUTION;
   return base;
+}
+
+/** The last iterate by tear stream: component flows (mol/s), T (K), P (Pa). */
+function lastTears(r: FlowsheetResult): { stream: string; flows: Record<string, number>; T: number; P: number }[] {
+  const ids = r.model.ids;
+  const m = ids.length + 2;
+  if (r.x.length !== r.tears.length * m) return [];
+  return r.tears.map((stream, t) => ({
+    stream,
+    flows: record(ids, r.x.subarray(t * m, t * m + ids.length)),
+    T: r.x[t * m + ids.length],
+    P: r.x[t * m + ids.length + 1],
+  }));
 }
 
 export function solveJson(r: FlowsheetResult): string {
@@ -117,6 +139,14 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
     if (r.worst?.length) {
       out.push('  largest residuals at the last iterate:');
       for (const w of r.worst) out.push(`    ${w.name ?? `#${w.index}`}: ${w.residual.toExponential(3)} (${num(w.scaled, 3)} x tolerance)`);
+    }
+    const tears = lastTears(r);
+    if (tears.length) {
+      out.push(`  last iterate of the tear streams (${fu}; T in ${tu}, P in ${pu}; not a solution):`);
+      for (const t of tears) {
+        const flows = ids.map((id) => `${id} ${F(t.flows[id])}`).join(', ');
+        out.push(`    ${t.stream}: ${flows}; T ${num(toUnit(t.T, 'temperature', tu, ctx), 5)}, P ${num(toUnit(t.P, 'pressure', pu, ctx), 5)}`);
+      }
     }
     const hist = r.history;
     if (hist.length) {

@@ -172,8 +172,9 @@ export class HistoryRecorder {
   private size = 0;
   private static readonly METHODS: readonly StepMethod[] = ['direct', 'wegstein', 'newton'];
 
+  /** capacity: the most entries expected; storage starts small (at most 64) and doubles as needed. */
   constructor(capacity: number) {
-    const c = Math.max(1, Math.floor(capacity));
+    const c = Math.max(1, Math.min(64, Math.floor(capacity)));
     this.passes = new Float64Array(c);
     this.scaled = new Float64Array(c);
     this.residual = new Float64Array(c);

@@ -79,6 +79,8 @@ interface NewtonSystem {
   groups: readonly (readonly number[])[];
   /** 'g' or 'f', for messages. */
   what: string;
+  /** Scratch: x before the Jacobian's perturbations. */
+  saved: Float64Array;
 }
 
 /**
@@ -147,14 +149,14 @@ interface JacobianOutcome {
 }
 
 /**
- * Forward-difference Jacobian of F at x (F(x) given in f0) into J, one evaluation per column
- * group. h holds the steps actually used. Returns on the first failure.
+ * Forward-difference Jacobian of F at x (F(x) given in f0) into J (n*n, row-major), one
+ * evaluation per column group. h holds the steps actually used. Returns on the first failure.
  */
 function buildJacobian(
   sys: NewtonSystem,
   x: Float64Array,
   f0: Float64Array,
-  J: Matrix,
+  J: Float64Array,
   h: Float64Array,
   ft: Float64Array,
   countPass: () => void,
@@ -167,29 +169,31 @@ function buildJacobian(
     // Use the representable difference (Dennis and Schnabel, Alg. A5.6.3).
     h[j] = x[j] + step - x[j];
   }
-  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) J.set(i, j, 0);
-  for (const group of groups) {
-    const saved = group.map((j) => x[j]);
-    for (const j of group) x[j] += h[j];
+  if (rows) J.fill(0); // a dense build writes every entry
+  for (let g = 0; g < groups.length; g++) {
+    const group = groups[g];
+    for (let k = 0; k < group.length; k++) x[group[k]] += h[group[k]];
     const failure = sys.f(x, ft);
     countPass();
-    group.forEach((j, k) => {
-      x[j] = saved[k];
-    });
+    // Restore exactly: x_j + h_j - h_j need not be x_j in floating point.
+    for (let k = 0; k < group.length; k++) x[group[k]] = sys.saved[group[k]];
     if (failure) return { failure };
-    for (const j of group) {
+    for (let k = 0; k < group.length; k++) {
+      const j = group[k];
       const hj = h[j];
       if (rows) {
-        for (const r of rows[j]) {
+        const rj = rows[j];
+        for (let q = 0; q < rj.length; q++) {
+          const r = rj[q];
           const v = (ft[r] - f0[r]) / hj;
           if (!Number.isFinite(v)) return { nonFinite: { column: j, row: r, value: ft[r] } };
-          J.set(r, j, v);
+          J[r * n + j] = v;
         }
       } else {
         for (let r = 0; r < n; r++) {
           const v = (ft[r] - f0[r]) / hj;
           if (!Number.isFinite(v)) return { nonFinite: { column: j, row: r, value: ft[r] } };
-          J.set(r, j, v);
+          J[r * n + j] = v;
         }
       }
     }
@@ -197,39 +201,49 @@ function buildJacobian(
   return {};
 }
 
-/** A factored, equilibrated Jacobian: dx = colScale .* (LU \ (rowScale .* -F)). */
+/**
+ * A factored, equilibrated Jacobian: dx = colScale .* (LU \ (rowScale .* -F)).
+ * The scaled matrix and scale vectors are allocated once per solve; the LU is ml-matrix's.
+ */
 interface Factored {
-  lu: LuDecomposition;
+  /** The equilibrated Jacobian, row-major n*n (scratch). */
+  scaled: Float64Array;
+  lu: LuDecomposition | null;
   rowScale: Float64Array;
   colScale: Float64Array;
+  rhs: Matrix;
 }
 
-/** Equilibrates and factors J; returns a message when J is singular. */
-function factor(sys: NewtonSystem, J: Matrix, x: Float64Array): Factored | string {
+function newFactored(n: number): Factored {
+  return { scaled: new Float64Array(n * n), lu: null, rowScale: new Float64Array(n), colScale: new Float64Array(n), rhs: new Matrix(n, 1) };
+}
+
+/** Equilibrates and factors J into fac (ml-matrix LU, partial pivoting); returns a message when J is singular. */
+function factor(sys: NewtonSystem, J: Float64Array, x: Float64Array, fac: Factored): string | undefined {
   const n = sys.n;
-  const colScale = new Float64Array(n);
-  const rowScale = new Float64Array(n);
+  const { colScale, rowScale, scaled: A } = fac;
   for (let j = 0; j < n; j++) colScale[j] = Math.max(Math.abs(x[j]), sys.typical[j]);
-  const A = new Matrix(n, n);
   for (let i = 0; i < n; i++) {
     let big = 0;
+    const row = i * n;
     for (let j = 0; j < n; j++) {
-      const a = J.get(i, j) * colScale[j];
-      A.set(i, j, a);
+      const a = J[row + j] * colScale[j];
+      A[row + j] = a;
       if (Math.abs(a) > big) big = Math.abs(a);
     }
     if (big === 0) {
       return `singular Jacobian: residual ${residualLabel(i, sys)} does not change with any variable`;
     }
-    rowScale[i] = 1 / big;
-    for (let j = 0; j < n; j++) A.set(i, j, A.get(i, j) * rowScale[i]);
+    const inv = 1 / big;
+    rowScale[i] = inv;
+    for (let j = 0; j < n; j++) A[row + j] *= inv;
   }
   for (let j = 0; j < n; j++) {
     let zero = true;
-    for (let i = 0; i < n && zero; i++) if (A.get(i, j) !== 0) zero = false;
+    for (let i = 0; i < n && zero; i++) if (A[i * n + j] !== 0) zero = false;
     if (zero) return `singular Jacobian: ${nameOf(j, sys.names)} has no effect on any residual`;
   }
-  const lu = new LuDecomposition(A);
+  const lu = new LuDecomposition(Matrix.from1DArray(n, n, A));
   const U = lu.upperTriangularMatrix;
   let maxPivot = 0;
   let minPivot = Infinity;
@@ -243,9 +257,20 @@ function factor(sys: NewtonSystem, J: Matrix, x: Float64Array): Factored | strin
     }
   }
   if (lu.isSingular() || !(minPivot > PIVOT_RATIO_MIN * maxPivot)) {
+    fac.lu = null;
     return `singular Jacobian (smallest pivot ${minPivot.toExponential(2)} at elimination step ${minAt} against largest ${maxPivot.toExponential(2)}): the residuals are not independent near this point; check for a variable that is fixed by no equation or two equations that say the same`;
   }
-  return { lu, rowScale, colScale };
+  fac.lu = lu;
+  return undefined;
+}
+
+/** dx = colScale .* (LU \ (rowScale .* -f)). */
+function luStep(fac: Factored, f: Float64Array, dx: Float64Array): void {
+  const { rowScale, colScale, rhs } = fac;
+  const n = colScale.length;
+  for (let i = 0; i < n; i++) rhs.set(i, 0, -f[i] * rowScale[i]);
+  const y = fac.lu!.solve(rhs);
+  for (let j = 0; j < n; j++) dx[j] = y.get(j, 0) * colScale[j];
 }
 
 function residualLabel(i: number, sys: NewtonSystem): string {
@@ -278,8 +303,8 @@ function newtonCore(sys: NewtonSystem, options: SolveOptions): SolveResult {
   const ft = new Float64Array(n);
   const dx = new Float64Array(n);
   const h = new Float64Array(n);
-  const rhs = new Matrix(n, 1);
-  const J = new Matrix(n, n);
+  const J = new Float64Array(n * n);
+  const work = newFactored(n);
   const m = newMeasure();
   const history = new HistoryRecorder(Math.min(maxIterations + 1, 100000));
   let passes = 0;
@@ -345,6 +370,7 @@ function newtonCore(sys: NewtonSystem, options: SolveOptions): SolveResult {
       if (passes + sys.groups.length + 1 > maxPasses) {
         return finish('not-converged', `Newton stopped at ${passes} passes: a Jacobian would exceed the budget of ${maxPasses}`);
       }
+      sys.saved.set(x);
       const out = buildJacobian(sys, x, f, J, h, ft, countPass);
       jacobians++;
       if (out.failure) return finish(statusOfFailure(out.failure), out.failure.message, out.failure);
@@ -355,21 +381,17 @@ function newtonCore(sys: NewtonSystem, options: SolveOptions): SolveResult {
           `${sys.what} returned ${value} in residual ${residualLabel(row, sys)} when ${nameOf(column, names)} was perturbed for the Jacobian`,
         );
       }
-      const fac = factor(sys, J, x);
-      if (typeof fac === 'string') return finish('not-converged', fac);
-      factored = fac;
+      const bad = factor(sys, J, x, work);
+      if (bad !== undefined) return finish('not-converged', bad);
+      factored = work;
       fresh = true;
       reused = 0;
     }
 
     // Newton (or chord) step.
-    for (let i = 0; i < n; i++) rhs.set(i, 0, -f[i] * factored.rowScale[i]);
-    const y = factored.lu.solve(rhs);
+    luStep(factored, f, dx);
     let finite = true;
-    for (let j = 0; j < n; j++) {
-      dx[j] = y.get(j, 0) * factored.colScale[j];
-      if (!Number.isFinite(dx[j])) finite = false;
-    }
+    for (let j = 0; j < n; j++) if (!Number.isFinite(dx[j])) finite = false;
     if (!finite) return finish('not-converged', 'singular Jacobian: the Newton step is not finite');
 
     // Backtracking line search on phi with the scales of the current iterate.
@@ -474,6 +496,7 @@ export function solveRoot(problem: RootProblem, options: SolveOptions = {}): Sol
     rows,
     groups: problem.structure?.groups ?? columnGroups(n, rows),
     what: 'f',
+    saved: new Float64Array(n),
   };
   return newtonCore(sys, options);
 }
@@ -520,6 +543,7 @@ export function solveNewtonFixedPoint(problem: FixedPointProblem, options: Solve
     rows,
     groups: groups ?? columnGroups(n, rows),
     what: 'g',
+    saved: new Float64Array(n),
   };
   return newtonCore(sys, options);
 }

@@ -81,7 +81,9 @@ export function parseGridAxis(p: ParametricFlowsheet, text: string): Axis {
   if (n === 1 && start !== stop) throw fail(`--grid \`${text}\`: one point cannot span ${start} to ${stop}`, 'give N >= 2, or use --values for single values');
   if (n >= 2 && start === stop) throw fail(`--grid \`${text}\`: START and STOP are equal`, 'give two different ends, or use --values for one value');
   const values: number[] = [];
-  for (let k = 0; k < n; k++) values.push(k === n - 1 ? stop : start + ((stop - start) * k) / (n - 1));
+  // Interior values are rounded to 15 significant digits, so that 0.15:0.35:5 gives 0.2, not
+  // 0.19999999999999998 (a change of at most 5e-16 relative, far below any solver tolerance).
+  for (let k = 0; k < n; k++) values.push(k === n - 1 ? stop : k === 0 ? start : Number((start + ((stop - start) * k) / (n - 1)).toPrecision(15)));
   return { spec, path, ref, unit, values };
 }
 
@@ -109,7 +111,7 @@ export function parseAxes(p: ParametricFlowsheet, specs: readonly AxisSpec[]): A
   for (const s of specs) {
     try {
       const a = parseAxis(p, s);
-      const dup = axes.find((b) => b.ref === a.ref || b.path === a.path);
+      const dup = axes.find((b) => b.ref.node === a.ref.node || b.path === a.path);
       if (dup) diags.push({ severity: 'error', message: `\`${a.path}\` is swept twice (\`${dup.spec.text}\` and \`${a.spec.text}\`)`, help: 'give each input one --grid or --values' });
       else axes.push(a);
     } catch (e) {
@@ -188,18 +190,4 @@ export function blocksOf(shape: GridShape, blockSize: number): Int32Array[] {
   const blocks: Int32Array[] = [];
   for (let s = 0; s < walk.length; s += blockSize) blocks.push(walk.subarray(s, Math.min(walk.length, s + blockSize)));
   return blocks;
-}
-
-/** `i/N` for --shard. */
-export function parseShard(text: string): { index: number; count: number } {
-  const m = /^\s*(\d+)\s*\/\s*(\d+)\s*$/.exec(text);
-  const index = m ? Number(m[1]) : Number.NaN;
-  const count = m ? Number(m[2]) : Number.NaN;
-  if (!m || count < 1 || index < 1 || index > count) throw fail(`--shard \`${text}\` is not i/N with 1 <= i <= N`, 'e.g. --shard 3/8 runs the third of eight shares');
-  return { index, count };
-}
-
-/** The blocks of shard i of N: those whose block number (from 0) modulo N is i - 1. */
-export function shardBlocks(blocks: readonly Int32Array[], shard: { index: number; count: number }): Int32Array[] {
-  return blocks.filter((_, b) => b % shard.count === shard.index - 1);
 }

@@ -82,8 +82,34 @@ interface SplitState {
   y: Float64Array;
   phiL: Float64Array;
   phiV: Float64Array;
+  /** Scratch of the phase split (residual, steps, saved ln K). */
+  res: Float64Array;
+  step: Float64Array;
+  prevStep: Float64Array;
+  saved: Float64Array;
+  /** Scratch for the feed's fugacity coefficients. */
+  phiZ: Float64Array;
   beta: number;
   evaluations: number;
+}
+
+/** Arrays of one flash, kept per equation of state (allocated once, reused by every flash). */
+const workspaces = new WeakMap<Eos, SplitState>();
+
+function stateFor(eos: Eos): SplitState {
+  const n = eos.n;
+  let s = workspaces.get(eos);
+  if (s === undefined || s.n !== n) {
+    const a = () => new Float64Array(n);
+    s = {
+      n, z: a(), present: new Uint8Array(n), lnK: a(), K: a(), x: a(), y: a(), phiL: a(), phiV: a(),
+      res: a(), step: a(), prevStep: a(), saved: a(), phiZ: a(), beta: NaN, evaluations: 0,
+    };
+    workspaces.set(eos, s);
+  }
+  s.beta = NaN;
+  s.evaluations = 0;
+  return s;
 }
 
 type EvalOutcome = 'ok' | 'single-liquid' | 'single-vapor';
@@ -94,15 +120,33 @@ type EvalOutcome = 'ok' | 'single-liquid' | 'single-vapor';
  * (G/RT per mole of feed, less the constant ln P), which the acceleration and the fast path
  * compare.
  */
-function evaluate(eos: Eos, T: number, P: number, s: SplitState, res: Float64Array): { outcome: EvalOutcome; residual: number; gRT: number } {
+interface Evaluation {
+  outcome: EvalOutcome;
+  residual: number;
+  gRT: number;
+}
+
+function newEvaluation(): Evaluation {
+  return { outcome: 'ok', residual: Infinity, gRT: Infinity };
+}
+
+function setEvaluation(out: Evaluation, outcome: EvalOutcome, residual: number, gRT: number): Evaluation {
+  out.outcome = outcome;
+  out.residual = residual;
+  out.gRT = gRT;
+  return out;
+}
+
+/** Writes into `out` (one object per caller, reused across iterations) and returns it. */
+function evaluate(eos: Eos, T: number, P: number, s: SplitState, res: Float64Array, out: Evaluation): Evaluation {
   const n = s.n;
   for (let i = 0; i < n; i++) {
     const l = s.lnK[i];
     s.K[i] = Math.exp(l > 600 ? 600 : l < -600 ? -600 : l);
   }
   const rr = solveRachfordRice(s.z, s.K);
-  if (rr.kind === 'all-liquid') return { outcome: 'single-liquid', residual: Infinity, gRT: Infinity };
-  if (rr.kind === 'all-vapor') return { outcome: 'single-vapor', residual: Infinity, gRT: Infinity };
+  if (rr.kind === 'all-liquid') return setEvaluation(out, 'single-liquid', Infinity, Infinity);
+  if (rr.kind === 'all-vapor') return setEvaluation(out, 'single-vapor', Infinity, Infinity);
   s.beta = rr.beta;
   rachfordRiceCompositions(s.z, s.K, rr.beta, s.x, s.y);
   eos.lnPhi(T, P, s.x, 'stable', s.phiL);
@@ -124,7 +168,7 @@ function evaluate(eos: Eos, T: number, P: number, s: SplitState, res: Float64Arr
     if (xi > 0) g += (1 - b) * xi * (Math.log(xi) + s.phiL[i]);
     if (yi > 0) g += b * yi * (Math.log(yi) + s.phiV[i]);
   }
-  return { outcome: 'ok', residual: r, gRT: g };
+  return setEvaluation(out, 'ok', r, g);
 }
 
 function trivialNorm(s: SplitState): number {
@@ -174,17 +218,16 @@ function solveLinear(A: Float64Array, b: Float64Array, n: number): boolean {
 /** Successive substitution with GDEM, then Newton on ln K when slow. */
 function phaseSplit(eos: Eos, T: number, P: number, s: SplitState, tol: number, maxIt: number): SplitOutcome {
   const n = s.n;
-  const res = new Float64Array(n);
-  const step = new Float64Array(n);
-  const prevStep = new Float64Array(n);
-  const saved = new Float64Array(n);
+  const { res, step, prevStep, saved } = s;
+  prevStep.fill(0);
+  const evaluation = newEvaluation();
   const history: number[] = [];
   let savedG = Infinity;
   let accelPending = false;
   let prevResidual = Infinity;
   let slow = 0;
   let it = 0;
-  let ev = evaluate(eos, T, P, s, res);
+  let ev = evaluate(eos, T, P, s, res, evaluation);
   for (;;) {
     if (ev.outcome !== 'ok') return { kind: ev.outcome, iterations: it, residual: Infinity, gRT: Infinity, history };
     if (accelPending) {
@@ -192,7 +235,7 @@ function phaseSplit(eos: Eos, T: number, P: number, s: SplitState, tol: number, 
       if (!(ev.gRT < savedG)) {
         s.lnK.set(saved);
         prevStep.fill(0);
-        ev = evaluate(eos, T, P, s, res);
+        ev = evaluate(eos, T, P, s, res, evaluation);
         continue;
       }
     }
@@ -227,12 +270,12 @@ function phaseSplit(eos: Eos, T: number, P: number, s: SplitState, tol: number, 
         for (let i = 0; i < n; i++) s.lnK[i] += f * step[i];
         accelPending = true;
         prevStep.fill(0);
-        ev = evaluate(eos, T, P, s, res);
+        ev = evaluate(eos, T, P, s, res, evaluation);
         continue;
       }
     }
     prevStep.set(step);
-    ev = evaluate(eos, T, P, s, res);
+    ev = evaluate(eos, T, P, s, res, evaluation);
   }
   return { kind: 'converged', iterations: it, residual: ev.residual, gRT: ev.gRT, history };
 }
@@ -251,7 +294,9 @@ function newtonSplit(
   const u = new Float64Array(n);
   const du = new Float64Array(n);
   let it = it0;
-  let ev = evaluate(eos, T, P, s, res);
+  const base = newEvaluation();
+  const probe = newEvaluation();
+  let ev = evaluate(eos, T, P, s, res, base);
   if (ev.outcome !== 'ok') return { kind: ev.outcome, iterations: it, residual: Infinity, gRT: Infinity, history };
   for (;;) {
     if (ev.residual <= tol) return { kind: 'converged', iterations: it, residual: ev.residual, gRT: ev.gRT, history };
@@ -266,7 +311,7 @@ function newtonSplit(
       const h = 1e-7 * Math.max(1, Math.abs(u[j]));
       s.lnK.set(u);
       s.lnK[j] += h;
-      const e = evaluate(eos, T, P, s, res);
+      const e = evaluate(eos, T, P, s, res, probe);
       if (e.outcome !== 'ok') { ok = false; break; }
       for (let i = 0; i < n; i++) {
         Fp[i] = s.present[i] ? res[i] : s.lnK[i] - (s.phiL[i] - s.phiV[i]);
@@ -275,14 +320,15 @@ function newtonSplit(
     }
     for (let i = 0; i < n; i++) du[i] = -F[i];
     if (!ok || !solveLinear(J, du, n)) {
+      const gRT = ev.gRT;
       s.lnK.set(u);
-      evaluate(eos, T, P, s, res);
-      return { kind: 'not-converged', iterations: it, residual: r0, gRT: ev.gRT, history };
+      evaluate(eos, T, P, s, res, probe);
+      return { kind: 'not-converged', iterations: it, residual: r0, gRT, history };
     }
     let t = 1;
     for (let k = 0; k < 12; k++) {
       for (let i = 0; i < n; i++) s.lnK[i] = u[i] + t * du[i];
-      ev = evaluate(eos, T, P, s, res);
+      ev = evaluate(eos, T, P, s, res, base);
       if (ev.outcome === 'ok' && ev.residual < r0) break;
       t *= 0.5;
     }
@@ -291,8 +337,7 @@ function newtonSplit(
   }
 }
 
-function feedGibbs(eos: Eos, T: number, P: number, z: Float64Array, present: Uint8Array): number {
-  const phi = new Float64Array(eos.n);
+function feedGibbs(eos: Eos, T: number, P: number, z: Float64Array, present: Uint8Array, phi: Float64Array): number {
   eos.lnPhi(T, P, z, 'stable', phi);
   let g = 0;
   for (let i = 0; i < eos.n; i++) if (present[i]) g += z[i] * (Math.log(z[i]) + phi[i]);
@@ -317,21 +362,23 @@ export function flashTP(eos: Eos, T: number, P: number, z: ArrayLike<number>, op
     sum += zi;
   }
   if (!(sum > 0)) throw new RangeError('flash: feed must have a positive sum');
-  const zz = new Float64Array(n);
-  const present = new Uint8Array(n);
+  // Work arrays reused from the last flash with this equation of state; everything returned
+  // is a copy (Float64Array.from), so no result shares them.
+  const s = stateFor(eos);
+  const zz = s.z;
+  const present = s.present;
   let nPresent = 0;
   for (let i = 0; i < n; i++) {
     zz[i] = z[i] / sum;
-    if (zz[i] > 0) { present[i] = 1; nPresent++; }
+    present[i] = zz[i] > 0 ? 1 : 0;
+    if (zz[i] > 0) nPresent++;
   }
-
-  const s: SplitState = {
-    n, z: zz, present,
-    lnK: new Float64Array(n), K: new Float64Array(n),
-    x: new Float64Array(n), y: new Float64Array(n),
-    phiL: new Float64Array(n), phiV: new Float64Array(n),
-    beta: NaN, evaluations: 0,
-  };
+  s.lnK.fill(0);
+  s.K.fill(0);
+  s.x.fill(0);
+  s.y.fill(0);
+  s.phiL.fill(0);
+  s.phiV.fill(0);
   let iterations = 0;
   const history: number[] = [];
 
@@ -383,7 +430,7 @@ export function flashTP(eos: Eos, T: number, P: number, z: ArrayLike<number>, op
       iterations += o.iterations;
       history.push(...o.history);
       if (o.kind === 'converged' && s.beta > 0 && s.beta < 1 && trivialNorm(s) >= TRIVIAL_NORM) {
-        const gFeed = feedGibbs(eos, T, P, zz, present);
+        const gFeed = feedGibbs(eos, T, P, zz, present, s.phiZ);
         s.evaluations++;
         // the split is lower in Gibbs energy than the feed: accept
         if (o.gRT < gFeed) {

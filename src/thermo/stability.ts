@@ -59,18 +59,63 @@ interface TrialOutcome {
   evaluations: number;
 }
 
+/** Work arrays of one trial phase. */
+interface TrialWork {
+  lnW: Float64Array;
+  W: Float64Array;
+  w: Float64Array;
+  lnPhi: Float64Array;
+  prevStep: Float64Array;
+  step: Float64Array;
+  saved: Float64Array;
+}
+
+/** Work arrays of one stability test, kept per equation of state (allocated once, reused). */
+interface StabilityWork {
+  n: number;
+  zz: Float64Array;
+  present: Uint8Array;
+  lnPhiZ: Float64Array;
+  d: Float64Array;
+  K: Float64Array;
+  lnW: Float64Array;
+  /** ln z_i of the present components. */
+  lnz: Float64Array;
+  /** ln of Wilson's K. */
+  lnKw: Float64Array;
+  trials: [TrialWork, TrialWork];
+}
+
+const workspaces = new WeakMap<Eos, StabilityWork>();
+
+function trialWork(n: number): TrialWork {
+  return {
+    lnW: new Float64Array(n), W: new Float64Array(n), w: new Float64Array(n), lnPhi: new Float64Array(n),
+    prevStep: new Float64Array(n), step: new Float64Array(n), saved: new Float64Array(n),
+  };
+}
+
+function workFor(eos: Eos): StabilityWork {
+  const n = eos.n;
+  let w = workspaces.get(eos);
+  if (w === undefined || w.n !== n) {
+    w = {
+      n, zz: new Float64Array(n), present: new Uint8Array(n), lnPhiZ: new Float64Array(n), d: new Float64Array(n),
+      K: new Float64Array(n), lnW: new Float64Array(n), lnz: new Float64Array(n), lnKw: new Float64Array(n), trials: [trialWork(n), trialWork(n)],
+    };
+    workspaces.set(eos, w);
+  }
+  return w;
+}
+
 function runTrial(
-  eos: Eos, T: number, P: number, z: Float64Array, d: Float64Array, present: Uint8Array,
-  lnW0: Float64Array, tol: number, maxIt: number,
+  eos: Eos, T: number, P: number, lnz: Float64Array, d: Float64Array, present: Uint8Array,
+  lnW0: Float64Array, tol: number, maxIt: number, work: TrialWork,
 ): TrialOutcome {
   const n = eos.n;
-  const lnW = Float64Array.from(lnW0);
-  const W = new Float64Array(n);
-  const w = new Float64Array(n);
-  const lnPhi = new Float64Array(n);
-  const prevStep = new Float64Array(n);
-  const step = new Float64Array(n);
-  const saved = new Float64Array(n);
+  const { lnW, W, w, lnPhi, prevStep, step, saved } = work;
+  lnW.set(lnW0);
+  prevStep.fill(0);
   let savedTm = Infinity;
   let accelPending = false;
   let evaluations = 0;
@@ -88,11 +133,12 @@ function runTrial(
     evaluations++;
     tm = 1;
     tpd = 0;
+    const lnSumW = Math.log(sumW);
     for (let i = 0; i < n; i++) {
       if (!present[i]) continue;
       const g = lnW[i] + lnPhi[i] - d[i];
       tm += W[i] * (g - 1);
-      tpd += w[i] * (g - Math.log(sumW));
+      tpd += w[i] * (g - lnSumW);
     }
     if (accelPending) {
       accelPending = false;
@@ -116,7 +162,7 @@ function runTrial(
       dot0 += s * prevStep[i];
       if (Math.abs(s) > maxStep) maxStep = Math.abs(s);
       lnW[i] = next;
-      const dz = next - Math.log(z[i]);
+      const dz = next - lnz[i];
       trivialNorm += dz * dz;
     }
     if (trivialNorm < 1e-8) return { tpd: 0, trivial: true, converged: true, w, iterations: it, evaluations };
@@ -147,7 +193,6 @@ export function stabilityTest(eos: Eos, T: number, P: number, z: ArrayLike<numbe
   const tol = opts.tol ?? 1e-10;
   const maxIt = opts.maxIterations ?? 500;
   if (z.length !== n) throw new RangeError(`stabilityTest: composition has ${z.length} entries, expected ${n}`);
-  const zz = new Float64Array(n);
   let s = 0;
   for (let i = 0; i < n; i++) {
     const zi = z[i];
@@ -155,35 +200,36 @@ export function stabilityTest(eos: Eos, T: number, P: number, z: ArrayLike<numbe
     s += zi;
   }
   if (!(s > 0)) throw new RangeError('stabilityTest: composition must have a positive sum');
-  const present = new Uint8Array(n);
+  const work = workFor(eos);
+  const { zz, present, lnPhiZ, d, K, lnW, lnz, lnKw } = work;
   let nPresent = 0;
   for (let i = 0; i < n; i++) {
     zz[i] = z[i] / s;
-    if (zz[i] > 0) {
-      present[i] = 1;
-      nPresent++;
-    }
+    present[i] = zz[i] > 0 ? 1 : 0;
+    if (zz[i] > 0) nPresent++;
   }
   if (nPresent === 1) return { stable: true, tpd: 0, iterations: 0, evaluations: 0 };
 
-  const lnPhiZ = new Float64Array(n);
   eos.lnPhi(T, P, zz, 'stable', lnPhiZ);
-  const d = new Float64Array(n);
-  for (let i = 0; i < n; i++) d[i] = present[i] ? Math.log(zz[i]) + lnPhiZ[i] : 0;
-  const K = wilsonK(eos.components, T, P, new Float64Array(n));
-  const lnW = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    lnz[i] = present[i] ? Math.log(zz[i]) : 0;
+    d[i] = present[i] ? lnz[i] + lnPhiZ[i] : 0;
+  }
+  wilsonK(eos.components, T, P, K);
+  for (let i = 0; i < n; i++) lnKw[i] = Math.log(K[i]);
 
   let iterations = 0;
   let evaluations = 1;
   let incomplete = false;
-  const outcomes: Array<TrialOutcome & { vaporLike: boolean }> = [];
-  for (const vaporLike of [true, false]) {
-    for (let i = 0; i < n; i++) lnW[i] = present[i] ? Math.log(zz[i]) + (vaporLike ? 1 : -1) * Math.log(K[i]) : 0;
-    const o = runTrial(eos, T, P, zz, d, present, lnW, tol, maxIt);
+  const outcomes: TrialOutcome[] = [];
+  for (let t = 0; t < 2; t++) {
+    const sign = t === 0 ? 1 : -1; // vapour-like trial first, then liquid-like
+    for (let i = 0; i < n; i++) lnW[i] = present[i] ? lnz[i] + sign * lnKw[i] : 0;
+    const o = runTrial(eos, T, P, lnz, d, present, lnW, tol, maxIt, work.trials[t]);
     iterations += o.iterations;
     evaluations += o.evaluations;
     if (!o.converged) incomplete = true;
-    outcomes.push({ ...o, vaporLike });
+    outcomes.push(o);
   }
   const [v, l] = outcomes;
   const vNeg = !v.trivial && v.tpd < TPD_NEGATIVE;
@@ -205,5 +251,6 @@ export function stabilityTest(eos: Eos, T: number, P: number, z: ArrayLike<numbe
     }
   }
   const best = vNeg && (!lNeg || v.tpd <= l.tpd) ? v : l;
-  return { stable: false, tpd, trial: best.w, K: Kout, ...base };
+  // The trial's array is reused by the next test: hand out a copy.
+  return { stable: false, tpd, trial: Float64Array.from(best.w), K: Kout, ...base };
 }

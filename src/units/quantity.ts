@@ -7,16 +7,19 @@
  * Method. The text is split into a number and a unit. The unit string is classified once and the
  * result ({dimension, factor, offset, gauge}) kept in a memo map, so SI = value * factor + offset
  * (+ the atmosphere for a gauge reading) costs a Map lookup on repeated parses. Classification
- * order: fixed standard-flow spellings and "@reference" forms (standard.ts), then mathjs for
- * ordinary units, then the gauge/absolute suffix rule ("barg" = bar + atmosphere).
+ * order: fixed standard-flow spellings and "@reference" forms (standard.ts), then the built-in
+ * table of documented units (table.ts, exact definitions) with the gauge/absolute suffix rule
+ * ("barg" = bar + atmosphere), then mathjs for every other spelling (with the same suffix rule).
  *
  * mathjs is loaded with only its unit machinery (create({ unitDependencies })) and created on first
- * use. Units mathjs lacks or defines loosely are added or replaced on that private instance.
+ * use, which the table avoids for the documented units (a short cold start). Units mathjs lacks or
+ * defines loosely are added or replaced on that private instance.
  */
 import { create, unitDependencies } from 'mathjs';
 import type { MathJsInstance, Unit } from 'mathjs';
 import { PSI, STANDARD_SPELLINGS, findStandard, matchStandardSpelling } from './standard.js';
 import type { StandardRef } from './standard.js';
+import { lookupUnit } from './table.js';
 
 export type { StandardRef } from './standard.js';
 
@@ -326,6 +329,22 @@ function classify(unit: string): UnitInfo {
     };
   }
 
+  // The built-in table of documented units (exact definitions) answers without mathjs.
+  const hit = lookupUnit(unit);
+  if (hit) return { kind: 'si', ...hit, gauge: false };
+  const gt = GAUGE_RE.exec(unit);
+  if (gt) {
+    const stem = lookupUnit(gt[1]);
+    if (stem && stem.dimension === 'pressure') {
+      const suffix = unit.slice(gt[1].length).replace(/[\s()]/g, '');
+      return { kind: 'si', ...stem, gauge: suffix === 'g' };
+    }
+  }
+  return classifyByMathjs(unit);
+}
+
+/** The mathjs route of classify (every spelling the table does not answer). */
+function classifyByMathjs(unit: string): UnitInfo {
   const syntax = toMathSyntax(unit);
   const parsed = mathUnit(syntax);
   const info = parsed ? classifyMath(parsed, syntax) : undefined;
@@ -344,6 +363,16 @@ function classify(unit: string): UnitInfo {
     }
   }
   return info ?? { kind: 'unknown' };
+}
+
+/**
+ * What mathjs alone makes of a unit (bypassing the built-in table), for the check that the
+ * table agrees with mathjs. Undefined when mathjs does not give one of loopclose's dimensions.
+ */
+export function mathjsMeaning(unit: string): { dimension: Dimension; factor: number; inverse: number; offset: number; gauge: boolean } | undefined {
+  const info = classifyByMathjs(unit);
+  if (info.kind !== 'si') return undefined;
+  return { dimension: info.dimension, factor: info.factor, inverse: info.inverse, offset: info.offset, gauge: info.gauge };
 }
 
 /**

@@ -1,0 +1,217 @@
+#!/usr/bin/env node
+// `npm run bench`: speed of loopclose on this machine. Every figure is the median of repeated
+// runs after a warm-up; comparisons are ratios measured in the same run (absolute times on a
+// shared machine drift from run to run).
+//
+//   node bench/run.mjs [--json] [--quick] [--root DIR] [--only meter,demos,scaling,sweep,cold]
+//
+// --root DIR benchmarks another build of the project (DIR/dist/index.mjs, DIR/bin/loopclose.js,
+// DIR/flowsheets), e.g. a copy of an earlier commit, so before and after come from one machine.
+// --quick takes fewer samples (a smoke run, not for figures).
+import { existsSync, readFileSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+import { cpus } from 'node:os';
+import { fmt, logLogSlope, measure, processTime, table } from './timing.mjs';
+import { generateFlowsheet } from './generate.mjs';
+
+const here = dirname(fileURLToPath(import.meta.url));
+const args = process.argv.slice(2);
+const flag = (f) => args.includes(f);
+const value = (f, d) => {
+  const k = args.indexOf(f);
+  return k >= 0 && k + 1 < args.length ? args[k + 1] : d;
+};
+const json = flag('--json');
+const quick = flag('--quick');
+const root = resolve(value('--root', join(here, '..')));
+const only = new Set((value('--only', 'meter,demos,scaling,sweep,cold')).split(','));
+const libPath = join(root, 'dist', 'index.mjs');
+const cliPath = join(root, 'bin', 'loopclose.js');
+if (!existsSync(libPath)) {
+  process.stderr.write(`bench: ${libPath} is missing; run \`node build.mjs\` in ${root} first\n`);
+  process.exit(2);
+}
+const lib = await import(pathToFileURL(libPath).href);
+const flowsheetPath = (name) => join(root, 'flowsheets', name);
+
+const reps = quick ? { warmupMs: 50, batchMs: 20, batches: 3 } : { warmupMs: 400, batchMs: 100, batches: 9 };
+const out = { machine: { node: process.version, cpus: cpus().length, cpu: cpus()[0]?.model ?? '?' }, root, quick };
+const text = [];
+const say = (s = '') => {
+  if (!json) process.stdout.write(`${s}\n`);
+  text.push(s);
+};
+
+say(`loopclose benchmarks (${root}), node ${process.version}, ${out.machine.cpus} x ${out.machine.cpu}`);
+say('medians of repeated runs after warm-up' + (quick ? ' (--quick: few samples, not for figures)' : ''));
+
+// ---------------------------------------------------------------------------------------------
+// 1. Meter conversions: reading (SI) -> molar flow with the real-gas EOS, through computeFeed.
+// ---------------------------------------------------------------------------------------------
+if (only.has('meter')) {
+  const comp = (ids) => ids.map((id) => ({ ...lib.findComponent(id), id }));
+  const cases = [
+    { label: 'pure gas (H2, SRK)', ids: ['H2'], x: [1], T: 308.15, P: 31.01325e5, flow: 12.6 / 3600 },
+    {
+      label: '5-component mixture (SRK)', ids: ['CH4', 'C2H6', 'C3H8', 'N2', 'CO2'], x: [0.85, 0.07, 0.03, 0.03, 0.02],
+      T: 298.15, P: 41.01325e5, flow: 250 / 3600,
+    },
+  ];
+  const rows = [];
+  out.meter = [];
+  for (const c of cases) {
+    const eos = lib.makeEos('SRK', comp(c.ids));
+    const composition = Float64Array.from(c.x);
+    const spec = { name: 'reading', composition, basis: { kind: 'meter', flow: c.flow, T: c.T, P: c.P }, T: c.T, P: c.P };
+    // Vary the reading a little between calls so nothing can be cached on identical input.
+    let k = 0;
+    const m = measure(() => {
+      k = (k + 1) & 1023;
+      spec.T = spec.basis.T = c.T + k * 1e-3;
+      return lib.computeFeed(spec, eos).molarFlow;
+    }, reps);
+    // With the three readings parsed from text as a file or the command line gives them.
+    const readings = ['12.6 m3/h', '30 barg', '35 degC'];
+    const mp = measure(() => {
+      const flow = lib.parseQuantity(readings[0], 'volumeFlow').value;
+      const P = lib.parseQuantity(readings[1], 'pressure').value;
+      const T = lib.parseQuantity(readings[2], 'temperature').value;
+      return lib.computeFeed({ name: 'r', composition, basis: { kind: 'meter', flow, T, P }, T, P }, eos).molarFlow;
+    }, reps);
+    const perS = 1000 / m.ms;
+    const perSParsed = 1000 / mp.ms;
+    rows.push([c.label, fmt(perS), fmt(perSParsed), c.ids.length === 1 ? '>= 1e6' : '>= 2e5']);
+    out.meter.push({ case: c.label, conversionsPerSecond: perS, withParsingPerSecond: perSParsed, usPerConversion: m.ms * 1000 });
+  }
+  say('\n1. Meter conversions per second (one core)');
+  say(table(['case', 'conversions/s', 'with 3 readings parsed', 'aim'], rows));
+}
+
+// ---------------------------------------------------------------------------------------------
+// 2. Demo flowsheets by method.
+// ---------------------------------------------------------------------------------------------
+if (only.has('demos')) {
+  const demos = ['methanol-pilot.yaml', 'methanol-pilot-split.yaml', 'ammonia-loop.yaml', 'benzene-hydrogenation.yaml'];
+  const methods = ['direct', 'wegstein', 'newton', 'auto'];
+  const rows = [];
+  out.demos = [];
+  for (const d of demos) {
+    const p = flowsheetPath(d);
+    if (!existsSync(p)) continue;
+    const { model } = lib.loadFlowsheet(p);
+    const byMethod = {};
+    for (const method of methods) {
+      // A longer warm-up: a solve builds its runtime afresh, and V8 takes about a second of
+      // such solves to settle.
+      const m = measure(() => lib.solveFlowsheet(model, { method }), quick ? reps : { ...reps, warmupMs: 1000 });
+      const r = m.last;
+      byMethod[method] = { status: r.status, passes: r.passes, jacobians: r.jacobians, ms: m.ms, method: r.method };
+      rows.push([d.replace('.yaml', ''), method, r.status, r.passes, r.jacobians, fmt(m.ms)]);
+    }
+    const ratio = (a, b) => byMethod[a].ms / byMethod[b].ms;
+    out.demos.push({
+      flowsheet: d, methods: byMethod,
+      ratios: {
+        passesDirectOverWegstein: byMethod.direct.passes / byMethod.wegstein.passes,
+        timeDirectOverWegstein: ratio('direct', 'wegstein'),
+        timeWegsteinOverNewton: ratio('wegstein', 'newton'),
+      },
+    });
+  }
+  say('\n2. Demo flowsheets: passes, Jacobians and time per solve (ms) by method');
+  say(table(['flowsheet', 'method', 'status', 'passes', 'Jacobians', 'ms/solve'], rows));
+  say(table(
+    ['flowsheet', 'direct/Wegstein passes', 'direct/Wegstein time', 'Wegstein/Newton time'],
+    out.demos.map((d) => [d.flowsheet.replace('.yaml', ''), fmt(d.ratios.passesDirectOverWegstein), fmt(d.ratios.timeDirectOverWegstein), fmt(d.ratios.timeWegsteinOverNewton)]),
+  ));
+  say('aims (methanol demo): Wegstein <= 20 passes, Newton <= 4 Jacobians; <= 0.05 ms/solve (split), <= 1 ms (equilibrium)');
+}
+
+// ---------------------------------------------------------------------------------------------
+// 3. Scaling: generated flowsheets of N units and C components, nested recycle loops.
+// ---------------------------------------------------------------------------------------------
+if (only.has('scaling')) {
+  const Ns = [10, 100, 1000];
+  const Cs = [5, 20, 50];
+  const big = quick ? { warmupMs: 0, warmupCalls: 1, batchMs: 0, batches: 1 } : { warmupMs: 0, warmupCalls: 1, batchMs: 0, batches: 3 };
+  const rows = [];
+  out.scaling = [];
+  const run = (N, C, condenser) => {
+    const g = generateFlowsheet({ units: N, components: C, condenser });
+    const t0 = performance.now();
+    const { model } = lib.validateText(`generated-${N}-${C}.yaml`, g.text);
+    const loadMs = performance.now() - t0;
+    const first = performance.now();
+    lib.solveFlowsheet(model);
+    const firstMs = performance.now() - first;
+    const m = measure(() => lib.solveFlowsheet(model), firstMs > 50 ? big : reps);
+    const r = m.last;
+    const e = {
+      N: g.units, C, condenser, loops: g.loops, tears: r.tears.length, variables: r.x.length, status: r.status, passes: r.passes,
+      ms: m.ms, msPerPass: m.ms / r.passes, loadMs,
+    };
+    out.scaling.push(e);
+    rows.push([`${g.units} x ${C}${condenser === 'equilibrium' ? ' (flash)' : ''}`, g.loops, e.tears, e.variables, r.status, r.passes, fmt(e.ms), fmt(e.msPerPass * 1000), fmt(loadMs)]);
+    return e;
+  };
+  for (const C of Cs) for (const N of Ns) run(N, C, 'split');
+  run(100, 5, 'equilibrium');
+  say('\n3. Scaling: generated trains (Wegstein; condensers as fixed splits unless "flash"); N units x C components');
+  say(table(['N x C', 'loops', 'tears', 'unknowns', 'status', 'passes', 'ms/solve', 'us/pass', 'load ms'], rows));
+  const slopes = [];
+  for (const C of Cs) {
+    const s = out.scaling.filter((e) => e.C === C && e.condenser === 'split');
+    slopes.push([`C = ${C}`, fmt(logLogSlope(s.map((e) => e.N), s.map((e) => e.msPerPass))), fmt(logLogSlope(s.map((e) => e.N), s.map((e) => e.ms))), fmt(logLogSlope(s.map((e) => e.N), s.map((e) => e.passes)))]);
+  }
+  for (const N of Ns) {
+    const s = out.scaling.filter((e) => e.N === N && e.condenser === 'split');
+    slopes.push([`N = ${N} (against C)`, fmt(logLogSlope(s.map((e) => e.C), s.map((e) => e.msPerPass))), fmt(logLogSlope(s.map((e) => e.C), s.map((e) => e.ms))), fmt(logLogSlope(s.map((e) => e.C), s.map((e) => e.passes)))]);
+  }
+  out.scalingSlopes = slopes.map(([label, perPass, perSolve, passes]) => ({ label, perPass: Number(perPass), perSolve: Number(perSolve), passes: Number(passes) }));
+  say('fitted log-log slopes (against N unless noted; 1 = linear)');
+  say(table(['series', 'time per pass', 'time per solve', 'passes'], slopes));
+  say('aim: 1000 units x 20 components <= 1000 ms per solve');
+}
+
+// ---------------------------------------------------------------------------------------------
+// 4. Sweep throughput (bench/sweep.mjs, written with the sweep command).
+// ---------------------------------------------------------------------------------------------
+if (only.has('sweep')) {
+  const sweepBench = join(here, 'sweep.mjs');
+  say('\n4. Sweep throughput');
+  if (root !== resolve(here, '..')) {
+    out.sweep = { skipped: 'bench/sweep.mjs measures the build next to it, not a --root build' };
+    say('not measured for a --root build (bench/sweep.mjs measures the build next to it)');
+  } else if (existsSync(sweepBench)) {
+    // bench/sweep.mjs spawns the CLI for a 1,000-point sweep; its lines are shown as they are.
+    const r = spawnSync(process.execPath, [sweepBench, ...(quick ? ['--points', '100', '--repeat', '1'] : [])], { encoding: 'utf8' });
+    const lines = r.stdout.trimEnd().split('\n').filter(Boolean);
+    out.sweep = { exit: r.status, lines, ...(r.status !== 0 ? { stderr: r.stderr.slice(0, 2000) } : {}) };
+    say(lines.length > 0 ? lines.join('\n') : `bench/sweep.mjs printed nothing (exit ${r.status}) ${r.stderr.slice(0, 500)}`);
+  } else {
+    out.sweep = { pending: 'the sweep benchmark is in bench/sweep.mjs once the sweep command lands' };
+    say('not measured here: the sweep benchmark is in bench/sweep.mjs once the sweep command lands');
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// 5. CLI cold start: whole process.
+// ---------------------------------------------------------------------------------------------
+if (only.has('cold')) {
+  const runs = quick ? 3 : 15;
+  const demo = flowsheetPath('methanol-pilot.yaml');
+  const node = processTime(process.execPath, ['-e', ''], { runs });
+  const meter = processTime(process.execPath, [cliPath, 'meter', demo], { runs });
+  const solve = processTime(process.execPath, [cliPath, 'solve', demo], { runs });
+  out.coldStart = { nodeAloneMs: node.ms, meterMs: meter.ms, solveMs: solve.ms, meterExit: meter.status, solveExit: solve.status };
+  say('\n5. CLI cold start (whole process, wall time, ms)');
+  say(table(['command', 'ms', 'exit', 'aim'], [
+    ['node -e "" (node alone)', fmt(node.ms), node.status, ''],
+    ['loopclose meter methanol-pilot.yaml', fmt(meter.ms), meter.status, '<= 250'],
+    ['loopclose solve methanol-pilot.yaml', fmt(solve.ms), solve.status, ''],
+  ]));
+}
+
+if (json) process.stdout.write(`${JSON.stringify(out, null, 2)}\n`);

@@ -1,0 +1,195 @@
+/**
+ * The sweep engine: the points of a grid solved block by block with continuation.
+ *
+ * The rule that makes a sweep reproducible (the same rows, to the last digit, serial or on
+ * worker threads, whole or in shards, interrupted and resumed):
+ *   - the walk (boustrophedon, see grid.ts) is cut into blocks of `block` points;
+ *   - the first point of a block starts cold, from the file's own starting values;
+ *   - every other point starts from the converged values of the nearest point solved before
+ *     it in the same block (distance in grid steps; the later one on a tie). A point that
+ *     fails gives no start; the next one starts from its nearest good neighbour.
+ * So a block is always solved as the same sequence of solves, whoever runs it.
+ *
+ * The plan of a sweep (SweepSpec) is plain data that a worker thread receives and prepares
+ * again for itself.
+ */
+import { InputError, type Diagnostic } from '../diagnostics.js';
+import type { MethodName, Status } from '../solve/types.js';
+import { fileTargets } from './file-targets.js';
+import { blocksOf, GridShape, parseAxes, type Axis, type AxisSpec } from './grid.js';
+import { outputValue, parseOutput, type OutputRef } from './outputs.js';
+import { ParametricFlowsheet } from './params.js';
+import { parseTarget, solvePoint, type InputValue, type TargetSpec } from './point.js';
+
+/** Points per block when --block is not given. */
+export const DEFAULT_BLOCK = 50;
+
+export interface TargetOption {
+  text: string;
+  by: string;
+  within?: string;
+}
+
+/** Everything that decides the rows of a sweep; serializable (sent to worker threads). */
+export interface SweepSpec {
+  file: string;
+  /** The flowsheet text, read once by the main thread. */
+  text: string;
+  axes: AxisSpec[];
+  /** Output paths, each with an optional display unit in brackets. */
+  report: string[];
+  targets: TargetOption[];
+  /** The method for every point; undefined: the file's method cold, Newton from a neighbour. */
+  method?: MethodName;
+  maxPasses?: number;
+  block: number;
+  /** false: every point starts cold (for comparison). */
+  continuation: boolean;
+}
+
+export interface SweepContext {
+  spec: SweepSpec;
+  p: ParametricFlowsheet;
+  axes: Axis[];
+  shape: GridShape;
+  outputs: OutputRef[];
+  targets: TargetSpec[];
+  blocks: Int32Array[];
+}
+
+/** One solved point, as the engine hands it to the writer. */
+export interface PointRow {
+  point: number;
+  status: Status;
+  message?: string;
+  /** Outputs in their display unit (SI when none was asked for); absent unless converged. */
+  outputs?: number[];
+  /** The inputs adjusted by targets, SI; absent when the point was not solved. */
+  adjusted?: number[];
+}
+
+/** Builds the context; every problem with the options is reported at once. */
+export function prepareSweep(spec: SweepSpec): SweepContext {
+  const p = new ParametricFlowsheet(spec.file, spec.text);
+  const diags: Diagnostic[] = [];
+  const collect = <T>(f: () => T): T | undefined => {
+    try {
+      return f();
+    } catch (e) {
+      if (e instanceof InputError) {
+        diags.push(...e.diagnostics);
+        return undefined;
+      }
+      throw e;
+    }
+  };
+  const axes = collect(() => parseAxes(p, spec.axes)) ?? [];
+  const outputs: OutputRef[] = [];
+  for (const text of spec.report) {
+    const o = collect(() => parseOutput(text, p.base.model));
+    if (!o) continue;
+    if (outputs.some((x) => x.path === o.path)) diags.push({ severity: 'error', message: `--report names \`${o.path}\` twice`, help: 'name each output once, in one unit' });
+    else outputs.push(o);
+  }
+  const targets: TargetSpec[] = collect(() => fileTargets(p)) ?? [];
+  for (const t of spec.targets) {
+    const ts = collect(() => parseTarget(p, t.text, t.by, t.within));
+    if (ts) targets.push(ts);
+  }
+  for (const t of targets) {
+    const a = axes.find((x) => x.ref.node === t.by.node || x.path === t.by.text);
+    if (a) diags.push({ severity: 'error', message: `\`${t.by.text}\` is swept by \`${a.spec.text}\` and adjusted by target \`${t.text}\``, help: 'a target must adjust an input that the sweep leaves free' });
+  }
+  const seen = new Set<string>();
+  for (const t of targets) {
+    if (seen.has(t.by.text)) diags.push({ severity: 'error', message: `two targets adjust \`${t.by.text}\``, help: 'each target needs an input of its own' });
+    seen.add(t.by.text);
+  }
+  if (!Number.isInteger(spec.block) || spec.block < 1) diags.push({ severity: 'error', message: `--block must be a whole number >= 1, not ${spec.block}` });
+  if (diags.length) throw new InputError(diags);
+  // The ends of every grid and every listed value, each on its own (the others at the file's
+  // values), must make a valid file: a grid that runs out of range is a mistake in the command,
+  // found before anything is solved. (A combination that is invalid is a row of status invalid.)
+  for (const a of axes) {
+    const check = a.spec.kind === 'grid' ? [a.values[0], a.values[a.values.length - 1]] : a.values;
+    for (const v of check) {
+      try {
+        p.model([inputValue(a, v)]);
+      } catch (e) {
+        if (!(e instanceof InputError)) throw e;
+        for (const d of e.diagnostics) {
+          if (d.severity === 'error') diags.push({ ...d, message: `with \`${a.path}\` = ${v}${a.unit ? ` ${a.unit}` : ''} (from \`${a.spec.text}\`): ${d.message}`, help: d.help ?? 'keep the grid inside the range the file accepts' });
+        }
+      }
+    }
+  }
+  if (diags.length) throw new InputError(dedupe(diags));
+  const shape = new GridShape(axes.map((a) => a.values.length));
+  return { spec, p, axes, shape, outputs, targets, blocks: blocksOf(shape, spec.block) };
+}
+
+function dedupe(ds: Diagnostic[]): Diagnostic[] {
+  const seen = new Set<string>();
+  return ds.filter((d) => {
+    const k = `${d.message}|${d.span?.line}:${d.span?.col}`;
+    if (seen.has(k)) return false;
+    seen.add(k);
+    return true;
+  });
+}
+
+function inputValue(a: Axis, v: number): InputValue {
+  return a.unit ? { ref: a.ref, value: v, unit: a.unit } : { ref: a.ref, value: v };
+}
+
+/** The input values of a point, in the axes' units. */
+export function pointInputs(ctx: Pick<SweepContext, 'axes' | 'shape'>, point: number): number[] {
+  const idx = ctx.shape.index(point);
+  return ctx.axes.map((a, k) => a.values[idx[k]]);
+}
+
+/** Solves one point from a start (or cold). */
+export function solveOne(ctx: SweepContext, point: number, start: Float64Array | undefined): { row: PointRow; start?: Float64Array } {
+  const values = pointInputs(ctx, point).map((v, k) => inputValue(ctx.axes[k], v));
+  const method = ctx.spec.method ?? (start ? 'newton' : undefined);
+  const r = solvePoint(ctx.p, values, { targets: ctx.targets, start, method, maxPasses: ctx.spec.maxPasses });
+  const row: PointRow = { point, status: r.status };
+  if (r.status === 'converged' && r.result) {
+    const res = r.result;
+    row.outputs = ctx.outputs.map((o) => outputValue(o, res));
+  } else {
+    row.message = oneLine(r.message ?? r.result?.message ?? r.status);
+  }
+  if (ctx.targets.length && r.targets) row.adjusted = r.targets.map((t) => t.input);
+  return { row, start: r.status === 'converged' ? r.start : undefined };
+}
+
+function oneLine(s: string): string {
+  return s.replace(/\s+/g, ' ').trim();
+}
+
+/**
+ * The rows of one block, in walk order. `skip` leading points are solved (their starts are
+ * needed by the rest) but not yielded: a resumed block continues exactly as it began.
+ */
+export function* blockRows(ctx: SweepContext, blockIndex: number, skip = 0): Generator<PointRow> {
+  const block = ctx.blocks[blockIndex];
+  const solved: { point: number; start: Float64Array }[] = [];
+  for (let w = 0; w < block.length; w++) {
+    const point = block[w];
+    let start: Float64Array | undefined;
+    if (ctx.spec.continuation) {
+      let best = Infinity;
+      for (const s of solved) {
+        const d = ctx.shape.distance2(point, s.point);
+        if (d <= best) {
+          best = d;
+          start = s.start;
+        }
+      }
+    }
+    const { row, start: next } = solveOne(ctx, point, start);
+    if (next && ctx.spec.continuation) solved.push({ point, start: Float64Array.from(next) });
+    if (w >= skip) yield row;
+  }
+}

@@ -1,0 +1,149 @@
+/**
+ * The bad-input corpus: every file in test/bad/ is a malformed flowsheet whose first lines
+ * say what loopclose must report, one line per problem:
+ *   # expect: LINE:COL message
+ * The built CLI must exit with code 2, print each expected message as an `error:` with its
+ * `--> file:LINE:COL`, print no other error, and never a stack trace.
+ */
+import { readdirSync, readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { cli, ROOT, tempFile } from './helpers/cli.js';
+import { validateText } from '../src/flowsheet/validate.js';
+import { InputError } from '../src/diagnostics.js';
+
+const DIR = join(ROOT, 'test', 'bad');
+
+interface Expectation {
+  line: number;
+  col: number;
+  message: string;
+}
+
+function expectations(text: string): Expectation[] {
+  const out: Expectation[] = [];
+  for (const l of text.split('\n')) {
+    const m = /^# expect: (\d+):(\d+) (.+)$/.exec(l);
+    if (m) out.push({ line: Number(m[1]), col: Number(m[2]), message: m[3] });
+  }
+  return out;
+}
+
+/** The `error:` diagnostics of a run: message and location. */
+function reported(stderr: string): { message: string; at: string }[] {
+  const lines = stderr.split('\n');
+  const out: { message: string; at: string }[] = [];
+  lines.forEach((l, k) => {
+    const m = /^error: (.*)$/.exec(l);
+    if (!m) return;
+    const loc = /^\s+--> (.*)$/.exec(lines[k + 1] ?? '');
+    out.push({ message: m[1], at: loc ? loc[1] : '' });
+  });
+  return out;
+}
+
+const files = readdirSync(DIR).filter((f) => f.endsWith('.yaml')).sort();
+
+describe('bad-input corpus (test/bad)', () => {
+  it('holds at least 40 cases, each with at least one expectation', () => {
+    expect(files.length).toBeGreaterThanOrEqual(40);
+    for (const f of files) expect(expectations(readFileSync(join(DIR, f), 'utf8')).length, f).toBeGreaterThan(0);
+  });
+
+  for (const f of files) {
+    it(f, () => {
+      const rel = `test/bad/${f}`;
+      const want = expectations(readFileSync(join(DIR, f), 'utf8'));
+      const r = cli(['solve', rel]);
+      expect(r.code, r.stderr).toBe(2);
+      expect(r.stdout).toBe('');
+      expect(r.stderr).not.toMatch(/^\s+at .+:\d+:\d+\)?$/m);
+      expect(r.stderr).not.toMatch(/internal error/);
+      const got = reported(r.stderr);
+      for (const w of want) {
+        expect(got, `${f}: ${w.message}`).toContainEqual({ message: w.message, at: `${rel}:${w.line}:${w.col}` });
+      }
+      expect(got.length, r.stderr).toBe(want.length);
+      expect(r.stderr).toMatch(new RegExp(`${want.length} errors?; nothing was computed\\.`));
+    });
+  }
+});
+
+describe('all problems of a file at once', () => {
+  it('several-problems.yaml: four problems in four places, reported in one run in file order', () => {
+    const r = cli(['solve', 'test/bad/several-problems.yaml']);
+    expect(r.code).toBe(2);
+    const got = reported(r.stderr);
+    expect(got.map((d) => d.at)).toEqual([
+      'test/bad/several-problems.yaml:10:18',
+      'test/bad/several-problems.yaml:13:8',
+      'test/bad/several-problems.yaml:26:8',
+      'test/bad/several-problems.yaml:31:11',
+    ]);
+    expect(r.stderr).toMatch(/4 errors; nothing was computed\./);
+    // Each problem shows its source line, a caret under the value and what to do.
+    expect(r.stderr).toMatch(/13 \|     P: 150\n\s+\|        \^\^\^\n\s+= help: write a unit/);
+    expect(r.stderr).toMatch(/did you mean `splitter`\?/);
+  });
+});
+
+describe('limits', () => {
+  it('a file over the size limit is refused before it is parsed, exit 2', () => {
+    const big = tempFile('big.yaml', `# ${'x'.repeat(2 * 1024 * 1024 + 10)}\n`);
+    const r = cli(['solve', big]);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/bytes; the limit is 2097152/);
+  });
+
+  it('an alias bomb (10^8 items from 8 lines) is refused quickly', () => {
+    const text = readFileSync(join(DIR, 'alias-bomb.yaml'), 'utf8');
+    const t0 = process.hrtime.bigint();
+    let err: unknown;
+    try {
+      validateText('bomb.yaml', text);
+    } catch (e) {
+      err = e;
+    }
+    const ms = Number(process.hrtime.bigint() - t0) / 1e6;
+    expect(err).toBeInstanceOf(InputError);
+    expect((err as InputError).diagnostics[0].message).toMatch(/aliases of this file would expand to more than 100000/);
+    // Generous bound: counting is linear in the file; expanding would take minutes and gigabytes.
+    expect(ms).toBeLessThan(2000);
+  });
+
+  it('a missing file and a folder are input errors, not internal ones', () => {
+    const a = cli(['solve', 'test/bad/no-such-file.yaml']);
+    expect(a.code).toBe(2);
+    expect(a.stderr).toMatch(/cannot read test\/bad\/no-such-file\.yaml: no such file/);
+    const b = cli(['solve', 'test/bad']);
+    expect(b.code).toBe(2);
+    expect(b.stderr).toMatch(/is a folder, not a flowsheet file/);
+  });
+
+  it('text that looks like code is only ever read as data', () => {
+    const marker = join(tempFile('m.txt', ''), '..', 'pwned');
+    const text = `title: "\${require('fs').writeFileSync('${marker}', 'x')}"
+components: { H2: !!js/function "function () { return 1 }", N2: {} }
+feeds: { f: { composition: { H2: 1 }, molar-flow: 1 mol/s, T: 300 K, P: 1 bar } }
+`;
+    const r = cli(['solve', tempFile('code.yaml', text)]);
+    expect([0, 2]).toContain(r.code);
+    expect(() => readFileSync(marker)).toThrow();
+  });
+});
+
+describe('structural checks through the library', () => {
+  it('a trapped component is an InputError with a span and a help line', () => {
+    let err: InputError | undefined;
+    try {
+      validateText('x.yaml', readFileSync(join(DIR, 'inert-without-purge.yaml'), 'utf8'));
+    } catch (e) {
+      err = e as InputError;
+    }
+    expect(err).toBeInstanceOf(InputError);
+    const d = err!.diagnostics.filter((x) => x.severity === 'error');
+    expect(d).toHaveLength(1);
+    expect(d[0].span).toMatchObject({ file: 'x.yaml', line: 20, col: 3 });
+    expect(d[0].help).toMatch(/recovery above zero to the outlet `liquid-ammonia`/);
+  });
+});
