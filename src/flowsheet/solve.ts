@@ -84,8 +84,25 @@ export interface FlowsheetResult {
   targets?: { text: string; output: number; target: number; input: number; inputPath: string; met: boolean; bound?: 'lower' | 'upper' }[];
 }
 
+/**
+ * Runtimes built for a model, kept while the model lives: a model does not change after
+ * validation, blocks reset their warm starts at each solve and the tears start from the feeds,
+ * so a repeated solve of one model gives the same result without building again.
+ */
+const RUNTIMES = new WeakMap<Model, Runtime>();
+
+function runtimeFor(model: Model, eos?: Eos): Runtime {
+  if (eos) return buildRuntime(model, eos);
+  let rt = RUNTIMES.get(model);
+  if (!rt) {
+    rt = buildRuntime(model);
+    RUNTIMES.set(model, rt);
+  }
+  return rt;
+}
+
 export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): FlowsheetResult {
-  const rt = opts.runtime ?? buildRuntime(model, opts.eos);
+  const rt = opts.runtime ?? runtimeFor(model, opts.eos);
   for (const b of rt.blocks) b.reset?.();
   const { n } = rt;
   const T = rt.tearStreams.length;
@@ -97,8 +114,10 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
   const warnings: string[] = [...model.warnings.map((w) => w.message), ...rt.feeds.flatMap((f) => f.warnings)];
 
   let result: SolveResult;
+  let balance: Balance;
   if (N === 0) {
     rt.pass();
+    balance = computeBalance(rt);
     result = { status: 'converged', method: 'sequential', x: new Float64Array(0), residual: 0, scaledResidual: 0, passes: 1, iterations: 0, jacobians: 0, history: [] };
   } else {
     const x0 = new Float64Array(N);
@@ -131,10 +150,13 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
     // Second criterion: a converged loop must also close its balances. The tear test allows a
     // component imbalance of about rtol times that component's recycle-to-feed ratio (large for
     // an inert); tighten and continue from the solution until the balance closes too.
-    for (let k = 0; k < 3 && result.status === 'converged'; k++) {
+    for (let k = 0; ; k++) {
+      // Leave every stream at the current iterate (one counted pass) and measure the balance.
       setTears(rt, result.x);
       rt.pass();
-      if (computeBalance(rt).worst <= CLOSURE_TOL) break;
+      result.passes += 1;
+      balance = computeBalance(rt);
+      if (result.status !== 'converged' || balance.worst <= CLOSURE_TOL || k === 3) break;
       const tighter = 10 ** -(k + 1);
       const atol = Float64Array.from(problem.atol ?? [], (v) => Math.max(1e-300, v * tighter * tighter));
       const more = solveFixedPoint({ ...problem, atol, x0: Float64Array.from(result.x) }, method === 'auto' ? 'newton' : method, {
@@ -142,19 +164,9 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
       });
       result = mergeResults(result, more);
     }
-    if (result.status === 'converged') {
-      setTears(rt, result.x);
-      rt.pass();
-      const open = openBalance(rt);
-      if (open) {
-        result = { ...result, status: 'not-converged', message: `the tear streams meet their tolerance, but ${open}; this is not a solution`, };
-        result.worst = undefined;
-      }
+    if (result.status === 'converged' && balance.worst > CLOSURE_TOL) {
+      result = { ...result, status: 'not-converged', message: `the tear streams meet their tolerance, but ${describeOpen(balance)}; this is not a solution`, worst: undefined };
     }
-    // Leave every stream at the final iterate.
-    setTears(rt, result.x);
-    rt.pass();
-    result.passes += 1;
   }
 
   let status: Status = result.status;
@@ -183,14 +195,14 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
     }
   }
 
-  return collectResult(rt, { ...result, status, message, failure }, feedTotal, warnings);
+  return collectResult(rt, { ...result, status, message, failure }, feedTotal, warnings, balance);
 }
 
 /**
  * Everything reported of a runtime's current state (streams as the last pass left them),
  * under the given solver result.
  */
-export function collectResult(rt: Runtime, result: SolveResult, feedTotal: number, warnings: string[]): FlowsheetResult {
+export function collectResult(rt: Runtime, result: SolveResult, feedTotal: number, warnings: string[], knownBalance?: Balance): FlowsheetResult {
   const { status, message, failure } = result;
   const model = rt.model;
   const streams = new Map<string, StreamResult>();
@@ -198,7 +210,7 @@ export function collectResult(rt: Runtime, result: SolveResult, feedTotal: numbe
   const units = new Map<string, UnitSummary & { type: string }>();
   for (const { block, ins, outs } of rt.sequence) units.set(block.spec.name, { type: block.spec.type, ...block.summary(ins, outs) });
   for (const b of rt.blocks) if (!units.has(b.spec.name)) units.set(b.spec.name, { type: b.spec.type, figures: [], notes: [] });
-  const balance = computeBalance(rt);
+  const balance = knownBalance ?? computeBalance(rt);
   const loop = loopFigures(rt, streams, balance, feedTotal);
   return {
     status, method: result.method, passes: result.passes, iterations: result.iterations, jacobians: result.jacobians,
@@ -283,10 +295,8 @@ export function readTears(rt: Runtime, out: Float64Array): void {
   });
 }
 
-/** The worst open balance after a converged tear test, described; undefined when all close. */
-function openBalance(rt: Runtime): string | undefined {
-  const b = computeBalance(rt);
-  if (b.worst <= CLOSURE_TOL) return undefined;
+/** The worst open balance, described. */
+function describeOpen(b: Balance): string {
   let worst = '';
   let v = 0;
   for (const [id, c] of Object.entries(b.components)) {

@@ -65,11 +65,44 @@ export function solveFixedPoint(
   }
 }
 
+/** Wegstein passes under `auto` before its rate is judged. */
+export const AUTO_PROBE_PASSES = 8;
+
+/** Passes still needed at the rate of the last iterations (Infinity when not converging). */
+function predictedPasses(r: SolveResult): number {
+  const h = r.history;
+  if (h.length < 4) return Infinity;
+  const a = h[h.length - 3].scaled;
+  const b = h[h.length - 1].scaled;
+  if (!(a > 0 && b > 0 && b < a)) return Infinity;
+  const rate = Math.sqrt(b / a);
+  if (b <= 1) return 0;
+  return Math.ceil(Math.log(b) / -Math.log(rate));
+}
+
 function solveAuto(problem: FixedPointProblem, options: SolveOptions): SolveResult {
   const total = options.maxPasses ?? NEWTON_DEFAULTS.maxPasses;
   const wBudget = Math.min(options.wegstein?.maxPasses ?? 200, total);
-  const w = solveWegstein(problem, { ...options, wegstein: { ...options.wegstein, maxPasses: wBudget } });
+  // Probe: a few Wegstein passes, then predict from the observed rate how many more it needs.
+  // Newton costs about two Jacobians (n + 1 passes each) plus a few steps; keep Wegstein only
+  // when it is predicted to finish sooner and within its budget.
+  const probe = Math.min(AUTO_PROBE_PASSES, wBudget);
+  let w = solveWegstein(problem, { ...options, wegstein: { ...options.wegstein, maxPasses: probe } });
   if (w.status !== 'not-converged') return w;
+  if (w.passes < wBudget) {
+    const need = predictedPasses(w);
+    const newtonCost = 2 * (problem.n + 1) + 3;
+    if (need <= wBudget - w.passes && need < newtonCost) {
+      const more = solveWegstein({ ...problem, x0: w.x }, { ...options, wegstein: { ...options.wegstein, maxPasses: wBudget - w.passes } });
+      w = {
+        ...more,
+        passes: w.passes + more.passes,
+        iterations: w.iterations + more.iterations,
+        history: w.history.concat(more.history.map((e) => ({ ...e, pass: e.pass + w.passes }))),
+      };
+      if (w.status !== 'not-converged') return w;
+    }
+  }
   const remaining = total - w.passes;
   if (remaining <= 0) return w;
   const startScaled = w.history.length > 0 ? w.history[0].scaled : Infinity;
