@@ -67,7 +67,7 @@ export function buildRuntime(model: Model, eos?: Eos): Runtime {
   }
   const taken = new Set(model.units.flatMap((u) => u.inlets));
   const products = streamOrder.filter((s) => !taken.has(s));
-  const plan = planFlowsheet(model.units.map((u) => ({ name: u.name, inlets: u.inlets, outlets: u.outlets })), model.tears.length ? model.tears : preferredTears(model));
+  const plan = planFor(model);
   const sequence = plan.order.map((name) => {
     const block = byName.get(name)!;
     return { block, ins: block.spec.inlets.map((s) => streams.get(s)!), outs: block.spec.outlets.map((s) => streams.get(s)!) };
@@ -98,6 +98,23 @@ export function buildRuntime(model: Model, eos?: Eos): Runtime {
     },
     issues,
   };
+}
+
+/**
+ * Plans by topology: a study builds a runtime per point on the same stream graph, so the plan
+ * (loops, tears, order) is kept for the last few topologies seen (it depends on nothing else).
+ */
+const PLANS = new Map<string, Plan>();
+const MAX_PLANS = 32;
+
+function planFor(model: Model): Plan {
+  const key = JSON.stringify([model.tears, model.units.map((u) => [u.name, u.inlets, u.outlets])]);
+  const hit = PLANS.get(key);
+  if (hit) return hit;
+  const plan = planFlowsheet(model.units.map((u) => ({ name: u.name, inlets: u.inlets, outlets: u.outlets })), model.tears.length ? model.tears : preferredTears(model));
+  if (PLANS.size >= MAX_PLANS) PLANS.delete(PLANS.keys().next().value!);
+  PLANS.set(key, plan);
+  return plan;
 }
 
 /**

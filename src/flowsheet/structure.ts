@@ -25,7 +25,7 @@
  * the loops of one component are the strongly connected components (Tarjan, via graph.ts) of
  * the graph of streams that can carry it.
  */
-import type { DiagnosticBag, SourceSpan } from '../diagnostics.js';
+import type { Diagnostic, DiagnosticBag, SourceSpan } from '../diagnostics.js';
 import type { Model, UnitSpecBase } from './model.js';
 import { planFlowsheet, stronglyConnected } from './graph.js';
 import type { ReactorSpec } from '../blocks/reactor.js';
@@ -166,7 +166,37 @@ function components(nu: number, edges: readonly [number, number][]): { component
   return { component, cyclic, count };
 }
 
+/**
+ * The checks depend only on the file, the names and connections, and which numbers are zero,
+ * one or in between; a study solving many points of one file asks the same question over and
+ * over, so the answers (the diagnostics) are kept for the last few such signatures.
+ */
+const ANSWERS = new Map<string, Diagnostic[]>();
+const MAX_ANSWERS = 32;
+
+function signature(model: Model): string {
+  const cls = (v: number) => (v === 0 ? 0 : v === 1 ? 1 : Number.isNaN(v) ? 3 : 2);
+  return JSON.stringify([model.file, model.ids, model.thermo.eos, model.tears, [...model.unitSpans], model.feeds.map((f) => [f.name, Array.from(f.composition, cls), f.span]), model.units], (_k, v) => {
+    if (typeof v === 'number') return cls(v);
+    if (v instanceof Float64Array) return Array.from(v, cls);
+    return v;
+  });
+}
+
 export function checkStructure(model: Model, bag: DiagnosticBag): void {
+  const key = signature(model);
+  const known = ANSWERS.get(key);
+  if (known) {
+    bag.items.push(...known);
+    return;
+  }
+  const before = bag.items.length;
+  checkStructureNow(model, bag);
+  if (ANSWERS.size >= MAX_ANSWERS) ANSWERS.delete(ANSWERS.keys().next().value!);
+  ANSWERS.set(key, bag.items.slice(before));
+}
+
+function checkStructureNow(model: Model, bag: DiagnosticBag): void {
   const units = model.units;
   const nu = units.length;
   if (nu === 0) return;
