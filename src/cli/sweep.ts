@@ -123,8 +123,23 @@ export async function runSweep(file: string, axes: AxisSpec[], given: SweepCliOp
     block: opt.block,
     continuation: o.continuation,
   };
-  const ctx = prepareSweep(spec);
   const format: SweepFormat = o.jsonl ? 'jsonl' : 'csv';
+  let ctx = prepareSweep(spec);
+  if (format === 'csv') {
+    // CSV is read by people: outputs without a unit of their own take the file's display units
+    // (flows, pressures, temperatures); JSON Lines stays in SI.
+    const d = ctx.p.base.model.display;
+    const byDim: Partial<Record<string, string>> = { molarFlow: d.flowUnit, pressure: d.pressureUnit, temperature: d.temperatureUnit };
+    const report = spec.report.map((r, k) => {
+      const out = ctx.outputs[k];
+      const unit = out && out.unit === undefined ? byDim[out.dimension] : undefined;
+      return unit ? `${r}[${unit}]` : r;
+    });
+    if (report.some((r, k) => r !== spec.report[k])) {
+      spec.report = report;
+      ctx = prepareSweep(spec);
+    }
+  }
   const header = makeHeader(ctx, format, opt.shard);
   const blockIds = shardBlocks(ctx.blocks.map((_, b) => b), opt.shard);
   const total = blockIds.reduce((a, b) => a + ctx.blocks[b].length, 0);
