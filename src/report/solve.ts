@@ -133,7 +133,7 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
   }
   if (r.status !== 'converged') {
     out.push('');
-    out.push(r.status === 'infeasible' ? 'No steady state exists as specified:' : 'The loop did not converge; this is not a solution:');
+    out.push(r.status === 'infeasible' ? 'No steady state exists as specified:' : r.status === 'invalid' ? 'The specification cannot be computed as given; this is not a solution:' : 'The loop did not converge; this is not a solution:');
     if (r.message) out.push(`  ${r.message}`);
     if (r.failure?.help) out.push(`  help: ${r.failure.help}`);
     if (r.worst?.length) {
