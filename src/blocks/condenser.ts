@@ -147,7 +147,7 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
       return {
         figures: [
           { label: 'vapour fraction', value: lastBeta, kind: 'fraction', key: 'vaporFraction' },
-          ...(spec.model === 'equilibrium' ? [{ label: 'flash iterations (last pass)', value: lastIterations, kind: 'count' as const, key: 'flashIterations' }] : []),
+          ...(spec.model === 'equilibrium' ? [{ label: 'flash iterations in the last pass (from the previous K-values)', value: lastIterations, kind: 'count' as const, key: 'flashIterations' }] : []),
         ],
         notes: note ? [note] : [],
       };

@@ -119,7 +119,9 @@ export const reactor: BlockDef<ReactorSpec> = {
         unit: spec.name,
         component: ids[i],
         message: `reactor \`${spec.name}\`: ${what} needs ${fmt(need)} mol/s of ${ids[i]}, but only ${fmt(have)} mol/s reaches it`,
-        help: `lower the conversion or extent, feed more ${ids[i]}, or let ${ids[i]} leave the loop less (a smaller purge)`,
+        help: rx && rx.conversion !== undefined && rx.key !== i
+          ? `${ids[i]} runs out before the key ${ids[rx.key]} reaches its conversion: make ${ids[i]} the key reactant, lower the conversion, or feed more ${ids[i]}`
+          : `lower the ${rx?.extent !== undefined ? 'extent' : 'conversion'}, or feed more ${ids[i]}`,
       };
     };
 

@@ -96,8 +96,8 @@ function singleReading(o: MeterOptions): MeterReport {
   const T = need('--temperature', o.temperature, 'temperature', '35 degC');
   const eosName = o.eos ? eosOption(o.eos) : 'SRK';
   if (flow !== undefined && !(flow > 0)) bag.error('--flow must be above zero');
-  if (P !== undefined && !(P > 0)) bag.error(`--pressure is ${P} Pa absolute after the gauge conversion; it must be above zero`);
-  if (T !== undefined && !(T > 0)) bag.error(`--temperature is ${T} K; it must be above absolute zero`);
+  if (P !== undefined && !(P > 0)) bag.error(`--pressure is ${sig(P)} Pa absolute after the gauge conversion; it must be above zero`, undefined, 'a gauge reading below the local atmosphere by more than the atmosphere is not possible: check the unit (barg or bar)');
+  if (T !== undefined && !(T > 0)) bag.error(`--temperature is ${sig(T)} K; it must be above absolute zero`, undefined, 'check the number and the unit (degC, degF, K)');
   if (bag.hasErrors) throw new InputError(bag.items);
   const comps = ids.map((id) => ({ ...findComponent(id)!, id }));
   const eos = makeEos(eosName, comps);
@@ -105,6 +105,10 @@ function singleReading(o: MeterOptions): MeterReport {
   const f = computeFeed(spec, eos);
   const display = { flowUnit: o.flowUnit ? checkFlowUnit(o.flowUnit) : 'kmol/h', pressureUnit: 'bar', temperatureUnit: 'degC' };
   return { eos: eosName, ids, feeds: [f], warnings: f.warnings, display, atmosphere };
+}
+
+function sig(v: number): string {
+  return String(Number(v.toPrecision(6)));
 }
 
 function opt(bag: DiagnosticBag, name: string, v: string, dim: Dimension, atmosphere: number): number | undefined {

@@ -129,14 +129,19 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
     }
   }
   const standards = new Map<string, StandardRef>(BUILTIN_STANDARDS);
+  const failedStandards = new Set<string>();
   const stdE = r.find(thermoEntries, 'standards');
   if (stdE) {
     for (const e of r.entries(stdE.value, '`thermo.standards`', stdE.keyNode) ?? []) {
       const f = r.entries(e.value, `standard reference \`${e.key}\``, e.keyNode) ?? [];
-      r.checkKeys(f, ['temperature', 'pressure'], `standard reference \`${e.key}\``);
-      const T = requiredQuantity(r, f, 'temperature', 'temperature', `\`temperature\` of standard reference \`${e.key}\``, e.keyNode, { above: 0, example: '20 degC' }, { atmosphere });
-      const P = requiredQuantity(r, f, 'pressure', 'pressure', `\`pressure\` of standard reference \`${e.key}\``, e.keyNode, { above: 0, example: '101.325 kPa' }, { atmosphere });
+      r.checkKeys(f, ['T', 'P', 'temperature', 'pressure'], `standard reference \`${e.key}\``);
+      // `T` and `P` as everywhere else in the file; `temperature` and `pressure` as in a meter.
+      const tKey = r.find(f, 'T') ? 'T' : 'temperature';
+      const pKey = r.find(f, 'P') ? 'P' : 'pressure';
+      const T = requiredQuantity(r, f, tKey, 'temperature', `\`${tKey}\` of standard reference \`${e.key}\``, e.keyNode, { above: 0, example: '60 degF' }, { atmosphere });
+      const P = requiredQuantity(r, f, pKey, 'pressure', `\`${pKey}\` of standard reference \`${e.key}\``, e.keyNode, { above: 0, example: '14.73 psia' }, { atmosphere });
       if (T !== undefined && P !== undefined) standards.set(e.key, defineStandard(e.key, { T, P }));
+      else failedStandards.add(e.key);
     }
   }
   const kij = new Float64Array(n * n);
@@ -212,7 +217,7 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
       }
       streamSpans.set(e.key, r.at(e.keyNode));
       unitSpans.set(e.key, r.at(e.keyNode));
-      const f = readFeed(r, e, ids, index, components, atmosphere, standards);
+      const f = readFeed(r, e, ids, index, components, atmosphere, standards, failedStandards);
       if (f) feeds.push(f);
     }
   }
@@ -491,7 +496,7 @@ function readFractionMap(r: Reader, node: Node | null, what: string, parent: Nod
   return ok ? out : undefined;
 }
 
-function readFeed(r: Reader, e: Entry, ids: string[], index: Map<string, number>, comps: ComponentData[], atmosphere: number, standards: Map<string, StandardRef>): FeedSpec | undefined {
+function readFeed(r: Reader, e: Entry, ids: string[], index: Map<string, number>, comps: ComponentData[], atmosphere: number, standards: Map<string, StandardRef>, failedStandards: ReadonlySet<string> = new Set()): FeedSpec | undefined {
   const what = `feed \`${e.key}\``;
   const f = r.entries(e.value, what, e.keyNode);
   if (!f) return undefined;
@@ -625,6 +630,8 @@ function readFeed(r: Reader, e: Entry, ids: string[], index: Map<string, number>
       if (re) {
         refName = r.string(re.value, 'the standard reference');
         if (refName !== undefined && !standards.has(refName)) {
+          // A reference whose definition already failed has its own message.
+          if (failedStandards.has(refName)) return undefined;
           r.bag.error(`unknown standard reference \`${refName}\``, r.at(re.value), didYouMean(refName, standards.keys()) ?? `define it under \`thermo.standards\`, or use one of: ${[...standards.keys()].join(', ')}`);
           return undefined;
         }
@@ -890,7 +897,7 @@ export class YamlFields implements FieldReader {
           continue;
         }
         if (num < 0 || num > 1) {
-          this.r.bag.error(`the fraction to \`${o.key}\` in ${this.what} is ${num}; it must lie between 0 and 1`, this.r.at(v));
+          this.r.bag.error(`the fraction to \`${o.key}\` in ${this.what} is ${num}; it must lie between 0 and 1`, this.r.at(v), 'write the share of the inlet this outlet takes, e.g. `0.03`, and `rest` for one outlet');
           bad = true;
           continue;
         }

@@ -62,6 +62,7 @@ export function meterText(r: MeterReport): string {
   for (const f of r.feeds) if (f.densityCorrection !== undefined) out.push(`  ${f.name}: differential-pressure reading corrected by sqrt(design density / actual density) = ${num(f.densityCorrection, 6)}`);
   out.push('');
   out.push('ideal-gas error = (ideal - real) / real: what the ideal-gas law would have made of the same reading.');
+  if (refs.length) out.push('For a standard-flow feed it compares the ideal and the real molar volume at the standard reference (zero on the ideal basis).');
   for (const w of r.warnings) out.push(`warning: ${w}`);
   out.push(`note: ${CAUTION}`);
   return out.join('\n');

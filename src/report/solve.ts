@@ -177,7 +177,7 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
     const parts: string[] = [];
     for (const rx of u.reactions ?? []) parts.push(`${rx.equation}: extent ${F(rx.extent)} ${fu}, conversion of ${rx.key} ${num(rx.conversion, 5)}`);
     for (const f of u.figures) {
-      if (f.key.startsWith('extent.')) continue;
+      if (f.key.startsWith('extent.') || f.kind === 'count') continue;
       parts.push(`${f.label} ${f.kind === 'molarFlow' ? `${F(f.value)} ${fu}` : num(f.value, 5)}`);
     }
     out.push(`  ${name} (${u.type}): ${parts.join('; ') || '-'}${u.notes.length ? `  [${u.notes.join('; ')}]` : ''}`);
@@ -199,7 +199,7 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
     return [id, F(c.in), F(c.out), F(c.generated), num(c.closure, 2)];
   })));
   out.push('');
-  out.push(table(['element', 'in mol/s', 'out mol/s', 'closure'], Object.entries(b.elements).map(([el, e]) => [el, num(e.in, 6), num(e.out, 6), num(e.closure, 2)])));
+  out.push(table(['element', `in (${fu} of atoms)`, 'out', 'closure'], Object.entries(b.elements).map(([el, e]) => [el, F(e.in), F(e.out), num(e.closure, 2)])));
   out.push(`  total mass: in ${num(b.mass.in * 3600, 6)} kg/h, out ${num(b.mass.out * 3600, 6)} kg/h, closure ${num(b.mass.closure, 2)}`);
   if (r.feeds.length) {
     out.push('');

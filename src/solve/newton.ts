@@ -273,6 +273,23 @@ function luStep(fac: Factored, f: Float64Array, dx: Float64Array): void {
   for (let j = 0; j < n; j++) dx[j] = y.get(j, 0) * colScale[j];
 }
 
+/**
+ * A residual that no variable changes (its Jacobian row is exactly zero) and that already
+ * meets its tolerance needs nothing from the step: a component at zero flow that cannot leave
+ * a loop gives g_i(x) = x_i, so F_i = 0 whatever x is. Such a row gets -1 on its diagonal,
+ * the identity part of F = g - x, so the step leaves x_i where it is (dx_i = F_i, within
+ * tolerance) instead of the matrix being singular. A zero row whose residual is not met stays
+ * zero, and the factorization reports it.
+ */
+function pinSatisfiedRows(J: Float64Array, f: Float64Array, s: Float64Array, n: number): void {
+  for (let i = 0; i < n; i++) {
+    const row = i * n;
+    let zero = true;
+    for (let j = 0; j < n && zero; j++) if (J[row + j] !== 0) zero = false;
+    if (zero && Math.abs(f[i]) <= s[i]) J[row + i] = -1;
+  }
+}
+
 function residualLabel(i: number, sys: NewtonSystem): string {
   const name = sys.what === 'g' ? sys.names?.[i] : undefined;
   return name !== undefined ? `${i} (${name})` : `row ${i}`;
@@ -381,6 +398,7 @@ function newtonCore(sys: NewtonSystem, options: SolveOptions): SolveResult {
           `${sys.what} returned ${value} in residual ${residualLabel(row, sys)} when ${nameOf(column, names)} was perturbed for the Jacobian`,
         );
       }
+      pinSatisfiedRows(J, f, s, n);
       const bad = factor(sys, J, x, work);
       if (bad !== undefined) return finish('not-converged', bad);
       factored = work;

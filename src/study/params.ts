@@ -27,6 +27,22 @@ export interface InputRef {
   baseValue: number;
   /** The original scalar value (restored by `reset`). */
   original: unknown;
+  /**
+   * For an outlet written `rest` (a splitter of two outlets): the other outlet's fraction,
+   * which is set to 1 - value so that this one takes `value`.
+   */
+  complement?: { node: Scalar; original: unknown };
+}
+
+/** An outlet written `rest` as an input: only with exactly one other, numeric outlet. */
+function restInput(text: string, docPath: (string | number)[], node: Scalar, parent: unknown): InputRef {
+  const others = isMap(parent) ? parent.items.filter((it) => it.value !== node) : [];
+  const other = others.length === 1 ? others[0].value : undefined;
+  if (!isScalar(other) || typeof other.value !== 'number') {
+    throw inputError(`input path \`${text}\` leads to \`rest\`, and its splitter has ${others.length + 1} outlets`,
+      'vary an outlet written as a number, or give this one a number and another `rest`');
+  }
+  return { text, docPath, node, fileUnit: '', baseValue: 1 - other.value, original: 'rest', complement: { node: other, original: other.value } };
 }
 
 const DIMENSIONS: Dimension[] = ['pressure', 'temperature', 'molarFlow', 'massFlow', 'volumeFlow', 'standardFlow', 'molarMass', 'density'];
@@ -54,9 +70,11 @@ export class ParametricFlowsheet {
     const docPath: (string | number)[] = TOP.has(parts[0]) ? [] : ['units'];
     for (const p of parts) docPath.push(/^\d+$/.test(p) ? Number(p) : p);
     let node: unknown = this.src.doc.contents;
+    let parent: unknown = null;
     const walked: (string | number)[] = [];
     for (const seg of docPath) {
       node = this.src.resolve(node);
+      parent = node;
       let next: unknown;
       if (isMap(node)) {
         const pair = node.items.find((it) => isScalar(it.key) && String(it.key.value) === String(seg));
@@ -81,6 +99,8 @@ export class ParametricFlowsheet {
     let ref: InputRef;
     if (typeof v === 'number') {
       ref = { text, docPath, node, fileUnit: '', baseValue: v, original: v };
+    } else if (v === 'rest') {
+      ref = restInput(text, docPath, node, parent);
     } else if (typeof v === 'string') {
       let q;
       try {
@@ -103,7 +123,10 @@ export class ParametricFlowsheet {
    */
   model(values: readonly { ref: InputRef; value: number; unit?: string }[]): LoadedFile {
     for (const { ref, value, unit } of values) {
-      if (ref.dimension === undefined) {
+      if (ref.complement) {
+        if (unit) throw inputError(`\`${ref.text}\` is a fraction; it takes no unit (\`${unit}\` given)`);
+        ref.complement.node.value = 1 - value;
+      } else if (ref.dimension === undefined) {
         if (unit) throw inputError(`\`${ref.text}\` is a plain number in the file; it takes no unit (\`${unit}\` given)`);
         ref.node.value = value;
       } else {
@@ -114,7 +137,10 @@ export class ParametricFlowsheet {
     try {
       return validateSource(this.src, new DiagnosticBag());
     } finally {
-      for (const { ref } of values) ref.node.value = ref.original;
+      for (const { ref } of values) {
+        ref.node.value = ref.original;
+        if (ref.complement) ref.complement.node.value = ref.complement.original;
+      }
     }
   }
 

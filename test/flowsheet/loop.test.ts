@@ -173,3 +173,40 @@ describe('repeated solves', () => {
     expect(Array.from(d.x)).toEqual(Array.from(a.x));
   });
 });
+
+describe('regressions found in review', () => {
+  it('Newton solves a loop with components at zero flow that cannot leave it (their Jacobian rows are zero)', () => {
+    const { model } = validateText('z.yaml', `
+components: { CO: {}, C3H6: {}, CH4: {}, N2: {} }
+feeds:
+  feed0: { composition: { CO: 0, C3H6: 1, CH4: 0, N2: 0 }, molar-flow: 6.58 mol/s, T: 449 K, P: 20 bar }
+units:
+  mix: { type: mixer, in: [feed0, recycle], out: r-in }
+  sep: { type: condenser, in: r-in, T: 300 K, P: 10 bar, model: split, split: { CO: 1, C3H6: 0.6, CH4: 0, N2: 0 }, vapor: recycle, liquid: product }
+`);
+    for (const method of ['newton', 'auto', 'direct'] as const) {
+      const r = solveFlowsheet(model, { method });
+      expect(r.status, method).toBe('converged');
+      // Closed form: C3H6 recycle = 0.4 F / 0.6 (a loop with split fraction 0.6 to the product).
+      expect(r.streams.get('recycle')!.flows[1]).toBeCloseTo((0.4 * 6.58) / 0.6, 8);
+      expect(r.streams.get('recycle')!.flows[2]).toBe(0);
+    }
+  });
+
+  it('an infeasible co-reactant: the help names the limiting reactant, not a purge', () => {
+    const { model } = validateText('x.yaml', `
+components: { H2: {}, N2: {}, NH3: {} }
+feeds:
+  gas: { flows: { H2: 1 mol/s, N2: 1 mol/s }, T: 300 K, P: 100 bar }
+units:
+  r:
+    type: reactor
+    in: gas
+    out: out
+    reactions: [ { equation: "N2 + 3 H2 -> 2 NH3", key: N2, conversion: 0.9 } ]
+`);
+    const r = solveFlowsheet(model);
+    expect(r.failure?.help).toMatch(/H2 runs out before the key N2 reaches its conversion: make H2 the key reactant/);
+    expect(r.failure?.help).not.toMatch(/purge/);
+  });
+});

@@ -60,3 +60,33 @@ describe('binary interaction parameters from the file', () => {
     expect(z1).toBeGreaterThan(z0);
   });
 });
+
+describe('a standard reference of the file\'s own', () => {
+  it('takes T and P (or temperature and pressure); a failed definition gives one message, not a follow-on one', () => {
+    const doc = (ref: string) => `components: { CH4: {} }
+thermo:
+  standards:
+    contract: ${ref}
+feeds:
+  gas:
+    composition: { CH4: 1 }
+    standard-flow: { flow: 1000 m3/h, reference: contract, basis: ideal }
+    T: 20 degC
+    P: 40 barg
+`;
+    const a = validateText('s.yaml', doc('{ T: 60 degF, P: 14.73 psia }')).model;
+    const b = validateText('s.yaml', doc('{ temperature: 60 degF, pressure: 14.73 psia }')).model;
+    const ra = a.feeds[0].basis.kind === 'standard-flow' ? a.feeds[0].basis.reference : undefined;
+    const rb = b.feeds[0].basis.kind === 'standard-flow' ? b.feeds[0].basis.reference : undefined;
+    expect(ra!.T).toBeCloseTo(288.7055556, 6); // 60 degF (NIST SP 811, Appendix B: T/K = (t/degF + 459.67)/1.8)
+    expect(ra!.P).toBeCloseTo(101560.0, 0); // 14.73 psia, psi = 6894.757 Pa (NIST SP 811)
+    expect(rb!.T).toBe(ra!.T);
+    let e: InputError | undefined;
+    try {
+      validateText('s.yaml', doc('{ T: 60, P: 14.73 psia }'));
+    } catch (err) {
+      e = err as InputError;
+    }
+    expect(e!.diagnostics.filter((d) => d.severity === 'error').map((d) => d.message)).toEqual(['`T` of standard reference `contract`: `60` has no unit; a temperature needs one']);
+  });
+});

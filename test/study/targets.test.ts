@@ -3,7 +3,7 @@ import { ParametricFlowsheet } from '../../src/study/params.js';
 import { parseTarget, solvePoint } from '../../src/study/point.js';
 import { solveFlowsheet } from '../../src/flowsheet/solve.js';
 import { cli } from '../helpers/cli.js';
-import type { InputError } from '../../src/diagnostics.js';
+import { InputError as InputErrorClass, type InputError } from '../../src/diagnostics.js';
 
 describe('targets held by Newton together with the tear equations', () => {
   const p = new ParametricFlowsheet('flowsheets/methanol-pilot.yaml');
@@ -65,5 +65,32 @@ describe('targets held by Newton together with the tear equations', () => {
     const a = solvePoint(p, []);
     const b = solveFlowsheet(p.base.model);
     expect(a.result!.streams.get('purge')!.total).toBe(b.streams.get('purge')!.total);
+  });
+});
+
+describe('an outlet written `rest` as an input', () => {
+  const p = new ParametricFlowsheet('flowsheets/methanol-pilot.yaml');
+  it('the issue\'s own target: the purge (written `rest`) adjusted within 0.001:0.2 holds 10 % N2', () => {
+    const t = parseTarget(p, 'streams.recycle.fractions.N2 = 0.10', 'purge-split.out.purge', '0.001:0.2');
+    const r = solvePoint(p, [], { targets: [t] });
+    expect(r.status).toBe('converged');
+    // Same answer as adjusting the numeric outlet: purge = 1 - recycle.
+    const t2 = parseTarget(p, 'streams.recycle.fractions.N2 = 0.10', 'purge-split.out.recycle', '0.8:0.999');
+    const r2 = solvePoint(p, [], { targets: [t2] });
+    expect(r.targets![0].input).toBeCloseTo(1 - r2.targets![0].input, 8);
+  });
+  it('setting it gives the other outlet 1 - value; a splitter of three outlets is refused', () => {
+    const ref = p.input('purge-split.out.purge');
+    expect(ref.baseValue).toBeCloseTo(0.03, 14);
+    const m = p.model([{ ref, value: 0.05 }]).model;
+    const split = m.units.find((u) => u.name === 'purge-split') as unknown as { fractions: number[]; outlets: string[] };
+    expect(split.fractions[split.outlets.indexOf('purge')]).toBeCloseTo(0.05, 14);
+    const p3 = new ParametricFlowsheet('three.yaml', `components: { N2: {} }
+feeds:
+  a: { composition: { N2: 1 }, molar-flow: 1 mol/s, T: 300 K, P: 1 bar }
+units:
+  s: { type: splitter, in: a, out: { x: 0.2, y: 0.3, z: rest } }
+`);
+    expect(() => p3.input('s.out.z')).toThrow(InputErrorClass);
   });
 });
