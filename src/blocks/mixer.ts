@@ -5,6 +5,7 @@
  */
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { BlockDef, Stream } from './types.js';
+import { combineInlets } from './combine.js';
 
 export interface MixerSpec extends UnitSpecBase {
   type: 'mixer';
@@ -29,25 +30,9 @@ export const mixer: BlockDef<MixerSpec> = {
       spec,
       compute(ins: readonly Stream[], outs: Stream[]) {
         const o = outs[0];
-        const n = o.flows.length;
-        o.flows.fill(0);
-        let pMin = Infinity;
-        let tSum = 0;
-        let fSum = 0;
-        for (const s of ins) {
-          let tot = 0;
-          for (let i = 0; i < n; i++) {
-            o.flows[i] += s.flows[i];
-            tot += s.flows[i];
-          }
-          if (s.P < pMin) pMin = s.P;
-          if (tot > 0 && Number.isFinite(s.T)) {
-            tSum += tot * s.T;
-            fSum += tot;
-          }
-        }
-        o.P = spec.P ?? (Number.isFinite(pMin) ? pMin : Number.NaN);
-        o.T = spec.T ?? (fSum > 0 ? tSum / fSum : ins[0]?.T ?? Number.NaN);
+        combineInlets(ins, o);
+        if (spec.P !== undefined) o.P = spec.P;
+        if (spec.T !== undefined) o.T = spec.T;
         o.vf = Number.NaN;
       },
       issue: () => null,

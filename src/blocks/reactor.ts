@@ -11,6 +11,7 @@ import type { UnitSpecBase } from '../flowsheet/model.js';
 import { parseEquation, elementImbalance, EquationError } from '../thermo/reaction.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import type { BlockDef, Stream } from './types.js';
+import { combineInlets } from './combine.js';
 
 export interface ReactionSpec {
   equation: string;
@@ -130,22 +131,9 @@ export const reactor: BlockDef<ReactorSpec> = {
       compute(ins: readonly Stream[], outs: Stream[]) {
         const o = outs[0];
         const f = o.flows;
-        f.fill(0);
-        let pMin = Infinity;
-        let tSum = 0;
-        let fSum = 0;
-        for (const s of ins) {
-          let tot = 0;
-          for (let i = 0; i < n; i++) {
-            f[i] += s.flows[i];
-            tot += s.flows[i];
-          }
-          if (s.P < pMin) pMin = s.P;
-          if (tot > 0 && Number.isFinite(s.T)) {
-            tSum += s.T * tot;
-            fSum += tot;
-          }
-        }
+        combineInlets(ins, o);
+        const inletT = o.T;
+        const inletP = o.P;
         problem = null;
         gen.fill(0);
         if (!spec.sequence) {
@@ -209,8 +197,8 @@ export const reactor: BlockDef<ReactorSpec> = {
             }
           }
         }
-        o.T = spec.T ?? (fSum > 0 ? tSum / fSum : ins[0].T);
-        o.P = spec.P ?? pMin;
+        o.T = spec.T ?? inletT;
+        o.P = spec.P ?? inletP;
         o.vf = Number.NaN;
       },
       issue: () => problem,
