@@ -30,6 +30,8 @@ export interface SolveFlowsheetOptions {
   eos?: Eos;
   /** Reuse a built runtime (sweeps): blocks and streams are reset and recomputed. */
   runtime?: Runtime;
+  /** A neighbour's tear Jacobian (FlowsheetResult.jacobian) for Newton to start from. */
+  jacobian?: Float64Array;
 }
 
 export interface StreamResult {
@@ -78,6 +80,8 @@ export interface FlowsheetResult {
   loop: LoopFigures;
   /** The converged tear vector (to start a neighbour). */
   x: Float64Array;
+  /** Newton's last tear Jacobian, when Newton ran (to start a neighbour). */
+  jacobian?: Float64Array;
   warnings: string[];
   model: Model;
   /** Targets held, when the solve had any. */
@@ -145,7 +149,7 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
         pre++;
       }
     }
-    result = solveFixedPoint(problem, method, { rtol, maxPasses: maxPasses - pre, wegstein });
+    result = solveFixedPoint(problem, method, { rtol, maxPasses: maxPasses - pre, wegstein, newton: opts.jacobian && opts.jacobian.length === N * N ? { jacobian: opts.jacobian } : undefined });
     result.passes += pre;
     // Second criterion: a converged loop must also close its balances. The tear test allows a
     // component imbalance of about rtol times that component's recycle-to-feed ratio (large for
@@ -161,6 +165,7 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
       const atol = Float64Array.from(problem.atol ?? [], (v) => Math.max(1e-300, v * tighter * tighter));
       const more = solveFixedPoint({ ...problem, atol, x0: Float64Array.from(result.x) }, method === 'auto' ? 'newton' : method, {
         rtol: rtol * tighter, maxPasses: Math.max(1, maxPasses - result.passes), wegstein,
+        newton: result.jacobian ? { jacobian: result.jacobian } : undefined,
       });
       result = mergeResults(result, more);
     }
@@ -217,7 +222,7 @@ export function collectResult(rt: Runtime, result: SolveResult, feedTotal: numbe
     residual: result.residual, scaledResidual: result.scaledResidual, history: result.history, message, failure, worst: result.worst,
     tears: rt.plan.tears, order: rt.plan.order, loops: rt.plan.loops,
     feeds: rt.feeds, streams, streamOrder: rt.streamOrder, products: rt.products, units, balance, loop,
-    x: Float64Array.from(result.x), warnings, model,
+    x: Float64Array.from(result.x), jacobian: result.jacobian, warnings, model,
   };
 }
 
@@ -273,6 +278,7 @@ function mergeResults(a: SolveResult, b: SolveResult): SolveResult {
     passes: a.passes + b.passes,
     iterations: a.iterations + b.iterations,
     jacobians: a.jacobians + b.jacobians,
+    jacobian: b.jacobian ?? a.jacobian,
     history: a.history.concat(b.history.map((h) => ({ ...h, pass: h.pass + a.passes }))),
   };
 }

@@ -327,6 +327,8 @@ function newtonCore(sys: NewtonSystem, options: SolveOptions): SolveResult {
   let passes = 0;
   let iterations = 0;
   let jacobians = 0;
+  /** Whether J holds a Jacobian (built, or given by the caller) to hand back in the result. */
+  let haveJ = false;
   m.residual = Infinity;
   m.scaled = Infinity;
 
@@ -344,6 +346,7 @@ function newtonCore(sys: NewtonSystem, options: SolveOptions): SolveResult {
     };
     if (message) result.message = message;
     if (failure) result.failure = failure;
+    if (haveJ) result.jacobian = Float64Array.from(J);
     if (status !== 'converged' && passes > 0) result.worst = worstResiduals(f, s, rowNames());
     return result;
   };
@@ -375,6 +378,17 @@ function newtonCore(sys: NewtonSystem, options: SolveOptions): SolveResult {
   let factored: Factored | undefined;
   let fresh = false;
   let reused = 0;
+  const given = options.newton?.jacobian;
+  if (given && given.length === n * n) {
+    // A neighbour's Jacobian: a chord to start with (rebuilt at the first step that fails).
+    J.set(given);
+    haveJ = true;
+    if (factor(sys, J, x, work) === undefined) {
+      factored = work;
+      fresh = false;
+      reused = 0;
+    }
+  }
 
   while (m.scaled > 1) {
     if (iterations >= maxIterations) {
@@ -399,6 +413,7 @@ function newtonCore(sys: NewtonSystem, options: SolveOptions): SolveResult {
         );
       }
       pinSatisfiedRows(J, f, s, n);
+      haveJ = true;
       const bad = factor(sys, J, x, work);
       if (bad !== undefined) return finish('not-converged', bad);
       factored = work;

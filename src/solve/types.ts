@@ -81,6 +81,12 @@ export interface SolveOptions {
     /** Reuse one factored Jacobian for at most this many further steps while each full step
      *  at least halves the scaled residual norm (default 3; 0 rebuilds every iteration). */
     reuse?: number;
+    /**
+     * A Jacobian of F (n*n, row-major) to start from, e.g. the last one of a neighbouring
+     * solve in a sweep: used as a chord until a step fails to decrease the residual, then a
+     * fresh one is built.
+     */
+    jacobian?: Float64Array;
   };
 }
 
@@ -110,6 +116,8 @@ export interface SolveResult {
   iterations: number;
   /** Jacobians built (Newton). */
   jacobians: number;
+  /** Newton: the last Jacobian of F used (n*n, row-major), to start a neighbouring solve. */
+  jacobian?: Float64Array;
   history: HistoryEntry[];
   message?: string;
   failure?: EvaluationFailure;

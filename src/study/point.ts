@@ -52,12 +52,16 @@ export interface PointResult {
   message?: string;
   /** Opaque continuation vector for the next point (tears, then adjusted inputs). */
   start?: Float64Array;
+  /** The tear Jacobian of this point (no targets), for the next point's Newton to start from. */
+  jacobian?: Float64Array;
   targets?: TargetReport[];
 }
 
 export interface PointOptions {
   targets?: readonly TargetSpec[];
   start?: Float64Array;
+  /** A neighbour's tear Jacobian (PointResult.jacobian). */
+  jacobian?: Float64Array;
   method?: MethodName;
   maxPasses?: number;
 }
@@ -126,8 +130,9 @@ export function solvePoint(p: ParametricFlowsheet, values: readonly InputValue[]
     throw e;
   }
   if (targets.length === 0) {
-    const r = solveFlowsheet(base, { method: opts.method, maxPasses: opts.maxPasses, start: opts.start });
-    return { status: r.status, result: r, message: r.message, start: r.status === 'converged' ? r.x : undefined };
+    const r = solveFlowsheet(base, { method: opts.method, maxPasses: opts.maxPasses, start: opts.start, jacobian: opts.jacobian });
+    const ok = r.status === 'converged';
+    return { status: r.status, result: r, message: r.message, start: ok ? r.x : undefined, jacobian: ok ? r.jacobian : undefined };
   }
   return solveTargets(p, values, targets, opts);
 }

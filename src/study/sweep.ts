@@ -5,7 +5,8 @@
  * worker threads, whole or in shards, interrupted and resumed):
  *   - the walk (boustrophedon, see grid.ts) is cut into blocks of `block` points;
  *   - the first point of a block starts cold, from the file's own starting values;
- *   - every other point starts from the converged values of the nearest point solved before
+ *   - every other point starts from the converged values (and, for Newton, the last tear
+ *     Jacobian, used as a chord until a step fails) of the nearest point solved before
  *     it in the same block (distance in grid steps; the later one on a tie). A point that
  *     fails gives no start; the next one starts from its nearest good neighbour.
  * So a block is always solved as the same sequence of solves, whoever runs it.
@@ -148,11 +149,11 @@ export function pointInputs(ctx: Pick<SweepContext, 'axes' | 'shape'>, point: nu
   return ctx.axes.map((a, k) => a.values[idx[k]]);
 }
 
-/** Solves one point from a start (or cold). */
-export function solveOne(ctx: SweepContext, point: number, start: Float64Array | undefined): { row: PointRow; start?: Float64Array } {
+/** Solves one point from a start (or cold); a neighbour's Jacobian, when given, starts Newton. */
+export function solveOne(ctx: SweepContext, point: number, start: Float64Array | undefined, jacobian?: Float64Array): { row: PointRow; start?: Float64Array; jacobian?: Float64Array } {
   const values = pointInputs(ctx, point).map((v, k) => inputValue(ctx.axes[k], v));
   const method = ctx.spec.method ?? (start ? 'newton' : undefined);
-  const r = solvePoint(ctx.p, values, { targets: ctx.targets, start, method, maxPasses: ctx.spec.maxPasses });
+  const r = solvePoint(ctx.p, values, { targets: ctx.targets, start, jacobian, method, maxPasses: ctx.spec.maxPasses });
   const row: PointRow = { point, status: r.status };
   if (r.status === 'converged' && r.result) {
     const res = r.result;
@@ -161,7 +162,7 @@ export function solveOne(ctx: SweepContext, point: number, start: Float64Array |
     row.message = oneLine(r.message ?? r.result?.message ?? r.status);
   }
   if (ctx.targets.length && r.targets) row.adjusted = r.targets.map((t) => t.input);
-  return { row, start: r.status === 'converged' ? r.start : undefined };
+  return { row, start: r.status === 'converged' ? r.start : undefined, jacobian: r.status === 'converged' ? r.jacobian : undefined };
 }
 
 function oneLine(s: string): string {
@@ -174,10 +175,11 @@ function oneLine(s: string): string {
  */
 export function* blockRows(ctx: SweepContext, blockIndex: number, skip = 0): Generator<PointRow> {
   const block = ctx.blocks[blockIndex];
-  const solved: { point: number; start: Float64Array }[] = [];
+  const solved: { point: number; start: Float64Array; jacobian?: Float64Array }[] = [];
   for (let w = 0; w < block.length; w++) {
     const point = block[w];
     let start: Float64Array | undefined;
+    let jacobian: Float64Array | undefined;
     if (ctx.spec.continuation) {
       let best = Infinity;
       for (const s of solved) {
@@ -185,11 +187,12 @@ export function* blockRows(ctx: SweepContext, blockIndex: number, skip = 0): Gen
         if (d <= best) {
           best = d;
           start = s.start;
+          jacobian = s.jacobian;
         }
       }
     }
-    const { row, start: next } = solveOne(ctx, point, start);
-    if (next && ctx.spec.continuation) solved.push({ point, start: Float64Array.from(next) });
+    const { row, start: next, jacobian: nextJ } = solveOne(ctx, point, start, jacobian);
+    if (next && ctx.spec.continuation) solved.push({ point, start: Float64Array.from(next), jacobian: nextJ });
     if (w >= skip) yield row;
   }
 }
