@@ -60,6 +60,7 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
   let problem: EvaluationFailure | null = null;
   let note = '';
   let lastIterations = 0;
+  let lastBeta = Number.NaN;
   return {
     spec,
     reset() {
@@ -153,8 +154,6 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
       };
     },
   };
-  // eslint-disable-next-line no-var
-  var lastBeta = Number.NaN;
 }
 
 export const condenser = makeDef('condenser');

@@ -80,7 +80,6 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
   // Components.
   const compEntry = get('components');
   const components: ComponentData[] = [];
-  const compSpans: (SourceSpan | undefined)[] = [];
   if (!compEntry) {
     bag.error('the file has no `components:`', src.at(root), 'list the components, e.g. `components: { H2: {}, N2: {} }`');
   } else {
@@ -90,7 +89,6 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
       const c = readComponent(r, e);
       if (c) {
         components.push(c);
-        compSpans.push(r.at(e.keyNode));
       }
     }
   }
@@ -123,7 +121,7 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
   if (atmE) {
     const v = quantityAt(r, atmE.value, 'pressure', '`thermo.atmosphere`', { above: 0, example: '0.95 bar' }, { atmosphere: 101325 });
     if (v !== undefined) {
-      if (r.isScalar(atmE.value) && /g\s*$/.test(String(r.src.resolve(atmE.value) && (atmE.value as { value?: unknown }).value))) {
+      if (r.isScalar(atmE.value) && /g\s*$/.test(String(atmE.value.value))) {
         bag.error('`thermo.atmosphere` must be an absolute pressure', r.at(atmE.value), 'write it in bar, kPa, psia or mmHg, not a gauge unit');
       } else atmosphere = v;
     }
@@ -324,7 +322,6 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
     thermo: { eos, kij, atmosphere, standards }, display, feeds, units, tears, solver,
     streamSpans, unitSpans, warnings: [],
   };
-  void compSpans;
   // Structure: whether a steady state can exist at all (see structure.ts).
   checkStructure(model, bag);
   if (bag.hasErrors) throw new InputError(bag.items);
@@ -503,7 +500,6 @@ function readFeed(r: Reader, e: Entry, ids: string[], index: Map<string, number>
   r.checkKeys(f, FEED_KEYS, what);
   const get = (k: string) => r.find(f, k);
   const ctx = { atmosphere, standards };
-  const n = ids.length;
   const forms = FLOW_FORMS.filter((k) => get(k));
   if (forms.length === 0) {
     if (r.strayNear(f, ...FLOW_FORMS)) return undefined; // a misspelt flow key is reported already
@@ -563,7 +559,6 @@ function readFeed(r: Reader, e: Entry, ids: string[], index: Map<string, number>
       } else composition = frac.map((v) => v / sum);
     }
   }
-  void n;
 
   // Flow basis.
   let basis: FeedBasis | undefined;

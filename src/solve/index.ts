@@ -16,6 +16,7 @@ import { solveDirect } from './direct.js';
 import { NEWTON_DEFAULTS, solveNewtonFixedPoint } from './newton.js';
 import { solveWegstein } from './wegstein.js';
 import type { FixedPointProblem, MethodName, SolveOptions, SolveResult } from './types.js';
+import { invalidInput } from './convergence.js';
 
 export { solveDirect, DIRECT_MAX_PASSES } from './direct.js';
 export { solveWegstein, WEGSTEIN_DEFAULTS } from './wegstein.js';
@@ -49,18 +50,7 @@ export function solveFixedPoint(
       return solveAuto(problem, options);
     default: {
       const never: never = method;
-      return {
-        status: 'invalid',
-        method: String(never),
-        x: Float64Array.from(problem.x0),
-        residual: Infinity,
-        scaledResidual: Infinity,
-        passes: 0,
-        iterations: 0,
-        jacobians: 0,
-        history: [],
-        message: `unknown method "${String(never)}"; use direct, wegstein, newton or auto`,
-      };
+      return invalidInput(String(never), problem.x0, `unknown method "${String(never)}"; use direct, wegstein, newton or auto`);
     }
   }
 }

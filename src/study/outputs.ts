@@ -134,11 +134,6 @@ export function outputValue(o: OutputRef, r: FlowsheetResult): number {
   return toUnit(v, o.dimension, o.unit, { atmosphere: r.model.thermo.atmosphere });
 }
 
-/** The output's SI value. */
-export function outputSI(o: OutputRef, r: FlowsheetResult): number {
-  return o.read(r);
-}
-
 function err(message: string, help?: string): InputError {
   return new InputError([{ severity: 'error', message, help }]);
 }
