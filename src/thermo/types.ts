@@ -17,6 +17,28 @@ export interface ComponentData {
   omega: number;
   /** Where the row comes from (author, title, edition, table), "(from memory)" where recalled. */
   source: string;
+  /** Ideal-gas heat capacity (energy balances); absent for a component without data. */
+  cp?: CpCorrelation;
+  /** Standard enthalpy of formation of the ideal gas at 298.15 K, J/mol. */
+  hf?: number;
+  /** Standard Gibbs energy of formation of the ideal gas at 298.15 K and 1 bar, J/mol. */
+  gf?: number;
+  /** Where cp, hf and gf come from (author, title, edition, table), "(from memory)" where recalled. */
+  thermoSource?: string;
+}
+
+/**
+ * Ideal-gas heat capacity, Cp/R = a[0] + a[1] T + a[2] T^2 + a[3] T^3 + a[4] T^4 + d / T^2
+ * (T in K; a may be shorter, missing terms are zero). Covers the polynomial of Poling,
+ * Prausnitz and O'Connell (Appendix A), the A + BT + CT^2 + D/T^2 form of Smith, Van Ness and
+ * Abbott (Appendix C) and, rescaled, the Shomate form of the NIST WebBook.
+ */
+export interface CpCorrelation {
+  a: readonly number[];
+  d?: number;
+  /** Range of validity, K. */
+  Tmin: number;
+  Tmax: number;
 }
 
 export type EosName = 'SRK' | 'PR' | 'ideal';
