@@ -8,23 +8,27 @@
  * The Cp form is the one of types.ts (CpCorrelation); the integrals are analytic.
  */
 import { R } from './constants.js';
-import type { ComponentData, CpCorrelation } from './types.js';
+import type { ComponentData, CpCorrelation, CpPiece } from './types.js';
 
 /** Reference temperature of formation data, K. */
 export const T_REF = 298.15;
 /** Standard pressure of the entropy and Gibbs data, Pa (1 bar). */
 export const P_STD = 1e5;
 
-/** Cp/R at T. */
-export function cpOverR(c: CpCorrelation, T: number): number {
+function pieceAt(c: CpCorrelation, T: number): CpPiece {
+  const p = c.pieces;
+  for (let k = 0; k < p.length - 1; k++) if (T < p[k].Tmax) return p[k];
+  return p[p.length - 1];
+}
+
+function pieceCp(c: CpPiece, T: number): number {
   const a = c.a;
   let v = 0;
   for (let k = a.length - 1; k >= 0; k--) v = v * T + a[k];
   return v + (c.d ?? 0) / (T * T);
 }
 
-/** Integral of Cp/R dT from T0 to T (K). */
-export function cpIntegral(c: CpCorrelation, T0: number, T: number): number {
+function pieceIntegral(c: CpPiece, T0: number, T: number): number {
   const a = c.a;
   let v = 0;
   let p0 = T0;
@@ -38,8 +42,7 @@ export function cpIntegral(c: CpCorrelation, T0: number, T: number): number {
   return v;
 }
 
-/** Integral of Cp/(R T) dT from T0 to T (K). */
-export function cpOverTIntegral(c: CpCorrelation, T0: number, T: number): number {
+function pieceOverTIntegral(c: CpPiece, T0: number, T: number): number {
   const a = c.a;
   let v = a.length > 0 ? a[0] * Math.log(T / T0) : 0;
   let p0 = 1;
@@ -51,6 +54,36 @@ export function cpOverTIntegral(c: CpCorrelation, T0: number, T: number): number
   }
   if (c.d) v += -0.5 * c.d * (1 / (T * T) - 1 / (T0 * T0));
   return v;
+}
+
+/** Integral of f over [T0, T] across the pieces (each piece on its own range; the end pieces extend beyond). */
+function piecewise(c: CpCorrelation, T0: number, T: number, f: (p: CpPiece, a: number, b: number) => number): number {
+  if (T < T0) return -piecewise(c, T, T0, f);
+  const p = c.pieces;
+  let v = 0;
+  for (let k = 0; k < p.length; k++) {
+    const lo = k === 0 ? -Infinity : p[k].Tmin;
+    const hi = k === p.length - 1 ? Infinity : p[k].Tmax;
+    const a = Math.max(T0, lo);
+    const b = Math.min(T, hi);
+    if (b > a) v += f(p[k], a, b);
+  }
+  return v;
+}
+
+/** Cp/R at T. */
+export function cpOverR(c: CpCorrelation, T: number): number {
+  return pieceCp(pieceAt(c, T), T);
+}
+
+/** Integral of Cp/R dT from T0 to T (K). */
+export function cpIntegral(c: CpCorrelation, T0: number, T: number): number {
+  return piecewise(c, T0, T, pieceIntegral);
+}
+
+/** Integral of Cp/(R T) dT from T0 to T (K). */
+export function cpOverTIntegral(c: CpCorrelation, T0: number, T: number): number {
+  return piecewise(c, T0, T, pieceOverTIntegral);
 }
 
 /** Whether a component has what the energy balance needs (cp and hf). */
@@ -81,5 +114,6 @@ export function gIG(c: ComponentData, T: number): number {
 
 /** Whether T lies outside the correlation's range of validity. */
 export function outsideRange(c: ComponentData, T: number): boolean {
-  return c.cp !== undefined && (T < c.cp.Tmin || T > c.cp.Tmax);
+  const p = c.cp?.pieces;
+  return p !== undefined && p.length > 0 && (T < p[0].Tmin || T > p[p.length - 1].Tmax);
 }

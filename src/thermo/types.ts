@@ -28,19 +28,26 @@ export interface ComponentData {
 }
 
 /**
- * Ideal-gas heat capacity, Cp/R = a[0] + a[1] T + a[2] T^2 + a[3] T^3 + a[4] T^4 + d / T^2
- * (T in K; a may be shorter, missing terms are zero). Covers the polynomial of Poling,
- * Prausnitz and O'Connell (Appendix A), the A + BT + CT^2 + D/T^2 form of Smith, Van Ness and
- * Abbott (Appendix C) and, rescaled, the Shomate form of the NIST WebBook.
+ * Ideal-gas heat capacity as contiguous pieces in T, each
+ *   Cp/R = a[0] + a[1] T + a[2] T^2 + a[3] T^3 + a[4] T^4 + d / T^2      (T in K)
+ * (a may be shorter; missing terms are zero). One piece covers the polynomial of Poling,
+ * Prausnitz and O'Connell (Appendix A) and the A + BT + CT^2 + D/T^2 form of Smith, Van Ness
+ * and Abbott (Appendix C); two pieces cover the NASA 7-coefficient polynomials and, rescaled,
+ * the Shomate ranges of the NIST WebBook. Below the first piece or above the last, the end
+ * piece is used and the output says the correlation is outside its range.
  */
-export interface CpCorrelation {
+export interface CpPiece {
   a: readonly number[];
   d?: number;
-  /** Range of validity, K. */
+  /** Range of this piece, K. */
   Tmin: number;
   Tmax: number;
 }
 
+export interface CpCorrelation {
+  /** In increasing T, each piece's Tmax the next one's Tmin. */
+  pieces: readonly CpPiece[];
+}
 export type EosName = 'SRK' | 'PR' | 'ideal';
 
 /** Which root of the cubic to take. 'stable' takes the one with the lower Gibbs energy. */
