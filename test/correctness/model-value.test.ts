@@ -1,0 +1,86 @@
+/**
+ * The model is a value: validation returns a frozen model, nothing caches answers by shape in
+ * module state, and a runtime owned by the caller follows the model it is given.
+ */
+import { describe, expect, it } from 'vitest';
+import { InputError } from '../../src/diagnostics.js';
+import { loadFlowsheet, validateText } from '../../src/flowsheet/validate.js';
+import { createRuntime } from '../../src/flowsheet/runtime.js';
+import { solveFlowsheet } from '../../src/flowsheet/solve.js';
+import { parameter, withValues } from '../../src/study/parameters.js';
+import { parallelConversions, trappedInert } from './fixtures.js';
+
+function firstError(text: string): { line: number; col: number; message: string } | undefined {
+  try {
+    validateText('t.yaml', text);
+    return undefined;
+  } catch (e) {
+    if (!(e instanceof InputError)) throw e;
+    const d = e.diagnostics.find((x) => x.severity === 'error')!;
+    return { line: d.span?.line ?? 0, col: d.span?.col ?? 0, message: d.message };
+  }
+}
+
+describe('structure checks answer each file on its own', () => {
+  it('reports the error where it is after lines are added above it, in the same process', () => {
+    const a = firstError(trappedInert());
+    const b = firstError(trappedInert('# one\n# two\n# three\n# four\n# five\n'));
+    expect(a?.message).toMatch(/`Ar` is trapped/);
+    expect(b?.message).toBe(a?.message);
+    expect(b!.line).toBe(a!.line + 5);
+  });
+
+  it('does not refuse a valid file after an invalid one whose numbers had the same classes', () => {
+    // 0.5 + 0.5 uses up the key completely (conversions of CO add up to 1); 0.3 + 0.3 does not.
+    const full = firstError(parallelConversions(0.5, 0.5));
+    expect(full).toBeDefined();
+    expect(firstError(parallelConversions(0.3, 0.3))).toBeUndefined();
+    // and again in the other order
+    expect(firstError(parallelConversions(0.3, 0.3, '# first\n'))).toBeUndefined();
+  });
+});
+
+describe('a model is frozen; a change is a new model', () => {
+  const { model } = loadFlowsheet('flowsheets/methanol-pilot.yaml');
+
+  it('cannot be edited in place', () => {
+    expect(Object.isFrozen(model)).toBe(true);
+    expect(Object.isFrozen(model.feeds)).toBe(true);
+    expect(Object.isFrozen(model.feeds[0])).toBe(true);
+    expect(Object.isFrozen(model.units[1])).toBe(true);
+    expect(() => {
+      (model.feeds[0] as { T: number }).T = 1;
+    }).toThrow(TypeError);
+  });
+
+  it('a doubled meter flow doubles that feed, with one runtime used for both models', () => {
+    const p = parameter(model, 'feeds.hydrogen.meter.flow');
+    const doubled = withValues(model, [{ parameter: p, value: 2 * p.value }]);
+    expect(doubled).not.toBe(model);
+    const rt = createRuntime(model);
+    const a = solveFlowsheet(model, { runtime: rt });
+    const b = solveFlowsheet(doubled, { runtime: rt });
+    const c = solveFlowsheet(model, { runtime: rt });
+    expect(a.status).toBe('converged');
+    expect(b.status).toBe('converged');
+    const h = (r: typeof a) => r.feeds.find((f) => f.name === 'hydrogen')!.molarFlow;
+    expect(h(b) / h(a)).toBeCloseTo(2, 12);
+    // back to the first model: the same answer as the first solve
+    expect(h(c)).toBe(h(a));
+    expect(c.loop.recycleRatio).toBeCloseTo(a.loop.recycleRatio, 10);
+    // the original model still holds the file's value
+    expect(parameter(model, 'feeds.hydrogen.meter.flow').value).toBe(p.value);
+  });
+
+  it('two files interleaved on one runtime each give their own answer', () => {
+    const ammonia = loadFlowsheet('flowsheets/ammonia-loop.yaml').model;
+    const rt = createRuntime(model);
+    const m1 = solveFlowsheet(model, { runtime: rt });
+    const a1 = solveFlowsheet(ammonia, { runtime: rt });
+    const m2 = solveFlowsheet(model, { runtime: rt });
+    const a2 = solveFlowsheet(ammonia, { runtime: createRuntime(ammonia) });
+    expect(m2.loop.recycleRatio).toBeCloseTo(m1.loop.recycleRatio, 9);
+    expect(a1.loop.recycleRatio).toBeCloseTo(a2.loop.recycleRatio, 9);
+    expect(a1.streams.get('recycle')!.fractions[2]).toBeCloseTo(a2.streams.get('recycle')!.fractions[2], 10);
+  });
+});
