@@ -55,32 +55,65 @@ export class InputError extends Error {
   }
 }
 
-/** Renders one diagnostic in the compiler style: message, location, the source line, a caret, help. */
-export function formatDiagnostic(d: Diagnostic, sourceText?: string): string {
-  const out: string[] = [`${d.severity}: ${d.message}`];
-  if (d.span) {
-    const s = d.span;
-    out.push(`  --> ${s.file}:${s.line}:${s.col}`);
-    const lines = sourceText?.split(/\r?\n/);
-    const text = lines?.[s.line - 1];
-    if (text !== undefined) {
-      const num = String(s.line);
-      const pad = ' '.repeat(num.length);
-      const end = s.endLine === s.line ? Math.max(s.endCol, s.col + 1) : text.length + 1;
-      const width = Math.max(1, Math.min(end, text.length + 1) - s.col);
-      out.push(`${pad} |`);
-      out.push(`${num} | ${text}`);
-      out.push(`${pad} | ${' '.repeat(Math.max(0, s.col - 1))}${'^'.repeat(width)}`);
-      if (d.help) out.push(`${pad} = help: ${d.help}`);
-      return out.join('\n');
-    }
+/** How a diagnostic is drawn: plain, or with colour on a terminal. */
+export interface DiagnosticStyle {
+  color?: boolean;
+}
+
+const RED = '\u001b[1;31m';
+const YELLOW = '\u001b[1;33m';
+const CYAN = '\u001b[36m';
+const BOLD = '\u001b[1m';
+const RESET = '\u001b[0m';
+
+/**
+ * Renders one diagnostic. The first line follows the GNU convention that editors and CI logs
+ * parse, `FILE:LINE:COL: error: MESSAGE` (`loopclose: error: MESSAGE` when it has no place in a
+ * file); below it, indented, the source line after its number, a row of `~` under the offending
+ * text, and what to change:
+ *
+ *   flowsheets/loop.yaml:14:18: error: composition of feed `makeup` sums to 0.96, not 1
+ *       14:   composition: { H2: 0.72, N2: 0.24 }
+ *                          ~~~~~~~~~~~~~~~~~~~~~~
+ *       to fix: give every component, or add `normalize: true` to scale the fractions to 1
+ */
+export function formatDiagnostic(d: Diagnostic, sourceText?: string, style: DiagnosticStyle = {}): string {
+  const c = (code: string, text: string) => (style.color ? `${code}${text}${RESET}` : text);
+  const label = d.severity === 'error' ? c(RED, 'error') : d.severity === 'warning' ? c(YELLOW, 'warning') : c(CYAN, 'note');
+  const s = d.span;
+  const where = s ? `${s.file}:${s.line}:${s.col}` : 'loopclose';
+  const out: string[] = [`${c(BOLD, `${where}:`)} ${label}: ${d.message}`];
+  const text = s ? sourceText?.split(/\r?\n/)[s.line - 1] : undefined;
+  if (s && text !== undefined) {
+    const num = `    ${s.line}: `;
+    const end = s.endLine === s.line ? Math.max(s.endCol, s.col + 1) : text.length + 1;
+    const width = Math.max(1, Math.min(end, text.length + 1) - s.col);
+    out.push(`${num}${text}`);
+    out.push(`${' '.repeat(num.length + Math.max(0, s.col - 1))}${c(style.color ? (d.severity === 'error' ? RED : YELLOW) : '', '~'.repeat(width))}`);
   }
-  if (d.help) out.push(`  = help: ${d.help}`);
+  if (d.help) out.push(`    to fix: ${d.help}`);
   return out.join('\n');
 }
 
-export function formatDiagnostics(ds: readonly Diagnostic[], sources: ReadonlyMap<string, string> = new Map()): string {
-  return ds.map((d) => formatDiagnostic(d, d.span ? sources.get(d.span.file) : undefined)).join('\n\n');
+export function formatDiagnostics(ds: readonly Diagnostic[], sources: ReadonlyMap<string, string> = new Map(), style: DiagnosticStyle = {}): string {
+  return ds.map((d) => formatDiagnostic(d, d.span ? sources.get(d.span.file) : undefined, style)).join('\n\n');
+}
+
+/** Diagnostics as JSON objects (the `--json` form of an invalid input). */
+export function diagnosticsJson(ds: readonly Diagnostic[]): { status: 'invalid'; diagnostics: Record<string, unknown>[] } {
+  return {
+    status: 'invalid',
+    diagnostics: ds.map((d) => ({
+      severity: d.severity,
+      message: d.message,
+      file: d.span?.file ?? null,
+      line: d.span?.line ?? null,
+      column: d.span?.col ?? null,
+      endLine: d.span?.endLine ?? null,
+      endColumn: d.span?.endCol ?? null,
+      fix: d.help ?? null,
+    })),
+  };
 }
 
 /** Levenshtein distance, for "did you mean" suggestions. */

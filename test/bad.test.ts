@@ -2,8 +2,9 @@
  * The bad-input corpus: every file in test/bad/ is a malformed flowsheet whose first lines
  * say what loopclose must report, one line per problem:
  *   # expect: LINE:COL message
- * The built CLI must exit with code 2, print each expected message as an `error:` with its
- * `--> file:LINE:COL`, print no other error, and never a stack trace.
+ * The built CLI must exit with code 2, print each expected message as a first line
+ * `FILE:LINE:COL: error: MESSAGE` (the GNU convention), print no other error, and never a
+ * stack trace.
  */
 import { readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -31,14 +32,11 @@ function expectations(text: string): Expectation[] {
 
 /** The `error:` diagnostics of a run: message and location. */
 function reported(stderr: string): { message: string; at: string }[] {
-  const lines = stderr.split('\n');
   const out: { message: string; at: string }[] = [];
-  lines.forEach((l, k) => {
-    const m = /^error: (.*)$/.exec(l);
-    if (!m) return;
-    const loc = /^\s+--> (.*)$/.exec(lines[k + 1] ?? '');
-    out.push({ message: m[1], at: loc ? loc[1] : '' });
-  });
+  for (const l of stderr.split('\n')) {
+    const m = /^(.*?:\d+:\d+|loopclose): error: (.*)$/.exec(l);
+    if (m) out.push({ message: m[2], at: m[1] === 'loopclose' ? '' : m[1] });
+  }
   return out;
 }
 
@@ -81,8 +79,10 @@ describe('all problems of a file at once', () => {
       'test/bad/several-problems.yaml:31:11',
     ]);
     expect(r.stderr).toMatch(/4 errors; nothing was computed\./);
-    // Each problem shows its source line, a caret under the value and what to do.
-    expect(r.stderr).toMatch(/13 \|     P: 150\n\s+\|        \^\^\^\n\s+= help: write a unit/);
+    // Each problem shows its source line, a marker under the value and what to do, in the
+    // project's own layout (no arrow before the location, no bar gutter).
+    expect(r.stderr).toMatch(/\n {4}13: {5}P: 150\n {15}~~~\n {4}to fix: write a unit/);
+    expect(r.stderr).not.toMatch(/-->|= help:|^\s*\|/m);
     expect(r.stderr).toMatch(/did you mean `splitter`\?/);
   });
 });
@@ -95,20 +95,16 @@ describe('limits', () => {
     expect(r.stderr).toMatch(/bytes; the limit is 2097152/);
   });
 
-  it('an alias bomb (10^8 items from 8 lines) is refused quickly', () => {
+  it('an alias bomb (10^8 items from 8 lines) is refused without being expanded', () => {
     const text = readFileSync(join(DIR, 'alias-bomb.yaml'), 'utf8');
-    const t0 = process.hrtime.bigint();
     let err: unknown;
     try {
       validateText('bomb.yaml', text);
     } catch (e) {
       err = e;
     }
-    const ms = Number(process.hrtime.bigint() - t0) / 1e6;
     expect(err).toBeInstanceOf(InputError);
     expect((err as InputError).diagnostics[0].message).toMatch(/aliases of this file would expand to more than 100000/);
-    // Generous bound: counting is linear in the file; expanding would take minutes and gigabytes.
-    expect(ms).toBeLessThan(2000);
   });
 
   it('a missing file and a folder are input errors, not internal ones', () => {
@@ -127,7 +123,9 @@ components: { H2: !!js/function "function () { return 1 }", N2: {} }
 feeds: { f: { composition: { H2: 1 }, molar-flow: 1 mol/s, T: 300 K, P: 1 bar } }
 `;
     const r = cli(['solve', tempFile('code.yaml', text)]);
-    expect([0, 2]).toContain(r.code);
+    // The title stays text; the tagged body of H2 is a string, which is not a component body.
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/component `H2` must be `\{\}`, `library` or a mapping of constants/);
     expect(() => readFileSync(marker)).toThrow();
   });
 });

@@ -8,7 +8,7 @@
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import { flashTP } from '../thermo/flash.js';
-import type { BlockDef, BlockRuntime, BuildContext, Stream } from './types.js';
+import type { BlockDef, BlockRuntime, BuildContext, Stream, UnitSummary } from './types.js';
 
 export interface CondenserSpec extends UnitSpecBase {
   type: 'condenser' | 'flash';
@@ -35,7 +35,7 @@ function makeDef(type: 'condenser' | 'flash'): BlockDef<CondenserSpec> {
       const liquid = f.stream('liquid', { required: true });
       let split: Float64Array | undefined;
       if (model === 'split') {
-        split = f.componentFractions('split', { required: true, defaultValue: 0 });
+        split = f.componentValues('split', { required: true, defaultValue: 0, min: 0, max: 1 })?.values;
         if (!split) return undefined;
       } else if (f.has('split')) {
         f.error('split', `\`split\` is only used with \`model: split\``, 'add `model: split`, or remove `split` to use the equilibrium flash');
@@ -49,6 +49,15 @@ function makeDef(type: 'condenser' | 'flash'): BlockDef<CondenserSpec> {
       return { name, type, inlets: inlet, outlets: [vapor, liquid], T, P, model, split };
     },
     build: buildCondenser,
+    outputs: () => [{ name: 'vapor-fraction', dimension: 'dimensionless', read: (u: UnitSummary) => u.figures.find((x) => x.key === 'vaporFraction')?.value ?? Number.NaN }],
+    structure(spec, model) {
+      return {
+        // outlets: [vapour, liquid]. Under an equilibrium flash any component dissolves a little
+        // (except under the ideal-gas model, where the flash gives no liquid).
+        passes: (k, i) => (spec.model === 'split' && spec.split ? (k === 1 ? spec.split[i] > 0 : spec.split[i] < 1) : model.thermo.eos === 'ideal' ? k === 0 : true),
+        openOutlet: (k, id) => `let some \`${id}\` go to \`${spec.outlets[k]}\` in the \`split\` of \`${spec.name}\``,
+      };
+    },
   };
 }
 
@@ -57,7 +66,6 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
   const z = new Float64Array(n);
   const feed = new Float64Array(n);
   let K0: Float64Array | undefined;
-  let problem: EvaluationFailure | null = null;
   let note = '';
   let lastIterations = 0;
   let lastBeta = Number.NaN;
@@ -72,7 +80,7 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
       for (const s of ins) for (let i = 0; i < n; i++) feed[i] += s.flows[i];
       let F = 0;
       for (let i = 0; i < n; i++) F += feed[i];
-      problem = null;
+      let problem: EvaluationFailure | null = null;
       note = '';
       for (const o of outs) {
         o.T = spec.T;
@@ -83,7 +91,7 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
         l.flows.fill(0);
         v.vf = 1;
         l.vf = 0;
-        return;
+        return null;
       }
       if (spec.model === 'split') {
         const sp = spec.split!;
@@ -96,14 +104,14 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
         v.vf = 1;
         l.vf = 0;
         lastBeta = V / F;
-        return;
+        return null;
       }
       for (let i = 0; i < n; i++) z[i] = feed[i] / F;
       const r = flashTP(ctx.eos, spec.T, spec.P, z, { K0 });
       lastIterations = r.iterations;
       if (r.status !== 'converged') {
         problem = {
-          kind: 'invalid',
+          kind: 'not-converged',
           unit: spec.name,
           message: `the flash in \`${spec.name}\` did not converge (${r.iterations} iterations, fugacity residual ${r.residual.toExponential(2)})`,
           help: 'check T and P against the mixture; a point near the mixture critical point is hard',
@@ -142,8 +150,8 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
       }
       v.vf = 1;
       l.vf = 0;
+      return problem;
     },
-    issue: () => problem,
     summary() {
       return {
         figures: [

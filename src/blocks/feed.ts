@@ -8,10 +8,13 @@
  * sqrt(2 dp rho), so an instrument that takes rho_d for rho indicates q_v sqrt(rho / rho_d)):
  *   q_v,actual = q_v,indicated sqrt(rho_d / rho),  q_m = q_v,indicated sqrt(rho_d rho).
  */
-import type { FeedSpec } from '../flowsheet/model.js';
+import type { FieldReader } from '../flowsheet/fields.js';
+import type { FeedBasis, FeedSpec, MeterDesign } from '../flowsheet/model.js';
+import { getIn, isSettingMap, setIn } from '../flowsheet/settings.js';
 import { R } from '../thermo/constants.js';
 import type { Eos } from '../thermo/types.js';
 import { stabilityTest } from '../thermo/stability.js';
+import type { BlockDef, Stream, UnitSummary } from './types.js';
 
 export type FeedPhase = 'vapor' | 'liquid' | 'two-phase';
 
@@ -71,7 +74,9 @@ export function phaseAt(eos: Eos, T: number, P: number, x: ArrayLike<number>): F
 
 export function computeFeed(spec: FeedSpec, eos: Eos): FeedResult {
   const z = spec.composition;
-  const { T, P } = spec;
+  // Z, density and phase at the meter's conditions for a metered feed, else at the stream's.
+  const T = spec.basis.kind === 'meter' ? spec.basis.T : spec.T;
+  const P = spec.basis.kind === 'meter' ? spec.basis.P : spec.P;
   const warnings: string[] = [];
   const root = eos.z(T, P, z, 'stable');
   const Z = root.Z;
@@ -144,10 +149,255 @@ export function computeFeed(spec: FeedSpec, eos: Eos): FeedResult {
     name: spec.name, Z, molarVolume: v, molarFlow,
     idealMolarFlow,
     idealError: idealMolarFlow !== undefined ? (idealMolarFlow - molarFlow) / molarFlow : undefined,
-    phase, flows, composition: z, T, P, molarMass: MW, density: rho, basis: b.kind, reference, densityCorrection, warnings,
+    phase, flows, composition: z, T: spec.T, P: spec.P, molarMass: MW, density: rho, basis: b.kind, reference, densityCorrection, warnings,
   };
 }
 
 function fmt(v: number): string {
   return Number(v.toPrecision(6)).toString();
+}
+
+/** The ways a feed's flow can be given; exactly one of them. */
+export const FLOW_FORMS = ['meter', 'molar-flow', 'mass-flow', 'standard-flow', 'flows'] as const;
+
+/**
+ * The feed block: reads a feed's composition and flow, converts the reading to a molar flow
+ * when it is built (computeFeed), and offers `feeds.NAME.{molar-flow,Z,ideal-error}`.
+ */
+export const feed: BlockDef<FeedSpec> & { result(rt: unknown): FeedResult } = {
+  type: 'feed',
+  description: 'a fresh feed: composition and one flow reading (meter, molar, mass, standard volume or per component)',
+  keys: ['composition', 'mass-composition', 'normalize', ...FLOW_FORMS, 'T', 'P'],
+  read: readFeed,
+  build(spec, ctx) {
+    const r = computeFeed(spec, ctx.eos);
+    return Object.assign(
+      {
+        spec,
+        compute(_ins: readonly Stream[], outs: Stream[]) {
+          const o = outs[0];
+          o.flows.set(r.flows);
+          o.T = r.T;
+          o.P = r.P;
+          o.vf = r.phase === 'vapor' ? 1 : r.phase === 'liquid' ? 0 : Number.NaN;
+          return null;
+        },
+        summary: () => feedSummary(r),
+      },
+      { feedResult: r },
+    );
+  },
+  outputs: () => [
+    { name: 'molar-flow', dimension: 'molarFlow', read: (u) => u.figures.find((f) => f.key === 'molarFlow')?.value ?? Number.NaN },
+    { name: 'Z', dimension: 'dimensionless', read: (u) => u.figures.find((f) => f.key === 'Z')?.value ?? Number.NaN },
+    { name: 'ideal-error', dimension: 'dimensionless', read: (u) => u.figures.find((f) => f.key === 'idealError')?.value ?? Number.NaN },
+  ],
+  structure: () => ({ passes: () => true }),
+  edit(_name, settings, key, value) {
+    // A mole fraction of a composition: the others keep their proportions, so the fractions
+    // still add up to 1 (with `normalize: true` the block scales them anyway).
+    if (key.length === 2 && (key[0] === 'composition' || key[0] === 'mass-composition') && settings.get('normalize') !== true) {
+      const comp = getIn(settings, [key[0]]);
+      if (isSettingMap(comp)) {
+        const old = comp.get(key[1]) as number;
+        const rest = 1 - old;
+        if (!(value >= 0 && value <= 1)) return { error: `a fraction of \`${key[0]}\` must lie between 0 and 1, not ${value}` };
+        if (rest <= 0 && value < 1) return { error: `\`${key[0]}.${key[1]}\` is the only component of the feed; it cannot change alone`, help: 'add the other components to the composition (at 0) first' };
+        const next = new Map(comp);
+        for (const [id, x] of comp) next.set(id, id === key[1] ? value : rest > 0 ? ((x as number) * (1 - value)) / rest : 0);
+        return setIn(settings, [key[0]], next);
+      }
+    }
+    return setIn(settings, key, value);
+  },
+  /** The converted reading of a built feed block. */
+  result(rt: unknown): FeedResult {
+    return (rt as { feedResult: FeedResult }).feedResult;
+  },
+};
+
+/** A converted feed as a unit summary (what `feeds.NAME.*` report paths read). */
+export function feedSummary(r: FeedResult): UnitSummary {
+  return {
+    figures: [
+      { label: 'molar flow', value: r.molarFlow, kind: 'molarFlow', key: 'molarFlow' },
+      { label: 'Z', value: r.Z, kind: 'fraction', key: 'Z' },
+      { label: 'ideal-gas error', value: r.idealError ?? Number.NaN, kind: 'fraction', key: 'idealError' },
+    ],
+    notes: r.warnings,
+  };
+}
+
+function readFeed(name: string, f: FieldReader): FeedSpec | undefined {
+  const what = f.what;
+  f.checkKeys(feed.keys);
+  const forms = FLOW_FORMS.filter((k) => f.has(k));
+  if (forms.length === 0) {
+    if (f.strayNear(...FLOW_FORMS)) return undefined; // a misspelt flow key is reported already
+    f.error(null, `${what} has no flow`, 'give one of `meter: { flow, pressure, temperature }`, `molar-flow`, `mass-flow`, `standard-flow` or `flows`');
+    return undefined;
+  }
+  if (forms.length > 1) {
+    f.errorAtKey(forms[1], `${what} gives its flow ${forms.length} ways (${forms.join(', ')})`, 'keep one of them');
+    return undefined;
+  }
+  const form = forms[0];
+  const normalize = f.boolean('normalize') ?? false;
+
+  // Composition (mole fractions). A problem here is reported, and the rest is still read.
+  let composition: Float64Array | undefined;
+  let flowsSI: Float64Array | undefined;
+  readComposition: {
+    if (form === 'flows') {
+      const ce = f.has('composition') ? 'composition' : f.has('mass-composition') ? 'mass-composition' : undefined;
+      if (ce) f.errorAtKey(ce, `${what} gives \`flows\` per component, so it takes no composition`, 'remove the composition: it follows from the flows');
+      const fl = f.componentValues('flows', { dimension: 'molarFlow', min: 0 });
+      if (!fl) break readComposition;
+      flowsSI = fl.values;
+      const total = flowsSI.reduce((a, b) => a + b, 0);
+      if (!(total > 0)) {
+        f.errorAtKey('flows', `the flows of ${what} add up to zero`, 'give at least one positive component flow');
+        break readComposition;
+      }
+      composition = flowsSI.map((v) => v / total);
+    } else {
+      if (f.has('composition') && f.has('mass-composition')) {
+        f.errorAtKey('mass-composition', `${what} gives both \`composition\` and \`mass-composition\``, 'keep one of them');
+        break readComposition;
+      }
+      const key = f.has('composition') ? 'composition' : f.has('mass-composition') ? 'mass-composition' : undefined;
+      if (!key) {
+        if (f.strayNear('composition', 'mass-composition')) break readComposition;
+        f.error(null, `${what} has no composition`, 'add `composition: { H2: 0.985, N2: 0.015 }` (mole fractions) or `mass-composition`');
+        break readComposition;
+      }
+      const frac = percentsOrFractions(f, key, normalize);
+      if (!frac) break readComposition;
+      const sum = frac.reduce((a, b) => a + b, 0);
+      if (!(sum > 0)) {
+        f.error(key, `the ${key} of ${what} is all zero`, 'give at least one positive fraction');
+        break readComposition;
+      }
+      if (Math.abs(sum - 1) > 1e-6 && !normalize) {
+        f.error(key, `${key} of ${what} sums to ${Number(sum.toPrecision(8))}, not 1`, 'give every component, or add `normalize: true` to scale the fractions to 1');
+        break readComposition;
+      }
+      if (key === 'mass-composition') {
+        const moles = frac.map((w, i) => w / f.components[i].MW);
+        const t = moles.reduce((a, b) => a + b, 0);
+        composition = moles.map((m) => m / t);
+      } else composition = frac.map((v) => v / sum);
+    }
+  }
+
+  // Flow basis.
+  let basis: FeedBasis | undefined;
+  let T: number | undefined;
+  let P: number | undefined;
+  if (form === 'meter') {
+    const m = f.sub('meter');
+    if (!m) return undefined;
+    m.checkKeys(['flow', 'pressure', 'temperature', 'design']);
+    const flow = m.quantity('flow', 'volumeFlow', { required: true, above: 0, example: '12.6 m3/h' });
+    const Pm = m.quantity('pressure', 'pressure', { required: true, above: 0, example: '30 barg' });
+    const Tm = m.quantity('temperature', 'temperature', { required: true, above: 0, example: '35 degC' });
+    let design: MeterDesign | undefined;
+    const d = m.sub('design');
+    if (d) {
+      d.checkKeys(['pressure', 'temperature', 'composition', 'density']);
+      design = {};
+      if (d.has('density') && (d.has('pressure') || d.has('temperature') || d.has('composition'))) {
+        d.errorAtKey('density', `\`meter.design\` of ${what} gives a density and a design state`, 'give either `density`, or `pressure` and `temperature` (and optionally `composition`)');
+      } else if (d.has('density')) {
+        design.density = d.quantity('density', 'density', { above: 0, example: '2.5 kg/m3' });
+      } else if (!d.has('pressure') || !d.has('temperature')) {
+        d.error(null, `\`meter.design\` of ${what} needs \`pressure\` and \`temperature\` (or \`density\`)`, 'for example `design: { pressure: 28 barg, temperature: 30 degC }`');
+      } else {
+        design.P = d.quantity('pressure', 'pressure', { above: 0, example: '28 barg' });
+        design.T = d.quantity('temperature', 'temperature', { above: 0, example: '30 degC' });
+        if (d.has('composition')) {
+          const c = d.componentValues('composition', { min: 0, max: 1 });
+          if (c) {
+            const sum = c.values.reduce((a, b) => a + b, 0);
+            if (Math.abs(sum - 1) > 1e-6) d.error('composition', `the design composition of ${what} sums to ${Number(sum.toPrecision(8))}, not 1`, 'give mole fractions that sum to 1');
+            else design.composition = c.values;
+          }
+        }
+      }
+    }
+    if (flow === undefined || Pm === undefined || Tm === undefined) return undefined;
+    basis = { kind: 'meter', flow, T: Tm, P: Pm, design };
+    T = Tm;
+    P = Pm;
+  } else if (form === 'molar-flow') {
+    const v = f.quantity('molar-flow', 'molarFlow', { above: 0, example: '4.2 mol/s' });
+    if (v === undefined) return undefined;
+    basis = { kind: 'molar-flow', flow: v };
+  } else if (form === 'mass-flow') {
+    const v = f.quantity('mass-flow', 'massFlow', { above: 0, example: '120 kg/h' });
+    if (v === undefined) return undefined;
+    basis = { kind: 'mass-flow', flow: v };
+  } else if (form === 'standard-flow') {
+    let q: { value: number; reference: { name: string } } | undefined;
+    let realGas = true;
+    if (f.isMapping('standard-flow')) {
+      const s = f.sub('standard-flow')!;
+      s.checkKeys(['flow', 'reference', 'basis']);
+      let ref;
+      if (s.has('reference')) {
+        ref = s.standardReference('reference');
+        if (!ref) return undefined; // unknown (reported) or failed earlier (reported)
+      }
+      const b = s.string('basis');
+      if (b !== undefined && b !== 'real' && b !== 'ideal') s.error('basis', '`basis` must be `real` (real-gas volume at the reference, ISO 13443) or `ideal`');
+      else if (b !== undefined) realGas = b === 'real';
+      if (!s.has('flow')) {
+        s.error(null, `\`standard-flow\` of ${what} has no \`flow\``, 'for example `standard-flow: { flow: 120 m3/h, reference: plant }`');
+        return undefined;
+      }
+      q = s.standardFlow('flow', ref);
+    } else {
+      q = f.standardFlow('standard-flow');
+    }
+    if (!q) return undefined;
+    basis = { kind: 'standard-flow', flow: q.value, reference: q.reference as never, realGas };
+  } else if (flowsSI) {
+    basis = { kind: 'flows', flows: flowsSI };
+  }
+  if (form !== 'meter') {
+    T = f.quantity('T', 'temperature', { above: 0, example: '35 degC' });
+    P = f.quantity('P', 'pressure', { above: 0, example: '30 barg' });
+    if (!f.has('T') && !f.strayNear('T')) f.error(null, `${what} has no temperature`, 'add `T: 35 degC` (the stream temperature)');
+    if (!f.has('P') && !f.strayNear('P')) f.error(null, `${what} has no pressure`, 'add `P: 30 barg` (the stream pressure)');
+  } else {
+    // A metered feed enters at the meter's conditions unless T or P of the stream are given
+    // (a meter upstream of a compressor or a heater, say).
+    if (f.has('T')) T = f.quantity('T', 'temperature', { above: 0, example: '35 degC' });
+    if (f.has('P')) P = f.quantity('P', 'pressure', { above: 0, example: '30 barg' });
+  }
+  if (T === undefined || P === undefined || !basis || !composition) return undefined;
+  return { name, type: 'feed', inlets: [], outlets: [name], composition, basis, T, P };
+}
+
+/**
+ * Mole (or mass) fractions; numbers that look like percentages (every value between 1 and 100
+ * and a sum near 100) without `normalize: true` get one message that says so.
+ */
+function percentsOrFractions(f: FieldReader, key: string, normalize: boolean): Float64Array | undefined {
+  if (!normalize) {
+    const raw = f.componentValues(key, { min: 0 });
+    if (!raw) return undefined;
+    const vals = raw.given.map((i) => raw.values[i]);
+    const sum = vals.reduce((a, b) => a + b, 0);
+    if (vals.some((v) => v > 1)) {
+      if (sum > 90 && sum < 110) {
+        f.error(key, `the ${key} of ${f.what} looks like percentages (they add up to ${Number(sum.toPrecision(6))})`, 'add `normalize: true` to scale them to fractions, or write fractions (0.68 for 68 %)');
+      } else {
+        f.error(key, `the ${key} of ${f.what} holds values above 1 (they add up to ${Number(sum.toPrecision(6))})`, 'write mole fractions between 0 and 1, or add `normalize: true` to scale the values to 1');
+      }
+      return undefined;
+    }
+    return raw.values;
+  }
+  return f.componentValues(key, { min: 0 })?.values;
 }

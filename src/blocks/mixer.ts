@@ -34,8 +34,8 @@ export const mixer: BlockDef<MixerSpec> = {
         if (spec.P !== undefined) o.P = spec.P;
         if (spec.T !== undefined) o.T = spec.T;
         o.vf = Number.NaN;
+        return null;
       },
-      issue: () => null,
       summary: () => ({ figures: [], notes: spec.T === undefined ? ['outlet T is the flow-weighted mean of the inlets (no energy balance yet)'] : [] }),
     };
   },

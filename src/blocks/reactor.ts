@@ -10,7 +10,7 @@
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import { parseEquation, elementImbalance, EquationError } from '../thermo/reaction.js';
 import type { EvaluationFailure } from '../solve/types.js';
-import type { BlockDef, Stream } from './types.js';
+import type { BlockDef, Stream, UnitSummary } from './types.js';
 import { combineInlets } from './combine.js';
 
 export interface ReactionSpec {
@@ -42,7 +42,7 @@ export const reactor: BlockDef<ReactorSpec> = {
     const T = f.quantity('T', 'temperature', { above: 0, example: '250 degC' });
     const P = f.quantity('P', 'pressure', { above: 0, example: '29 barg' });
     const sequence = f.boolean('sequence') ?? false;
-    const items = f.items('reactions', { required: true, what: 'reaction' });
+    const items = f.items('reactions', { required: true });
     if (!items) return undefined;
     const reactions: ReactionSpec[] = [];
     let ok = true;
@@ -109,7 +109,8 @@ export const reactor: BlockDef<ReactorSpec> = {
     const gen = new Float64Array(n);
     const keyIn = new Float64Array(R);
     const cons = new Float64Array(n);
-    let problem: EvaluationFailure | null = null;
+    const inlet = new Float64Array(n);
+    const keys = keyComponents(spec);
 
     const shortfall = (i: number, need: number, have: number, rx: ReactionSpec | null): EvaluationFailure => {
       const what = rx
@@ -132,9 +133,10 @@ export const reactor: BlockDef<ReactorSpec> = {
         const o = outs[0];
         const f = o.flows;
         combineInlets(ins, o);
+        inlet.set(f);
         const inletT = o.T;
         const inletP = o.P;
-        problem = null;
+        let problem: EvaluationFailure | null = null;
         gen.fill(0);
         if (!spec.sequence) {
           // Extents on the inlet, then scaled together if a reactant would go negative.
@@ -200,10 +202,13 @@ export const reactor: BlockDef<ReactorSpec> = {
         o.T = spec.T ?? inletT;
         o.P = spec.P ?? inletP;
         o.vf = Number.NaN;
+        return problem;
       },
-      issue: () => problem,
       generation: () => gen,
-      summary() {
+      summary(_ins, outs) {
+        const out = outs[0]?.flows;
+        const conversions: Record<string, number> = {};
+        for (const k of keys) conversions[ids[k]] = out && inlet[k] > 0 ? (inlet[k] - out[k]) / inlet[k] : 0;
         return {
           figures: spec.reactions.map((rx, r) => ({ label: `extent of ${rx.equation}`, value: ext[r], kind: 'molarFlow' as const, key: `extent.${r}` })),
           notes: spec.T === undefined ? ['outlet T carried from the inlet (no energy balance yet)'] : [],
@@ -214,11 +219,111 @@ export const reactor: BlockDef<ReactorSpec> = {
             conversion: keyIn[r] > 0 ? (ext[r] * -rx.nu[rx.key]) / keyIn[r] : 0,
             requested: rx.conversion,
           })),
+          conversions,
         };
       },
     };
   },
+  outputs(spec, model) {
+    return [
+      ...keyComponents(spec).map((k) => ({
+        name: `conversion.${model.ids[k]}`,
+        dimension: 'dimensionless' as const,
+        read: (u: UnitSummary) => u.conversions?.[model.ids[k]] ?? Number.NaN,
+      })),
+      ...spec.reactions.map((_, r) => ({
+        name: `extent.${r}`,
+        dimension: 'molarFlow' as const,
+        read: (u: UnitSummary) => u.reactions?.[r]?.extent ?? Number.NaN,
+      })),
+    ];
+  },
+  structure(spec, model) {
+    return {
+      passes: () => true,
+      transform: (inlet) => reactorOutlet(spec, inlet),
+      check(have0, report) {
+        const n = model.ids.length;
+        const have = Uint8Array.from(have0);
+        for (const rx of spec.reactions) {
+          if (active(rx)) {
+            const missing: number[] = [];
+            for (let i = 0; i < n; i++) if (rx.nu[i] < 0 && !have[i]) missing.push(i);
+            if (missing.includes(rx.key)) {
+              report(`the key reactant \`${model.ids[rx.key]}\` of reaction \`${rx.equation}\` never reaches reactor \`${spec.name}\`: no feed carries it and no reaction upstream forms it`,
+                `add \`${model.ids[rx.key]}\` to the composition of a feed upstream of \`${spec.name}\`, or remove the reaction`);
+            } else if (missing.length > 0) {
+              const names = missing.map((i) => `\`${model.ids[i]}\``).join(', ');
+              const many = missing.length > 1;
+              report(`reactant${many ? 's' : ''} ${names} of reaction \`${rx.equation}\` never reach${many ? '' : 'es'} reactor \`${spec.name}\`: no feed carries ${many ? 'them' : 'it'} and no reaction upstream forms ${many ? 'them' : 'it'}`,
+                `feed ${names} upstream of \`${spec.name}\`, or change the equation`);
+            }
+          }
+          if (spec.sequence && active(rx) && rx.nu.every((x, i) => x >= 0 || have[i])) {
+            for (let i = 0; i < n; i++) if (rx.nu[i] > 0) have[i] = 1;
+          }
+        }
+      },
+    };
+  },
 };
+
+/** The key components of a reactor, each once, in the order of its reactions. */
+function keyComponents(spec: ReactorSpec): number[] {
+  const out: number[] = [];
+  for (const rx of spec.reactions) if (!out.includes(rx.key)) out.push(rx.key);
+  return out;
+}
+
+/** Whether a reaction runs at all (a zero conversion or extent does nothing). */
+function active(rx: ReactionSpec): boolean {
+  return rx.conversion !== undefined ? rx.conversion > 0 : (rx.extent ?? 0) > 0;
+}
+
+/**
+ * What a reactor's outlet can carry, given what reaches its inlet: the inlet's components,
+ * the products of reactions whose reactants all reach it, less a key used up completely
+ * (conversion 1) and not formed again. Also returns what the reactions use up and form.
+ */
+function reactorOutlet(spec: ReactorSpec, inlet: Uint8Array): { out: Uint8Array; consumed: Uint8Array; formed: Uint8Array } {
+  const n = inlet.length;
+  const cur = Uint8Array.from(inlet);
+  const consumed = new Uint8Array(n);
+  const formed = new Uint8Array(n);
+  const canRun = (rx: ReactionSpec, have: Uint8Array) => {
+    if (!active(rx)) return false;
+    for (let i = 0; i < n; i++) if (rx.nu[i] < 0 && !have[i]) return false;
+    return true;
+  };
+  if (spec.sequence) {
+    for (const rx of spec.reactions) {
+      if (!canRun(rx, cur)) continue;
+      for (let i = 0; i < n; i++) {
+        if (rx.nu[i] < 0) consumed[i] = 1;
+        if (rx.nu[i] > 0) {
+          cur[i] = 1;
+          formed[i] = 1;
+        }
+      }
+      if (rx.conversion !== undefined && rx.conversion >= 1) cur[rx.key] = 0;
+    }
+  } else {
+    const fullKey = new Float64Array(n);
+    for (const rx of spec.reactions) {
+      if (!canRun(rx, inlet)) continue;
+      for (let i = 0; i < n; i++) {
+        if (rx.nu[i] < 0) consumed[i] = 1;
+        if (rx.nu[i] > 0) formed[i] = 1;
+      }
+      if (rx.conversion !== undefined) fullKey[rx.key] += rx.conversion;
+    }
+    for (let i = 0; i < n; i++) {
+      if (formed[i]) cur[i] = 1;
+      else if (fullKey[i] >= 1 - 1e-12) cur[i] = 0;
+    }
+  }
+  return { out: cur, consumed, formed };
+}
 
 function fmt(v: number): string {
   return Number(v.toPrecision(6)).toString();

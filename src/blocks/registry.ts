@@ -5,6 +5,7 @@ import { reactor } from './reactor.js';
 import { condenser, flash } from './condenser.js';
 import { splitter } from './splitter.js';
 import { separator } from './separator.js';
+import { feed } from './feed.js';
 
 export const BLOCKS: Readonly<Record<string, BlockDef<any>>> = {
   mixer,
@@ -15,6 +16,14 @@ export const BLOCKS: Readonly<Record<string, BlockDef<any>>> = {
   separator,
 };
 
+/** The block that reads and converts every entry of `feeds:`. */
+export const FEED = feed;
+
 export function blockTypes(): string[] {
   return Object.keys(BLOCKS);
+}
+
+/** The block of a unit or feed spec. */
+export function blockOf(spec: { type: string }): BlockDef<any> {
+  return spec.type === FEED.type ? FEED : BLOCKS[spec.type];
 }

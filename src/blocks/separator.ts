@@ -5,6 +5,7 @@
  */
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { BlockDef, Stream } from './types.js';
+import { editOutletFraction } from './outlet-edit.js';
 
 export interface SeparatorSpec extends UnitSpecBase {
   type: 'separator';
@@ -76,9 +77,16 @@ export const separator: BlockDef<SeparatorSpec> = {
           o.P = spec.P ?? s.P;
           o.vf = Number.NaN;
         }
+        return null;
       },
-      issue: () => null,
       summary: () => ({ figures: [], notes: [] }),
     };
   },
+  structure(spec) {
+    return {
+      passes: (k, i) => spec.recovery[k][i] > 0,
+      openOutlet: (k, id) => `give \`${id}\` a recovery above zero to the outlet \`${spec.outlets[k]}\` of separator \`${spec.name}\``,
+    };
+  },
+  edit: editOutletFraction,
 };

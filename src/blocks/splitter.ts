@@ -1,6 +1,7 @@
 /** Splitter: the inlet divided by fractions into outlets of the same composition. */
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { BlockDef, Stream } from './types.js';
+import { editOutletFraction } from './outlet-edit.js';
 
 export interface SplitterSpec extends UnitSpecBase {
   type: 'splitter';
@@ -67,12 +68,19 @@ export const splitter: BlockDef<SplitterSpec> = {
           o.P = s.P;
           o.vf = s.vf;
         }
+        return null;
       },
-      issue: () => null,
       summary: () => ({
         figures: spec.outlets.map((o, k) => ({ label: `to ${o}`, value: fr[k], kind: 'fraction' as const, key: `fraction.${o}` })),
         notes: [],
       }),
     };
   },
+  structure(spec) {
+    return {
+      passes: (k) => spec.fractions[k] > 0,
+      openOutlet: (k) => `give the outlet \`${spec.outlets[k]}\` of splitter \`${spec.name}\` a fraction above zero (a purge), e.g. 0.01`,
+    };
+  },
+  edit: editOutletFraction,
 };

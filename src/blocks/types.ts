@@ -1,8 +1,15 @@
-/** What a unit block is: how it reads its settings, and how it computes its outlets. */
+/**
+ * What a unit block is: how it reads its settings, how it computes its outlets, and what it
+ * declares to the rest of the program (report paths, how components can pass through it for
+ * the structure checks, how a study edits its parameters). Nothing outside src/blocks switches
+ * on a block's type: adding a block is one file here and one line in registry.ts.
+ */
 import type { FieldReader } from '../flowsheet/fields.js';
 import type { Model, UnitSpecBase } from '../flowsheet/model.js';
+import type { SettingMap } from '../flowsheet/settings.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import type { Eos } from '../thermo/types.js';
+import type { Dimension } from '../units/index.js';
 
 /** The state of one stream inside a solve: SI, component flows in mol/s. */
 export interface Stream {
@@ -17,13 +24,6 @@ export interface Stream {
 
 export function newStream(n: number): Stream {
   return { flows: new Float64Array(n), T: Number.NaN, P: Number.NaN, vf: Number.NaN };
-}
-
-export function copyStream(from: Stream, to: Stream): void {
-  to.flows.set(from.flows);
-  to.T = from.T;
-  to.P = from.P;
-  to.vf = from.vf;
 }
 
 export interface BuildContext {
@@ -41,29 +41,65 @@ export interface UnitFigure {
   key: string;
 }
 
+/** A reaction as a reactor reports it. */
+export interface ReactionFigures {
+  equation: string;
+  key: string;
+  /** mol/s */
+  extent: number;
+  /** Conversion of the key by this reaction, per pass (extent times the key's coefficient over the key's inlet flow). */
+  conversion: number;
+  requested?: number;
+}
+
 export interface UnitSummary {
   figures: UnitFigure[];
   notes: string[];
-  /** Reactions (reactors): extent in mol/s, and conversion of its key per pass. */
-  reactions?: { equation: string; key: string; extent: number; conversion: number; requested?: number }[];
+  reactions?: ReactionFigures[];
+  /**
+   * Single-pass conversion of each key component, from the unit's inlet and outlet flows
+   * ((in - out) / in), for the loop figures and `UNIT.conversion.ID`.
+   */
+  conversions?: Record<string, number>;
 }
 
 export interface BlockRuntime {
   readonly spec: UnitSpecBase;
-  /** Outlets from inlets (in the order of spec.inlets and spec.outlets). Pure in its inputs, apart from warm-start caches. */
-  compute(ins: readonly Stream[], outs: Stream[]): void;
   /**
-   * A condition of the last compute that makes it no true solution (a reactant that would go
-   * negative, a flash that did not converge); null when there is none.
+   * Outlets from inlets (in the order of spec.inlets and spec.outlets). Returns the condition
+   * that makes this evaluation no true solution (a reactant that would go negative, a flash that
+   * did not converge), or null. Pure in its inputs, apart from warm-start caches.
    */
-  issue(): EvaluationFailure | null;
+  compute(ins: readonly Stream[], outs: Stream[]): EvaluationFailure | null;
   /** Net generation of each component (mol/s) in the last compute; reactors only. */
   generation?(): Float64Array;
-  /** Figures for the unit line of the report. */
+  /** Figures for the unit line of the report, from the last compute. */
   summary(ins: readonly Stream[], outs: readonly Stream[]): UnitSummary;
   /** Resets any warm-start cache (so that a solve does not depend on the previous one). */
   reset?(): void;
 }
+
+/** A report path a unit offers, relative to the unit: `conversion.CO2`, `extent.0`, `vapor-fraction`. */
+export interface OutputDecl {
+  name: string;
+  dimension: Dimension | 'dimensionless';
+  read(u: UnitSummary): number;
+}
+
+/** How components can pass through a unit, for the structure checks (structure.ts). */
+export interface StructureRules {
+  /** Whether the unit can send component i to its k-th outlet. */
+  passes(k: number, i: number): boolean;
+  /** What the outlets can carry given what reaches the inlets (reactors); default: the inlets. */
+  transform?(inlet: Uint8Array): { out: Uint8Array; consumed: Uint8Array; formed: Uint8Array };
+  /** What to change so that component `id` can leave through outlet k (a trapped component). */
+  openOutlet?(k: number, id: string): string;
+  /** Problems of this unit given what reaches its inlets (a reactant that never arrives). */
+  check?(inlet: Uint8Array, report: (message: string, help: string) => void): void;
+}
+
+/** A study's edit of one parameter in a block's settings. */
+export type ParameterEdit = SettingMap | { error: string; help?: string };
 
 export interface BlockDef<S extends UnitSpecBase = UnitSpecBase> {
   /** The `type:` value in the file. */
@@ -74,4 +110,13 @@ export interface BlockDef<S extends UnitSpecBase = UnitSpecBase> {
   keys: readonly string[];
   read(name: string, f: FieldReader): S | undefined;
   build(spec: S, ctx: BuildContext): BlockRuntime;
+  /** The report paths of a unit of this block (default: none). */
+  outputs?(spec: S, model: Model): OutputDecl[];
+  /** How components pass (default: every inlet component to every outlet). */
+  structure?(spec: S, model: Model): StructureRules;
+  /**
+   * Sets a parameter (key within the unit's settings) to an SI value, where setting it alone
+   * is not the whole story (a splitter's other outlet); default: the value is set as it is.
+   */
+  edit?(name: string, settings: SettingMap, key: readonly string[], value: number): ParameterEdit;
 }

@@ -1,6 +1,6 @@
 /** The loopclose command line. */
 import { Command, CommanderError } from 'commander';
-import { InputError, formatDiagnostics } from '../diagnostics.js';
+import { InputError, diagnosticsJson, formatDiagnostics } from '../diagnostics.js';
 import { EXIT, exitCodeOf } from './exit.js';
 import { writeErr, writeFileAtomic, writeOut } from './io.js';
 import { runMeter } from './meter.js';
@@ -15,7 +15,16 @@ function collect(value: string, previous: string[]): string[] {
   return [...previous, value];
 }
 
-async function reportError(e: unknown, debug: boolean): Promise<number> {
+/** Colour only on a terminal, and never with NO_COLOR set (https://no-color.org). */
+export function useColor(stream: NodeJS.WriteStream): boolean {
+  return !!stream.isTTY && !('NO_COLOR' in process.env && process.env.NO_COLOR !== '');
+}
+
+async function reportError(e: unknown, debug: boolean, json: boolean): Promise<number> {
+  if (e instanceof InputError && json) {
+    await writeOut(JSON.stringify(diagnosticsJson(e.diagnostics), null, 2));
+    return EXIT.input;
+  }
   if (e instanceof InputError) {
     const sources = new Map<string, string>();
     for (const d of e.diagnostics) {
@@ -29,7 +38,7 @@ async function reportError(e: unknown, debug: boolean): Promise<number> {
       }
     }
     const errors = e.diagnostics.filter((d) => d.severity === 'error').length;
-    await writeErr(`${formatDiagnostics(e.diagnostics, sources)}\n\n${errors} error${errors === 1 ? '' : 's'}; nothing was computed.`);
+    await writeErr(`${formatDiagnostics(e.diagnostics, sources, { color: useColor(process.stderr) })}\n\n${errors} error${errors === 1 ? '' : 's'}; nothing was computed.`);
     return EXIT.input;
   }
   const msg = e instanceof Error ? e.message : String(e);
@@ -61,6 +70,14 @@ function faultHook(): void {
 
 export async function main(argv: string[]): Promise<void> {
   const debug = argv.includes('--debug');
+  const json = argv.includes('--json');
+  // A reader that goes away (`loopclose merge ... | head -1`) ends the output quietly.
+  for (const stream of [process.stdout, process.stderr]) {
+    stream.on('error', (err: NodeJS.ErrnoException) => {
+      if (err.code === 'EPIPE') process.exit(process.exitCode ?? 0);
+      throw err;
+    });
+  }
   let code: number = EXIT.ok;
   const program = new Command();
   program
@@ -123,7 +140,7 @@ export async function main(argv: string[]): Promise<void> {
     if (e instanceof CommanderError) {
       code = e.exitCode === 0 ? EXIT.ok : EXIT.input;
     } else {
-      code = await reportError(e, debug);
+      code = await reportError(e, debug, json);
     }
   }
   process.exitCode = code;

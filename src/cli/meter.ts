@@ -101,7 +101,7 @@ function singleReading(o: MeterOptions): MeterReport {
   if (bag.hasErrors) throw new InputError(bag.items);
   const comps = ids.map((id) => ({ ...findComponent(id)!, id }));
   const eos = makeEos(eosName, comps);
-  const spec: FeedSpec = { name: 'reading', composition: Float64Array.from(fr.map((v) => v / sum)), basis: { kind: 'meter', flow: flow!, T: T!, P: P! }, T: T!, P: P! };
+  const spec: FeedSpec = { name: 'reading', type: 'feed', inlets: [], outlets: ['reading'], composition: Float64Array.from(fr.map((v) => v / sum)), basis: { kind: 'meter', flow: flow!, T: T!, P: P! }, T: T!, P: P! };
   const f = computeFeed(spec, eos);
   const display = { flowUnit: o.flowUnit ? checkFlowUnit(o.flowUnit) : 'kmol/h', pressureUnit: 'bar', temperatureUnit: 'degC' };
   return { eos: eosName, ids, feeds: [f], warnings: f.warnings, display, atmosphere };

@@ -1,11 +1,12 @@
 /** `loopclose solve`: the steady state of a flowsheet file. */
 import { InputError } from '../diagnostics.js';
-import { ParametricFlowsheet } from '../study/params.js';
-import { parseTarget, solvePoint, type TargetReport } from '../study/point.js';
-import { fileTargets } from '../study/file-targets.js';
+import { loadFlowsheet } from '../flowsheet/validate.js';
 import { solveFlowsheet, type FlowsheetResult } from '../flowsheet/solve.js';
+import { fileTargets } from '../study/file-targets.js';
+import { parseTarget, solvePoint } from '../study/point.js';
 import { solveCsv, solveJson, solveText } from '../report/solve.js';
 import type { MethodName } from '../solve/types.js';
+import { METHODS } from '../flowsheet/read-sections.js';
 import { parseQuantity, UnitError } from '../units/index.js';
 
 export interface SolveCliOptions {
@@ -24,7 +25,7 @@ export function runSolve(file: string, o: SolveCliOptions): { text: string; resu
   const errs: string[] = [];
   let method: MethodName | undefined;
   if (o.method !== undefined) {
-    if (!['direct', 'wegstein', 'newton', 'auto'].includes(o.method)) errs.push(`--method: unknown method \`${o.method}\` (use direct, wegstein, newton or auto)`);
+    if (!(METHODS as readonly string[]).includes(o.method)) errs.push(`--method: unknown method \`${o.method}\` (use direct, wegstein, newton or auto)`);
     else method = o.method as MethodName;
   }
   let maxPasses: number | undefined;
@@ -46,24 +47,20 @@ export function runSolve(file: string, o: SolveCliOptions): { text: string; resu
     }
   }
   if (o.json && o.csv) errs.push('give --json or --csv, not both');
-  if (errs.length) throw new InputError(errs.map((message) => ({ severity: 'error' as const, message })));
   const cliTargets = o.target ?? [];
   if ((o.by ?? []).length !== cliTargets.length) errs.push(`give one --by for each --target (${cliTargets.length} targets, ${(o.by ?? []).length} --by)`);
   if ((o.within ?? []).length > cliTargets.length) errs.push('more --within than --target');
   if (errs.length) throw new InputError(errs.map((message) => ({ severity: 'error' as const, message })));
-  const p = new ParametricFlowsheet(file);
-  const targets = [...fileTargets(p), ...cliTargets.map((t, j) => parseTarget(p, t, o.by![j], o.within?.[j]))];
+  const { model } = loadFlowsheet(file);
+  const targets = [...fileTargets(model), ...cliTargets.map((t, j) => parseTarget(model, t, o.by![j], o.within?.[j]))];
   let result: FlowsheetResult;
-  let targetReports: TargetReport[] | undefined;
   if (targets.length === 0) {
-    result = solveFlowsheet(p.base.model, { method, maxPasses, rtol });
+    result = solveFlowsheet(model, { method, maxPasses, rtol });
   } else {
-    const pr = solvePoint(p, [], { targets, method, maxPasses });
+    const pr = solvePoint(model, [], { targets, method, maxPasses, rtol });
     if (!pr.result) throw new InputError([{ severity: 'error', message: pr.message ?? 'the targets cannot be set up' }]);
     result = pr.result;
-    targetReports = pr.targets;
   }
-  result.targets = targetReports;
   const text = o.json ? solveJson(result) : o.csv ? solveCsv(result, { flowUnit: o.flowUnit }) : solveText(result, { flowUnit: o.flowUnit });
   return { text, result };
 }

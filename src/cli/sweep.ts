@@ -32,6 +32,7 @@ export interface SweepCliOptions {
   continuation: boolean;
   method?: string;
   maxPasses?: string;
+  tolerance?: string;
 }
 
 const collect = (v: string, prev: string[] | undefined) => [...(prev ?? []), v];
@@ -66,6 +67,7 @@ export function registerSweep(program: Command, setCode: (code: number) => void)
     .option('--no-continuation', 'start every point cold instead of from its neighbour')
     .option('--method <name>', 'direct, wegstein, newton or auto for every point (default: the file\'s method from a cold start, newton from a neighbour)')
     .option('--max-passes <n>', 'budget of flowsheet passes per point')
+    .option('--tolerance <rtol>', 'relative tolerance on every tear variable (default: the file\'s, else 1e-10)')
     .action(async (file: string, o: SweepCliOptions) => {
       const specs = axes;
       axes = [];
@@ -73,7 +75,7 @@ export function registerSweep(program: Command, setCode: (code: number) => void)
     });
 }
 
-function options(o: Required<Pick<SweepCliOptions, 'report' | 'target' | 'by' | 'within'>> & SweepCliOptions): { jobs: number; shard: Shard; block: number; method?: MethodName; maxPasses?: number } {
+function options(o: Required<Pick<SweepCliOptions, 'report' | 'target' | 'by' | 'within'>> & SweepCliOptions): { jobs: number; shard: Shard; block: number; method?: MethodName; maxPasses?: number; rtol?: number } {
   const errs: string[] = [];
   const int = (name: string, v: string | undefined, dflt: number): number => {
     if (v === undefined) return dflt;
@@ -92,6 +94,11 @@ function options(o: Required<Pick<SweepCliOptions, 'report' | 'target' | 'by' | 
     if (!['direct', 'wegstein', 'newton', 'auto'].includes(o.method)) errs.push(`--method: unknown method \`${o.method}\` (use direct, wegstein, newton or auto)`);
     else method = o.method as MethodName;
   }
+  let rtol: number | undefined;
+  if (o.tolerance !== undefined) {
+    rtol = Number(o.tolerance);
+    if (!(rtol > 0 && rtol < 0.1)) errs.push('--tolerance must be a number between 0 and 0.1');
+  }
   if (o.by.length !== o.target.length) errs.push(`give one --by for each --target (${o.target.length} targets, ${o.by.length} --by)`);
   if (o.within.length > o.target.length) errs.push('more --within than --target');
   if (o.resume && o.overwrite) errs.push('give --resume or --overwrite, not both');
@@ -106,7 +113,7 @@ function options(o: Required<Pick<SweepCliOptions, 'report' | 'target' | 'by' | 
     }
   }
   if (errs.length) throw new InputError(errs.map((message) => ({ severity: 'error' as const, message })));
-  return { jobs, shard, block, method, maxPasses };
+  return { jobs, shard, block, method, maxPasses, rtol };
 }
 
 export async function runSweep(file: string, axes: AxisSpec[], given: SweepCliOptions): Promise<number> {
@@ -120,6 +127,7 @@ export async function runSweep(file: string, axes: AxisSpec[], given: SweepCliOp
     targets: o.target.map((text, j) => ({ text, by: o.by[j], within: o.within[j] })),
     method: opt.method,
     maxPasses: opt.maxPasses,
+    rtol: opt.rtol,
     block: opt.block,
     continuation: o.continuation,
   };
@@ -128,7 +136,7 @@ export async function runSweep(file: string, axes: AxisSpec[], given: SweepCliOp
   if (format === 'csv') {
     // CSV is read by people: outputs without a unit of their own take the file's display units
     // (flows, pressures, temperatures); JSON Lines stays in SI.
-    const d = ctx.p.base.model.display;
+    const d = ctx.model.display;
     const byDim: Partial<Record<string, string>> = { molarFlow: d.flowUnit, pressure: d.pressureUnit, temperature: d.temperatureUnit };
     const report = spec.report.map((r, k) => {
       const out = ctx.outputs[k];

@@ -1,10 +1,15 @@
 /**
- * The validated model: SI numbers, component indices, resolved streams. Built from the parsed
- * document by validate.ts; read by the planner, the blocks and the reporters.
+ * The validated model: SI numbers, component indices, resolved streams, the plan of the
+ * calculation, and what each block read (its settings and parameters). Built from the parsed
+ * document by validate.ts and frozen: nothing changes a model. A study that changes a parameter
+ * gets a new model (src/study/parameters.ts), sharing every part it did not change.
+ * (Typed arrays inside cannot be frozen by JavaScript; by convention nothing writes to them.)
  */
 import type { Diagnostic, SourceSpan } from '../diagnostics.js';
 import type { ComponentData, EosName } from '../thermo/types.js';
 import type { StandardRef } from '../units/index.js';
+import type { Plan } from './graph.js';
+import type { OwnerSettings } from './settings.js';
 
 export interface ThermoSpec {
   eos: EosName;
@@ -12,13 +17,22 @@ export interface ThermoSpec {
   kij: Float64Array;
   /** Local atmospheric pressure for gauge readings, Pa. */
   atmosphere: number;
-  standards: Map<string, StandardRef>;
+  standards: ReadonlyMap<string, StandardRef>;
 }
 
 export interface DisplaySpec {
   flowUnit: string;
   pressureUnit: string;
   temperatureUnit: string;
+}
+
+/** What every unit spec has; each block adds its own fields. */
+export interface UnitSpecBase {
+  name: string;
+  type: string;
+  inlets: string[];
+  outlets: string[];
+  span?: SourceSpan;
 }
 
 /** How a feed's flow is given. */
@@ -39,9 +53,9 @@ export interface MeterDesign {
   composition?: Float64Array;
 }
 
-export interface FeedSpec {
-  name: string;
-  span?: SourceSpan;
+/** A feed: a block with no inlets and one outlet of its own name. */
+export interface FeedSpec extends UnitSpecBase {
+  type: 'feed';
   /** Mole fractions, length n (for `flows` feeds, the normalized flows). */
   composition: Float64Array;
   basis: FeedBasis;
@@ -50,41 +64,82 @@ export interface FeedSpec {
   P: number;
 }
 
-/** What every unit spec has; each block adds its own fields. */
-export interface UnitSpecBase {
-  name: string;
-  type: string;
-  inlets: string[];
-  outlets: string[];
-  span?: SourceSpan;
-}
-
 export interface SolverSpec {
   method: 'direct' | 'wegstein' | 'newton' | 'auto';
   rtol: number;
   maxPasses?: number;
-  /** Wegstein bounds on q (default -5 <= q <= 0). */
+  /** Wegstein's acceleration bounds (default -5 <= q <= 0). */
   qMin?: number;
   qMax?: number;
+}
+
+/** A target written in the file (`targets:`), as text; parsed against the model by the study layer. */
+export interface TargetDecl {
+  output: string;
+  value: string;
+  by: string;
+  within?: string;
+  tolerance?: number;
+  span?: SourceSpan;
 }
 
 export interface Model {
   file: string;
   title?: string;
-  components: ComponentData[];
-  ids: string[];
-  index: Map<string, number>;
+  components: readonly ComponentData[];
+  ids: readonly string[];
+  index: ReadonlyMap<string, number>;
   /** Element counts of each component's formula. */
-  elements: Record<string, number>[];
+  elements: readonly Record<string, number>[];
   thermo: ThermoSpec;
   display: DisplaySpec;
-  feeds: FeedSpec[];
-  units: UnitSpecBase[];
-  tears: string[];
+  feeds: readonly FeedSpec[];
+  units: readonly UnitSpecBase[];
+  /** Tear streams as the file gives them (the plan has the ones used). */
+  tears: readonly string[];
+  /** Recycle loops, tears and calculation order: depends on the connections only. */
+  plan: Plan;
   solver: SolverSpec;
+  targets: readonly TargetDecl[];
   /** Where each stream is made (feed or unit outlet entry), for messages. */
-  streamSpans: Map<string, SourceSpan | undefined>;
+  streamSpans: ReadonlyMap<string, SourceSpan | undefined>;
   /** Where each unit and feed is declared, for messages. */
-  unitSpans: Map<string, SourceSpan | undefined>;
-  warnings: Diagnostic[];
+  unitSpans: ReadonlyMap<string, SourceSpan | undefined>;
+  /** What each feed (`feeds.NAME`) and unit (`NAME`) read, by that prefix: the parameter layer. */
+  settings: ReadonlyMap<string, OwnerSettings>;
+  warnings: readonly Diagnostic[];
+}
+
+/** A read-only Map: set, delete and clear throw, as they would on a frozen object. */
+export class FrozenMap<K, V> extends Map<K, V> {
+  private sealed = false;
+  constructor(entries?: Iterable<readonly [K, V]>) {
+    super(entries as Iterable<[K, V]>);
+    this.sealed = true;
+  }
+  override set(key: K, value: V): this {
+    if (this.sealed) throw new TypeError('a model is frozen: this map cannot change');
+    return super.set(key, value);
+  }
+  override delete(): boolean {
+    throw new TypeError('a model is frozen: this map cannot change');
+  }
+  override clear(): void {
+    throw new TypeError('a model is frozen: this map cannot change');
+  }
+}
+
+/** Freezes a value and everything it holds (objects, arrays, maps), except typed arrays. */
+export function deepFreeze<T>(value: T, seen = new Set<unknown>()): T {
+  // A frozen part was frozen whole when it was made (models share their unchanged parts).
+  if (value === null || typeof value !== 'object' || seen.has(value) || ArrayBuffer.isView(value) || Object.isFrozen(value)) return value;
+  seen.add(value);
+  if (value instanceof Map) {
+    for (const [k, v] of value) {
+      deepFreeze(k, seen);
+      deepFreeze(v, seen);
+    }
+  }
+  for (const v of Object.values(value as object)) deepFreeze(v, seen);
+  return Object.freeze(value);
 }

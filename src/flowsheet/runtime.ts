@@ -1,152 +1,184 @@
 /**
- * The runnable flowsheet: blocks built from the model, streams allocated once, the plan
- * (calculation order and tears) from the graph. One `pass` evaluates the whole sequence.
+ * The runnable flowsheet: blocks built from a model, streams allocated once, the calculation
+ * order and tears from the model's plan. One `pass` evaluates the whole sequence.
+ *
+ * A runtime belongs to its caller (a solve, a sweep, a target): nothing is kept in module
+ * state. `load(model)` switches it to another model: a model is a value, so what changed is
+ * found by identity — a new thermo section, component list or plan rebuilds everything; a new
+ * spec of one unit or feed (a study's parameter) rebuilds that block only.
  */
-import { computeFeed, type FeedResult } from '../blocks/feed.js';
+import { feed as FEED, type FeedResult } from '../blocks/feed.js';
 import { BLOCKS } from '../blocks/registry.js';
 import { newStream, type BlockRuntime, type Stream } from '../blocks/types.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import { makeEos } from '../thermo/eos.js';
 import type { Eos } from '../thermo/types.js';
-import { planFlowsheet, type Plan } from './graph.js';
-import type { Model } from './model.js';
+import type { Plan } from './graph.js';
+import type { FeedSpec, Model, UnitSpecBase } from './model.js';
+import { findRecycles } from './recycles.js';
 
-export interface Runtime {
-  model: Model;
-  eos: Eos;
-  n: number;
-  feeds: FeedResult[];
-  /** Every stream by name. */
-  streams: Map<string, Stream>;
-  /** Stream names in the order they are made (feeds, then units in file order). */
-  streamOrder: string[];
-  blocks: BlockRuntime[];
-  byName: Map<string, BlockRuntime>;
-  plan: Plan;
-  /** Blocks in calculation order, with their inlet and outlet streams resolved. */
-  sequence: { block: BlockRuntime; ins: Stream[]; outs: Stream[] }[];
-  /** Streams that no unit takes. */
-  products: string[];
-  /** Recycle streams: in a loop, entering a unit that also takes a stream from outside the loop. */
-  recycles: string[];
-  /** Tear streams' states. */
-  tearStreams: Stream[];
-  /** Unknowns per tear stream: n flows, then T and P. */
-  perTear: number;
-  /** Runs all blocks in order with the tear streams as they are. */
-  pass(): void;
-  /** The first block issue of the last pass, if any. */
-  issues(): { unit: string; failure: EvaluationFailure }[];
+/** A condition met by one unit in a pass (it makes the state no true solution). */
+export interface Condition {
+  unit: string;
+  failure: EvaluationFailure;
 }
 
-export function buildRuntime(model: Model, eos?: Eos): Runtime {
-  const n = model.ids.length;
-  const theEos = eos ?? makeEos(model.thermo.eos, model.components, model.thermo.kij);
-  const streams = new Map<string, Stream>();
-  const streamOrder: string[] = [];
-  const feeds = model.feeds.map((f) => computeFeed(f, theEos));
-  for (const f of feeds) {
-    const s = newStream(n);
+export interface SequenceEntry {
+  block: BlockRuntime;
+  ins: Stream[];
+  outs: Stream[];
+}
+
+export interface Runtime {
+  readonly model: Model;
+  readonly eos: Eos;
+  readonly n: number;
+  readonly feeds: FeedResult[];
+  /** Every stream by name. */
+  readonly streams: Map<string, Stream>;
+  /** Stream names in the order they are made (feeds, then units in file order). */
+  readonly streamOrder: string[];
+  /** Unit blocks in file order. */
+  readonly blocks: BlockRuntime[];
+  readonly byName: Map<string, BlockRuntime>;
+  readonly plan: Plan;
+  /** Blocks in calculation order, with their inlet and outlet streams resolved. */
+  readonly sequence: SequenceEntry[];
+  /** Streams that no unit takes. */
+  readonly products: string[];
+  /** Recycle streams: in a loop, entering a unit that also takes a stream from outside the loop. */
+  readonly recycles: string[];
+  /** Tear streams as their takers read them: the guesses of an iteration (set by setTears). */
+  readonly tearStreams: Stream[];
+  /** Tear streams as their makers compute them in a pass (read by readTears; the streams reported). */
+  readonly tearOutputs: Stream[];
+  /** Unknowns per tear stream: n flows, then T and P. */
+  readonly perTear: number;
+  /** Runs all blocks in order with the tear streams as they are; returns the conditions met (a reused array). */
+  pass(): readonly Condition[];
+  /** Switches to another model, rebuilding only what differs. */
+  load(model: Model): void;
+}
+
+class FlowsheetRuntime implements Runtime {
+  model!: Model;
+  eos!: Eos;
+  n = 0;
+  feeds: FeedResult[] = [];
+  streams = new Map<string, Stream>();
+  streamOrder: string[] = [];
+  blocks: BlockRuntime[] = [];
+  byName = new Map<string, BlockRuntime>();
+  plan!: Plan;
+  sequence: SequenceEntry[] = [];
+  products: string[] = [];
+  recycles: string[] = [];
+  tearStreams: Stream[] = [];
+  tearOutputs: Stream[] = [];
+  perTear = 2;
+  private readonly conditions: Condition[] = [];
+  private fixedEos: Eos | undefined;
+
+  constructor(model: Model, eos?: Eos) {
+    this.fixedEos = eos;
+    this.rebuild(model);
+  }
+
+  pass(): readonly Condition[] {
+    const c = this.conditions;
+    c.length = 0;
+    const seq = this.sequence;
+    for (let k = 0; k < seq.length; k++) {
+      const s = seq[k];
+      const f = s.block.compute(s.ins, s.outs);
+      if (f !== null) c.push({ unit: s.block.spec.name, failure: f });
+    }
+    return c;
+  }
+
+  load(model: Model): void {
+    const cur = this.model;
+    if (model === cur) return;
+    if (model.components !== cur.components || model.thermo !== cur.thermo || model.plan !== cur.plan
+      || model.feeds.length !== cur.feeds.length || model.units.length !== cur.units.length) {
+      this.rebuild(model);
+      return;
+    }
+    this.model = model;
+    const ctx = { model, eos: this.eos };
+    model.feeds.forEach((f, k) => {
+      if (f === cur.feeds[k]) return;
+      this.feeds[k] = this.feedResult(f);
+      this.setFeedStream(this.feeds[k]);
+    });
+    model.units.forEach((u, k) => {
+      if (u === cur.units[k]) return;
+      const old = this.blocks[k];
+      const b = BLOCKS[u.type].build(u, ctx);
+      this.blocks[k] = b;
+      this.byName.set(u.name, b);
+      for (const s of this.sequence) if (s.block === old) s.block = b;
+    });
+  }
+
+  private feedResult(f: FeedSpec): FeedResult {
+    return FEED.result(FEED.build(f, { model: this.model, eos: this.eos }));
+  }
+
+  private setFeedStream(f: FeedResult): void {
+    const s = this.streams.get(f.name)!;
     s.flows.set(f.flows);
     s.T = f.T;
     s.P = f.P;
     s.vf = f.phase === 'vapor' ? 1 : f.phase === 'liquid' ? 0 : Number.NaN;
-    streams.set(f.name, s);
-    streamOrder.push(f.name);
   }
-  const blocks: BlockRuntime[] = [];
-  const byName = new Map<string, BlockRuntime>();
-  for (const u of model.units) {
-    const b = BLOCKS[u.type].build(u, { model, eos: theEos });
-    blocks.push(b);
-    byName.set(u.name, b);
-    for (const o of u.outlets) {
-      streams.set(o, newStream(n));
-      streamOrder.push(o);
+
+  private rebuild(model: Model): void {
+    this.model = model;
+    const n = model.ids.length;
+    this.n = n;
+    this.perTear = n + 2;
+    this.eos = this.fixedEos ?? makeEos(model.thermo.eos, model.components, model.thermo.kij);
+    this.streams = new Map();
+    this.streamOrder = [];
+    this.feeds = [];
+    for (const f of model.feeds) {
+      this.streams.set(f.name, newStream(n));
+      this.streamOrder.push(f.name);
+      const r = this.feedResult(f);
+      this.feeds.push(r);
+      this.setFeedStream(r);
     }
-  }
-  const taken = new Set(model.units.flatMap((u) => u.inlets));
-  const products = streamOrder.filter((s) => !taken.has(s));
-  const plan = planFor(model);
-  const sequence = plan.order.map((name) => {
-    const block = byName.get(name)!;
-    return { block, ins: block.spec.inlets.map((s) => streams.get(s)!), outs: block.spec.outlets.map((s) => streams.get(s)!) };
-  });
-  const recycles = findRecycles(model, plan);
-  // Start the tears at zero flow, at the conditions of the first feed.
-  const tearStreams = plan.tears.map((t) => streams.get(t)!);
-  for (const s of tearStreams) {
-    s.T = feeds[0]?.T ?? 298.15;
-    s.P = feeds[0]?.P ?? 101325;
-  }
-  const issues = () => {
-    const out: { unit: string; failure: EvaluationFailure }[] = [];
-    for (const { block } of sequence) {
-      const f = block.issue();
-      if (f) out.push({ unit: block.spec.name, failure: f });
-    }
-    return out;
-  };
-  return {
-    model, eos: theEos, n, feeds, streams, streamOrder, blocks, byName, plan, sequence, products, recycles, tearStreams,
-    perTear: n + 2,
-    pass() {
-      for (let k = 0; k < sequence.length; k++) {
-        const s = sequence[k];
-        s.block.compute(s.ins, s.outs);
+    this.blocks = [];
+    this.byName = new Map();
+    const ctx = { model, eos: this.eos };
+    for (const u of model.units) {
+      const b = BLOCKS[u.type].build(u, ctx);
+      this.blocks.push(b);
+      this.byName.set(u.name, b);
+      for (const o of u.outlets) {
+        this.streams.set(o, newStream(n));
+        this.streamOrder.push(o);
       }
-    },
-    issues,
-  };
-}
-
-/**
- * Plans by topology: a study builds a runtime per point on the same stream graph, so the plan
- * (loops, tears, order) is kept for the last few topologies seen (it depends on nothing else).
- */
-const PLANS = new Map<string, Plan>();
-const MAX_PLANS = 32;
-
-function planFor(model: Model): Plan {
-  const key = JSON.stringify([model.tears, model.units.map((u) => [u.name, u.inlets, u.outlets])]);
-  const hit = PLANS.get(key);
-  if (hit) return hit;
-  const plan = planFlowsheet(model.units.map((u) => ({ name: u.name, inlets: u.inlets, outlets: u.outlets })), model.tears.length ? model.tears : preferredTears(model));
-  if (PLANS.size >= MAX_PLANS) PLANS.delete(PLANS.keys().next().value!);
-  PLANS.set(key, plan);
-  return plan;
-}
-
-/**
- * Tears an engineer would choose: streams that close a loop back into a mixer from a
- * splitter, separator, condenser or flash. Offered to the planner only when they are as few
- * as the fewest that break every loop; the planner keeps its own choice otherwise.
- */
-function preferredTears(model: Model): string[] | undefined {
-  const plain = planFlowsheet(model.units.map((u) => ({ name: u.name, inlets: u.inlets, outlets: u.outlets })));
-  if (plain.tears.length === 0) return undefined;
-  const recycles = findRecycles(model, plain);
-  if (recycles.length !== plain.tears.length) return undefined;
-  try {
-    const alt = planFlowsheet(model.units.map((u) => ({ name: u.name, inlets: u.inlets, outlets: u.outlets })), recycles);
-    return alt.tears.length === plain.tears.length ? recycles : undefined;
-  } catch {
-    return undefined;
+    }
+    const taken = new Set(model.units.flatMap((u) => u.inlets));
+    this.products = this.streamOrder.filter((s) => !taken.has(s));
+    this.plan = model.plan;
+    // A tear's taker reads a guess of its own, so that the maker, wherever it comes in the order,
+    // never overwrites the guess before it is read (several tears in one loop).
+    const guesses = new Map(this.plan.tears.map((t) => [t, newStream(n)] as const));
+    const unitByName = new Map<string, UnitSpecBase>(model.units.map((u) => [u.name, u]));
+    this.sequence = this.plan.order.map((name) => {
+      const u = unitByName.get(name)!;
+      return { block: this.byName.get(name)!, ins: u.inlets.map((s) => guesses.get(s) ?? this.streams.get(s)!), outs: u.outlets.map((s) => this.streams.get(s)!) };
+    });
+    this.recycles = findRecycles(model.units, this.plan);
+    this.tearStreams = this.plan.tears.map((t) => guesses.get(t)!);
+    this.tearOutputs = this.plan.tears.map((t) => this.streams.get(t)!);
   }
 }
 
-function findRecycles(model: Model, plan: Plan): string[] {
-  const loopOf = new Map<string, number>();
-  plan.loops.forEach((units, k) => units.forEach((u) => loopOf.set(u, k)));
-  const maker = new Map<string, string>();
-  for (const u of model.units) for (const o of u.outlets) maker.set(o, u.name);
-  const out: string[] = [];
-  for (const u of model.units) {
-    const k = loopOf.get(u.name);
-    if (k === undefined) continue;
-    const inside = u.inlets.filter((s) => maker.has(s) && loopOf.get(maker.get(s)!) === k);
-    const outside = u.inlets.filter((s) => !maker.has(s) || loopOf.get(maker.get(s)!) !== k);
-    if (inside.length > 0 && outside.length > 0) out.push(...inside);
-  }
-  return out;
+/** A runtime for a model (optionally with an equation of state made elsewhere). */
+export function createRuntime(model: Model, eos?: Eos): Runtime {
+  return new FlowsheetRuntime(model, eos);
 }

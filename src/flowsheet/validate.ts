@@ -1,35 +1,36 @@
 /**
- * Parsed document -> validated model. Every problem found is reported with its position, and
- * the whole file is checked before anything is computed.
+ * Parsed document -> validated, frozen model. Every problem found is reported with its
+ * position, and the whole file is checked before anything is computed. The sections are read by
+ * read-components.ts, read-sections.ts and, for feeds and units, by the blocks themselves through
+ * a YamlFields reader that records what they read (the parameter layer's settings).
  */
 import { readFileSync, statSync } from 'node:fs';
 import type { Node } from 'yaml';
 import { DiagnosticBag, InputError, didYouMean, type SourceSpan } from '../diagnostics.js';
-import { parseQuantity, UnitError, type Dimension, type StandardRef, defineStandard, BUILTIN_STANDARDS } from '../units/index.js';
-import { findComponent, componentIds } from '../thermo/components.js';
-import { parseFormula, molarMass } from '../thermo/formula.js';
-import type { ComponentData, EosName } from '../thermo/types.js';
+import { BLOCKS, FEED, blockTypes } from '../blocks/registry.js';
+import type { BlockDef } from '../blocks/types.js';
+import { parseFormula } from '../thermo/formula.js';
+import type { ComponentData } from '../thermo/types.js';
+import { planFlowsheet, type GraphUnit } from './graph.js';
+import { deepFreeze, FrozenMap, type FeedSpec, type Model, type TargetDecl, type UnitSpecBase } from './model.js';
+import { readComponent } from './read-components.js';
+import { readDisplay, readKij, readSolver, readThermo } from './read-sections.js';
+import { isSettingMap, type OwnerSettings, type Setting, type SettingMap } from './settings.js';
 import { Reader, SourceFile, MAX_FILE_BYTES, type Entry } from './source.js';
-import type { FieldReader, NumberRule, OutletEntry } from './fields.js';
-import type { FeedBasis, FeedSpec, MeterDesign, Model, UnitSpecBase } from './model.js';
-import { BLOCKS, blockTypes } from '../blocks/registry.js';
 import { checkStructure } from './structure.js';
+import { YamlFields, type FieldContext, type Recording } from './yaml-fields.js';
+import { findRecycles } from './recycles.js';
 
 const TOP_KEYS = ['title', 'components', 'thermo', 'display', 'feeds', 'units', 'tears', 'solver', 'targets'] as const;
-const FEED_KEYS = ['composition', 'mass-composition', 'normalize', 'meter', 'molar-flow', 'mass-flow', 'standard-flow', 'flows', 'T', 'P'];
-const FLOW_FORMS = ['meter', 'molar-flow', 'mass-flow', 'standard-flow', 'flows'];
 
 export interface LoadedFile {
   model: Model;
   source: SourceFile;
-  /** The model's extra top-level nodes for later stages (targets). */
-  targetsNode: Node | null;
-  reader: Reader;
 }
 
 /** Reads and validates a flowsheet file. Throws InputError with every problem found. */
-export function loadFlowsheet(path: string, overrides?: (root: Node, reader: Reader) => void): LoadedFile {
-  return validateText(path, readFlowsheetFile(path), new DiagnosticBag(), overrides);
+export function loadFlowsheet(path: string): LoadedFile {
+  return validateText(path, readFlowsheetFile(path));
 }
 
 /** A flowsheet file's text, refusing folders, missing files and files over the size limit. */
@@ -48,9 +49,8 @@ export function readFlowsheetFile(path: string): string {
   }
 }
 
-export function validateText(path: string, text: string, bag = new DiagnosticBag(), overrides?: (root: Node, reader: Reader) => void): LoadedFile {
-  const src = parseSource(path, text, bag);
-  return validateSource(src, bag, overrides);
+export function validateText(path: string, text: string, bag = new DiagnosticBag()): LoadedFile {
+  return validateSource(parseSource(path, text, bag), bag);
 }
 
 /** Parses the text; throws InputError on YAML syntax errors. */
@@ -60,8 +60,8 @@ export function parseSource(path: string, text: string, bag = new DiagnosticBag(
   return src;
 }
 
-/** Validates a parsed (possibly edited) document into a model. Throws InputError with every problem. */
-export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overrides?: (root: Node, reader: Reader) => void): LoadedFile {
+/** Validates a parsed document into a frozen model. Throws InputError with every problem. */
+export function validateSource(src: SourceFile, bag = new DiagnosticBag()): LoadedFile {
   src.restart(bag);
   const path = src.path;
   const r = new Reader(src);
@@ -69,7 +69,6 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
   if (root === null || (r.isScalar(root) && (root.value === null || root.value === ''))) {
     throw new InputError([{ severity: 'error', message: `${path} is empty`, span: src.at(null), help: 'a flowsheet needs at least `components:` and `feeds:`' }]);
   }
-  if (overrides) overrides(root, r);
   const top = r.entries(root, 'the flowsheet file');
   if (!top) throw new InputError(bag.items);
   r.checkKeys(top, TOP_KEYS, 'the flowsheet file');
@@ -77,9 +76,11 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
 
   const title = get('title') ? r.string(get('title')!.value, '`title`') : undefined;
 
-  // Components.
+  // Components. One whose definition fails stays in the list as a placeholder, so that the
+  // places that name it do not report it again as unknown (nothing is computed with it).
   const compEntry = get('components');
   const components: ComponentData[] = [];
+  const known = new Set<string>();
   if (!compEntry) {
     bag.error('the file has no `components:`', src.at(root), 'list the components, e.g. `components: { H2: {}, N2: {} }`');
   } else {
@@ -87,121 +88,49 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
     if (list && list.length === 0) bag.error('`components` is empty', r.at(compEntry.keyNode), 'name at least one component, e.g. `H2: {}`');
     for (const e of list ?? []) {
       const c = readComponent(r, e);
-      if (c) {
-        components.push(c);
-      }
+      known.add(e.key);
+      components.push(c ?? { id: e.key, name: e.key, formula: '', MW: Number.NaN, Tc: Number.NaN, Pc: Number.NaN, omega: Number.NaN, source: 'not read' });
     }
   }
   const ids = components.map((c) => c.id);
-  const index = new Map(ids.map((id, i) => [id, i]));
-  const n = ids.length;
+  const index = new FrozenMap(ids.map((id, i) => [id, i] as const));
   const elements = components.map((c) => {
     try {
-      return toRecord(parseFormula(c.formula));
+      return c.formula ? toRecord(parseFormula(c.formula)) : {};
     } catch {
       return {};
     }
   });
 
-  // Thermo.
-  const thermoEntries = get('thermo') ? r.entries(get('thermo')!.value, '`thermo`', get('thermo')!.keyNode) ?? [] : [];
-  r.checkKeys(thermoEntries, ['eos', 'kij', 'atmosphere', 'standards'], '`thermo`');
-  let eos: EosName = 'SRK';
-  const eosE = r.find(thermoEntries, 'eos');
-  if (eosE) {
-    const v = r.string(eosE.value, '`thermo.eos`', 'SRK');
-    if (v !== undefined) {
-      const m = matchEos(v);
-      if (!m) bag.error(`unknown equation of state \`${v}\``, r.at(eosE.value), 'use `SRK`, `PR` (Peng-Robinson) or `ideal`');
-      else eos = m;
-    }
-  }
-  let atmosphere = 101325;
-  const atmE = r.find(thermoEntries, 'atmosphere');
-  if (atmE) {
-    const v = quantityAt(r, atmE.value, 'pressure', '`thermo.atmosphere`', { above: 0, example: '0.95 bar' }, { atmosphere: 101325 });
-    if (v !== undefined) {
-      if (r.isScalar(atmE.value) && /g\s*$/.test(String(atmE.value.value))) {
-        bag.error('`thermo.atmosphere` must be an absolute pressure', r.at(atmE.value), 'write it in bar, kPa, psia or mmHg, not a gauge unit');
-      } else atmosphere = v;
-    }
-  }
-  const standards = new Map<string, StandardRef>(BUILTIN_STANDARDS);
-  const failedStandards = new Set<string>();
-  const stdE = r.find(thermoEntries, 'standards');
-  if (stdE) {
-    for (const e of r.entries(stdE.value, '`thermo.standards`', stdE.keyNode) ?? []) {
-      const f = r.entries(e.value, `standard reference \`${e.key}\``, e.keyNode) ?? [];
-      r.checkKeys(f, ['T', 'P', 'temperature', 'pressure'], `standard reference \`${e.key}\``);
-      // `T` and `P` as everywhere else in the file; `temperature` and `pressure` as in a meter.
-      const tKey = r.find(f, 'T') ? 'T' : 'temperature';
-      const pKey = r.find(f, 'P') ? 'P' : 'pressure';
-      const T = requiredQuantity(r, f, tKey, 'temperature', `\`${tKey}\` of standard reference \`${e.key}\``, e.keyNode, { above: 0, example: '60 degF' }, { atmosphere });
-      const P = requiredQuantity(r, f, pKey, 'pressure', `\`${pKey}\` of standard reference \`${e.key}\``, e.keyNode, { above: 0, example: '14.73 psia' }, { atmosphere });
-      if (T !== undefined && P !== undefined) standards.set(e.key, defineStandard(e.key, { T, P }));
-      else failedStandards.add(e.key);
-    }
-  }
-  const kij = new Float64Array(n * n);
-  const kijE = r.find(thermoEntries, 'kij');
-  if (kijE) {
-    for (const e of r.entries(kijE.value, '`thermo.kij`', kijE.keyNode) ?? []) {
-      const parts = e.key.split('/').map((s) => s.trim());
-      if (parts.length !== 2) {
-        bag.error(`binary pair \`${e.key}\` must be written \`A/B\``, r.at(e.keyNode), 'for example `CO2/H2: 0.12`');
-        continue;
-      }
-      const ij = parts.map((p) => index.get(p));
-      let ok = true;
-      parts.forEach((p, k) => {
-        if (ij[k] === undefined) {
-          ok = false;
-          bag.error(`\`${p}\` in binary pair \`${e.key}\` is not a component of this file`, r.at(e.keyNode), didYouMean(p, ids) ?? `the components are: ${ids.join(', ')}`);
-        }
-      });
-      const v = r.number(e.value, `kij of \`${e.key}\``, '0.12');
-      if (!ok || v === undefined) continue;
-      if (ij[0] === ij[1]) {
-        bag.error(`binary pair \`${e.key}\` names one component twice`, r.at(e.keyNode));
-        continue;
-      }
-      if (Math.abs(v) >= 1) bag.error(`kij of \`${e.key}\` is ${v}; it must be between -1 and 1`, r.at(e.value));
-      kij[ij[0]! * n + ij[1]!] = v;
-      kij[ij[1]! * n + ij[0]!] = v;
-    }
-  }
-
-  // Display.
-  const display = { flowUnit: 'kmol/h', pressureUnit: 'bar', temperatureUnit: 'degC' };
-  const dispE = get('display');
-  if (dispE) {
-    const f = r.entries(dispE.value, '`display`', dispE.keyNode) ?? [];
-    r.checkKeys(f, ['flow-unit', 'pressure-unit', 'temperature-unit'], '`display`');
-    const check = (key: 'flow-unit' | 'pressure-unit' | 'temperature-unit', dim: Dimension, prop: keyof typeof display) => {
-      const e = r.find(f, key);
-      if (!e) return;
-      const u = r.string(e.value, `\`display.${key}\``);
-      if (u === undefined) return;
-      try {
-        parseQuantity(`1 ${u}`, dim, { atmosphere });
-        display[prop] = u;
-      } catch (err) {
-        reportUnitError(r, e.value, `\`display.${key}\``, err);
-      }
-    };
-    check('flow-unit', 'molarFlow', 'flowUnit');
-    check('pressure-unit', 'pressure', 'pressureUnit');
-    check('temperature-unit', 'temperature', 'temperatureUnit');
-  }
+  const thermo = readThermo(r, get('thermo'));
+  const kij = readKij(r, thermo.kijEntry, ids, index, known);
+  const display = readDisplay(r, get('display'), thermo.atmosphere);
+  const ctx: FieldContext = { ids, index, components, elements, atmosphere: thermo.atmosphere, standards: thermo.standards, failedStandards: thermo.failedStandards };
 
   const streamSpans = new Map<string, SourceSpan | undefined>();
   const unitSpans = new Map<string, SourceSpan | undefined>();
+  const makers = new Map<string, string>();
+  const settings = new Map<string, OwnerSettings>();
+  // Streams that a feed or unit with errors may make: not reported again as unknown.
+  const maybeMade = new Set<string>();
+
+  /** Reads one feed or unit with its block; records its settings. */
+  const readOwner = <S extends UnitSpecBase>(def: BlockDef<S>, e: Entry, entries: Entry[], kind: 'unit' | 'feed'): S | undefined => {
+    const rec: Recording = { slots: [], spans: new Map() };
+    const values = new Map<string, Setting>();
+    const what = `${kind} \`${e.key}\``;
+    const before = bag.errors().length;
+    const spec = def.read(e.key, new YamlFields(r, entries, e.keyNode, what, ctx, rec, [], values));
+    if (!spec || bag.errors().length > before) return undefined;
+    spec.span = r.at(e.keyNode);
+    const prefix = kind === 'feed' ? `feeds.${e.key}` : e.key;
+    settings.set(prefix, { kind, name: e.key, type: def.type, prefix, settings: frozenSettings(values), slots: rec.slots, spans: new FrozenMap(rec.spans), span: r.at(e.keyNode) });
+    return spec;
+  };
 
   // Feeds.
   const feeds: FeedSpec[] = [];
   const feedsE = get('feeds');
-  // Streams that a feed or unit with errors may make: not reported again as unknown.
-  const maybeMade = new Set<string>();
   let feedsUnreadable = false;
   if (!feedsE) {
     bag.error('the file has no `feeds:`', src.at(root), 'give at least one feed with its composition and flow');
@@ -210,12 +139,14 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
     if (!feedEntries) feedsUnreadable = true;
     for (const e of feedEntries ?? []) {
       if (streamSpans.has(e.key)) {
-        bag.error(`stream \`${e.key}\` is made twice`, r.at(e.keyNode), 'give each feed and unit outlet its own stream name');
+        bag.error(`stream \`${e.key}\` is made twice (by feed \`${e.key}\` and feed \`${makers.get(e.key)}\`)`, r.at(e.keyNode), 'give each feed and unit outlet its own stream name');
         continue;
       }
       streamSpans.set(e.key, r.at(e.keyNode));
       unitSpans.set(e.key, r.at(e.keyNode));
-      const f = readFeed(r, e, ids, index, components, atmosphere, standards, failedStandards);
+      makers.set(e.key, e.key);
+      const entries = r.entries(e.value, `feed \`${e.key}\``, e.keyNode);
+      const f = entries ? readOwner(FEED, e, entries, 'feed') : undefined;
       if (f) feeds.push(f);
     }
   }
@@ -231,102 +162,112 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag(), overr
         continue;
       }
       unitSpans.set(e.key, r.at(e.keyNode));
-      const u = readUnit(r, e, ids, index, atmosphere, elements);
+      const u = readUnit(r, e, readOwner);
       if (!u) {
         for (const s of guessOutlets(r, e)) maybeMade.add(s);
         continue;
       }
       units.push(u);
+      const own = settings.get(u.name)!;
       u.outlets.forEach((s) => {
         if (streamSpans.has(s)) {
-          bag.error(`stream \`${s}\` is made twice (by \`${e.key}\` and earlier)`, r.at(e.keyNode), 'every stream is made by exactly one feed or unit: rename one of them');
-        } else streamSpans.set(s, r.at(e.keyNode));
+          const by = makers.get(s);
+          bag.error(`stream \`${s}\` is made twice (by \`${e.key}\` and by \`${by}\`)`, streamSpan(own, s, 'out') ?? r.at(e.keyNode),
+            `every stream is made by exactly one feed or unit: rename the outlet of \`${e.key}\` or of \`${by}\``);
+        } else {
+          streamSpans.set(s, streamSpan(own, s, 'out') ?? r.at(e.keyNode));
+          makers.set(s, e.key);
+        }
       });
     }
   }
 
   // Stream connectivity: each stream taken at most once, and only existing streams taken.
   const takenBy = new Map<string, string>();
+  const madeNames = [...streamSpans.keys()];
   for (const u of units) {
+    const own = settings.get(u.name)!;
     for (const s of u.inlets) {
+      const at = streamSpan(own, s, 'in') ?? u.span;
       if (!streamSpans.has(s) && !maybeMade.has(s) && !feedsUnreadable) {
-        bag.error(`unit \`${u.name}\` takes stream \`${s}\`, which no feed or unit makes`, u.span,
-          didYouMean(s, streamSpans.keys()) ?? 'add a feed of that name, or take the outlet of another unit');
+        // Suggest only names that exist and that another unit does not take already.
+        const free = madeNames.filter((x) => x !== s && !u.outlets.includes(x));
+        bag.error(`unit \`${u.name}\` takes stream \`${s}\`, which no feed or unit makes`, at,
+          didYouMean(s, free) ?? 'add a feed of that name, or take the outlet of another unit');
       }
       const prev = takenBy.get(s);
       if (prev !== undefined) {
-        bag.error(`stream \`${s}\` is taken by both \`${prev}\` and \`${u.name}\``, u.span, 'a stream goes to one unit; put a splitter before them to divide it');
+        bag.error(`stream \`${s}\` is taken by both \`${prev}\` and \`${u.name}\``, at, 'a stream goes to one unit; put a splitter before them to divide it');
       } else takenBy.set(s, u.name);
     }
     for (const s of u.outlets) {
-      if (u.inlets.includes(s)) bag.error(`unit \`${u.name}\` takes its own outlet \`${s}\``, u.span, 'an outlet must go to another unit or be a product');
+      if (u.inlets.includes(s)) bag.error(`unit \`${u.name}\` takes its own outlet \`${s}\``, streamSpan(own, s, 'in') ?? u.span, 'an outlet must go to another unit or be a product');
     }
   }
 
   // Tears.
   const tears: string[] = [];
   const tearsE = get('tears');
+  const feedNames = new Set(feeds.map((f) => f.name));
   if (tearsE) {
     for (const t of r.list(tearsE.value, '`tears`', true) ?? []) {
       const s = r.string(t, 'a tear stream name');
       if (s === undefined) continue;
       if (!streamSpans.has(s)) {
-        if (!maybeMade.has(s) && !feedsUnreadable) bag.error(`tear stream \`${s}\` does not exist`, r.at(t), didYouMean(s, streamSpans.keys()) ?? 'name a stream that a unit makes');
-      } else if (!takenBy.has(s)) bag.error(`tear stream \`${s}\` is a product (no unit takes it)`, r.at(t), 'a tear stream must lie in a recycle loop');
+        if (!maybeMade.has(s) && !feedsUnreadable) bag.error(`tear stream \`${s}\` does not exist`, r.at(t), didYouMean(s, streamSpans.keys()) ?? 'name a stream that a unit makes and another unit takes, inside a recycle loop');
+      } else if (feedNames.has(s)) bag.error(`tear stream \`${s}\` is a feed: it lies in no recycle loop`, r.at(t), 'name a stream that a unit makes and another unit takes, inside a recycle loop');
+      else if (!takenBy.has(s)) bag.error(`tear stream \`${s}\` is a product (no unit takes it)`, r.at(t), 'a tear stream must lie in a recycle loop');
+      else if (tears.includes(s)) bag.error(`tear stream \`${s}\` is listed twice`, r.at(t), 'name each tear stream once');
       else tears.push(s);
     }
   }
 
-  // Solver.
-  const solver: Model['solver'] = { method: 'auto', rtol: 1e-10 };
-  const solE = get('solver');
-  if (solE) {
-    const f = r.entries(solE.value, '`solver`', solE.keyNode) ?? [];
-    r.checkKeys(f, ['method', 'tolerance', 'max-passes', 'q-min', 'q-max'], '`solver`');
-    const m = r.find(f, 'method');
-    if (m) {
-      const v = r.string(m.value, '`solver.method`');
-      if (v !== undefined) {
-        if (!['direct', 'wegstein', 'newton', 'auto'].includes(v)) bag.error(`unknown method \`${v}\``, r.at(m.value), 'use `direct`, `wegstein`, `newton` or `auto`');
-        else solver.method = v as Model['solver']['method'];
-      }
-    }
-    const t = r.find(f, 'tolerance');
-    if (t) {
-      const v = r.number(t.value, '`solver.tolerance`', '1e-10');
-      if (v !== undefined && !(v > 0 && v < 0.1)) bag.error('`solver.tolerance` must be between 0 and 0.1', r.at(t.value));
-      else if (v !== undefined) solver.rtol = v;
-    }
-    const mp = r.find(f, 'max-passes');
-    if (mp) {
-      const v = r.number(mp.value, '`solver.max-passes`', '500');
-      if (v !== undefined && !(Number.isInteger(v) && v >= 1)) bag.error('`solver.max-passes` must be a whole number >= 1', r.at(mp.value));
-      else if (v !== undefined) solver.maxPasses = v;
-    }
-    for (const [key, prop] of [['q-min', 'qMin'], ['q-max', 'qMax']] as const) {
-      const q = r.find(f, key);
-      if (!q) continue;
-      const v = r.number(q.value, `\`solver.${key}\``, key === 'q-min' ? '-5' : '0');
-      if (v === undefined) continue;
-      if (!(v <= 0 && v >= -1000)) r.bag.error(`\`solver.${key}\` is ${v}; Wegstein's q is bounded within -1000 to 0`, r.at(q.value), 'the default bounds are -5 <= q <= 0');
-      else solver[prop] = v;
-    }
-    if (solver.qMin !== undefined && solver.qMax !== undefined && solver.qMin > solver.qMax) {
-      r.bag.error('`solver.q-min` is above `solver.q-max`', r.at(solE.keyNode));
-    }
-  }
+  const solver = readSolver(r, get('solver'));
+  const targets = readTargets(r, get('targets'));
 
   if (bag.hasErrors) throw new InputError(bag.items);
+  const graph: GraphUnit[] = units.map((u) => ({ name: u.name, inlets: u.inlets, outlets: u.outlets }));
+  const plan = planFlowsheet(graph, tears.length ? tears : preferredTears(graph));
+  for (const note of plan.notes) bag.warning(note, tearsE ? r.at(tearsE.value) : undefined);
   const model: Model = {
     file: path, title: title ?? undefined, components, ids, index, elements,
-    thermo: { eos, kij, atmosphere, standards }, display, feeds, units, tears, solver,
-    streamSpans, unitSpans, warnings: [],
+    thermo: { eos: thermo.eos, kij, atmosphere: thermo.atmosphere, standards: new FrozenMap(thermo.standards) }, display,
+    feeds, units, tears, plan, solver, targets,
+    streamSpans: new FrozenMap(streamSpans), unitSpans: new FrozenMap(unitSpans), settings: new FrozenMap(settings), warnings: [],
   };
   // Structure: whether a steady state can exist at all (see structure.ts).
   checkStructure(model, bag);
   if (bag.hasErrors) throw new InputError(bag.items);
   model.warnings = bag.warnings();
-  return { model, source: src, targetsNode: get('targets')?.value ?? null, reader: r };
+  return { model: deepFreeze(model), source: src };
+}
+
+/** The settings read, as frozen maps all the way down. */
+export function frozenSettings(m: SettingMap): SettingMap {
+  return new FrozenMap([...m].map(([k, v]) => [k, freezeSetting(v)] as const));
+}
+
+function freezeSetting(v: Setting): Setting {
+  if (isSettingMap(v)) return frozenSettings(v);
+  if (Array.isArray(v)) return Object.freeze(v.map(freezeSetting));
+  return v;
+}
+
+/**
+ * Where a stream appears in an owner's settings: as an inlet (`in`) or as an outlet (any other
+ * key), at the token itself (`in: [a, recyle]` -> the column of `recyle`).
+ */
+export function streamSpan(own: OwnerSettings, stream: string, role: 'in' | 'out'): SourceSpan | undefined {
+  for (const [key, v] of own.settings) {
+    if ((key === 'in') !== (role === 'in')) continue;
+    if (typeof v === 'string' && v === stream) return own.spans.get(`${key}.0`) ?? own.spans.get(key);
+    if (Array.isArray(v)) {
+      const j = v.indexOf(stream);
+      if (j >= 0) return own.spans.get(`${key}.${j}`);
+    }
+    if (isSettingMap(v) && v.has(stream)) return own.spans.get(`${key}.${stream}.@`);
+  }
+  return undefined;
 }
 
 function toRecord(counts: unknown): Record<string, number> {
@@ -334,344 +275,18 @@ function toRecord(counts: unknown): Record<string, number> {
   return { ...(counts as Record<string, number>) };
 }
 
-function matchEos(v: string): EosName | undefined {
-  const s = v.trim().toLowerCase().replace(/[\s_-]/g, '');
-  if (s === 'srk' || s === 'soaveredlichkwong') return 'SRK';
-  if (s === 'pr' || s === 'pengrobinson') return 'PR';
-  if (s === 'ideal' || s === 'idealgas') return 'ideal';
-  return undefined;
-}
-
-export function reportUnitError(r: Reader, node: Node | null, what: string, err: unknown): void {
-  if (err instanceof UnitError) {
-    r.bag.error(`${what}: ${err.message}`, r.at(node), err.help);
-  } else throw err;
-}
-
-/** A dimensional scalar at a node, in SI, with the rule checked. */
-export function quantityAt(r: Reader, node: Node | null, dim: Dimension | readonly Dimension[], what: string, rule: NumberRule, ctx: { atmosphere: number; standards?: Map<string, StandardRef> }) {
-  const v = r.scalar(node, what);
-  if (v === undefined) return undefined;
-  if (v === null) {
-    r.bag.error(`${what} has no value`, r.at(node), rule.example ? `for example \`${rule.example}\`` : undefined);
-    return undefined;
-  }
-  if (typeof v === 'boolean') {
-    r.bag.error(`${what} must be a value with a unit, not \`${v}\``, r.at(node), rule.example ? `for example \`${rule.example}\`` : undefined);
-    return undefined;
-  }
-  let q;
-  try {
-    q = parseQuantity(v, dim, ctx);
-  } catch (err) {
-    reportUnitError(r, node, what, err);
-    return undefined;
-  }
-  if (!checkRule(r, node, what, q.value, rule, dim)) return undefined;
-  return q.value;
-}
-
-function checkRule(r: Reader, node: Node | null, what: string, v: number, rule: NumberRule, dim?: Dimension | readonly Dimension[]): boolean {
-  const abs = dim === 'pressure' ? ' (absolute, after any gauge conversion)' : dim === 'temperature' ? ' (absolute)' : '';
-  const si = dim === 'pressure' ? `${fmt(v)} Pa` : dim === 'temperature' ? `${fmt(v)} K` : fmt(v);
-  if (rule.above !== undefined && !(v > rule.above)) {
-    r.bag.error(`${what} is ${si}${abs}; it must be above ${rule.above === 0 && dim ? 'zero' : rule.above}`, r.at(node), rule.example ? `for example \`${rule.example}\`` : undefined);
-    return false;
-  }
-  if (rule.min !== undefined && v < rule.min) {
-    r.bag.error(`${what} is ${si}; it must be at least ${rule.min}`, r.at(node), rule.example ? `for example \`${rule.example}\`` : undefined);
-    return false;
-  }
-  if (rule.max !== undefined && v > rule.max) {
-    r.bag.error(`${what} is ${si}; it must be at most ${rule.max}`, r.at(node), rule.example ? `for example \`${rule.example}\`` : undefined);
-    return false;
-  }
-  return true;
-}
-
-function fmt(v: number): string {
-  return Number.isInteger(v) ? String(v) : String(Number(v.toPrecision(6)));
-}
-
-function requiredQuantity(r: Reader, entries: Entry[], key: string, dim: Dimension | readonly Dimension[], what: string, parent: Node | null, rule: NumberRule, ctx: { atmosphere: number; standards?: Map<string, StandardRef> }) {
-  const e = r.find(entries, key);
-  if (!e) {
-    if (r.strayNear(entries, key)) return undefined;
-    r.bag.error(`${what} is missing`, r.at(parent), rule.example ? `add \`${key}: ${rule.example}\`` : undefined);
-    return undefined;
-  }
-  return quantityAt(r, e.value, dim, what, rule, ctx);
-}
-
-function readComponent(r: Reader, e: Entry): ComponentData | undefined {
-  const lib = findComponent(e.key);
-  const v = e.value;
-  const isEmpty = v === null || (r.isScalar(v) && (v.value === null || v.value === '' || v.value === 'library')) || (r.isMap(v) && v.items.length === 0);
-  if (isEmpty) {
-    if (r.isScalar(v) && typeof v.value === 'string' && v.value !== '' && v.value !== 'library') {
-      r.bag.error(`component \`${e.key}\`: \`${v.value}\` is not understood`, r.at(v), 'write `{}` or `library` for the built-in data, or a body with Tc, Pc, omega and formula');
-      return undefined;
-    }
-    if (!lib) {
-      r.bag.error(`unknown component \`${e.key}\``, r.at(e.keyNode),
-        didYouMean(e.key, componentIds()) ?? 'give its constants inline: `{ Tc: 408.1 K, Pc: 36.5 bar, omega: 0.183, formula: C4H10 }`');
-      return undefined;
-    }
-    // Molar mass from the formula and the standard atomic weights, so that the mass balance
-    // closes exactly wherever the element balance does (table values agree to 0.05 %).
-    return { ...lib, id: e.key, MW: molarMass(lib.formula) };
-  }
-  if (r.isScalar(v)) {
-    r.bag.error(`component \`${e.key}\` must be \`{}\`, \`library\` or a mapping of constants`, r.at(v));
-    return undefined;
-  }
-  const f = r.entries(v, `component \`${e.key}\``, e.keyNode);
-  if (!f) return undefined;
-  r.checkKeys(f, ['Tc', 'Pc', 'omega', 'MW', 'formula', 'name'], `component \`${e.key}\``);
-  const ctx = { atmosphere: 101325 };
-  const need = (key: string) => {
-    if (!lib && !r.find(f, key)) {
-      r.bag.error(`component \`${e.key}\` is not in the built-in table, so \`${key}\` is required`, r.at(e.keyNode),
-        didYouMean(e.key, componentIds()) ?? `add \`${key}\` (e.g. \`${key === 'Tc' ? 'Tc: 408.1 K' : key === 'Pc' ? 'Pc: 36.5 bar' : key === 'omega' ? 'omega: 0.183' : 'formula: C4H10'}\`)`);
-      return false;
-    }
-    return true;
-  };
-  const ok = [need('Tc'), need('Pc'), need('omega'), need('formula')].every(Boolean);
-  const get = (k: string) => r.find(f, k);
-  const Tc = get('Tc') ? quantityAt(r, get('Tc')!.value, 'temperature', `\`Tc\` of \`${e.key}\``, { above: 0, example: '408.1 K' }, ctx) : lib?.Tc;
-  const Pc = get('Pc') ? quantityAt(r, get('Pc')!.value, 'pressure', `\`Pc\` of \`${e.key}\``, { above: 0, example: '36.5 bar' }, ctx) : lib?.Pc;
-  const omega = get('omega') ? r.number(get('omega')!.value, `\`omega\` of \`${e.key}\``, '0.183') : lib?.omega;
-  if (omega !== undefined && (omega < -1 || omega > 2)) r.bag.error(`\`omega\` of \`${e.key}\` is ${omega}; acentric factors lie between about -0.4 and 1.5`, r.at(get('omega')!.value));
-  let formula = get('formula') ? r.string(get('formula')!.value, `\`formula\` of \`${e.key}\``, 'C4H10') : lib?.formula;
-  if (formula !== undefined) {
-    try {
-      parseFormula(formula);
-    } catch (err) {
-      r.bag.error(`\`formula\` of \`${e.key}\`: ${(err as Error).message}`, r.at(get('formula')?.value ?? e.keyNode), 'write element symbols with counts, e.g. `C4H10` or `CH3OH`');
-      formula = undefined;
-    }
-  }
-  let MW = get('MW') ? quantityAt(r, get('MW')!.value, 'molarMass', `\`MW\` of \`${e.key}\``, { above: 0, example: '58.12 g/mol' }, ctx) : undefined;
-  if (MW === undefined && !get('MW') && formula) MW = molarMass(formula);
-  const name = get('name') ? r.string(get('name')!.value, `\`name\` of \`${e.key}\``) : lib?.name ?? e.key;
-  if (!ok || Tc === undefined || Pc === undefined || omega === undefined || formula === undefined || MW === undefined) return undefined;
-  return {
-    id: e.key, name: name ?? e.key, formula, MW, Tc, Pc, omega,
-    source: lib ? `${lib.source}; overridden in ${r.src.path}` : `given in ${r.src.path}`,
-  };
-}
-
-/** `{ ID: number }` over the components -> dense array; reports unknown ids and bad values. */
-function readFractionMap(r: Reader, node: Node | null, what: string, parent: Node | null, ids: string[], index: Map<string, number>, rule: { min?: number; max?: number; dimension?: Dimension }, ctx: { atmosphere: number }): Float64Array | undefined {
-  const f = r.entries(node, what, parent);
-  if (!f) return undefined;
-  const out = new Float64Array(ids.length);
-  let ok = true;
-  for (const e of f) {
-    const i = index.get(e.key);
-    if (i === undefined) {
-      r.bag.error(`\`${e.key}\` in ${what} is not a component of this file`, r.at(e.keyNode),
-        didYouMean(e.key, ids) ?? `add it under \`components:\` or use one of: ${ids.join(', ')}`);
-      ok = false;
-      continue;
-    }
-    const v = rule.dimension
-      ? quantityAt(r, e.value, rule.dimension, `the flow of \`${e.key}\` in ${what}`, { min: 0, example: '1.2 kmol/h' }, ctx)
-      : r.number(e.value, `the value of \`${e.key}\` in ${what}`, '0.5');
-    if (v === undefined) {
-      ok = false;
-      continue;
-    }
-    if ((rule.min !== undefined && v < rule.min) || (rule.max !== undefined && v > rule.max)) {
-      r.bag.error(`the value of \`${e.key}\` in ${what} is ${v}; it must lie between ${rule.min ?? '-inf'} and ${rule.max ?? 'inf'}`, r.at(e.value));
-      ok = false;
-      continue;
-    }
-    out[i] = v;
-  }
-  return ok ? out : undefined;
-}
-
-function readFeed(r: Reader, e: Entry, ids: string[], index: Map<string, number>, comps: ComponentData[], atmosphere: number, standards: Map<string, StandardRef>, failedStandards: ReadonlySet<string> = new Set()): FeedSpec | undefined {
-  const what = `feed \`${e.key}\``;
-  const f = r.entries(e.value, what, e.keyNode);
-  if (!f) return undefined;
-  r.checkKeys(f, FEED_KEYS, what);
-  const get = (k: string) => r.find(f, k);
-  const ctx = { atmosphere, standards };
-  const forms = FLOW_FORMS.filter((k) => get(k));
-  if (forms.length === 0) {
-    if (r.strayNear(f, ...FLOW_FORMS)) return undefined; // a misspelt flow key is reported already
-    r.bag.error(`${what} has no flow`, r.at(e.keyNode), 'give one of `meter: { flow, pressure, temperature }`, `molar-flow`, `mass-flow`, `standard-flow` or `flows`');
-    return undefined;
-  }
-  if (forms.length > 1) {
-    r.bag.error(`${what} gives its flow ${forms.length} ways (${forms.join(', ')})`, r.at(get(forms[1])!.keyNode), 'keep one of them');
-    return undefined;
-  }
-  const form = forms[0];
-  const normalize = get('normalize') ? r.boolean(get('normalize')!.value, `\`normalize\` of ${what}`) ?? false : false;
-
-  // Composition (mole fractions).
-  let composition: Float64Array | undefined;
-  let flowsSI: Float64Array | undefined;
-  const molE = get('composition');
-  const massE = get('mass-composition');
-  // A problem here is reported, and the rest of the feed is still read (all problems at once).
-  readComposition: {
-    if (form === 'flows') {
-      if (molE || massE) r.bag.error(`${what} gives \`flows\` per component, so it takes no composition`, r.at((molE ?? massE)!.keyNode), 'remove the composition: it follows from the flows');
-      flowsSI = readFractionMap(r, get('flows')!.value, `\`flows\` of ${what}`, get('flows')!.keyNode, ids, index, { dimension: 'molarFlow' }, ctx);
-      if (!flowsSI) break readComposition;
-      const total = flowsSI.reduce((a, b) => a + b, 0);
-      if (!(total > 0)) {
-        r.bag.error(`the flows of ${what} add up to zero`, r.at(get('flows')!.keyNode), 'give at least one positive component flow');
-        break readComposition;
-      }
-      composition = flowsSI.map((v) => v / total);
-    } else {
-      if (molE && massE) {
-        r.bag.error(`${what} gives both \`composition\` and \`mass-composition\``, r.at(massE.keyNode), 'keep one of them');
-        break readComposition;
-      }
-      const ce = molE ?? massE;
-      if (!ce) {
-        if (r.strayNear(f, 'composition', 'mass-composition')) break readComposition;
-        r.bag.error(`${what} has no composition`, r.at(e.keyNode), 'add `composition: { H2: 0.985, N2: 0.015 }` (mole fractions) or `mass-composition`');
-        break readComposition;
-      }
-      const frac = readFractionMap(r, ce.value, `\`${ce.key}\` of ${what}`, ce.keyNode, ids, index, { min: 0, max: normalize ? Infinity : 1 }, ctx);
-      if (!frac) break readComposition;
-      const sum = frac.reduce((a, b) => a + b, 0);
-      if (!(sum > 0)) {
-        r.bag.error(`the ${ce.key} of ${what} is all zero`, r.at(ce.value), 'give at least one positive fraction');
-        break readComposition;
-      }
-      if (Math.abs(sum - 1) > 1e-6 && !normalize) {
-        r.bag.error(`${ce.key} of ${what} sums to ${Number(sum.toPrecision(8))}, not 1`, r.at(ce.value), 'give every component, or add `normalize: true` to scale the fractions to 1');
-        break readComposition;
-      }
-      if (ce.key === 'mass-composition') {
-        const moles = frac.map((w, i) => w / comps[i].MW);
-        const t = moles.reduce((a, b) => a + b, 0);
-        composition = moles.map((m) => m / t);
-      } else composition = frac.map((v) => v / sum);
-    }
-  }
-
-  // Flow basis.
-  let basis: FeedBasis | undefined;
-  let T: number | undefined;
-  let P: number | undefined;
-  const fe = get(form)!;
-  if (form === 'meter') {
-    const m = r.entries(fe.value, `\`meter\` of ${what}`, fe.keyNode);
-    if (!m) return undefined;
-    r.checkKeys(m, ['flow', 'pressure', 'temperature', 'design'], `\`meter\` of ${what}`);
-    const flow = requiredQuantity(r, m, 'flow', 'volumeFlow', `the meter flow of ${what}`, fe.keyNode, { above: 0, example: '12.6 m3/h' }, ctx);
-    const Pm = requiredQuantity(r, m, 'pressure', 'pressure', `the meter pressure of ${what}`, fe.keyNode, { above: 0, example: '30 barg' }, ctx);
-    const Tm = requiredQuantity(r, m, 'temperature', 'temperature', `the meter temperature of ${what}`, fe.keyNode, { above: 0, example: '35 degC' }, ctx);
-    let design: MeterDesign | undefined;
-    const de = r.find(m, 'design');
-    if (de) {
-      const d = r.entries(de.value, `\`meter.design\` of ${what}`, de.keyNode) ?? [];
-      r.checkKeys(d, ['pressure', 'temperature', 'composition', 'density'], `\`meter.design\` of ${what}`);
-      design = {};
-      const dd = r.find(d, 'density');
-      if (dd) design.density = quantityAt(r, dd.value, 'density', `the design density of ${what}`, { above: 0, example: '2.5 kg/m3' }, ctx);
-      const dp = r.find(d, 'pressure');
-      const dt = r.find(d, 'temperature');
-      const dc = r.find(d, 'composition');
-      if (dd && (dp || dt || dc)) {
-        r.bag.error(`\`meter.design\` of ${what} gives a density and a design state`, r.at(dd.keyNode), 'give either `density`, or `pressure` and `temperature` (and optionally `composition`)');
-      } else if (!dd) {
-        if (!dp || !dt) {
-          r.bag.error(`\`meter.design\` of ${what} needs \`pressure\` and \`temperature\` (or \`density\`)`, r.at(de.keyNode), 'for example `design: { pressure: 28 barg, temperature: 30 degC }`');
-        } else {
-          design.P = quantityAt(r, dp.value, 'pressure', `the design pressure of ${what}`, { above: 0, example: '28 barg' }, ctx);
-          design.T = quantityAt(r, dt.value, 'temperature', `the design temperature of ${what}`, { above: 0, example: '30 degC' }, ctx);
-          if (dc) {
-            const c = readFractionMap(r, dc.value, `the design composition of ${what}`, dc.keyNode, ids, index, { min: 0, max: 1 }, ctx);
-            if (c) {
-              const s = c.reduce((a, b) => a + b, 0);
-              if (Math.abs(s - 1) > 1e-6) r.bag.error(`the design composition of ${what} sums to ${Number(s.toPrecision(8))}, not 1`, r.at(dc.value), 'give mole fractions that sum to 1');
-              else design.composition = c;
-            }
-          }
-        }
-      }
-    }
-    if (flow === undefined || Pm === undefined || Tm === undefined) return undefined;
-    basis = { kind: 'meter', flow, T: Tm, P: Pm, design };
-    T = Tm;
-    P = Pm;
-  } else if (form === 'molar-flow') {
-    const v = quantityAt(r, fe.value, 'molarFlow', `\`molar-flow\` of ${what}`, { above: 0, example: '4.2 mol/s' }, ctx);
-    if (v === undefined) return undefined;
-    basis = { kind: 'molar-flow', flow: v };
-  } else if (form === 'mass-flow') {
-    const v = quantityAt(r, fe.value, 'massFlow', `\`mass-flow\` of ${what}`, { above: 0, example: '120 kg/h' }, ctx);
-    if (v === undefined) return undefined;
-    basis = { kind: 'mass-flow', flow: v };
-  } else if (form === 'standard-flow') {
-    let node = fe.value;
-    let refName: string | undefined;
-    let realGas = true;
-    if (r.isMap(node)) {
-      const s = r.entries(node, `\`standard-flow\` of ${what}`, fe.keyNode) ?? [];
-      r.checkKeys(s, ['flow', 'reference', 'basis'], `\`standard-flow\` of ${what}`);
-      const re = r.find(s, 'reference');
-      if (re) {
-        refName = r.string(re.value, 'the standard reference');
-        if (refName !== undefined && !standards.has(refName)) {
-          // A reference whose definition already failed has its own message.
-          if (failedStandards.has(refName)) return undefined;
-          r.bag.error(`unknown standard reference \`${refName}\``, r.at(re.value), didYouMean(refName, standards.keys()) ?? `define it under \`thermo.standards\`, or use one of: ${[...standards.keys()].join(', ')}`);
-          return undefined;
-        }
-      }
-      const be = r.find(s, 'basis');
-      if (be) {
-        const b = r.string(be.value, 'the standard-volume basis');
-        if (b !== 'real' && b !== 'ideal') r.bag.error('`basis` must be `real` (real-gas volume at the reference, ISO 13443) or `ideal`', r.at(be.value));
-        else realGas = b === 'real';
-      }
-      const fl = r.find(s, 'flow');
-      if (!fl) {
-        r.bag.error(`\`standard-flow\` of ${what} has no \`flow\``, r.at(fe.keyNode), 'for example `standard-flow: { flow: 120 m3/h, reference: plant }`');
-        return undefined;
-      }
-      node = fl.value;
-    }
-    const raw = r.scalar(node, `\`standard-flow\` of ${what}`);
-    if (raw === undefined) return undefined;
-    let q;
-    try {
-      q = refName ? parseQuantity(raw as string, 'volumeFlow', ctx) : parseQuantity(raw as string, 'standardFlow', ctx);
-    } catch (err) {
-      reportUnitError(r, node, `\`standard-flow\` of ${what}`, err);
-      return undefined;
-    }
-    if (!(q.value > 0)) {
-      r.bag.error(`\`standard-flow\` of ${what} must be above zero`, r.at(node));
-      return undefined;
-    }
-    const ref = refName ? standards.get(refName)! : q.standard!;
-    basis = { kind: 'standard-flow', flow: q.value, reference: ref, realGas };
-  } else if (flowsSI) {
-    basis = { kind: 'flows', flows: flowsSI };
-  }
-  const te = get('T');
-  const pe = get('P');
-  if (te) T = quantityAt(r, te.value, 'temperature', `\`T\` of ${what}`, { above: 0, example: '35 degC' }, ctx);
-  if (pe) P = quantityAt(r, pe.value, 'pressure', `\`P\` of ${what}`, { above: 0, example: '30 barg' }, ctx);
-  if (form !== 'meter') {
-    if (!te && !r.strayNear(f, 'T')) r.bag.error(`${what} has no temperature`, r.at(e.keyNode), 'add `T: 35 degC` (the stream temperature)');
-    if (!pe && !r.strayNear(f, 'P')) r.bag.error(`${what} has no pressure`, r.at(e.keyNode), 'add `P: 30 barg` (the stream pressure)');
-  }
-  if (T === undefined || P === undefined || !basis || !composition) return undefined;
-  return { name: e.key, span: r.at(e.keyNode), composition, basis, T, P };
+/**
+ * Tears an engineer would choose: streams that close a loop back into a unit that also takes
+ * fresh material. Offered to the planner only when they are as few as the fewest that break
+ * every loop; the planner keeps its own choice otherwise.
+ */
+function preferredTears(units: readonly GraphUnit[]): string[] | undefined {
+  const plain = planFlowsheet(units);
+  if (plain.tears.length === 0) return undefined;
+  const recycles = findRecycles(units, plain);
+  if (recycles.length !== plain.tears.length) return undefined;
+  const alt = planFlowsheet(units, recycles);
+  return alt.tears.length === plain.tears.length && alt.addedTears.length === 0 ? recycles : undefined;
 }
 
 /**
@@ -703,7 +318,7 @@ function guessOutlets(r: Reader, e: Entry): string[] {
   return out;
 }
 
-function readUnit(r: Reader, e: Entry, ids: string[], index: Map<string, number>, atmosphere: number, elements: Record<string, number>[]): UnitSpecBase | undefined {
+function readUnit(r: Reader, e: Entry, readOwner: <S extends UnitSpecBase>(def: BlockDef<S>, e: Entry, entries: Entry[], kind: 'unit' | 'feed') => S | undefined): UnitSpecBase | undefined {
   const what = `unit \`${e.key}\``;
   const f = r.entries(e.value, what, e.keyNode);
   if (!f) return undefined;
@@ -720,240 +335,42 @@ function readUnit(r: Reader, e: Entry, ids: string[], index: Map<string, number>
     return undefined;
   }
   r.checkKeys(f, ['type', ...def.keys], what);
-  const before = r.bag.errors().length;
-  const fields = new YamlFields(r, f, e.keyNode, what, ids, index, atmosphere, elements);
-  const spec = def.read(e.key, fields);
-  if (!spec || r.bag.errors().length > before) return undefined;
-  spec.span = r.at(e.keyNode);
-  return spec;
+  return readOwner(def, e, f, 'unit');
 }
 
-/** FieldReader over a YAML mapping. */
-export class YamlFields implements FieldReader {
-  constructor(
-    private readonly r: Reader,
-    private readonly entries: Entry[],
-    private readonly owner: Node | null,
-    readonly what: string,
-    readonly componentIds: readonly string[],
-    private readonly index: Map<string, number>,
-    private readonly atmosphere: number,
-    readonly elements: readonly Record<string, number>[],
-  ) {}
-
-  private get(key: string) {
-    return this.r.find(this.entries, key);
-  }
-
-  private missing(key: string, example?: string) {
-    if (this.r.strayNear(this.entries, key)) return; // a misspelling of it is reported already
-    this.r.bag.error(`${this.what} has no \`${key}\``, this.r.at(this.owner), example ? `add \`${key}: ${example}\`` : undefined);
-  }
-
-  has(key: string): boolean {
-    return this.get(key) !== undefined;
-  }
-
-  quantity(key: string, dimension: Dimension, rule: NumberRule = {}): number | undefined {
-    const e = this.get(key);
-    if (!e) {
-      if (rule.required) this.missing(key, rule.example);
-      return undefined;
+/** `targets:` as written (checked against the model by the study layer, with these positions). */
+function readTargets(r: Reader, e: Entry | undefined): TargetDecl[] {
+  if (!e) return [];
+  const out: TargetDecl[] = [];
+  for (const item of r.list(e.value, '`targets`') ?? []) {
+    const f = r.entries(item, 'a target');
+    if (!f) continue;
+    r.checkKeys(f, ['output', 'value', 'by', 'within', 'tolerance'], 'a target');
+    const need = (k: string) => {
+      const x = r.find(f, k);
+      if (!x && !r.strayNear(f, k)) r.bag.error(`a target has no \`${k}\``, r.at(item), 'write `{ output: PATH, value: V, by: INPUT, within: "LOW:HIGH" }`');
+      return x;
+    };
+    const o = need('output');
+    const v = need('value');
+    const b = need('by');
+    if (!o || !v || !b) continue;
+    const output = r.string(o.value, 'the target output');
+    const value = r.scalar(v.value, 'the target value');
+    const by = r.string(b.value, 'the adjusted input');
+    const w = r.find(f, 'within');
+    let within: string | undefined;
+    if (w) {
+      if (r.isSeq(w.value)) {
+        const parts = (r.list(w.value, '`within`') ?? []).map((n) => r.scalar(n, 'a bound'));
+        if (parts.length !== 2) r.bag.error('`within` needs two bounds', r.at(w.value), 'write `within: [0.001, 0.2]` or `within: "0.001:0.2"`');
+        else within = `${parts[0]}:${parts[1]}`;
+      } else within = String(r.scalar(w.value, '`within`'));
     }
-    return quantityAt(this.r, e.value, dimension, `\`${key}\` of ${this.what}`, rule, { atmosphere: this.atmosphere });
+    const te = r.find(f, 'tolerance');
+    const tolerance = te ? r.number(te.value, 'the target tolerance', '1e-8') : undefined;
+    if (output === undefined || value === undefined || value === null || by === undefined) continue;
+    out.push({ output, value: String(value), by, within, tolerance, span: r.at(item) });
   }
-
-  number(key: string, rule: NumberRule = {}): number | undefined {
-    const e = this.get(key);
-    if (!e) {
-      if (rule.required) this.missing(key, rule.example);
-      return undefined;
-    }
-    const v = this.r.number(e.value, `\`${key}\` of ${this.what}`, rule.example);
-    if (v === undefined) return undefined;
-    return checkRule(this.r, e.value, `\`${key}\` of ${this.what}`, v, rule) ? v : undefined;
-  }
-
-  string(key: string, opts: { required?: boolean; oneOf?: readonly string[]; example?: string } = {}): string | undefined {
-    const e = this.get(key);
-    if (!e) {
-      if (opts.required) this.missing(key, opts.example ?? opts.oneOf?.[0]);
-      return undefined;
-    }
-    const v = this.r.string(e.value, `\`${key}\` of ${this.what}`, opts.example);
-    if (v !== undefined && opts.oneOf && !opts.oneOf.includes(v)) {
-      this.r.bag.error(`\`${key}\` of ${this.what} is \`${v}\``, this.r.at(e.value), `use one of: ${opts.oneOf.join(', ')}`);
-      return undefined;
-    }
-    return v;
-  }
-
-  boolean(key: string): boolean | undefined {
-    const e = this.get(key);
-    if (!e) return undefined;
-    return this.r.boolean(e.value, `\`${key}\` of ${this.what}`);
-  }
-
-  private streamName(node: Node | null, what: string): string | undefined {
-    const v = this.r.scalar(node, what);
-    if (v === undefined) return undefined;
-    if (typeof v !== 'string' || v.trim() === '') {
-      this.r.bag.error(`${what} must be a stream name`, this.r.at(node));
-      return undefined;
-    }
-    return v;
-  }
-
-  stream(key: string, opts: { required?: boolean } = {}): string | undefined {
-    const e = this.get(key);
-    if (!e) {
-      if (opts.required) this.missing(key, 'stream-name');
-      return undefined;
-    }
-    return this.streamName(e.value, `\`${key}\` of ${this.what}`);
-  }
-
-  streams(key: string, opts: { required?: boolean } = {}): string[] | undefined {
-    const e = this.get(key);
-    if (!e) {
-      if (opts.required) this.missing(key, '[stream-a, stream-b]');
-      return undefined;
-    }
-    const items = this.r.list(e.value, `\`${key}\` of ${this.what}`, true);
-    if (!items) return undefined;
-    const out: string[] = [];
-    for (const it of items) {
-      const s = this.streamName(it, `a stream in \`${key}\` of ${this.what}`);
-      if (s === undefined) return undefined;
-      if (out.includes(s)) {
-        this.r.bag.error(`stream \`${s}\` is listed twice in \`${key}\` of ${this.what}`, this.r.at(it));
-        return undefined;
-      }
-      out.push(s);
-    }
-    if (out.length === 0) {
-      this.r.bag.error(`\`${key}\` of ${this.what} is empty`, this.r.at(e.keyNode));
-      return undefined;
-    }
-    return out;
-  }
-
-  component(key: string, opts: { required?: boolean } = {}): number | undefined {
-    const e = this.get(key);
-    if (!e) {
-      if (opts.required) this.missing(key, this.componentIds[0]);
-      return undefined;
-    }
-    const v = this.r.string(e.value, `\`${key}\` of ${this.what}`);
-    if (v === undefined) return undefined;
-    const i = this.index.get(v);
-    if (i === undefined) {
-      this.r.bag.error(`\`${v}\` (\`${key}\` of ${this.what}) is not a component of this file`, this.r.at(e.value),
-        didYouMean(v, this.componentIds) ?? `use one of: ${this.componentIds.join(', ')}`);
-    }
-    return i;
-  }
-
-  componentFractions(key: string, opts: { required?: boolean; defaultValue?: number } = {}): Float64Array | undefined {
-    const e = this.get(key);
-    if (!e) {
-      if (opts.required) this.missing(key, `{ ${this.componentIds[0]}: 0.5 }`);
-      return undefined;
-    }
-    const arr = readFractionMap(this.r, e.value, `\`${key}\` of ${this.what}`, e.keyNode, [...this.componentIds], this.index, { min: 0, max: 1 }, { atmosphere: this.atmosphere });
-    if (arr && opts.defaultValue !== undefined) {
-      const given = new Set((this.r.entries(e.value, '') ?? []).map((x) => x.key));
-      this.componentIds.forEach((id, i) => {
-        if (!given.has(id)) arr[i] = opts.defaultValue!;
-      });
-    }
-    return arr;
-  }
-
-  outlets(key: string): OutletEntry[] | undefined {
-    const e = this.get(key);
-    if (!e) {
-      this.missing(key, '{ recycle: 0.97, purge: rest }');
-      return undefined;
-    }
-    const list = this.r.entries(e.value, `\`${key}\` of ${this.what}`, e.keyNode);
-    if (!list) return undefined;
-    const out: OutletEntry[] = [];
-    let bad = false;
-    for (const o of list) {
-      const report = (message: string, help?: string) => this.r.bag.error(message, this.r.at(o.keyNode), help);
-      const v = o.value;
-      if (this.r.isScalar(v) && v.value === 'rest') {
-        out.push({ stream: o.key, value: 'rest', report });
-      } else if (this.r.isScalar(v)) {
-        const num = this.r.number(v, `the fraction to \`${o.key}\` in ${this.what}`, '0.97');
-        if (num === undefined) {
-          bad = true;
-          continue;
-        }
-        if (num < 0 || num > 1) {
-          this.r.bag.error(`the fraction to \`${o.key}\` in ${this.what} is ${num}; it must lie between 0 and 1`, this.r.at(v), 'write the share of the inlet this outlet takes, e.g. `0.03`, and `rest` for one outlet');
-          bad = true;
-          continue;
-        }
-        out.push({ stream: o.key, value: num, report });
-      } else if (this.r.isMap(v)) {
-        const arr = readFractionMap(this.r, v, `the recoveries to \`${o.key}\` in ${this.what}`, o.keyNode, [...this.componentIds], this.index, { min: 0, max: 1 }, { atmosphere: this.atmosphere });
-        if (!arr) {
-          bad = true;
-          continue;
-        }
-        const given = new Set((this.r.entries(v, '') ?? []).map((x) => x.key));
-        const dense = new Float64Array(this.componentIds.length).fill(Number.NaN);
-        this.componentIds.forEach((id, i) => {
-          if (given.has(id)) dense[i] = arr[i];
-        });
-        out.push({ stream: o.key, value: dense, report });
-      } else {
-        this.r.bag.error(`the outlet \`${o.key}\` of ${this.what} needs a fraction, \`rest\` or per-component recoveries`, this.r.at(o.keyNode));
-        bad = true;
-      }
-    }
-    return bad ? undefined : out;
-  }
-
-  items(key: string, opts: { required?: boolean; what?: string } = {}): FieldReader[] | undefined {
-    const e = this.get(key);
-    if (!e) {
-      if (opts.required) this.missing(key, '[ ... ]');
-      return undefined;
-    }
-    const list = this.r.list(e.value, `\`${key}\` of ${this.what}`);
-    if (!list) return undefined;
-    if (list.length === 0) {
-      this.r.bag.error(`\`${key}\` of ${this.what} is empty`, this.r.at(e.keyNode));
-      return undefined;
-    }
-    const out: FieldReader[] = [];
-    list.forEach((node, i) => {
-      const w = `${opts.what ?? 'item'} ${i + 1} of ${this.what}`;
-      const sub = this.r.entries(node, w, e.keyNode);
-      if (sub) out.push(new YamlFields(this.r, sub, node, w, this.componentIds, this.index, this.atmosphere, this.elements));
-    });
-    return out;
-  }
-
-  /** Keys present in this mapping. */
-  keys(): string[] {
-    return this.entries.map((e) => e.key);
-  }
-
-  checkKeys(allowed: readonly string[]): void {
-    this.r.checkKeys(this.entries, allowed, this.what);
-  }
-
-  error(key: string | null, message: string, help?: string): void {
-    const e = key ? this.get(key) : undefined;
-    this.r.bag.error(message, this.r.at(e ? e.value ?? e.keyNode : this.owner), help);
-  }
-
-  warning(key: string | null, message: string, help?: string): void {
-    const e = key ? this.get(key) : undefined;
-    this.r.bag.warning(message, this.r.at(e ? e.value ?? e.keyNode : this.owner), help);
-  }
+  return out;
 }

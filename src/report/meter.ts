@@ -7,7 +7,7 @@ import { CAUTION, num, pct, table, toJson } from './format.js';
 export interface MeterReport {
   file?: string;
   eos: string;
-  ids: string[];
+  ids: readonly string[];
   feeds: FeedResult[];
   warnings: string[];
   display: Model['display'];

@@ -11,7 +11,7 @@ export interface SolveReportOptions {
   flowUnit?: string;
 }
 
-function record(ids: string[], a: Float64Array): Record<string, number> {
+function record(ids: readonly string[], a: Float64Array): Record<string, number> {
   const o: Record<string, number> = {};
   ids.forEach((id, i) => (o[id] = a[i]));
   return o;

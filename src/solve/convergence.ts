@@ -273,7 +273,7 @@ export function checkProblem(
 }
 
 export function statusOfFailure(failure: EvaluationFailure): Status {
-  return failure.kind === 'infeasible' ? 'infeasible' : 'invalid';
+  return failure.kind;
 }
 
 /** A result for input that could not be solved at all (bad sizes, bad start point). */

@@ -7,7 +7,8 @@ export type Status = 'converged' | 'not-converged' | 'infeasible' | 'invalid';
  * of a reactant than the inlet holds. Returned (not thrown) by an evaluation.
  */
 export interface EvaluationFailure {
-  kind: 'infeasible' | 'invalid';
+  /** infeasible: no steady state as specified; invalid: cannot be computed as given; not-converged: an inner solve (a flash) failed. */
+  kind: 'infeasible' | 'invalid' | 'not-converged';
   message: string;
   /** Optional machine-readable details: unit, component, what to change. */
   unit?: string;

@@ -10,7 +10,8 @@
  * every axis. Consecutive points in the walk differ by one step along exactly one axis.
  */
 import { InputError, type Diagnostic } from '../diagnostics.js';
-import type { InputRef, ParametricFlowsheet } from './params.js';
+import type { Model } from '../flowsheet/model.js';
+import { assertVariable, checkUnit, parameter, toSI, type Parameter } from './parameters.js';
 
 export interface AxisSpec {
   kind: 'grid' | 'values';
@@ -21,10 +22,13 @@ export interface AxisSpec {
 export interface Axis {
   spec: AxisSpec;
   path: string;
-  ref: InputRef;
+  parameter: Parameter;
   /** The unit the values are written in ('' for a plain number). */
   unit: string;
+  /** As written (in `unit`). */
   values: number[];
+  /** The same values in SI. */
+  si: number[];
 }
 
 /** Most points a sweep accepts (the walk order is held in memory). */
@@ -43,24 +47,25 @@ function parseNumber(s: string, what: string, option: string): number {
 }
 
 /** Splits `PATH=BODY [UNIT]` and resolves PATH in the flowsheet. */
-function splitSpec(p: ParametricFlowsheet, spec: AxisSpec): { path: string; ref: InputRef; body: string; unit: string } {
+function splitSpec(model: Model, spec: AxisSpec): { path: string; ref: Parameter; body: string; unit: string } {
   const option = spec.kind === 'grid' ? '--grid' : '--values';
   const example = spec.kind === 'grid' ? '`reactor.reactions.0.conversion=0.15:0.35:21`' : '`reactor.reactions.0.conversion=0.2,0.25,0.3`';
   const eq = spec.text.indexOf('=');
   if (eq < 0) throw fail(`${option} \`${spec.text}\` has no \`=\``, `write PATH=${spec.kind === 'grid' ? 'START:STOP:N' : 'a,b,c'} with a unit where the input has one, e.g. ${example}`);
   const path = spec.text.slice(0, eq).trim();
   const rest = spec.text.slice(eq + 1).trim();
-  const ref = p.input(path);
+  const ref = parameter(model, path);
+  assertVariable(model, ref);
   // The unit is whatever follows the numbers, after the first space.
   const m = /^(\S+)(?:\s+(.+))?$/.exec(rest);
   if (!m) throw fail(`${option} \`${spec.text}\` gives no values`, `e.g. ${example}`);
   const body = m[1];
   const unit = (m[2] ?? '').trim();
   if (ref.dimension !== undefined && unit === '') {
-    throw fail(`${option} \`${spec.text}\`: \`${path}\` is a ${dimensionName(ref.dimension)} (the file writes \`${String(ref.original)}\`); give the unit of the values`,
-      `add the unit after the values, e.g. \`${path}=${body} ${ref.fileUnit}\``);
+    throw fail(`${option} \`${spec.text}\`: \`${path}\` is a ${dimensionName(ref.dimension)} (the file writes it in ${ref.unit}); give the unit of the values`,
+      `add the unit after the values, e.g. \`${path}=${body} ${ref.unit}\``);
   }
-  if (unit !== '') p.checkUnit(ref, unit);
+  if (unit !== '') checkUnit(model, ref, unit);
   return { path, ref, body, unit };
 }
 
@@ -69,9 +74,9 @@ function dimensionName(d: string): string {
 }
 
 /** `PATH=START:STOP:N [UNIT]`: N evenly spaced values from START to STOP, both included. */
-export function parseGridAxis(p: ParametricFlowsheet, text: string): Axis {
+export function parseGridAxis(model: Model, text: string): Axis {
   const spec: AxisSpec = { kind: 'grid', text: text.trim() };
-  const { path, ref, body, unit } = splitSpec(p, spec);
+  const { path, ref, body, unit } = splitSpec(model, spec);
   const parts = body.split(':');
   if (parts.length !== 3) throw fail(`--grid \`${text}\`: \`${body}\` is not START:STOP:N`, `e.g. \`${path}=${parts[0] || '0.15'}:${parts[1] || '0.35'}:21${unit ? ` ${unit}` : ''}\``);
   const start = parseNumber(parts[0], text, '--grid');
@@ -84,34 +89,34 @@ export function parseGridAxis(p: ParametricFlowsheet, text: string): Axis {
   // Interior values are rounded to 15 significant digits, so that 0.15:0.35:5 gives 0.2, not
   // 0.19999999999999998 (a change of at most 5e-16 relative, far below any solver tolerance).
   for (let k = 0; k < n; k++) values.push(k === n - 1 ? stop : k === 0 ? start : Number((start + ((stop - start) * k) / (n - 1)).toPrecision(15)));
-  return { spec, path, ref, unit, values };
+  return { spec, path, parameter: ref, unit, values, si: values.map((v) => toSI(model, ref, v, unit || undefined)) };
 }
 
 /** `PATH=a,b,c [UNIT]`: the values as listed. */
-export function parseValuesAxis(p: ParametricFlowsheet, text: string): Axis {
+export function parseValuesAxis(model: Model, text: string): Axis {
   const spec: AxisSpec = { kind: 'values', text: text.trim() };
-  const { path, ref, body, unit } = splitSpec(p, spec);
+  const { path, ref, body, unit } = splitSpec(model, spec);
   const values = body.split(',').map((s) => parseNumber(s, text, '--values'));
   const seen = new Set<number>();
   for (const v of values) {
     if (seen.has(v)) throw fail(`--values \`${text}\`: ${v} is listed twice`, 'each value once: a repeated point would be solved twice');
     seen.add(v);
   }
-  return { spec, path, ref, unit, values };
+  return { spec, path, parameter: ref, unit, values, si: values.map((v) => toSI(model, ref, v, unit || undefined)) };
 }
 
-export function parseAxis(p: ParametricFlowsheet, spec: AxisSpec): Axis {
-  return spec.kind === 'grid' ? parseGridAxis(p, spec.text) : parseValuesAxis(p, spec.text);
+export function parseAxis(model: Model, spec: AxisSpec): Axis {
+  return spec.kind === 'grid' ? parseGridAxis(model, spec.text) : parseValuesAxis(model, spec.text);
 }
 
 /** Every axis, each problem reported once; an input may be swept by one axis only. */
-export function parseAxes(p: ParametricFlowsheet, specs: readonly AxisSpec[]): Axis[] {
+export function parseAxes(model: Model, specs: readonly AxisSpec[]): Axis[] {
   const diags: Diagnostic[] = [];
   const axes: Axis[] = [];
   for (const s of specs) {
     try {
-      const a = parseAxis(p, s);
-      const dup = axes.find((b) => b.ref.node === a.ref.node || b.path === a.path);
+      const a = parseAxis(model, s);
+      const dup = axes.find((b) => b.parameter.path === a.parameter.path);
       if (dup) diags.push({ severity: 'error', message: `\`${a.path}\` is swept twice (\`${dup.spec.text}\` and \`${a.spec.text}\`)`, help: 'give each input one --grid or --values' });
       else axes.push(a);
     } catch (e) {

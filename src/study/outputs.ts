@@ -1,13 +1,18 @@
 /**
  * Outputs addressed by path, read from a solved flowsheet:
  *   streams.NAME.flows.ID | streams.NAME.fractions.ID | streams.NAME.{total,T,P,vapor-fraction,mass-flow}
- *   loop.recycle-ratio | loop.fresh-feed | loop.conversion.ID (overall)
- *   UNIT.conversion.ID (single pass, reactors) | UNIT.extent.K | UNIT.vapor-fraction
- *   feeds.NAME.{molar-flow,Z,ideal-error}
+ *   loop.recycle-ratio | loop.fresh-feed | loop.conversion.ID (overall; ID a key component)
+ *   feeds.NAME.PATH and UNIT.PATH: what the block declares (BlockDef.outputs), e.g.
+ *   UNIT.conversion.ID, UNIT.extent.K, UNIT.vapor-fraction, feeds.NAME.{molar-flow,Z,ideal-error}
  *   balance.worst
- * An output may name a display unit in brackets: `streams.purge.flows.H2[kmol/h]`.
+ * An output may name a display unit in brackets: `streams.purge.flows.H2[kmol/h]`. Every path is
+ * checked against the model when it is parsed: a path that names nothing is refused with the
+ * valid paths listed, before anything is solved.
  */
 import { InputError, didYouMean } from '../diagnostics.js';
+import { feedSummary } from '../blocks/feed.js';
+import { blockOf, FEED } from '../blocks/registry.js';
+import type { OutputDecl } from '../blocks/types.js';
 import type { FlowsheetResult } from '../flowsheet/solve.js';
 import type { Model } from '../flowsheet/model.js';
 import { parseQuantity, toUnit, UnitError, type Dimension } from '../units/index.js';
@@ -16,11 +21,11 @@ export interface OutputRef {
   text: string;
   path: string;
   unit?: string;
-  dimension: Dimension;
+  dimension: Dimension | 'dimensionless';
   read(r: FlowsheetResult): number;
 }
 
-const STREAM_FIELDS: Record<string, [Dimension, (s: { total: number; T: number; P: number; vaporFraction: number; massFlow: number }) => number]> = {
+const STREAM_FIELDS: Record<string, [Dimension | 'dimensionless', (s: { total: number; T: number; P: number; vaporFraction: number; massFlow: number }) => number]> = {
   total: ['molarFlow', (s) => s.total],
   T: ['temperature', (s) => s.T],
   P: ['pressure', (s) => s.P],
@@ -28,9 +33,29 @@ const STREAM_FIELDS: Record<string, [Dimension, (s: { total: number; T: number; 
   'mass-flow': ['massFlow', (s) => s.massFlow],
 };
 
+/** The paths a unit or feed offers, as full paths. */
+function declared(model: Model, name: string, feed: boolean): OutputDecl[] {
+  if (feed) {
+    const spec = model.feeds.find((f) => f.name === name)!;
+    return FEED.outputs?.(spec, model) ?? [];
+  }
+  const spec = model.units.find((u) => u.name === name)!;
+  return blockOf(spec).outputs?.(spec, model) ?? [];
+}
+
+/** Key components of the loop: those a unit reports a conversion of. */
+function loopKeys(model: Model): string[] {
+  const out: string[] = [];
+  for (const u of model.units) for (const d of blockOf(u).outputs?.(u, model) ?? []) {
+    const m = /^conversion\.(.+)$/.exec(d.name);
+    if (m && !out.includes(m[1])) out.push(m[1]);
+  }
+  return out;
+}
+
 export function parseOutput(text: string, model: Model): OutputRef {
   const m = /^\s*([^[\]\s]+)\s*(?:\[([^\]]+)\])?\s*$/.exec(text);
-  if (!m) throw err(`output \`${text}\` is not a path`, 'for example `streams.purge.flows.H2` or `loop.recycle-ratio[1]`');
+  if (!m) throw err(`output \`${text}\` is not a path`, 'for example `streams.purge.flows.H2` or `loop.recycle-ratio`');
   const path = m[1];
   const unit = m[2]?.trim();
   const p = path.split('.');
@@ -40,7 +65,7 @@ export function parseOutput(text: string, model: Model): OutputRef {
     return i;
   };
   const streams = [...model.streamSpans.keys()];
-  let dimension: Dimension;
+  let dimension: Dimension | 'dimensionless';
   let read: (r: FlowsheetResult) => number;
   if (p[0] === 'streams') {
     const name = p[1];
@@ -55,62 +80,54 @@ export function parseOutput(text: string, model: Model): OutputRef {
       dimension = d;
       read = (r) => f(r.streams.get(name)!);
     } else {
-      throw err(`output \`${path}\`: a stream has flows.ID, fractions.ID, total, T, P, vapor-fraction and mass-flow`);
+      throw err(`output \`${path}\`: a stream offers flows.ID, fractions.ID, total, T, P, vapor-fraction and mass-flow`, `for example \`streams.${name}.flows.${model.ids[0]}\``);
     }
   } else if (p[0] === 'loop') {
+    const keys = loopKeys(model);
     if (p[1] === 'recycle-ratio' && p.length === 2) {
       dimension = 'dimensionless';
       read = (r) => r.loop.recycleRatio;
     } else if (p[1] === 'fresh-feed' && p.length === 2) {
       dimension = 'molarFlow';
       read = (r) => r.loop.freshFeed;
-    } else if (p[1] === 'conversion' && p.length === 3) {
+    } else if (p[1] === 'conversion' && p.length === 3 && keys.includes(p[2])) {
       const id = p[2];
-      comp(id);
       dimension = 'dimensionless';
       read = (r) => r.loop.conversions[id]?.overall ?? Number.NaN;
     } else {
-      throw err(`output \`${path}\`: the loop has recycle-ratio, fresh-feed and conversion.ID (overall)`);
+      const valid = ['loop.recycle-ratio', 'loop.fresh-feed', ...keys.map((k) => `loop.conversion.${k}`)];
+      throw err(`output \`${path}\` names nothing: the loop offers ${valid.map((v) => `\`${v}\``).join(', ')}`,
+        p[1] === 'conversion' ? 'an overall conversion is reported for the key components of the reactions' : didYouMean(path, valid));
     }
-  } else if (p[0] === 'feeds') {
-    const name = p[1];
-    const f = model.feeds.findIndex((x) => x.name === name);
-    if (f < 0) throw err(`output \`${path}\`: no feed \`${name ?? ''}\``, didYouMean(name ?? '', model.feeds.map((x) => x.name)) ?? undefined);
-    const fields: Record<string, [Dimension, (r: FlowsheetResult) => number]> = {
-      'molar-flow': ['molarFlow', (r) => r.feeds[f].molarFlow],
-      Z: ['dimensionless', (r) => r.feeds[f].Z],
-      'ideal-error': ['dimensionless', (r) => r.feeds[f].idealError ?? Number.NaN],
-    };
-    const hit = fields[p[2] ?? ''];
-    if (!hit || p.length !== 3) throw err(`output \`${path}\`: a feed has molar-flow, Z and ideal-error`);
-    [dimension, read] = hit;
   } else if (p[0] === 'balance' && p[1] === 'worst' && p.length === 2) {
     dimension = 'dimensionless';
     read = (r) => r.balance.worst;
   } else {
-    const unit0 = model.units.find((u) => u.name === p[0]);
-    if (!unit0) {
-      const names = ['streams', 'loop', 'feeds', 'balance', ...model.units.map((u) => u.name)];
-      throw err(`output \`${path}\`: \`${p[0]}\` is not a unit, nor streams, loop, feeds or balance`, didYouMean(p[0], names) ?? undefined);
+    const feed = p[0] === 'feeds';
+    const name = feed ? p[1] : p[0];
+    const exists = feed ? model.feeds.some((f) => f.name === name) : model.units.some((u) => u.name === name);
+    if (!exists) {
+      const names = feed ? model.feeds.map((f) => `feeds.${f.name}`) : ['streams', 'loop', 'feeds', 'balance', ...model.units.map((u) => u.name)];
+      throw err(feed ? `output \`${path}\`: no feed \`${name ?? ''}\`` : `output \`${path}\`: \`${p[0]}\` is not a unit, nor streams, loop, feeds or balance`, didYouMean(feed ? `feeds.${name ?? ''}` : p[0], names) ?? `the names are: ${names.join(', ')}`);
     }
-    const name = unit0.name;
-    if (p[1] === 'conversion' && p.length === 3 && unit0.type === 'reactor') {
-      const id = p[2];
-      comp(id);
-      dimension = 'dimensionless';
-      read = (r) => {
-        const rx = r.units.get(name)?.reactions?.filter((x) => x.key === id) ?? [];
-        return rx.length ? rx.reduce((a, x) => a + x.conversion, 0) : Number.NaN;
-      };
-    } else if (p[1] === 'extent' && p.length === 3 && unit0.type === 'reactor') {
-      const k = Number(p[2]);
-      dimension = 'molarFlow';
-      read = (r) => r.units.get(name)?.reactions?.[k]?.extent ?? Number.NaN;
-    } else if (p[1] === 'vapor-fraction' && p.length === 2 && (unit0.type === 'condenser' || unit0.type === 'flash')) {
-      dimension = 'dimensionless';
-      read = (r) => r.units.get(name)?.figures.find((f) => f.key === 'vaporFraction')?.value ?? Number.NaN;
+    const rest = p.slice(feed ? 2 : 1).join('.');
+    const decls = declared(model, name, feed);
+    const prefix = feed ? `feeds.${name}` : name;
+    const d = decls.find((x) => x.name === rest);
+    if (!d) {
+      const valid = decls.map((x) => `${prefix}.${x.name}`);
+      throw err(`output \`${path}\` names nothing: ${valid.length ? `${feed ? 'feed' : 'unit'} \`${name}\` offers ${valid.map((v) => `\`${v}\``).join(', ')}` : `unit \`${name}\` offers no outputs of its own`}`,
+        valid.length ? didYouMean(path, valid) : `read its streams instead, e.g. \`streams.${model.units.find((u) => u.name === name)?.outlets[0] ?? 'NAME'}.total\``);
+    }
+    dimension = d.dimension;
+    if (feed) {
+      const k = model.feeds.findIndex((f) => f.name === name);
+      read = (r) => d.read(feedSummary(r.feeds[k]));
     } else {
-      throw err(`output \`${path}\`: unit \`${name}\` (${unit0.type}) offers ${unit0.type === 'reactor' ? 'conversion.ID and extent.K' : unit0.type === 'condenser' || unit0.type === 'flash' ? 'vapor-fraction' : 'no outputs of its own; read its streams'}`);
+      read = (r) => {
+        const u = r.units.get(name);
+        return u ? d.read(u) : Number.NaN;
+      };
     }
   }
   if (unit !== undefined) {

@@ -69,6 +69,7 @@ export function normalizedOptions(spec: SweepSpec, format: SweepFormat): string 
   }
   if (spec.method) parts.push('--method', spec.method);
   if (spec.maxPasses !== undefined) parts.push('--max-passes', String(spec.maxPasses));
+  if (spec.rtol !== undefined) parts.push('--tolerance', String(spec.rtol));
   parts.push('--block', String(spec.block));
   if (!spec.continuation) parts.push('--no-continuation');
   if (format === 'jsonl') parts.push('--jsonl');
@@ -89,7 +90,7 @@ export function makeHeader(ctx: SweepContext, format: SweepFormat, shard: Shard)
     shard: `${shard.index}/${shard.count}`,
     inputs: ctx.axes.map((a) => ({ path: a.path, unit: a.unit || '1' })),
     outputs: ctx.outputs.map((o) => ({ path: o.path, unit: o.unit ?? SI[o.dimension] })),
-    adjusted: ctx.targets.map((t) => ({ path: t.by.text, unit: t.by.dimension ? SI[t.by.dimension] : '1' })),
+    adjusted: ctx.targets.map((t) => ({ path: t.by.path, unit: t.by.dimension ? SI[t.by.dimension] : '1' })),
   };
 }
 

@@ -16,11 +16,14 @@
  */
 import { InputError, type Diagnostic } from '../diagnostics.js';
 import type { MethodName, Status } from '../solve/types.js';
+import { validateText } from '../flowsheet/validate.js';
+import type { Model } from '../flowsheet/model.js';
+import { createRuntime, type Runtime } from '../flowsheet/runtime.js';
 import { fileTargets } from './file-targets.js';
 import { blocksOf, GridShape, parseAxes, type Axis, type AxisSpec } from './grid.js';
 import { outputValue, parseOutput, type OutputRef } from './outputs.js';
-import { ParametricFlowsheet } from './params.js';
-import { parseTarget, solvePoint, type InputValue, type TargetSpec } from './point.js';
+import { withValues, type ParameterValue } from './parameters.js';
+import { parseTarget, solvePoint, type TargetSpec } from './point.js';
 
 /** Points per block when --block is not given. */
 export const DEFAULT_BLOCK = 50;
@@ -46,11 +49,15 @@ export interface SweepSpec {
   block: number;
   /** false: every point starts cold (for comparison). */
   continuation: boolean;
+  /** Relative tolerance of the tears (default: the file's). */
+  rtol?: number;
 }
 
 export interface SweepContext {
   spec: SweepSpec;
-  p: ParametricFlowsheet;
+  model: Model;
+  /** The runtime this thread solves its points on. */
+  runtime: Runtime;
   axes: Axis[];
   shape: GridShape;
   outputs: OutputRef[];
@@ -71,7 +78,7 @@ export interface PointRow {
 
 /** Builds the context; every problem with the options is reported at once. */
 export function prepareSweep(spec: SweepSpec): SweepContext {
-  const p = new ParametricFlowsheet(spec.file, spec.text);
+  const model = validateText(spec.file, spec.text).model;
   const diags: Diagnostic[] = [];
   const collect = <T>(f: () => T): T | undefined => {
     try {
@@ -84,49 +91,48 @@ export function prepareSweep(spec: SweepSpec): SweepContext {
       throw e;
     }
   };
-  const axes = collect(() => parseAxes(p, spec.axes)) ?? [];
+  const axes = collect(() => parseAxes(model, spec.axes)) ?? [];
   const outputs: OutputRef[] = [];
   for (const text of spec.report) {
-    const o = collect(() => parseOutput(text, p.base.model));
+    const o = collect(() => parseOutput(text, model));
     if (!o) continue;
     if (outputs.some((x) => x.path === o.path)) diags.push({ severity: 'error', message: `--report names \`${o.path}\` twice`, help: 'name each output once, in one unit' });
     else outputs.push(o);
   }
-  const targets: TargetSpec[] = collect(() => fileTargets(p)) ?? [];
+  const targets: TargetSpec[] = collect(() => fileTargets(model)) ?? [];
   for (const t of spec.targets) {
-    const ts = collect(() => parseTarget(p, t.text, t.by, t.within));
+    const ts = collect(() => parseTarget(model, t.text, t.by, t.within));
     if (ts) targets.push(ts);
   }
   for (const t of targets) {
-    const a = axes.find((x) => x.ref.node === t.by.node || x.path === t.by.text);
-    if (a) diags.push({ severity: 'error', message: `\`${t.by.text}\` is swept by \`${a.spec.text}\` and adjusted by target \`${t.text}\``, help: 'a target must adjust an input that the sweep leaves free' });
+    const a = axes.find((x) => x.parameter.path === t.by.path);
+    if (a) diags.push({ severity: 'error', message: `\`${t.by.path}\` is swept by \`${a.spec.text}\` and adjusted by target \`${t.text}\``, help: 'a target must adjust an input that the sweep leaves free' });
   }
   const seen = new Set<string>();
   for (const t of targets) {
-    if (seen.has(t.by.text)) diags.push({ severity: 'error', message: `two targets adjust \`${t.by.text}\``, help: 'each target needs an input of its own' });
-    seen.add(t.by.text);
+    if (seen.has(t.by.path)) diags.push({ severity: 'error', message: `two targets adjust \`${t.by.path}\``, help: 'each target needs an input of its own' });
+    seen.add(t.by.path);
   }
   if (!Number.isInteger(spec.block) || spec.block < 1) diags.push({ severity: 'error', message: `--block must be a whole number >= 1, not ${spec.block}` });
   if (diags.length) throw new InputError(diags);
-  // The ends of every grid and every listed value, each on its own (the others at the file's
-  // values), must make a valid file: a grid that runs out of range is a mistake in the command,
-  // found before anything is solved. (A combination that is invalid is a row of status invalid.)
+  // Every value of every axis, each on its own (the others at the file's values), must make a
+  // valid file: a grid that runs out of range is a mistake in the command, found before
+  // anything is solved. (A combination that is invalid is a row of status invalid.)
   for (const a of axes) {
-    const check = a.spec.kind === 'grid' ? [a.values[0], a.values[a.values.length - 1]] : a.values;
-    for (const v of check) {
+    for (let k = 0; k < a.values.length; k++) {
       try {
-        p.model([inputValue(a, v)]);
+        withValues(model, [{ parameter: a.parameter, value: a.si[k] }]);
       } catch (e) {
         if (!(e instanceof InputError)) throw e;
         for (const d of e.diagnostics) {
-          if (d.severity === 'error') diags.push({ ...d, message: `with \`${a.path}\` = ${v}${a.unit ? ` ${a.unit}` : ''} (from \`${a.spec.text}\`): ${d.message}`, help: d.help ?? 'keep the grid inside the range the file accepts' });
+          if (d.severity === 'error') diags.push({ ...d, message: `with \`${a.path}\` = ${a.values[k]}${a.unit ? ` ${a.unit}` : ''} (from \`${a.spec.text}\`): ${d.message.replace(/^with [^:]*: /, '')}`, help: d.help ?? 'keep the grid inside the range the file accepts' });
         }
       }
     }
   }
   if (diags.length) throw new InputError(dedupe(diags));
   const shape = new GridShape(axes.map((a) => a.values.length));
-  return { spec, p, axes, shape, outputs, targets, blocks: blocksOf(shape, spec.block) };
+  return { spec, model, runtime: createRuntime(model), axes, shape, outputs, targets, blocks: blocksOf(shape, spec.block) };
 }
 
 function dedupe(ds: Diagnostic[]): Diagnostic[] {
@@ -139,10 +145,6 @@ function dedupe(ds: Diagnostic[]): Diagnostic[] {
   });
 }
 
-function inputValue(a: Axis, v: number): InputValue {
-  return a.unit ? { ref: a.ref, value: v, unit: a.unit } : { ref: a.ref, value: v };
-}
-
 /** The input values of a point, in the axes' units. */
 export function pointInputs(ctx: Pick<SweepContext, 'axes' | 'shape'>, point: number): number[] {
   const idx = ctx.shape.index(point);
@@ -151,9 +153,10 @@ export function pointInputs(ctx: Pick<SweepContext, 'axes' | 'shape'>, point: nu
 
 /** Solves one point from a start (or cold); a neighbour's Jacobian, when given, starts Newton. */
 export function solveOne(ctx: SweepContext, point: number, start: Float64Array | undefined, jacobian?: Float64Array): { row: PointRow; start?: Float64Array; jacobian?: Float64Array } {
-  const values = pointInputs(ctx, point).map((v, k) => inputValue(ctx.axes[k], v));
+  const idx = ctx.shape.index(point);
+  const values: ParameterValue[] = ctx.axes.map((a, k) => ({ parameter: a.parameter, value: a.si[idx[k]] }));
   const method = ctx.spec.method ?? (start ? 'newton' : undefined);
-  const r = solvePoint(ctx.p, values, { targets: ctx.targets, start, jacobian, method, maxPasses: ctx.spec.maxPasses });
+  const r = solvePoint(ctx.model, values, { targets: ctx.targets, start, jacobian, method, maxPasses: ctx.spec.maxPasses, rtol: ctx.spec.rtol, runtime: ctx.runtime });
   const row: PointRow = { point, status: r.status };
   if (r.status === 'converged' && r.result) {
     const res = r.result;

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { validateText } from '../../src/flowsheet/validate.js';
-import { buildRuntime } from '../../src/flowsheet/runtime.js';
+import { createRuntime } from '../../src/flowsheet/runtime.js';
 import { tearStructure } from '../../src/flowsheet/jacobian-structure.js';
 import { solveNewtonFixedPoint } from '../../src/solve/newton.js';
 import type { FixedPointProblem } from '../../src/solve/types.js';
@@ -29,7 +29,7 @@ function loop(k: string, feed: string): string {
 }
 
 function runtimeOf(text: string) {
-  return buildRuntime(validateText('s.yaml', text).model);
+  return createRuntime(validateText('s.yaml', text).model);
 }
 
 describe('tear Jacobian structure from the graph', () => {
@@ -79,13 +79,13 @@ tears: [rec-a, rec-b]
       x0,
       lower: new Float64Array(N),
       g(x, out) {
-        rt.tearStreams.forEach((st, t) => {
+        rt.tearStreams.forEach((st: { flows: Float64Array; T: number; P: number }, t: number) => {
           for (let i = 0; i < n; i++) st.flows[i] = x[t * m + i];
           st.T = x[t * m + n];
           st.P = x[t * m + n + 1];
         });
         rt.pass();
-        rt.tearStreams.forEach((st, t) => {
+        rt.tearOutputs.forEach((st: { flows: Float64Array; T: number; P: number }, t: number) => {
           for (let i = 0; i < n; i++) out[t * m + i] = st.flows[i];
           out[t * m + n] = st.T;
           out[t * m + n + 1] = st.P;

@@ -138,7 +138,7 @@ feeds:
 
   it('the ideal-gas equation of state gives Z = 1 and no ideal-gas error', () => {
     const eos = makeEos('ideal', [findComponent('N2')!]);
-    const spec: FeedSpec = { name: 'x', composition: Float64Array.of(1), basis: { kind: 'meter', flow: 1, T: 300, P: 1e6 }, T: 300, P: 1e6 };
+    const spec: FeedSpec = { name: 'x', type: 'feed', inlets: [], outlets: ['x'], composition: Float64Array.of(1), basis: { kind: 'meter', flow: 1, T: 300, P: 1e6 }, T: 300, P: 1e6 };
     const f = computeFeed(spec, eos);
     expect(f.Z).toBe(1);
     expect(f.idealError).toBe(0);

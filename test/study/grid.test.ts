@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../src/diagnostics.js';
 import { blocksOf, GridShape, parseAxes, parseGridAxis, parseValuesAxis } from '../../src/study/grid.js';
-import { ParametricFlowsheet } from '../../src/study/params.js';
+import { loadFlowsheet } from '../../src/flowsheet/validate.js';
 import { parseShard, shardBlocks } from '../../src/study/shard.js';
 import { ROOT } from '../helpers/cli.js';
 import { join } from 'node:path';
@@ -19,7 +19,7 @@ function messageOf(f: () => unknown): string {
 }
 
 describe('grid axes', () => {
-  const p = new ParametricFlowsheet(PILOT);
+  const p = loadFlowsheet(PILOT).model;
 
   it('spaces N values evenly from START to STOP, both ends exact', () => {
     const a = parseGridAxis(p, 'reactor.reactions.0.conversion=0.15:0.35:5');
@@ -53,7 +53,7 @@ describe('grid axes', () => {
       { kind: 'values', text: 'cooler.T 40,50' },
     ]));
     expect(msg.split('\n').length).toBe(3);
-    expect(msg).toMatch(/no `reaction` in `units\.reactor`|there is no `reaction`/);
+    expect(msg).toMatch(/`reactor` has no number `reaction\.0\.conversion`/);
     expect(msg).toMatch(/number of points `x`/);
     expect(msg).toMatch(/has no `=`/);
     expect(messageOf(() => parseAxes(p, []))).toMatch(/at least one --grid or --values/);

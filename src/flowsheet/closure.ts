@@ -1,0 +1,88 @@
+/**
+ * Balance closure as a second convergence criterion. The tear test allows a component
+ * imbalance of about rtol times that component's recycle-to-feed ratio (large for an inert);
+ * a converged loop must also close its balances. This continues from the solution with a
+ * tighter tear tolerance until the balance closes too (at most three times), then leaves every
+ * stream at the final iterate with one last pass.
+ */
+import { solveFixedPoint } from '../solve/index.js';
+import type { FixedPointProblem, MethodName, SolveOptions, SolveResult } from '../solve/types.js';
+import { computeBalance, type Balance } from './balance.js';
+import type { Condition, Runtime } from './runtime.js';
+import { setTears } from './tear-problem.js';
+
+/** The balance closure (relative) a converged result must meet, for a tear tolerance rtol. */
+export function closureTolerance(rtol: number): number {
+  return Math.max(1e-9, 10 * rtol);
+}
+
+export interface Closed {
+  result: SolveResult;
+  balance: Balance;
+  /** Conditions met by the units in the final pass (a copy). */
+  conditions: Condition[];
+}
+
+export function closeBalance(
+  rt: Runtime,
+  problem: FixedPointProblem,
+  first: SolveResult,
+  opts: { method: MethodName; rtol: number; budget: number; wegstein: SolveOptions['wegstein'] },
+): Closed {
+  const tol = closureTolerance(opts.rtol);
+  let result = first;
+  for (let k = 0; ; k++) {
+    // The final pass: every stream at the current iterate (one counted pass), then the balance.
+    setTears(rt, result.x);
+    const conditions = rt.pass().slice();
+    result = { ...result, passes: result.passes + 1 };
+    const balance = computeBalance(rt);
+    const room = opts.budget - result.passes - 1;
+    if (result.status !== 'converged' || balance.worst <= tol || k === 3 || room < 1) {
+      if (result.status === 'converged' && balance.worst > tol) {
+        result = { ...result, status: 'not-converged', message: `the tear streams meet their tolerance, but ${describeOpen(balance)}; this is not a solution`, worst: undefined };
+      }
+      return { result, balance, conditions };
+    }
+    const tighter = 10 ** -(k + 1);
+    const atol = Float64Array.from(problem.atol ?? [], (v) => Math.max(1e-300, v * tighter * tighter));
+    const more = solveFixedPoint({ ...problem, atol, x0: Float64Array.from(result.x) }, opts.method === 'auto' ? 'newton' : opts.method, {
+      rtol: opts.rtol * tighter, maxPasses: room, wegstein: opts.wegstein,
+      newton: result.jacobian ? { jacobian: result.jacobian } : undefined,
+    });
+    result = mergeResults(result, more);
+  }
+}
+
+export function mergeResults(a: SolveResult, b: SolveResult): SolveResult {
+  const method = a.method === b.method || a.method.endsWith(`+${b.method}`) ? a.method : `${a.method}+${b.method}`;
+  return {
+    ...b,
+    method,
+    passes: a.passes + b.passes,
+    iterations: a.iterations + b.iterations,
+    jacobians: a.jacobians + b.jacobians,
+    jacobian: b.jacobian ?? a.jacobian,
+    history: a.history.concat(b.history.map((h) => ({ ...h, pass: h.pass + a.passes }))),
+  };
+}
+
+/** The worst open balance, described. */
+function describeOpen(b: Balance): string {
+  let worst = '';
+  let v = 0;
+  for (const [id, c] of Object.entries(b.components)) {
+    if (Math.abs(c.closure) > v) {
+      v = Math.abs(c.closure);
+      worst = `the balance of ${id} closes only to ${Math.abs(c.closure).toExponential(2)} (in ${c.in.toExponential(3)} mol/s, out ${c.out.toExponential(3)} mol/s)`;
+    }
+  }
+  for (const [el, c] of Object.entries(b.elements)) {
+    if (Math.abs(c.closure) > v) {
+      v = Math.abs(c.closure);
+      worst = `the balance of element ${el} closes only to ${Math.abs(c.closure).toExponential(2)}`;
+    }
+  }
+  if (Math.abs(b.mass.closure) > v) worst = `the mass balance closes only to ${Math.abs(b.mass.closure).toExponential(2)}`;
+  return `${worst} (a trace component far below the others, or a split close to 0 or 1, can do this: try --method newton, a tighter --tolerance, or set such a trace to zero)`;
+}

@@ -1,0 +1,34 @@
+/**
+ * Loop figures of a solved flowsheet: the recycle ratio (total recycle over total fresh feed,
+ * molar) and, for every key component a unit reports a conversion of, the single-pass
+ * conversion in that unit (from its inlet and outlet flows) and the overall conversion from
+ * fresh feed to products.
+ */
+import type { UnitSummary } from '../blocks/types.js';
+import type { Balance } from './balance.js';
+import type { StreamResult } from './result.js';
+import type { Runtime } from './runtime.js';
+
+export interface LoopFigures {
+  /** Recycle streams (closing a loop into a unit that also takes fresh material). */
+  recycles: string[];
+  /** Total recycle / total fresh feed (molar). */
+  recycleRatio: number;
+  freshFeed: number;
+  /** Per key component: single-pass conversion (in the first unit, in calculation order, that reports it) and overall. */
+  conversions: Record<string, { unit: string; singlePass: number; overall: number }>;
+}
+
+export function loopFigures(rt: Runtime, streams: ReadonlyMap<string, StreamResult>, units: ReadonlyMap<string, UnitSummary>, balance: Balance, feedTotal: number): LoopFigures {
+  let recycleTotal = 0;
+  for (const s of rt.recycles) recycleTotal += streams.get(s)?.total ?? 0;
+  const conversions: LoopFigures['conversions'] = {};
+  for (const name of rt.plan.order) {
+    for (const [id, singlePass] of Object.entries(units.get(name)?.conversions ?? {})) {
+      if (conversions[id]) continue;
+      const cb = balance.components[id];
+      conversions[id] = { unit: name, singlePass, overall: cb.in > 0 ? (cb.in - cb.out) / cb.in : 0 };
+    }
+  }
+  return { recycles: rt.recycles, recycleRatio: feedTotal > 0 ? recycleTotal / feedTotal : 0, freshFeed: feedTotal, conversions };
+}

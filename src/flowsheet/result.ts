@@ -1,0 +1,119 @@
+/**
+ * What a solve reports: the solver's result with the flowsheet's state as the final pass left
+ * it (streams, units, loop figures, balance). Assembled once, when the solve is over; nothing
+ * edits a result afterwards.
+ */
+import type { FeedResult } from '../blocks/feed.js';
+import type { Stream, UnitSummary } from '../blocks/types.js';
+import type { EvaluationFailure, HistoryEntry, SolveResult, Status } from '../solve/types.js';
+import type { Balance } from './balance.js';
+import { loopFigures, type LoopFigures } from './loop.js';
+import type { Model } from './model.js';
+import type { Runtime } from './runtime.js';
+
+export interface StreamResult {
+  flows: Float64Array;
+  total: number;
+  fractions: Float64Array;
+  T: number;
+  P: number;
+  vaporFraction: number;
+  /** kg/s */
+  massFlow: number;
+}
+
+export interface TargetReport {
+  text: string;
+  /** Output reached, SI. */
+  output: number;
+  target: number;
+  /** The output's tolerance, SI. */
+  tolerance: number;
+  /** Adjusted input, SI. */
+  input: number;
+  inputPath: string;
+  met: boolean;
+  /** Which bound stopped it, when it is infeasible. */
+  bound?: 'lower' | 'upper';
+}
+
+export interface FlowsheetResult {
+  status: Status;
+  method: string;
+  passes: number;
+  iterations: number;
+  jacobians: number;
+  residual: number;
+  scaledResidual: number;
+  history: HistoryEntry[];
+  message?: string;
+  failure?: EvaluationFailure;
+  /** Largest residuals at the end (not-converged). */
+  worst?: SolveResult['worst'];
+  tears: string[];
+  order: string[];
+  loops: string[][];
+  feeds: FeedResult[];
+  streams: Map<string, StreamResult>;
+  streamOrder: string[];
+  products: string[];
+  units: Map<string, UnitSummary & { type: string }>;
+  balance: Balance;
+  loop: LoopFigures;
+  /** The tear vector at the end (the solution when converged; starts a neighbour). */
+  x: Float64Array;
+  /** Newton's last tear Jacobian, when Newton ran (to start a neighbour). */
+  jacobian?: Float64Array;
+  warnings: string[];
+  model: Model;
+  /** Targets held, when the solve had any. */
+  targets?: TargetReport[];
+}
+
+/** The state of a runtime's streams and units as the last pass left them, under a verdict. */
+export function assembleResult(
+  rt: Runtime,
+  verdict: Pick<SolveResult, 'status' | 'method' | 'passes' | 'iterations' | 'jacobians' | 'residual' | 'scaledResidual' | 'history' | 'message' | 'failure' | 'worst' | 'jacobian'>,
+  x: Float64Array,
+  balance: Balance,
+  warnings: string[],
+  targets?: TargetReport[],
+): FlowsheetResult {
+  const streams = new Map<string, StreamResult>();
+  for (const name of rt.streamOrder) streams.set(name, streamResult(rt, rt.streams.get(name)!));
+  const units = new Map<string, UnitSummary & { type: string }>();
+  const done = new Set<string>();
+  for (const { block, ins, outs } of rt.sequence) {
+    units.set(block.spec.name, { type: block.spec.type, ...block.summary(ins, outs) });
+    done.add(block.spec.name);
+  }
+  for (const b of rt.blocks) if (!done.has(b.spec.name)) units.set(b.spec.name, { type: b.spec.type, figures: [], notes: [] });
+  let feedTotal = 0;
+  for (const f of rt.feeds) feedTotal += f.molarFlow;
+  return {
+    status: verdict.status, method: verdict.method, passes: verdict.passes, iterations: verdict.iterations, jacobians: verdict.jacobians,
+    residual: verdict.residual, scaledResidual: verdict.scaledResidual, history: verdict.history,
+    ...(verdict.message ? { message: verdict.message } : {}),
+    ...(verdict.failure ? { failure: verdict.failure } : {}),
+    ...(verdict.worst ? { worst: verdict.worst } : {}),
+    tears: rt.plan.tears, order: rt.plan.order, loops: rt.plan.loops,
+    feeds: rt.feeds.slice(), streams, streamOrder: rt.streamOrder, products: rt.products, units, balance,
+    loop: loopFigures(rt, streams, units, balance, feedTotal),
+    x: Float64Array.from(x),
+    ...(verdict.jacobian ? { jacobian: verdict.jacobian } : {}),
+    warnings, model: rt.model,
+    ...(targets ? { targets } : {}),
+  };
+}
+
+function streamResult(rt: Runtime, s: Stream): StreamResult {
+  let total = 0;
+  let mass = 0;
+  for (let i = 0; i < rt.n; i++) {
+    total += s.flows[i];
+    mass += s.flows[i] * rt.model.components[i].MW;
+  }
+  const fractions = new Float64Array(rt.n);
+  if (total > 0) for (let i = 0; i < rt.n; i++) fractions[i] = s.flows[i] / total;
+  return { flows: Float64Array.from(s.flows), total, fractions, T: s.T, P: s.P, vaporFraction: s.vf, massFlow: mass };
+}

@@ -1,0 +1,84 @@
+/**
+ * The tear streams of a runtime as the unknowns of a fixed-point problem x = g(x): each tear's
+ * component flows, then T and P; one pass of the calculation order per evaluation.
+ */
+import type { FixedPointProblem } from '../solve/types.js';
+import { tearStructure } from './jacobian-structure.js';
+import type { Runtime } from './runtime.js';
+
+export function setTears(rt: Runtime, x: Float64Array): void {
+  const { n, perTear: m } = rt;
+  const ts = rt.tearStreams;
+  for (let t = 0; t < ts.length; t++) {
+    const s = ts[t];
+    for (let i = 0; i < n; i++) s.flows[i] = x[t * m + i];
+    s.T = x[t * m + n];
+    s.P = x[t * m + n + 1];
+  }
+}
+
+export function readTears(rt: Runtime, out: Float64Array): void {
+  const { n, perTear: m } = rt;
+  const ts = rt.tearOutputs;
+  for (let t = 0; t < ts.length; t++) {
+    const s = ts[t];
+    for (let i = 0; i < n; i++) out[t * m + i] = s.flows[i];
+    out[t * m + n] = s.T;
+    out[t * m + n + 1] = s.P;
+  }
+}
+
+/** Total fresh feed, mol/s. */
+export function freshFeed(rt: Runtime): number {
+  let t = 0;
+  for (const f of rt.feeds) t += f.molarFlow;
+  return t;
+}
+
+/** The cold start: tears at zero flow, at the conditions of the first feed. */
+export function coldStart(rt: Runtime): Float64Array {
+  const { n, perTear: m } = rt;
+  const x = new Float64Array(rt.tearStreams.length * m);
+  for (let t = 0; t < rt.tearStreams.length; t++) {
+    x[t * m + n] = rt.feeds[0]?.T ?? 298.15;
+    x[t * m + n + 1] = rt.feeds[0]?.P ?? 101325;
+  }
+  return x;
+}
+
+/** The tear variables of a runtime as a fixed-point problem: bounds, absolute floors and names. */
+export function tearProblem(rt: Runtime, x0: Float64Array, feedTotal: number): FixedPointProblem {
+  const { n, model } = rt;
+  const m = rt.perTear;
+  const T = rt.tearStreams.length;
+  const N = T * m;
+  const lower = new Float64Array(N);
+  const atol = new Float64Array(N);
+  const names: string[] = [];
+  for (let t = 0; t < T; t++) {
+    for (let i = 0; i < n; i++) {
+      // Flows: a floor far below any flow that matters (1e-15 of the fresh feed).
+      atol[t * m + i] = Math.max(1e-300, feedTotal * 1e-15);
+      names.push(`${rt.plan.tears[t]}.${model.ids[i]}`);
+    }
+    lower[t * m + n] = 1e-6;
+    lower[t * m + n + 1] = 1e-6;
+    atol[t * m + n] = 1e-9;
+    atol[t * m + n + 1] = 1e-6;
+    names.push(`${rt.plan.tears[t]}.T`, `${rt.plan.tears[t]}.P`);
+  }
+  return {
+    n: N,
+    x0,
+    lower,
+    atol,
+    names,
+    // Which tears each tear's perturbation can reach: Newton skips or groups columns.
+    structure: tearStructure(rt),
+    g(x, out) {
+      setTears(rt, x);
+      rt.pass();
+      readTears(rt, out);
+    },
+  };
+}
