@@ -5,7 +5,7 @@
  * kept apart from components.ts, which holds one short row of critical constants per component,
  * and is keyed by the same ids; components.ts joins the two.
  *
- * Heat capacity. For 41 components: the NASA Glenn 7-coefficient polynomials in two ranges,
+ * Heat capacity. For 40 components: the NASA Glenn 7-coefficient polynomials in two ranges,
  *   Cp/R = a1 + a2 T + a3 T^2 + a4 T^3 + a5 T^4      (200 or 298.15 or 300 K .. 1000 K .. 5000 or 6000 K)
  * from the NASA thermodynamic database (McBride, Gordon and Reno, "Coefficients for calculating
  * thermodynamic and transport properties of individual species", NASA TM-4513, 1993; the later
@@ -18,7 +18,10 @@
  * that we could check against a second source (the only two-range fit found for n-nonane is
  * about 11 % low in Cp at 300 K against the TRC-based values of Poling et al.), so they take the
  * one-range polynomial of Poling, Prausnitz and O'Connell, The Properties of Gases and Liquids,
- * 5th ed. (2001), Appendix A, 200-1000 K.
+ * 5th ed. (2001), Appendix A, 200-1000 K. Methane's NASA polynomial runs 2.5 % above JANAF near
+ * 1000 K, so methane takes the NIST WebBook's Shomate fit of JANAF instead (two ranges, t = T/1000,
+ * rescaled here to the Cp/R form: a0 = A/R, a1 = B/(1000 R), a2 = C/(10^6 R), a3 = D/(10^9 R),
+ * d = 10^6 E/R).
  *
  * Formation data, in this order of preference:
  *   1. CODATA key values (Cox, Wagman and Medvedev, CODATA Key Values for Thermodynamics, 1989)
@@ -67,13 +70,15 @@ export const ELEMENT_S298: Readonly<Record<string, number>> = Object.freeze({
   'S(rhombic)': 32.054,
 });
 
+/**
+ * LOWER_LIMIT_NOTE: five of the older NASA fits (COS, H2S, HCl, SO2, SO3) are stated for 300 K
+ * upwards, but their a6 and a7 are fixed at 298.15 K, where the formation data are defined; they
+ * are used here from 298.15 K, 1.85 K below the stated limit (common practice, no source).
+ */
 /** NASA 7-coefficient polynomials (see the header), by component id. */
 export const NASA7: Readonly<Record<string, Nasa7>> = Object.freeze({
-  CH4: {
-    T: [200, 1000, 6000],
-    low: [5.14987613, -0.0136709788, 4.91800599e-5, -4.84743026e-8, 1.66693956e-11, -10246.6476, -4.64130376],
-    high: [1.63552643, 0.0100842795, -3.36916254e-6, 5.34958667e-10, -3.15518833e-14, -10005.6455, 9.99313326],
-  },
+  // CH4: the NASA TM-4513 polynomial (the one also carried by GRI-Mech 3.0) runs 2.5 % above JANAF at
+  // 1000-1300 K (73.6 against 71.8 J/(mol K) at 1000 K); methane takes JANAF's Shomate fit instead (SHOMATE).
   CH3OH: {
     T: [200, 1000, 6000],
     low: [5.71539582, -0.0152309129, 6.52441155e-5, -7.10806889e-8, 2.61352698e-11, -25642.7656, -1.50409823],
@@ -85,7 +90,7 @@ export const NASA7: Readonly<Record<string, Nasa7>> = Object.freeze({
     high: [3.04848583, 0.00135172818, -4.85794075e-7, 7.88536486e-11, -4.69807489e-15, -14266.1171, 6.0170979],
   },
   COS: {
-    T: [300, 1000, 5000],
+    T: [298.15, 1000, 5000], // NASA: 300-1000-5000 K; see LOWER_LIMIT_NOTE
     low: [2.4625321, 0.011947992, -1.379437e-5, 8.0707736e-9, -1.8327653e-12, -17803.987, 10.8058688],
     high: [5.2392, 0.0024100584, -9.6064522e-7, 1.7778347e-10, -1.2235704e-14, -18480.455, -3.07773889],
   },
@@ -210,7 +215,7 @@ export const NASA7: Readonly<Record<string, Nasa7>> = Object.freeze({
     high: [2.67703787, 0.00297318329, -7.7376969e-7, 9.44336689e-11, -4.26900959e-15, -29885.8938, 6.88255571],
   },
   H2S: {
-    T: [300, 1000, 5000],
+    T: [298.15, 1000, 5000], // NASA: 300-1000-5000 K; see LOWER_LIMIT_NOTE
     low: [3.9323476, -5.0260905e-4, 4.5928473e-6, -3.1807214e-9, 6.6497561e-13, -3650.5359, 2.3157905],
     high: [2.7452199, 0.0040434607, -1.538451e-6, 2.7520249e-10, -1.8592095e-14, -3419.9444, 8.0546745],
   },
@@ -220,7 +225,7 @@ export const NASA7: Readonly<Record<string, Nasa7>> = Object.freeze({
     high: [2.5, 0, 0, 0, 0, -745.375, 0.928724724],
   },
   HCl: {
-    T: [300, 1000, 5000],
+    T: [298.15, 1000, 5000], // NASA: 300-1000-5000 K; see LOWER_LIMIT_NOTE
     low: [3.5248171, 2.9984862e-5, -8.6221891e-7, 2.0979721e-9, -9.8658191e-13, -12150.509, 2.40892359],
     high: [2.7665884, 0.0014381883, -4.6993e-7, 7.3499408e-11, -4.3731106e-15, -11917.468, 6.47150629],
   },
@@ -255,20 +260,22 @@ export const NASA7: Readonly<Record<string, Nasa7>> = Object.freeze({
     high: [3.66096083, 6.56365523e-4, -1.41149485e-7, 2.05797658e-11, -1.29913248e-15, -1215.97725, 3.41536184],
   },
   SO2: {
-    T: [300, 1000, 5000],
+    T: [298.15, 1000, 5000], // NASA: 300-1000-5000 K; see LOWER_LIMIT_NOTE
     low: [3.2665338, 0.0053237902, 6.8437552e-7, -5.2810047e-9, 2.5590454e-12, -36908.148, 9.66465108],
     high: [5.2451364, 0.0019704204, -8.0375769e-7, 1.5149969e-10, -1.0558004e-14, -37558.227, -1.07404892],
   },
   SO3: {
-    T: [300, 1000, 5000],
+    T: [298.15, 1000, 5000], // NASA: 300-1000-5000 K; see LOWER_LIMIT_NOTE
     low: [2.5780385, 0.014556335, -9.1764173e-6, -7.9203022e-10, 1.9709473e-12, -48931.753, 12.2651384],
     high: [7.0757376, 0.0031763387, -1.353576e-6, 2.5630912e-10, -1.7936044e-14, -50211.376, -11.1875176],
   },
+  // Monatomic gas: Cp/R = 5/2 exactly; a7 from the NASA Glenn 2002 database (McBride, Zehe and Gordon, NASA TP-2002-211556).
   Ar: {
     T: [200, 1000, 6000],
     low: [2.5, 0, 0, 0, 0, -745.375, 4.37967491],
     high: [2.5, 0, 0, 0, 0, -745.375, 4.37967491],
   },
+  // NASA Glenn fit dated 6/01 to TRC (1985) data, as reproduced by Burcat and Ruscic (see the header).
   nC6H14: {
     T: [200, 1000, 6000],
     low: [9.87121167, -0.00936699002, 1.69887865e-4, -2.1501952e-7, 8.45407091e-11, -23718.5495, -12.4999353],
@@ -286,6 +293,36 @@ export const POLING_CP: Readonly<Record<string, { T: readonly [number, number]; 
   nC10H22: { T: [200, 1000], a: [13.467, 0.004139, 2.3127e-4, -3.0477e-7, 1.197e-10] },
 });
 
+/**
+ * Shomate parameters of the NIST Chemistry WebBook (fits of NIST-JANAF 4th ed., Chase 1998),
+ * Cp = A + B t + C t^2 + D t^3 + E / t^2 J/(mol K) with t = T/1000, over [T0, T1] and [T1, T2] K.
+ */
+export const SHOMATE: Readonly<Record<string, { T: readonly [number, number, number]; low: readonly number[]; high: readonly number[] }>> =
+  Object.freeze({
+    CH4: {
+      T: [298, 1300, 6000],
+      low: [-0.703029, 108.4773, -42.52157, 5.862788, 0.678565],
+      high: [85.81217, 11.26467, -2.114146, 0.13819, -26.42221],
+    },
+  });
+
+/** Gas constant used to make the Shomate parameters dimensionless, J/(mol K) (as src/thermo/constants.ts). */
+const R_SHOMATE = 8.314462618;
+
+function shomatePiece(p: readonly number[], Tmin: number, Tmax: number) {
+  const [A, B, C, D, E] = p;
+  return Object.freeze({
+    a: Object.freeze([A / R_SHOMATE, B / (1e3 * R_SHOMATE), C / (1e6 * R_SHOMATE), D / (1e9 * R_SHOMATE)]),
+    d: (E * 1e6) / R_SHOMATE,
+    Tmin,
+    Tmax,
+  });
+}
+
+function fromShomate(s: { T: readonly [number, number, number]; low: readonly number[]; high: readonly number[] }): CpCorrelation {
+  return Object.freeze({ pieces: Object.freeze([shomatePiece(s.low, s.T[0], s.T[1]), shomatePiece(s.high, s.T[1], s.T[2])]) });
+}
+
 function fromNasa7(n: Nasa7): CpCorrelation {
   return Object.freeze({
     pieces: Object.freeze([
@@ -300,6 +337,7 @@ function fromPoling(p: { T: readonly [number, number]; a: readonly number[] }): 
 }
 
 const CP_NASA = 'Cp: NASA Glenn 7-coefficient polynomials (McBride, Gordon and Reno, NASA TM-4513, 1993)';
+const CP_SHOMATE = 'Cp: NIST Chemistry WebBook Shomate parameters, fits of NIST-JANAF 4th ed. (Chase, 1998), 298-1300-6000 K';
 const CP_POLING = "Cp: Poling, Prausnitz and O'Connell, 5th ed. (2001), App. A polynomial, 200-1000 K";
 const CODATA = 'hf and S°: CODATA Key Values (Cox, Wagman and Medvedev, 1989) (from memory), gf = hf - T (S° - S° elements)';
 const ATCT = 'hf: Active Thermochemical Tables (Ruscic et al., ATcT ver. 1.112)';
@@ -309,10 +347,11 @@ const S_NASA = 'gf = hf - T (S° - S° elements, CODATA 1989) with S° from the 
 
 function entry(id: string, hf: number, gf: number, source: string): ThermoEntry {
   const n = NASA7[id];
+  const sh = SHOMATE[id];
   const p = POLING_CP[id];
-  const cp = n ? fromNasa7(n) : p ? fromPoling(p) : undefined;
+  const cp = n ? fromNasa7(n) : sh ? fromShomate(sh) : p ? fromPoling(p) : undefined;
   if (!cp) throw new Error(`thermochemistry table: no heat capacity for ${id}`);
-  return Object.freeze({ cp, hf, gf, thermoSource: `${n ? CP_NASA : CP_POLING}; ${source}` });
+  return Object.freeze({ cp, hf, gf, thermoSource: `${n ? CP_NASA : sh ? CP_SHOMATE : CP_POLING}; ${source}` });
 }
 
 /** Thermochemical data by component id. hf and gf in J/mol (ideal gas, 298.15 K, 1 bar). */
