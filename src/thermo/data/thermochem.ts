@@ -6,7 +6,8 @@
  * and is keyed by the same ids; components.ts joins the two.
  *
  * Heat capacity. For 40 components: the NASA Glenn 7-coefficient polynomials in two ranges,
- *   Cp/R = a1 + a2 T + a3 T^2 + a4 T^3 + a5 T^4      (200 or 298.15 or 300 K .. 1000 K .. 5000 or 6000 K)
+ *   Cp/R = a1 + a2 T + a3 T^2 + a4 T^3 + a5 T^4      (200 or 298.15 K .. 1000 K .. 5000 or 6000 K;
+ *   five older fits are stated from 300 K, see LOWER_LIMIT_NOTE)
  * from the NASA thermodynamic database (McBride, Gordon and Reno, "Coefficients for calculating
  * thermodynamic and transport properties of individual species", NASA TM-4513, 1993; the later
  * 200-1000-6000 K fits are McBride's, NASA Glenn), copied coefficient by coefficient from that
