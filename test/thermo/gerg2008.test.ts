@@ -66,7 +66,14 @@ describe('GERG-2008 against the reference implementation (NIST, usnistgov/AGA8)'
   const g = model(PAPER_ORDER);
   const x = fractions(g, TEST_GAS);
 
-  it('reproduces every published output at 400 K and 50 MPa to 1e-9', () => {
+  // Agreement is about 1e-15; the checks use 1e-12 rather than 1e-9 so that they notice a slip in
+  // nearly any coefficient. Measured by perturbing the tables one number at a time: a 1e-6
+  // relative change of a reducing parameter moves D here by 4e-16 (n-decane/water, the least
+  // visible pair) to about 1e-8, so a slip of 1 % in any of the 840 shows; a 0.1 % change of a
+  // pure-fluid, ideal-part or departure coefficient shows, except for the last terms (exp(-delta^6),
+  // tau^26 to tau^30) of methane, nitrogen, ethane and carbon dioxide and one n-decane term, which
+  // are all but zero at 400 K and were checked against the source by eye.
+  it('reproduces every published output at 400 K and 50 MPa to 1e-12', () => {
     // GERG2008_test_01.cpp (units there: mol/l, kPa, J/mol, K/kPa).
     const r = g.density(400, 50e6, x);
     expect(r.status).toBe('converged');
@@ -91,10 +98,10 @@ describe('GERG-2008 against the reference implementation (NIST, usnistgov/AGA8)'
       kappa: 2.683820255058032,
     };
     expect(rel(g.molarMass(x), ref.M)).toBeLessThan(1e-12);
-    expect(rel(r.D, ref.D)).toBeLessThan(1e-9);
-    expect(rel(r.Z, ref.Z)).toBeLessThan(1e-9);
+    expect(rel(r.D, ref.D)).toBeLessThan(1e-12);
+    expect(rel(r.Z, ref.Z)).toBeLessThan(1e-12);
     for (const key of ['P', 'Z', 'dPdD', 'd2PdD2', 'dPdT', 'U', 'H', 'S', 'Cv', 'Cp', 'W', 'G', 'JT', 'kappa'] as const) {
-      expect(rel(p[key], ref[key]), key).toBeLessThan(1e-9);
+      expect(rel(p[key], ref[key]), key).toBeLessThan(1e-12);
     }
     // The listing at the end of GERG2008.cpp prints d2P/drho2 = 1130.481239114938 kPa/(mol/l)^2;
     // its test file (above) has 1129.526655214841. Ours agrees with the test file and differs from
@@ -119,8 +126,8 @@ describe('GERG-2008 against the reference implementation (NIST, usnistgov/AGA8)'
     // 350 K (the published file holding them was not found in the stored copies of the repository).
     const r = g.density(350, 50e6, x);
     expect(r.status).toBe('converged');
-    expect(rel(r.D, 14.687295425741453e3)).toBeLessThan(1e-9);
-    expect(rel(r.Z, 1.169837272320901)).toBeLessThan(1e-9);
+    expect(rel(r.D, 14.687295425741453e3)).toBeLessThan(1e-12);
+    expect(rel(r.Z, 1.169837272320901)).toBeLessThan(1e-12);
   });
 
   it('puts h and s of every pure ideal gas at zero at 298.15 K and 101.325 kPa (the reference state)', () => {
