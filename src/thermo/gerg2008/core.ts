@@ -103,24 +103,59 @@ export class GergCore {
   // Flat term arrays.
   private readonly nTerms: number;
   private readonly kind: Uint8Array;
-  private readonly d: Float64Array;
+  /** Density exponents and exp(-delta^c) exponents as integers (array indices). */
+  private readonly d: Int32Array;
   private readonly t: Float64Array;
-  private readonly c: Float64Array;
+  private readonly c: Int32Array;
+  /**
+   * tau^t = tau^tInt * tau^frac: the integer part from a table of integer powers, the fraction
+   * from a table of the few distinct fractions (one exp each) instead of one exp per term.
+   */
+  private readonly tInt: Int32Array;
+  private readonly tFracIndex: Int32Array;
+  private readonly fracs: Float64Array;
+  private readonly fracPow: Float64Array;
+  private readonly minTInt: number;
+  private readonly intPow: Float64Array;
   private readonly eta: Float64Array;
   private readonly eps: Float64Array;
   private readonly beta: Float64Array;
   private readonly gam: Float64Array;
   private readonly blocks: Block[];
-  /** Composition-weighted coefficients and the same times tau^t. */
+  /** Composition-weighted coefficients of all terms. */
   private readonly N: Float64Array;
-  private readonly A: Float64Array;
-  /** Indices of the terms with N != 0 (for the current composition), split by kind. */
-  private readonly active: Int32Array;
+  /**
+   * The active terms (N != 0) of the current composition, compact and in kind order: exponents,
+   * exp group, eta and 2 eta eps - beta of departure terms, t and its split, N, and A = N tau^t.
+   */
+  private readonly qD: Int32Array;
+  private readonly qC: Int32Array;
+  private readonly qG: Int32Array;
+  private readonly qEta: Float64Array;
+  private readonly qS: Float64Array;
+  private readonly qT: Float64Array;
+  private readonly qTInt: Int32Array;
+  private readonly qTFrac: Int32Array;
+  private readonly qN: Float64Array;
+  private readonly qA: Float64Array;
   private nPoly = 0;
   private nPureExp = 0;
   private nDepExp = 0;
+  /**
+   * Departure exponential terms with equal (eta, eps, beta, gamma) share one exp per density:
+   * expGroup[k] indexes groups of (eta, eps, beta, gamma) whose value is kept in groupExp.
+   */
+  private readonly expGroup: Int32Array;
+  private readonly groupEta: Float64Array;
+  private readonly groupEps: Float64Array;
+  private readonly groupBeta: Float64Array;
+  private readonly groupGam: Float64Array;
+  private readonly groupExp: Float64Array;
+  private readonly groupActive: Uint8Array;
   private readonly maxC: number;
   private readonly expC: Float64Array;
+  /** exp(-delta^c) is needed for these c (by the active terms). */
+  private readonly cActive: Uint8Array;
   private readonly powC: Float64Array;
   /** delta^d for the integer exponents d of the terms. */
   private readonly maxD: number;
@@ -133,6 +168,11 @@ export class GergCore {
   private readonly idN: Float64Array; // n x 4
   private readonly idTh: Float64Array; // n x 4
   private readonly lnRho0: number;
+  /** Temperature part of the ideal sums, kept for the last temperature and composition. */
+  private idealT = NaN;
+  private idealA = 0;
+  private idealT1 = 0;
+  private idealT2 = 0;
 
   // Current composition and temperature.
   private readonly x: Float64Array;
@@ -261,21 +301,68 @@ export class GergCore {
     this.blocks = blocks;
     this.nTerms = kinds.length;
     this.kind = Uint8Array.from(kinds);
-    this.d = Float64Array.from(ds);
+    this.d = Int32Array.from(ds);
     this.t = Float64Array.from(ts);
-    this.c = Float64Array.from(cs);
+    this.c = Int32Array.from(cs);
+    const tInts = ts.map((v) => Math.floor(v));
+    const fracList: number[] = [];
+    const fracIndex = ts.map((v, k) => {
+      const f = v - tInts[k];
+      let j = fracList.findIndex((g) => Math.abs(g - f) < 1e-12);
+      if (j < 0) {
+        j = fracList.length;
+        fracList.push(f);
+      }
+      return j;
+    });
+    this.tInt = Int32Array.from(tInts);
+    this.tFracIndex = Int32Array.from(fracIndex);
+    this.fracs = Float64Array.from(fracList);
+    this.fracPow = new Float64Array(fracList.length);
+    this.minTInt = Math.min(0, ...tInts);
+    this.intPow = new Float64Array(Math.max(0, ...tInts) - this.minTInt + 1);
     this.eta = Float64Array.from(etas);
     this.eps = Float64Array.from(epss);
     this.beta = Float64Array.from(betas);
     this.gam = Float64Array.from(gams);
+    const groups: number[][] = [];
+    const expGroup = kinds.map((kd, k) => {
+      if (kd !== KIND_DEP_EXP) return -1;
+      const key = [etas[k], epss[k], betas[k], gams[k]];
+      let j = groups.findIndex((g) => g.every((v, i) => v === key[i]));
+      if (j < 0) {
+        j = groups.length;
+        groups.push(key);
+      }
+      return j;
+    });
+    this.expGroup = Int32Array.from(expGroup);
+    this.groupEta = Float64Array.from(groups, (g) => g[0]);
+    this.groupEps = Float64Array.from(groups, (g) => g[1]);
+    this.groupBeta = Float64Array.from(groups, (g) => g[2]);
+    this.groupGam = Float64Array.from(groups, (g) => g[3]);
+    this.groupExp = new Float64Array(groups.length);
+    this.groupActive = new Uint8Array(groups.length);
     this.N = new Float64Array(this.nTerms);
-    this.A = new Float64Array(this.nTerms);
-    this.active = new Int32Array(this.nTerms);
+    const nt = this.nTerms;
+    this.qD = new Int32Array(nt);
+    this.qC = new Int32Array(nt);
+    this.qG = new Int32Array(nt);
+    this.qEta = new Float64Array(nt);
+    this.qS = new Float64Array(nt);
+    this.qT = new Float64Array(nt);
+    this.qTInt = new Int32Array(nt);
+    this.qTFrac = new Int32Array(nt);
+    this.qN = new Float64Array(nt);
+    this.qA = new Float64Array(nt);
     this.maxC = cs.reduce((m, v) => Math.max(m, v), 0);
     this.expC = new Float64Array(this.maxC + 1);
     this.powC = new Float64Array(this.maxC + 1);
+    this.cActive = new Uint8Array(this.maxC + 1);
     this.maxD = ds.reduce((m, v) => Math.max(m, v), this.maxC);
-    if (!ds.every((v) => Number.isInteger(v) && v >= 0)) throw new Error('GERG-2008 data: density exponents must be whole numbers');
+    if (!ds.every((v) => Number.isInteger(v) && v >= 0) || !cs.every((v) => Number.isInteger(v) && v >= 0)) {
+      throw new Error('GERG-2008 data: density exponents must be whole numbers');
+    }
     this.powD = new Float64Array(this.maxD + 1);
 
     // Ideal part.
@@ -345,17 +432,37 @@ export class GergCore {
         for (let k = 0; k < count; k++) this.N[start + k] += w * b.coef[k];
       }
     }
-    // Active terms in kind order: polynomial, pure exponential, departure exponential.
+    // Active terms (N != 0), copied in kind order (polynomial, pure exponential, departure
+    // exponential) into compact arrays that the evaluations walk without indirection.
     let m = 0;
     for (const kindWanted of [KIND_POLY, KIND_PURE_EXP, KIND_DEP_EXP]) {
       const before = m;
-      for (let k = 0; k < this.nTerms; k++) if (this.kind[k] === kindWanted && this.N[k] !== 0) this.active[m++] = k;
+      for (let k = 0; k < this.nTerms; k++) {
+        if (this.kind[k] !== kindWanted || this.N[k] === 0) continue;
+        this.qD[m] = this.d[k];
+        this.qC[m] = this.c[k];
+        this.qG[m] = this.expGroup[k];
+        this.qEta[m] = this.eta[k];
+        this.qS[m] = 2 * this.eta[k] * this.eps[k] - this.beta[k];
+        this.qT[m] = this.t[k];
+        this.qTInt[m] = this.tInt[k];
+        this.qTFrac[m] = this.tFracIndex[k];
+        this.qN[m] = this.N[k];
+        m++;
+      }
       if (kindWanted === KIND_POLY) this.nPoly = m - before;
       else if (kindWanted === KIND_PURE_EXP) this.nPureExp = m - before;
       else this.nDepExp = m - before;
     }
+    this.cActive.fill(0);
+    this.groupActive.fill(0);
+    for (let q = this.nPoly; q < m; q++) {
+      if (q < this.nPoly + this.nPureExp) this.cActive[this.qC[q]] = 1;
+      else this.groupActive[this.qG[q]] = 1;
+    }
     this.compositionSet = true;
     this.tempT = NaN;
+    this.idealT = NaN;
   }
 
   /** Sets the temperature (after the composition); cheap when it has not changed. */
@@ -363,12 +470,20 @@ export class GergCore {
     if (T === this.tempT) return;
     const tau = this.TR / T;
     const lnTau = Math.log(tau);
-    const total = this.nPoly + this.nPureExp + this.nDepExp;
-    for (let m = 0; m < total; m++) {
-      const k = this.active[m];
-      const tk = this.t[k];
-      this.A[k] = tk === 0 ? this.N[k] : this.N[k] * Math.exp(tk * lnTau);
+    for (let j = 0; j < this.fracs.length; j++) {
+      const f = this.fracs[j];
+      this.fracPow[j] = f === 0 ? 1 : Math.exp(f * lnTau);
     }
+    // Integer powers tau^minTInt .. tau^maxTInt (minTInt <= 0).
+    const ip = this.intPow;
+    const z = -this.minTInt;
+    ip[z] = 1;
+    for (let k = z + 1; k < ip.length; k++) ip[k] = ip[k - 1] * tau;
+    const inv = 1 / tau;
+    for (let k = z - 1; k >= 0; k--) ip[k] = ip[k + 1] * inv;
+    const total = this.nPoly + this.nPureExp + this.nDepExp;
+    const qA = this.qA;
+    for (let m = 0; m < total; m++) qA[m] = this.qN[m] * ip[this.qTInt[m] + z] * this.fracPow[this.qTFrac[m]];
     this.tau = tau;
     this.tempT = T;
   }
@@ -378,9 +493,15 @@ export class GergCore {
     pd[0] = 1;
     for (let k = 1; k <= this.maxD; k++) pd[k] = pd[k - 1] * delta;
     for (let c = 1; c <= this.maxC; c++) {
+      if (this.cActive[c] === 0) continue;
       const p = pd[c];
       this.powC[c] = p;
       this.expC[c] = Math.exp(-p);
+    }
+    for (let j = 0; j < this.groupExp.length; j++) {
+      if (this.groupActive[j] === 0) continue;
+      const e = delta - this.groupEps[j];
+      this.groupExp[j] = Math.exp(-this.groupEta[j] * e * e - this.groupBeta[j] * (delta - this.groupGam[j]));
     }
   }
 
@@ -390,43 +511,45 @@ export class GergCore {
    */
   pressureDerivatives(delta: number, out: Float64Array): void {
     this.prepareDelta(delta);
-    const active = this.active;
-    const A = this.A;
-    const d = this.d;
+    const qA = this.qA;
+    const qD = this.qD;
+    const qC = this.qC;
     const pd = this.powD;
+    const expC = this.expC;
+    const powC = this.powC;
     let s1 = 0;
     let s2 = 0;
     let m = 0;
     const endPoly = this.nPoly;
     for (; m < endPoly; m++) {
-      const k = active[m];
-      const dk = d[k];
-      const a = A[k] * pd[dk];
+      const dk = qD[m];
+      const a = qA[m] * pd[dk];
       s1 += a * dk;
       s2 += a * dk * (dk - 1);
     }
     const endPure = endPoly + this.nPureExp;
     for (; m < endPure; m++) {
-      const k = active[m];
-      const dk = d[k];
-      const ck = this.c[k];
-      const a = A[k] * pd[dk] * this.expC[ck];
-      const u = -ck * this.powC[ck];
+      const dk = qD[m];
+      const ck = qC[m];
+      const a = qA[m] * pd[dk] * expC[ck];
+      const u = -ck * powC[ck];
       const q = dk + u;
       s1 += a * q;
       s2 += a * (q * q + ck * u - q);
     }
     const endDep = endPure + this.nDepExp;
+    const qG = this.qG;
+    const qEta = this.qEta;
+    const qS = this.qS;
+    const groupExp = this.groupExp;
+    const dd2 = delta * delta;
     for (; m < endDep; m++) {
-      const k = active[m];
-      const dk = d[k];
-      const eta = this.eta[k];
-      const e = delta - this.eps[k];
-      const a = A[k] * pd[dk] * Math.exp(-eta * e * e - this.beta[k] * (delta - this.gam[k]));
-      const sk = 2 * eta * this.eps[k] - this.beta[k];
-      const ed2 = eta * delta * delta;
-      const u = -2 * ed2 + sk * delta;
-      const v = -4 * ed2 + sk * delta;
+      const dk = qD[m];
+      const a = qA[m] * pd[dk] * groupExp[qG[m]];
+      const ed2 = qEta[m] * dd2;
+      const sd = qS[m] * delta;
+      const u = -2 * ed2 + sd;
+      const v = -4 * ed2 + sd;
       const q = dk + u;
       s1 += a * q;
       s2 += a * (q * q + v - q);
@@ -438,8 +561,9 @@ export class GergCore {
   /** All residual derivatives at the current composition and temperature. */
   residual(delta: number, out: ResidualDerivatives): ResidualDerivatives {
     this.prepareDelta(delta);
-    const active = this.active;
-    const A = this.A;
+    const qA = this.qA;
+    const qD = this.qD;
+    const qT = this.qT;
     const pd = this.powD;
     let sa = 0;
     let s1 = 0;
@@ -452,34 +576,32 @@ export class GergCore {
     const total = this.nPoly + this.nPureExp + this.nDepExp;
     const endPoly = this.nPoly;
     const endPure = endPoly + this.nPureExp;
+    const dd2 = delta * delta;
     for (let m = 0; m < total; m++) {
-      const k = active[m];
-      const dk = this.d[k];
-      const tk = this.t[k];
+      const dk = qD[m];
+      const tk = qT[m];
       let a: number;
       let u: number;
       let v: number;
       let w: number;
       if (m < endPoly) {
-        a = A[k] * pd[dk];
+        a = qA[m] * pd[dk];
         u = 0;
         v = 0;
         w = 0;
       } else if (m < endPure) {
-        const ck = this.c[k];
-        a = A[k] * pd[dk] * this.expC[ck];
+        const ck = this.qC[m];
+        a = qA[m] * pd[dk] * this.expC[ck];
         u = -ck * this.powC[ck];
         v = ck * u;
         w = ck * v;
       } else {
-        const eta = this.eta[k];
-        const e = delta - this.eps[k];
-        a = A[k] * pd[dk] * Math.exp(-eta * e * e - this.beta[k] * (delta - this.gam[k]));
-        const sk = 2 * eta * this.eps[k] - this.beta[k];
-        const ed2 = eta * delta * delta;
-        u = -2 * ed2 + sk * delta;
-        v = -4 * ed2 + sk * delta;
-        w = -8 * ed2 + sk * delta;
+        a = qA[m] * pd[dk] * this.groupExp[this.qG[m]];
+        const ed2 = this.qEta[m] * dd2;
+        const sd = this.qS[m] * delta;
+        u = -2 * ed2 + sd;
+        v = -4 * ed2 + sd;
+        w = -8 * ed2 + sd;
       }
       const q = dk + u;
       const dd = q * q + v - q;
@@ -512,8 +634,15 @@ export class GergCore {
    * implementation tabulates them; the last term keeps h° = 0 at T0 for r != 1.
    */
   ideal(T: number, rho: number, out: IdealDerivatives): IdealDerivatives {
+    if (T !== this.idealT) this.idealTemperaturePart(T);
+    out.a = this.idealA + Math.log(rho) - this.lnRho0;
+    out.t1 = this.idealT1;
+    out.t2 = this.idealT2;
+    return out;
+  }
+
+  private idealTemperaturePart(T: number): void {
     const r = R_STAR / R_GERG;
-    const lnRho = Math.log(rho) - this.lnRho0;
     const lnT = Math.log(T);
     const shift = ((r - 1) * T0) / T;
     let a = 0;
@@ -545,14 +674,14 @@ export class GergCore {
         }
       }
       const c0m1 = this.idC0[i] - 1;
-      a += xi * (Math.log(xi) + lnRho + r * (this.idA1[i] + this.idA2[i] / T - c0m1 * lnT + h0) + shift);
+      a += xi * (Math.log(xi) + r * (this.idA1[i] + this.idA2[i] / T - c0m1 * lnT + h0) + shift);
       t1 += xi * (r * (this.idA2[i] / T + c0m1 + h1) + shift);
       t2 -= xi * r * (c0m1 + h2);
     }
-    out.a = a;
-    out.t1 = t1;
-    out.t2 = t2;
-    return out;
+    this.idealA = a;
+    this.idealT1 = t1;
+    this.idealT2 = t2;
+    this.idealT = T;
   }
 
   /** Molar mass of the current or given composition, kg/mol. */
