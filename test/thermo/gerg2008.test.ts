@@ -7,8 +7,8 @@
  *    50 MPa, every property it prints. These check the transcription of every coefficient table
  *    (all 21 components and all 210 pairs take part) and the evaluation, to 1e-9 relative.
  * 2. Pure fluids against the tables of the reference equations of state the NIST WebBook
- *    evaluates (values read from the tests of the public repository jjgomera/pychemqt, which
- *    quote the tables, not re-read from the printed papers):
+ *    evaluates (values read from the test code of a public repository that quotes these tables
+ *    with page and table numbers; not re-read from the printed papers):
  *      nitrogen: Span, Lemmon, Jacobsen, Wagner and Yokozeki, J. Phys. Chem. Ref. Data 29 (2000)
  *        1361-1433, single-phase table, p. 1410;
  *      methane: Setzmann and Wagner, J. Phys. Chem. Ref. Data 20 (1991) 1061-1155, Table 40, p. 1119;

@@ -690,17 +690,6 @@ export class GergCore {
     for (let i = 0; i < this.n; i++) m += x[i] * this.M[i];
     return m;
   }
-
-  /** Mole-fraction average critical temperature and density (a start for dense iterations). */
-  pseudoCritical(x: ArrayLike<number>): { Tc: number; rhoc: number } {
-    let tc = 0;
-    let v = 0;
-    for (let i = 0; i < this.n; i++) {
-      tc += x[i] * this.Tc[i];
-      v += x[i] / this.rhoc[i];
-    }
-    return { Tc: tc, rhoc: 1 / v };
-  }
 }
 
 /** The pure-fluid records for loopclose ids, or the ids GERG-2008 does not cover. */

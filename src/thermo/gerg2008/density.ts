@@ -24,8 +24,6 @@ import type { GergRoot } from './types.js';
 
 /** Newton stops when a step in ln rho is below this. */
 const STEP_TOL = 1e-12;
-/** A returned density must reproduce the pressure to this relative residual. */
-const RESIDUAL_TOL = 1e-9;
 const MAX_NEWTON = 80;
 const MAX_BISECT = 200;
 

@@ -30,8 +30,9 @@
  * keeping it reproduces the published test values). Zero point of energies: each pure ideal gas
  * has h° = 0 and s° = 0 at T0 = 298.15 K and p0 = 101.325 kPa (the reference state of GERG-2008
  * and of its reference implementation); mixture entropies include the ideal mixing term
- * -R sum x_i ln x_i. U, H, S, G and A of this model therefore match the reference implementation's
- * values digit for digit; compare them with another source only as differences.
+ * -R sum x_i ln x_i. U, H, S and G of this model therefore match the reference implementation's
+ * values (to about 1e-15; its A output is the dimensionless alpha, ours is RT alpha in J/mol);
+ * compare them with another source only as differences.
  *
  * API (SI throughout: K, Pa, mol/m3, J/mol, J/(mol K), m/s, kg/mol):
  *   makeGerg2008(ids: readonly string[]): Gerg2008Model | undefined
