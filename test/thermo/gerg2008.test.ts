@@ -342,6 +342,20 @@ describe('GERG-2008 density iteration in hard states', () => {
     expect(rel(r.D * 16.04246e-3, 446.02)).toBeLessThan(5e-4);
   });
 
+  it('returns the gas root, and says so, when a liquid is asked for below the dense branch', () => {
+    // Carbon dioxide at 303 K (0.4 % below its critical temperature), 6 MPa: the dense branch of the
+    // isotherm does not come down to 6 MPa (its lowest pressure, the liquid spinodal, lies above),
+    // so the only root is the gas.
+    const m = model(['CO2']);
+    const liquid = m.density(303, 6e6, [1], { root: 'liquid' });
+    const gas = m.density(303, 6e6, [1]);
+    expect(liquid.status).toBe('converged');
+    expect(liquid.root).toBe('gas');
+    expect(liquid.message).toMatch(/no liquid-like root/);
+    expect(rel(liquid.D, gas.D)).toBeLessThan(1e-12);
+    expect(gas.phase).toBe('gas-like');
+  });
+
   it('keeps the metastable gas root below the vapour pressure when a liquid exists too', () => {
     // CO2 at 230 K, 1 MPa: liquid is stable (Span and Wagner (1996), Table 35: 1128.97 kg/m3) and the
     // gas root is a supersaturated vapour. The two searches return the two roots; phase stability is
