@@ -249,9 +249,8 @@ export class GergCore {
       list.push(k);
       bySet.set(f.exponents, list);
     });
-    for (const [set, members] of bySet) {
+    for (const members of bySet.values()) {
       const e = fluids[members[0]].exponents;
-      void set;
       const start = kinds.length;
       const count = e.d.length;
       for (let k = 0; k < count; k++) {
