@@ -1,0 +1,570 @@
+/**
+ * Pressure-enthalpy and pressure-entropy flashes: the temperature and phase split of a stream
+ * of composition z at pressure P whose molar enthalpy (entropy) is given. Valves and adiabatic
+ * mixers need PH, compressors and expanders PS.
+ *
+ * Method (Michelsen, M. L., "Multiphase isenthalpic and isentropic flash algorithms", Fluid
+ * Phase Equilibria 33 (1987) 13-27; Michelsen and Mollerup, Thermodynamic Models: Fundamentals
+ * and Computational Aspects, 2nd ed., the chapter on other flash specifications): an outer
+ * iteration on T with the enthalpy (entropy) residual, an isothermal flash (flash.ts) inside.
+ * The equilibrium enthalpy H(T) at fixed P is continuous and increasing for a mixture (its
+ * derivative is the heat capacity of the equilibrium system, latent heat included), so the
+ * residual is kept bracketed and a safeguarded Newton or secant step is taken:
+ *  - single phase at the last temperature: Newton on the single-phase H(T) with the analytic
+ *    heat capacity (ideal-gas Cp plus Cp^R, departure.ts) and no flash, then one isothermal
+ *    flash (with its stability test) at the temperature found. If that flash confirms a single
+ *    phase, the state is found; otherwise the two-phase steps take over from there. This is
+ *    Michelsen's advice to solve the specification for the assumed phases first and test
+ *    stability at the solution.
+ *  - two phases: Newton with dH/dT of the equilibrium estimated from the converged split: the
+ *    frozen heat capacity beta Cp^V + (1 - beta) Cp^L plus sum_i (h_i^V - h_i^L) dv_i/dT, with
+ *    h_i^V - h_i^L = R T^2 d ln K_i/dT and d ln K_i/dT taken from the temperature derivative of
+ *    the fugacity coefficients at fixed phase compositions (a difference quotient of eos.lnPhi),
+ *    v_i = beta y_i and dbeta/dT from the Rachford-Rice equation; the secant of the last two
+ *    two-phase points once there are two. The inner flashes start from the last K-values.
+ *  - every step is kept inside the bracket and inside [Tmin, Tmax]; a step that would leave it,
+ *    or a bracket that does not halve in three steps, is replaced by bisection; without a
+ *    bracket a step at most doubles or halves T.
+ * Entropy works the same way with S(T) (dS/dT = Cp/T).
+ *
+ * A pure component (one component present) has a saturation temperature at P (below its
+ * critical pressure) where H jumps from the saturated liquid's to the saturated vapour's. It is
+ * found first (Newton on ln phi^L = ln phi^V, with d/dT = (H^R,V - H^R,L)/(R T^2)); an enthalpy
+ * between the two is returned at that temperature with the vapour fraction
+ * beta = (H - H^L)/(H^V - H^L); outside it the search is confined to the liquid side (below) or
+ * the vapour side (above).
+ *
+ * Convergence: |H - H_spec| <= tol R T (default tol 1e-8), or |S - S_spec| <= tol R. A state
+ * that cannot be found (target outside what [Tmin, Tmax] can reach, an inner flash that fails,
+ * no progress) is 'not-converged' with the last temperature, its residual and a message; never
+ * a silent guess and never NaN. The search range defaults to half the lowest and 1.5 times the
+ * highest temperature of validity of the heat-capacity correlations present (bounded to
+ * [20 K, 6000 K]): polynomial heat capacities extrapolated far below their range can turn
+ * negative, and H(T) would stop rising.
+ */
+import { R } from './constants.js';
+import {
+  missingThermoData, newPhaseProperties, phasePropertiesInto, type MissingThermoData, type PhaseProperties,
+} from './enthalpy.js';
+import { flashTP, type FlashResult } from './flash.js';
+import { cpIG, hIG, P_STD, sIG } from './ideal-gas.js';
+import type { ComponentData, Eos } from './types.js';
+
+export interface StateFlashOptions {
+  /** Starting temperature, K (default: the ideal-gas temperature of the specification). */
+  T0?: number;
+  /** Tolerance on |H - H_spec|/(R T) or |S - S_spec|/R (default 1e-8). */
+  tol?: number;
+  /** Budget of isothermal flashes (equilibrium evaluations), default 60. */
+  maxIterations?: number;
+  /** Search range, K (defaults: see the module comment). */
+  Tmin?: number;
+  Tmax?: number;
+  /** Starting K-values for the inner flashes (e.g. the last solve of the same stream). */
+  K0?: Float64Array;
+  /** Tolerance of the inner isothermal flashes (default 1e-10, flashTP's). */
+  flashTol?: number;
+}
+
+export interface StateFlashResult {
+  status: 'converged' | 'not-converged';
+  /** Which specification was solved. */
+  spec: 'PH' | 'PS';
+  /** The specified enthalpy (J/mol) or entropy (J/(mol K)). */
+  target: number;
+  /** Temperature, K (the last one tried when not converged). */
+  T: number;
+  P: number;
+  phase: 'two-phase' | 'vapor' | 'liquid';
+  /** Vapour mole fraction. */
+  beta: number;
+  x: Float64Array;
+  y: Float64Array;
+  K: Float64Array;
+  /** Molar enthalpy of the state returned, J/mol. */
+  H: number;
+  /** Molar entropy of the state returned, J/(mol K); absent when a component present has no gf (PH only). */
+  S?: number;
+  /** Temperature updates (single-phase Newton steps included). */
+  iterations: number;
+  /** Isothermal flashes run. */
+  flashes: number;
+  /** Fugacity-coefficient evaluations of the inner flashes. */
+  evaluations: number;
+  /** |H - H_spec| in J/mol or |S - S_spec| in J/(mol K) at the state returned. */
+  residual: number;
+  /** Residual (as above) after each equilibrium evaluation. */
+  history: number[];
+  message?: string;
+}
+
+type Kind = 'H' | 'S';
+
+/** One equilibrium evaluation at T. */
+interface Eval {
+  T: number;
+  /** H or S of the equilibrium state. */
+  v: number;
+  H: number;
+  S: number;
+  /** Scaled residual: (H - target)/(R T) or (S - target)/R. */
+  r: number;
+  flash: FlashResult;
+  /** Frozen heat capacities of the phases (the feed's for a single phase). */
+  cpV: number;
+  cpL: number;
+  root: 'vapor' | 'liquid';
+}
+
+/** Everything one flashPH/flashPS call works with (allocated once per call). */
+interface Ctx {
+  eos: Eos;
+  P: number;
+  z: Float64Array;
+  kind: Kind;
+  target: number;
+  withS: boolean;
+  tol: number;
+  flashTol: number | undefined;
+  K: Float64Array | undefined;
+  flashes: number;
+  evaluations: number;
+  iterations: number;
+  history: number[];
+  props: PhaseProperties;
+  phiA: Float64Array;
+  phiB: Float64Array;
+  phiC: Float64Array;
+  phiD: Float64Array;
+  dlnK: Float64Array;
+}
+
+const TMIN_FLOOR = 20;
+const TMAX_CEIL = 6000;
+
+function range(comps: readonly ComponentData[], z: Float64Array, opts: StateFlashOptions): [number, number] {
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (let i = 0; i < comps.length; i++) {
+    if (!(z[i] > 0)) continue;
+    const p = comps[i].cp!.pieces;
+    lo = Math.min(lo, p[0].Tmin);
+    hi = Math.max(hi, p[p.length - 1].Tmax);
+  }
+  const Tmin = opts.Tmin ?? Math.max(TMIN_FLOOR, 0.5 * lo);
+  const Tmax = opts.Tmax ?? Math.min(TMAX_CEIL, 1.5 * hi);
+  if (!(Tmin > 0) || !(Tmax > Tmin) || Tmax === Infinity) {
+    throw new RangeError(`state flash: the temperature range must satisfy 0 < Tmin < Tmax < Infinity, got [${Tmin}, ${Tmax}]`);
+  }
+  return [Tmin, Tmax];
+}
+
+function scaled(ctx: Ctx, v: number, T: number): number {
+  return ctx.kind === 'H' ? (v - ctx.target) / (R * T) : (v - ctx.target) / R;
+}
+
+/** Equilibrium at T: isothermal flash, then H and S of the split. Returns a message on failure. */
+function evaluate(ctx: Ctx, T: number): Eval | string {
+  const { eos, P, z, props } = ctx;
+  const fl = flashTP(eos, T, P, z, { ...(ctx.K ? { K0: ctx.K } : {}), ...(ctx.flashTol !== undefined ? { tol: ctx.flashTol } : {}) });
+  ctx.flashes++;
+  ctx.evaluations += fl.evaluations;
+  if (fl.status !== 'converged') {
+    return `the isothermal flash at T = ${T.toPrecision(8)} K did not converge${fl.note ? ` (${fl.note})` : ''}`;
+  }
+  let H: number;
+  let S: number;
+  let cpV: number;
+  let cpL: number;
+  let root: 'vapor' | 'liquid';
+  if (fl.phase === 'two-phase') {
+    ctx.K = fl.K;
+    const b = fl.beta;
+    phasePropertiesInto(eos, T, P, fl.y, 'stable', ctx.withS, props);
+    H = b * props.H;
+    S = b * props.S;
+    cpV = props.Cp;
+    phasePropertiesInto(eos, T, P, fl.x, 'stable', ctx.withS, props);
+    H += (1 - b) * props.H;
+    S += (1 - b) * props.S;
+    cpL = props.Cp;
+    root = 'vapor';
+  } else {
+    // a single phase: the next flash starts afresh (K from a split would only cost a failed try)
+    ctx.K = undefined;
+    phasePropertiesInto(eos, T, P, z, 'stable', ctx.withS, props);
+    H = props.H;
+    S = props.S;
+    cpV = cpL = props.Cp;
+    root = props.root;
+  }
+  const v = ctx.kind === 'H' ? H : S;
+  if (!Number.isFinite(v)) return `the ${ctx.kind === 'H' ? 'enthalpy' : 'entropy'} at T = ${T.toPrecision(8)} K is not a finite number`;
+  return { T, v, H, S, r: scaled(ctx, v, T), flash: fl, cpV, cpL, root };
+}
+
+/**
+ * Newton on the single-phase value of the feed on a fixed root between the bounds a < T < b
+ * (no flash). Returns the temperature found, or NaN.
+ */
+function singlePhaseNewton(ctx: Ctx, T: number, root: 'vapor' | 'liquid', a: number, b: number): number {
+  const { eos, P, z, props } = ctx;
+  const goal = 0.05 * ctx.tol;
+  for (let k = 0; k < 16; k++) {
+    phasePropertiesInto(eos, T, P, z, root, ctx.kind === 'S', props);
+    // the phase's root has vanished (beyond its spinodal): no single-phase answer this way
+    if (props.root !== root) return NaN;
+    const v = ctx.kind === 'H' ? props.H : props.S;
+    const slope = ctx.kind === 'H' ? props.Cp : props.Cp / T;
+    const r = scaled(ctx, v, T);
+    if (Math.abs(r) <= goal) return T;
+    if (!(slope > 0) || !Number.isFinite(v)) return NaN;
+    let Tn = T - (v - ctx.target) / slope;
+    if (Tn <= a) Tn = 0.5 * (T + a);
+    else if (Tn >= b) Tn = 0.5 * (T + b);
+    ctx.iterations++;
+    if (Math.abs(Tn - T) <= 1e-14 * T) return Tn;
+    T = Tn;
+  }
+  return NaN;
+}
+
+/**
+ * dH/dT (or dS/dT) of the two-phase equilibrium at the state of e, estimated with the phase
+ * compositions' fugacity coefficients differentiated in T at fixed composition (see the module
+ * comment). Falls back to the frozen heat capacity when the estimate is not positive.
+ */
+function twoPhaseSlope(ctx: Ctx, e: Eval): number {
+  const { eos, P, z, phiA, phiB, phiC, phiD, dlnK } = ctx;
+  const f = e.flash;
+  const T = e.T;
+  const n = eos.n;
+  const beta = f.beta;
+  const frozen = beta * e.cpV + (1 - beta) * e.cpL;
+  const h = 1e-5 * T;
+  eos.lnPhi(T, P, f.x, 'stable', phiA);
+  eos.lnPhi(T, P, f.y, 'stable', phiB);
+  eos.lnPhi(T + h, P, f.x, 'stable', phiC);
+  eos.lnPhi(T + h, P, f.y, 'stable', phiD);
+  let num = 0;
+  let den = 0;
+  for (let i = 0; i < n; i++) {
+    if (!(z[i] > 0)) {
+      dlnK[i] = 0;
+      continue;
+    }
+    dlnK[i] = (phiC[i] - phiD[i] - (phiA[i] - phiB[i])) / h;
+    const K = f.K[i];
+    const q = 1 + beta * (K - 1);
+    num += (z[i] * K * dlnK[i]) / (q * q);
+    den += (z[i] * (K - 1) * (K - 1)) / (q * q);
+  }
+  const dbeta = den > 0 ? num / den : 0;
+  let latent = 0;
+  const RT2 = R * T * T;
+  for (let i = 0; i < n; i++) {
+    if (!(z[i] > 0)) continue;
+    const K = f.K[i];
+    const q = 1 + beta * (K - 1);
+    const dv = ((K * z[i]) / (q * q)) * (dbeta + beta * (1 - beta) * dlnK[i]);
+    latent += RT2 * dlnK[i] * dv;
+  }
+  let slope = frozen + latent;
+  if (!(slope > 0) || !Number.isFinite(slope)) slope = frozen;
+  return ctx.kind === 'H' ? slope : slope / T;
+}
+
+/** Ideal-gas temperature of the specification within [Tmin, Tmax] (the default start). */
+function idealGuess(ctx: Ctx, Tmin: number, Tmax: number): number {
+  const comps = ctx.eos.components;
+  const z = ctx.z;
+  const n = z.length;
+  let mix = 0;
+  if (ctx.kind === 'S') {
+    mix = -R * Math.log(ctx.P / P_STD);
+    for (let i = 0; i < n; i++) if (z[i] > 0) mix -= R * z[i] * Math.log(z[i]);
+  }
+  const value = (T: number): number => {
+    let v = mix;
+    for (let i = 0; i < n; i++) if (z[i] > 0) v += z[i] * (ctx.kind === 'H' ? hIG(comps[i], T) : sIG(comps[i], T));
+    return v - ctx.target;
+  };
+  const slope = (T: number): number => {
+    let c = 0;
+    for (let i = 0; i < n; i++) if (z[i] > 0) c += z[i] * cpIG(comps[i], T);
+    return ctx.kind === 'H' ? c : c / T;
+  };
+  let lo = Tmin;
+  let hi = Tmax;
+  if (value(lo) >= 0) return lo;
+  if (value(hi) <= 0) return hi;
+  let T = Math.min(Math.max(298.15, lo), hi);
+  for (let k = 0; k < 60; k++) {
+    const f = value(T);
+    if (f < 0) lo = T;
+    else hi = T;
+    const s = slope(T);
+    let Tn = s > 0 ? T - f / s : NaN;
+    if (!(Tn > lo && Tn < hi)) Tn = 0.5 * (lo + hi);
+    if (Math.abs(Tn - T) <= 1e-10 * T) return Tn;
+    T = Tn;
+  }
+  return T;
+}
+
+interface Saturation {
+  T: number;
+  /** ln phi of both roots at T (for the K-values of absent components). */
+  phiL: Float64Array;
+  phiV: Float64Array;
+}
+
+/**
+ * Saturation temperature of pure component i at P within [Tmin, Tmax], or undefined when it
+ * has none there (P at or above Pc, the ideal gas, or the saturation point out of range).
+ */
+function saturationTemperature(ctx: Ctx, i: number, Tmin: number, Tmax: number): Saturation | undefined {
+  const { eos, P, z } = ctx;
+  const c = eos.components[i];
+  if (eos.name === 'ideal' || !(P < c.Pc)) return undefined;
+  const dep = newPhaseProperties();
+  const phiL = new Float64Array(eos.n);
+  const phiV = new Float64Array(eos.n);
+  let lo = Tmin;
+  let hi = Math.min(Tmax, c.Tc);
+  if (!(hi > lo)) return undefined;
+  // Wilson's estimate, inverted for T
+  let T = c.Tc / (1 - Math.log(P / c.Pc) / (5.373 * (1 + c.omega)));
+  if (!(T > lo && T < hi)) T = 0.5 * (lo + hi);
+  for (let k = 0; k < 200; k++) {
+    const rl = eos.lnPhi(T, P, z, 'liquid', phiL);
+    let Tn: number;
+    if (rl.nRoots === 1) {
+      // one root: liquid-like below the saturation range, gas-like above it
+      if (rl.root === 'liquid') lo = T;
+      else hi = T;
+      Tn = 0.5 * (lo + hi);
+    } else {
+      eos.lnPhi(T, P, z, 'vapor', phiV);
+      const g = phiL[i] - phiV[i];
+      if (Math.abs(g) <= 1e-12) return { T, phiL, phiV };
+      if (g < 0) lo = T;
+      else hi = T;
+      phasePropertiesInto(eos, T, P, z, 'vapor', false, dep);
+      const hV = dep.H;
+      phasePropertiesInto(eos, T, P, z, 'liquid', false, dep);
+      const slope = (hV - dep.H) / (R * T * T);
+      Tn = slope > 0 ? T - g / slope : NaN;
+      if (!(Tn > lo && Tn < hi)) Tn = 0.5 * (lo + hi);
+    }
+    if (hi - lo <= 1e-13 * hi) break;
+    T = Tn;
+  }
+  return undefined;
+}
+
+function result(ctx: Ctx, status: StateFlashResult['status'], e: Eval, message?: string): StateFlashResult {
+  const f = e.flash;
+  const r: StateFlashResult = {
+    status, spec: ctx.kind === 'H' ? 'PH' : 'PS', target: ctx.target, T: e.T, P: ctx.P, phase: f.phase, beta: f.beta,
+    x: f.x, y: f.y, K: f.K, H: e.H, iterations: ctx.iterations, flashes: ctx.flashes, evaluations: ctx.evaluations,
+    residual: Math.abs(e.v - ctx.target), history: ctx.history,
+  };
+  if (ctx.withS) r.S = e.S;
+  if (message !== undefined) r.message = message;
+  else if (f.note) r.message = f.note;
+  return r;
+}
+
+/**
+ * Result with no equilibrium evaluation to show (the inner flash failed at the first
+ * temperature): the feed as one phase on its stable root at T, marked not converged.
+ */
+function failedAt(ctx: Ctx, T: number, message: string): StateFlashResult {
+  const n = ctx.eos.n;
+  const p = phasePropertiesInto(ctx.eos, T, ctx.P, ctx.z, 'stable', ctx.withS, newPhaseProperties());
+  const v = ctx.kind === 'H' ? p.H : p.S;
+  const r: StateFlashResult = {
+    status: 'not-converged', spec: ctx.kind === 'H' ? 'PH' : 'PS', target: ctx.target, T, P: ctx.P, phase: p.root, beta: p.root === 'vapor' ? 1 : 0,
+    x: Float64Array.from(ctx.z), y: Float64Array.from(ctx.z), K: new Float64Array(n).fill(1), H: p.H,
+    iterations: ctx.iterations, flashes: ctx.flashes, evaluations: ctx.evaluations, residual: Math.abs(v - ctx.target), history: ctx.history, message,
+  };
+  if (ctx.withS) r.S = p.S;
+  return r;
+}
+
+function describe(ctx: Ctx, v: number): string {
+  return ctx.kind === 'H' ? `${v.toPrecision(8)} J/mol` : `${v.toPrecision(8)} J/(mol K)`;
+}
+
+function solve(eos: Eos, P: number, kind: Kind, target: number, z: ArrayLike<number>, opts: StateFlashOptions): StateFlashResult | MissingThermoData {
+  const name = kind === 'H' ? 'flashPH' : 'flashPS';
+  const n = eos.n;
+  if (!(P > 0) || P === Infinity) throw new RangeError(`${name}: pressure must be a finite positive number of pascal, got ${P}`);
+  if (!Number.isFinite(target)) throw new RangeError(`${name}: the specified ${kind === 'H' ? 'enthalpy' : 'entropy'} must be finite, got ${target}`);
+  if (z.length !== n) throw new RangeError(`${name}: feed has ${z.length} entries, expected ${n}`);
+  if (opts.T0 !== undefined && (!(opts.T0 > 0) || opts.T0 === Infinity)) throw new RangeError(`${name}: T0 must be a finite positive number of kelvin, got ${opts.T0}`);
+  if (opts.K0 !== undefined && opts.K0.length !== n) throw new RangeError(`${name}: K0 has ${opts.K0.length} entries, expected ${n}`);
+  let sum = 0;
+  for (let i = 0; i < n; i++) {
+    const v = z[i];
+    if (!(v >= 0) || v === Infinity) throw new RangeError(`${name}: feed mole fraction ${i} must be finite and >= 0, got ${v}`);
+    sum += v;
+  }
+  if (!(sum > 0)) throw new RangeError(`${name}: feed must have a positive sum`);
+  const zz = new Float64Array(n);
+  let nPresent = 0;
+  let only = -1;
+  for (let i = 0; i < n; i++) {
+    zz[i] = z[i] / sum;
+    if (zz[i] > 0) {
+      nPresent++;
+      only = i;
+    }
+  }
+  const miss = missingThermoData(eos.components, kind === 'H' ? 'enthalpy' : 'entropy', zz);
+  if (miss) return miss;
+  const withS = kind === 'S' || missingThermoData(eos.components, 'entropy', zz) === undefined;
+  const a = (): Float64Array => new Float64Array(n);
+  const ctx: Ctx = {
+    eos, P, z: zz, kind, target, withS, tol: opts.tol ?? 1e-8, flashTol: opts.flashTol, K: opts.K0,
+    flashes: 0, evaluations: 0, iterations: 0, history: [], props: newPhaseProperties(),
+    phiA: a(), phiB: a(), phiC: a(), phiD: a(), dlnK: a(),
+  };
+  const maxIt = opts.maxIterations ?? 60;
+  let [Tmin, Tmax] = range(eos.components, zz, opts);
+  /** Bracket: lo has r < 0 (value below the target), hi has r > 0; d = value - target. */
+  let lo: { T: number; r: number; d: number } | undefined;
+  let hi: { T: number; r: number; d: number } | undefined;
+
+  // A pure component: the saturation temperature, where H (S) jumps.
+  if (nPresent === 1) {
+    const sat = saturationTemperature(ctx, only, Tmin, Tmax);
+    if (sat !== undefined) {
+      const Ts = sat.T;
+      const pL = phasePropertiesInto(eos, Ts, P, zz, 'liquid', withS, newPhaseProperties());
+      const pV = phasePropertiesInto(eos, Ts, P, zz, 'vapor', withS, newPhaseProperties());
+      const vL = kind === 'H' ? pL.H : pL.S;
+      const vV = kind === 'H' ? pV.H : pV.S;
+      if (target >= vL && target <= vV) {
+        const beta = vV > vL ? (target - vL) / (vV - vL) : 0;
+        const K = new Float64Array(n);
+        for (let i = 0; i < n; i++) K[i] = i === only ? 1 : Math.exp(sat.phiL[i] - sat.phiV[i]);
+        const H = beta * pV.H + (1 - beta) * pL.H;
+        const S = beta * pV.S + (1 - beta) * pL.S;
+        const v = kind === 'H' ? H : S;
+        ctx.history.push(Math.abs(v - target));
+        const r: StateFlashResult = {
+          status: 'converged', spec: kind === 'H' ? 'PH' : 'PS', target, T: Ts, P, phase: 'two-phase', beta,
+          x: Float64Array.from(zz), y: Float64Array.from(zz), K, H, iterations: ctx.iterations, flashes: 0, evaluations: 0,
+          residual: Math.abs(v - target), history: ctx.history,
+          message: `pure ${eos.components[only].id} at its saturation temperature: the vapour fraction carries the ${kind === 'H' ? 'enthalpy' : 'entropy'} balance`,
+        };
+        if (withS) r.S = S;
+        return r;
+      }
+      if (target < vL) {
+        hi = { T: Ts, r: scaled(ctx, vL, Ts), d: vL - target };
+        Tmax = Ts;
+      } else {
+        lo = { T: Ts, r: scaled(ctx, vV, Ts), d: vV - target };
+        Tmin = Ts;
+      }
+    }
+  }
+
+  let T = opts.T0 ?? idealGuess(ctx, Tmin, Tmax);
+  const span = Tmax - Tmin;
+  if (T < Tmin) T = Tmin;
+  if (T > Tmax) T = Tmax;
+  // keep off a saturation bound (the flash there could land on the other side)
+  if (lo !== undefined && T <= lo.T) T = lo.T + Math.min(1, 0.01 * span);
+  if (hi !== undefined && T >= hi.T) T = hi.T - Math.min(1, 0.01 * span);
+
+  let prev: Eval | undefined;
+  /** History length at the last bisection (the slowness test looks at the evaluations after it). */
+  let sinceBisection = 0;
+  for (;;) {
+    const got = evaluate(ctx, T);
+    if (typeof got === 'string') {
+      return prev ? result(ctx, 'not-converged', prev, got) : failedAt(ctx, T, got);
+    }
+    const e = got;
+    ctx.history.push(Math.abs(e.v - target));
+    if (Math.abs(e.r) <= ctx.tol) return result(ctx, 'converged', e);
+    if (e.r < 0) {
+      if (lo === undefined || e.T > lo.T) lo = { T: e.T, r: e.r, d: e.v - target };
+    } else if (hi === undefined || e.T < hi.T) {
+      hi = { T: e.T, r: e.r, d: e.v - target };
+    }
+    if (ctx.flashes >= maxIt) {
+      return result(ctx, 'not-converged', e, `no temperature found in ${ctx.flashes} isothermal flashes (residual ${describe(ctx, e.v - target)} at T = ${e.T.toPrecision(8)} K)`);
+    }
+    // the target cannot be reached at the ends of the range
+    if (e.r > 0 && e.T <= Tmin) {
+      return result(ctx, 'not-converged', e, `the specified ${kind === 'H' ? 'enthalpy' : 'entropy'} ${describe(ctx, target)} is below that of the stream at the lowest temperature searched, ${Tmin.toPrecision(6)} K (${describe(ctx, e.v)}): no state at this pressure has it`);
+    }
+    if (e.r < 0 && e.T >= Tmax) {
+      return result(ctx, 'not-converged', e, `the specified ${kind === 'H' ? 'enthalpy' : 'entropy'} ${describe(ctx, target)} is above that of the stream at the highest temperature searched, ${Tmax.toPrecision(6)} K (${describe(ctx, e.v)})`);
+    }
+    const a0 = lo ? lo.T : Tmin;
+    const b0 = hi ? hi.T : Tmax;
+    if (lo && hi && b0 - a0 <= 1e-12 * b0) {
+      return result(ctx, 'not-converged', e, `the ${kind === 'H' ? 'enthalpy' : 'entropy'} jumps at T = ${e.T.toPrecision(10)} K (from ${describe(ctx, target + lo.d)} to ${describe(ctx, target + hi.d)}): the flash finds no state in between`);
+    }
+    // next temperature
+    let Tn: number;
+    if (e.flash.phase !== 'two-phase') {
+      Tn = singlePhaseNewton(ctx, e.T, e.root, a0, b0);
+      // an answer pressed against an end of the bracket is the single phase failing, not a solution
+      if (lo && hi && (Tn - a0 < 1e-3 * (b0 - a0) || b0 - Tn < 1e-3 * (b0 - a0))) Tn = NaN;
+    } else {
+      let slope = NaN;
+      if (prev !== undefined && prev.flash.phase === 'two-phase' && prev.T !== e.T) {
+        slope = (e.v - prev.v) / (e.T - prev.T);
+      }
+      if (!(slope > 0)) slope = twoPhaseSlope(ctx, e);
+      Tn = e.T - (e.v - target) / slope;
+      ctx.iterations++;
+    }
+    // safeguards: inside the bracket, at most doubling or halving without one, bisection when
+    // the residual has not halved in three evaluations
+    const h = ctx.history;
+    const k = h.length;
+    const slow = lo !== undefined && hi !== undefined && k - sinceBisection >= 4 && h[k - 1] > 0.5 * h[k - 4];
+    if (!Number.isFinite(Tn) || Tn <= a0 || Tn >= b0) {
+      if (lo && hi) {
+        // false position, kept off the ends
+        const w = b0 - a0;
+        Tn = a0 - (lo.d * w) / (hi.d - lo.d);
+        Tn = Math.min(Math.max(Tn, a0 + 0.05 * w), b0 - 0.05 * w);
+      } else if (e.r < 0) Tn = Math.min(2 * e.T, hi ? 0.5 * (e.T + b0) : Tmax);
+      else Tn = Math.max(0.5 * e.T, lo ? 0.5 * (e.T + a0) : Tmin);
+    }
+    if (slow && lo && hi) {
+      Tn = 0.5 * (a0 + b0);
+      sinceBisection = k;
+    }
+    if (!(lo && hi)) Tn = Math.min(Math.max(Tn, 0.5 * e.T), 2 * e.T);
+    Tn = Math.min(Math.max(Tn, Tmin), Tmax);
+    prev = e;
+    T = Tn;
+  }
+}
+
+/**
+ * Pressure-enthalpy flash: the state of feed z (mole fractions) at P (Pa) whose molar enthalpy
+ * is H (J/mol, formation basis as in enthalpy.ts). 'invalid' when a component present lacks cp
+ * or hf.
+ */
+export function flashPH(eos: Eos, P: number, H: number, z: ArrayLike<number>, opts: StateFlashOptions = {}): StateFlashResult | MissingThermoData {
+  return solve(eos, P, 'H', H, z, opts);
+}
+
+/**
+ * Pressure-entropy flash: the state of feed z at P (Pa) whose molar entropy is S (J/(mol K),
+ * formation basis). 'invalid' when a component present lacks cp, hf or gf.
+ */
+export function flashPS(eos: Eos, P: number, S: number, z: ArrayLike<number>, opts: StateFlashOptions = {}): StateFlashResult | MissingThermoData {
+  return solve(eos, P, 'S', S, z, opts);
+}
