@@ -6,25 +6,33 @@
  * Method (Michelsen, M. L., "Multiphase isenthalpic and isentropic flash algorithms", Fluid
  * Phase Equilibria 33 (1987) 13-27; Michelsen and Mollerup, Thermodynamic Models: Fundamentals
  * and Computational Aspects, 2nd ed., the chapter on other flash specifications): an outer
- * iteration on T with the enthalpy (entropy) residual, an isothermal flash (flash.ts) inside.
- * The equilibrium enthalpy H(T) at fixed P is continuous and increasing for a mixture (its
- * derivative is the heat capacity of the equilibrium system, latent heat included), so the
- * residual is kept bracketed and a safeguarded Newton or secant step is taken:
- *  - single phase at the last temperature: Newton on the single-phase H(T) with the analytic
- *    heat capacity (ideal-gas Cp plus Cp^R, departure.ts) and no flash, then one isothermal
- *    flash (with its stability test) at the temperature found. If that flash confirms a single
- *    phase, the state is found; otherwise the two-phase steps take over from there. This is
- *    Michelsen's advice to solve the specification for the assumed phases first and test
- *    stability at the solution.
- *  - two phases: Newton with dH/dT of the equilibrium estimated from the converged split: the
- *    frozen heat capacity beta Cp^V + (1 - beta) Cp^L plus sum_i (h_i^V - h_i^L) dv_i/dT, with
- *    h_i^V - h_i^L = R T^2 d ln K_i/dT and d ln K_i/dT taken from the temperature derivative of
- *    the fugacity coefficients at fixed phase compositions (a difference quotient of eos.lnPhi),
- *    v_i = beta y_i and dbeta/dT from the Rachford-Rice equation; the secant of the last two
- *    two-phase points once there are two. The inner flashes start from the last K-values.
- *  - every step is kept inside the bracket and inside [Tmin, Tmax]; a step that would leave it,
- *    or a bracket that does not halve in three steps, is replaced by bisection; without a
- *    bracket a step at most doubles or halves T.
+ * iteration on T with the enthalpy (entropy) residual, the isothermal flash (flash.ts) deciding
+ * the phases. The equilibrium enthalpy H(T) at fixed P is continuous and increasing for a
+ * mixture (its derivative is the heat capacity of the equilibrium system, latent heat
+ * included), so every equilibrium evaluation narrows a bracket, and the steps are:
+ *  - single phase (and, before any flash, the feed on its stable root at the starting T):
+ *    Newton on the single-phase H(T) with the analytic heat capacity (ideal-gas Cp plus Cp^R,
+ *    departure.ts), no flash, then one isothermal flash, with its stability test, at the
+ *    temperature found. If that confirms a single phase, the state is found (one flash in all);
+ *    this is Michelsen's advice to solve for the assumed phases first and test stability at the
+ *    solution. If the phase's root vanishes on the way (past its spinodal), the last
+ *    temperature where it existed is tried instead: the spinodal lies inside the two-phase
+ *    region. A phase whose single-phase answer the equilibrium has refused is not asked again.
+ *  - two phases: temperature and K-values are iterated together, with no isothermal flash per
+ *    step (see `simultaneous`): Rachford-Rice for the current K, the fugacity coefficients and
+ *    H of both phases, a Newton step on T, a substitution step on ln K carried to the new T.
+ *    The slope dH/dT of the equilibrium is estimated from the split: the frozen heat capacity
+ *    beta Cp^V + (1 - beta) Cp^L plus sum_i (h_i^V - h_i^L) dv_i/dT, with
+ *    h_i^V - h_i^L = R T^2 d ln K_i/dT, d ln K_i/dT from the temperature derivative of the
+ *    fugacity coefficients at fixed phase compositions (a difference quotient of eos.lnPhi),
+ *    v_i = beta y_i and dbeta/dT from the Rachford-Rice equation. The converged split is
+ *    accepted on the tests flashTP applies to a split from given K-values. If beta leaves
+ *    (0, 1) the nested iteration (an isothermal flash per step, warm-started from the last K,
+ *    Newton with the same slope or the secant of the last two points) goes on from there.
+ *  - every step stays inside the bracket and inside [Tmin, Tmax]; a step that would leave it,
+ *    or a residual that does not halve in three evaluations, is replaced by bisection (H(T)
+ *    bends sharply at bubble and dew points); without a bracket a step at most doubles or
+ *    halves T.
  * Entropy works the same way with S(T) (dS/dT = Cp/T).
  *
  * A pure component (one component present) has a saturation temperature at P (below its
@@ -47,6 +55,7 @@ import {
   missingThermoData, newPhaseProperties, phasePropertiesInto, type MissingThermoData, type PhaseProperties,
 } from './enthalpy.js';
 import { flashTP, type FlashResult } from './flash.js';
+import { rachfordRiceCompositions, solveRachfordRice } from './rachford-rice.js';
 import { cpIG, hIG, P_STD, sIG } from './ideal-gas.js';
 import type { ComponentData, Eos } from './types.js';
 
@@ -85,11 +94,11 @@ export interface StateFlashResult {
   H: number;
   /** Molar entropy of the state returned, J/(mol K); absent when a component present has no gf (PH only). */
   S?: number;
-  /** Temperature updates (single-phase Newton steps included). */
+  /** Temperature updates (single-phase Newton steps and two-phase steps without a flash included). */
   iterations: number;
-  /** Isothermal flashes run. */
+  /** Isothermal flashes run (flashTP calls). */
   flashes: number;
-  /** Fugacity-coefficient evaluations of the inner flashes. */
+  /** Fugacity-coefficient evaluations of both phases: those of the flashes and of the two-phase steps. */
   evaluations: number;
   /** |H - H_spec| in J/mol or |S - S_spec| in J/(mol K) at the state returned. */
   residual: number;
@@ -137,6 +146,35 @@ interface Ctx {
   phiC: Float64Array;
   phiD: Float64Array;
   dlnK: Float64Array;
+  /** Arrays of the simultaneous two-phase iteration. */
+  work: { lnK: Float64Array; K: Float64Array; x: Float64Array; y: Float64Array; phiL: Float64Array; phiV: Float64Array; phiZ: Float64Array };
+}
+
+/** Arrays of one flashPH/flashPS call, kept per equation of state (results are copies). */
+interface Workspace {
+  z: Float64Array;
+  props: PhaseProperties;
+  phiA: Float64Array;
+  phiB: Float64Array;
+  phiC: Float64Array;
+  phiD: Float64Array;
+  dlnK: Float64Array;
+  work: Ctx['work'];
+}
+
+const workspaces = new WeakMap<Eos, Workspace>();
+
+function workspaceFor(eos: Eos): Workspace {
+  let w = workspaces.get(eos);
+  if (w === undefined || w.z.length !== eos.n) {
+    const a = (): Float64Array => new Float64Array(eos.n);
+    w = {
+      z: a(), props: newPhaseProperties(), phiA: a(), phiB: a(), phiC: a(), phiD: a(), dlnK: a(),
+      work: { lnK: a(), K: a(), x: a(), y: a(), phiL: a(), phiV: a(), phiZ: a() },
+    };
+    workspaces.set(eos, w);
+  }
+  return w;
 }
 
 const TMIN_FLOOR = 20;
@@ -180,11 +218,11 @@ function evaluate(ctx: Ctx, T: number): Eval | string {
   if (fl.phase === 'two-phase') {
     ctx.K = fl.K;
     const b = fl.beta;
-    phasePropertiesInto(eos, T, P, fl.y, 'stable', ctx.withS, props);
+    phasePropertiesInto(eos, T, P, fl.y, 'stable', ctx.kind === 'S', props);
     H = b * props.H;
     S = b * props.S;
     cpV = props.Cp;
-    phasePropertiesInto(eos, T, P, fl.x, 'stable', ctx.withS, props);
+    phasePropertiesInto(eos, T, P, fl.x, 'stable', ctx.kind === 'S', props);
     H += (1 - b) * props.H;
     S += (1 - b) * props.S;
     cpL = props.Cp;
@@ -192,7 +230,7 @@ function evaluate(ctx: Ctx, T: number): Eval | string {
   } else {
     // a single phase: the next flash starts afresh (K from a split would only cost a failed try)
     ctx.K = undefined;
-    phasePropertiesInto(eos, T, P, z, 'stable', ctx.withS, props);
+    phasePropertiesInto(eos, T, P, z, 'stable', ctx.kind === 'S', props);
     H = props.H;
     S = props.S;
     cpV = cpL = props.Cp;
@@ -210,10 +248,24 @@ function evaluate(ctx: Ctx, T: number): Eval | string {
 function singlePhaseNewton(ctx: Ctx, T: number, root: 'vapor' | 'liquid', a: number, b: number): number {
   const { eos, P, z, props } = ctx;
   const goal = 0.05 * ctx.tol;
+  let lastValid = T;
   for (let k = 0; k < 16; k++) {
     phasePropertiesInto(eos, T, P, z, root, ctx.kind === 'S', props);
-    // the phase's root has vanished (beyond its spinodal): no single-phase answer this way
-    if (props.root !== root) return NaN;
+    // The phase's root has vanished (beyond its spinodal): no single-phase answer this way. The
+    // last temperature where it still existed lies past the phase boundary (the spinodal is
+    // inside the two-phase region), which is where the equilibrium search goes next.
+    if (props.root !== root) {
+      if (k === 0) return NaN;
+      // close in on where the root vanishes (bisection between the last valid T and this one)
+      let bad = T;
+      for (let j = 0; j < 8; j++) {
+        const mid = 0.5 * (lastValid + bad);
+        if (phasePropertiesInto(eos, mid, P, z, root, false, props).root === root) lastValid = mid;
+        else bad = mid;
+      }
+      return lastValid;
+    }
+    lastValid = T;
     const v = ctx.kind === 'H' ? props.H : props.S;
     const slope = ctx.kind === 'H' ? props.Cp : props.Cp / T;
     const r = scaled(ctx, v, T);
@@ -230,48 +282,162 @@ function singlePhaseNewton(ctx: Ctx, T: number, root: 'vapor' | 'liquid', a: num
 }
 
 /**
- * dH/dT (or dS/dT) of the two-phase equilibrium at the state of e, estimated with the phase
- * compositions' fugacity coefficients differentiated in T at fixed composition (see the module
- * comment). Falls back to the frozen heat capacity when the estimate is not positive.
+ * dH/dT (or dS/dT) of the two-phase equilibrium at T with vapour fraction beta, K-values K and
+ * d ln K_i/dT at fixed phase compositions in dlnK (see the module comment); cpV and cpL are the
+ * phases' heat capacities at fixed composition. Falls back to the frozen heat capacity when
+ * the estimate is not positive.
  */
-function twoPhaseSlope(ctx: Ctx, e: Eval): number {
-  const { eos, P, z, phiA, phiB, phiC, phiD, dlnK } = ctx;
-  const f = e.flash;
-  const T = e.T;
-  const n = eos.n;
-  const beta = f.beta;
-  const frozen = beta * e.cpV + (1 - beta) * e.cpL;
-  const h = 1e-5 * T;
-  eos.lnPhi(T, P, f.x, 'stable', phiA);
-  eos.lnPhi(T, P, f.y, 'stable', phiB);
-  eos.lnPhi(T + h, P, f.x, 'stable', phiC);
-  eos.lnPhi(T + h, P, f.y, 'stable', phiD);
+function slopeFrom(ctx: Ctx, T: number, beta: number, K: ArrayLike<number>, dlnK: Float64Array, cpV: number, cpL: number): number {
+  const z = ctx.z;
+  const n = z.length;
+  const frozen = beta * cpV + (1 - beta) * cpL;
   let num = 0;
   let den = 0;
   for (let i = 0; i < n; i++) {
-    if (!(z[i] > 0)) {
-      dlnK[i] = 0;
-      continue;
-    }
-    dlnK[i] = (phiC[i] - phiD[i] - (phiA[i] - phiB[i])) / h;
-    const K = f.K[i];
-    const q = 1 + beta * (K - 1);
-    num += (z[i] * K * dlnK[i]) / (q * q);
-    den += (z[i] * (K - 1) * (K - 1)) / (q * q);
+    if (!(z[i] > 0)) continue;
+    const q = 1 + beta * (K[i] - 1);
+    num += (z[i] * K[i] * dlnK[i]) / (q * q);
+    den += (z[i] * (K[i] - 1) * (K[i] - 1)) / (q * q);
   }
   const dbeta = den > 0 ? num / den : 0;
   let latent = 0;
   const RT2 = R * T * T;
   for (let i = 0; i < n; i++) {
     if (!(z[i] > 0)) continue;
-    const K = f.K[i];
-    const q = 1 + beta * (K - 1);
-    const dv = ((K * z[i]) / (q * q)) * (dbeta + beta * (1 - beta) * dlnK[i]);
+    const q = 1 + beta * (K[i] - 1);
+    const dv = ((K[i] * z[i]) / (q * q)) * (dbeta + beta * (1 - beta) * dlnK[i]);
     latent += RT2 * dlnK[i] * dv;
   }
   let slope = frozen + latent;
   if (!(slope > 0) || !Number.isFinite(slope)) slope = frozen;
   return ctx.kind === 'H' ? slope : slope / T;
+}
+
+/** d ln K_i/dT at fixed x and y by a forward difference; phiL, phiV hold ln phi at T already. */
+function lnKDerivative(ctx: Ctx, T: number, x: ArrayLike<number>, y: ArrayLike<number>, phiL: Float64Array, phiV: Float64Array): number {
+  const { eos, P, z, phiC, phiD, dlnK } = ctx;
+  const h = 1e-5 * T;
+  eos.lnPhi(T + h, P, x, 'stable', phiC);
+  eos.lnPhi(T + h, P, y, 'stable', phiD);
+  for (let i = 0; i < z.length; i++) dlnK[i] = z[i] > 0 ? (phiC[i] - phiD[i] - (phiL[i] - phiV[i])) / h : 0;
+  return h;
+}
+
+/** The slope of a converged two-phase evaluation (two extra pairs of fugacity evaluations). */
+function twoPhaseSlope(ctx: Ctx, e: Eval): number {
+  const { eos, P, phiA, phiB, dlnK } = ctx;
+  const f = e.flash;
+  eos.lnPhi(e.T, P, f.x, 'stable', phiA);
+  eos.lnPhi(e.T, P, f.y, 'stable', phiB);
+  lnKDerivative(ctx, e.T, f.x, f.y, phiA, phiB);
+  return slopeFrom(ctx, e.T, f.beta, f.K, dlnK, e.cpV, e.cpL);
+}
+
+type Simultaneous = { kind: 'converged'; e: Eval } | { kind: 'left' | 'stalled'; T: number };
+
+/**
+ * Two-phase region: temperature and K-values iterated together, without an isothermal flash
+ * per step. Each step solves Rachford-Rice for the current K, evaluates the fugacity
+ * coefficients and H (S) of both phases, takes the Newton step on T with the slope estimate
+ * and a substitution step on ln K (ln K_i = ln phi_i^L - ln phi_i^V) moved to the new T with
+ * d ln K_i/dT. It stops when the fugacities are equal to the flash tolerance and the
+ * specification is met; the split is then accepted on the tests flashTP applies to a split
+ * from given K-values (0 < beta < 1, not trivial, Gibbs energy below the feed's). 'left' when
+ * beta leaves (0, 1) (a bubble or dew point is crossed), 'stalled' when it does not converge in
+ * its budget: the nested iteration takes over from that temperature.
+ */
+function simultaneous(ctx: Ctx, start: Eval, a: number, b: number): Simultaneous {
+  const { eos, P, z, props, dlnK } = ctx;
+  const n = z.length;
+  const w = ctx.work;
+  const { lnK, K, x, y, phiL, phiV } = w;
+  const fTol = ctx.flashTol ?? 1e-10;
+  for (let i = 0; i < n; i++) lnK[i] = Math.log(start.flash.K[i]);
+  let T = start.T;
+  let prevE = Infinity;
+  for (let it = 0; it < 40; it++) {
+    for (let i = 0; i < n; i++) K[i] = Math.exp(lnK[i] > 600 ? 600 : lnK[i] < -600 ? -600 : lnK[i]);
+    const rr = solveRachfordRice(z, K);
+    if (rr.kind !== 'root' || !(rr.beta > 0 && rr.beta < 1)) return { kind: 'left', T };
+    const beta = rr.beta;
+    rachfordRiceCompositions(z, K, beta, x, y);
+    eos.lnPhi(T, P, x, 'stable', phiL);
+    eos.lnPhi(T, P, y, 'stable', phiV);
+    ctx.evaluations++;
+    let emax = 0;
+    for (let i = 0; i < n; i++) {
+      if (!(z[i] > 0)) continue;
+      const e = Math.abs(lnK[i] + phiV[i] - phiL[i]);
+      if (e > emax) emax = e;
+    }
+    phasePropertiesInto(eos, T, P, y, 'stable', ctx.kind === 'S', props);
+    const hV = props.H;
+    const sV = props.S;
+    const cpV = props.Cp;
+    phasePropertiesInto(eos, T, P, x, 'stable', ctx.kind === 'S', props);
+    const H = beta * hV + (1 - beta) * props.H;
+    const S = beta * sV + (1 - beta) * props.S;
+    const cpL = props.Cp;
+    const v = ctx.kind === 'H' ? H : S;
+    if (!Number.isFinite(v)) return { kind: 'stalled', T };
+    const r = scaled(ctx, v, T);
+    if (emax <= fTol && Math.abs(r) <= ctx.tol) {
+      const accepted = acceptSplit(ctx, T, beta, emax);
+      if (accepted === undefined) return { kind: 'stalled', T };
+      ctx.history.push(Math.abs(v - ctx.target));
+      return { kind: 'converged', e: { T, v, H, S, r, flash: accepted, cpV, cpL, root: 'vapor' } };
+    }
+    // the substitution must contract; if it does not, hand over to the nested iteration
+    if (it > 8 && emax > 0.9 * prevE) return { kind: 'stalled', T };
+    prevE = emax;
+    // d ln K/dT changes slowly along the iteration: refreshed on the first steps and every third
+    if (it < 2 || it % 3 === 0) lnKDerivative(ctx, T, x, y, phiL, phiV);
+    const slope = slopeFrom(ctx, T, beta, K, dlnK, cpV, cpL);
+    let dT = -(v - ctx.target) / slope;
+    if (!Number.isFinite(dT)) return { kind: 'stalled', T };
+    if (T + dT <= a) dT = 0.5 * (a - T);
+    else if (T + dT >= b) dT = 0.5 * (b - T);
+    for (let i = 0; i < n; i++) lnK[i] = phiL[i] - phiV[i] + dlnK[i] * dT;
+    T += dT;
+    ctx.iterations++;
+  }
+  return { kind: 'stalled', T };
+}
+
+/**
+ * The tests of flash.ts for a split from given K-values: not trivial (sum z_i ln^2 K_i >= 1e-8)
+ * and lower in Gibbs energy than the feed as one phase. Builds the flash record of the split.
+ */
+function acceptSplit(ctx: Ctx, T: number, beta: number, residual: number): FlashResult | undefined {
+  const { eos, P, z } = ctx;
+  const { lnK, K, x, y, phiL, phiV, phiZ } = ctx.work;
+  const n = z.length;
+  let trivial = 0;
+  let gSplit = 0;
+  for (let i = 0; i < n; i++) {
+    if (!(z[i] > 0)) continue;
+    trivial += z[i] * lnK[i] * lnK[i];
+    if (x[i] > 0) gSplit += (1 - beta) * x[i] * (Math.log(x[i]) + phiL[i]);
+    if (y[i] > 0) gSplit += beta * y[i] * (Math.log(y[i]) + phiV[i]);
+  }
+  if (trivial < 1e-8) return undefined;
+  eos.lnPhi(T, P, z, 'stable', phiZ);
+  ctx.evaluations++;
+  let gFeed = 0;
+  for (let i = 0; i < n; i++) if (z[i] > 0) gFeed += z[i] * (Math.log(z[i]) + phiZ[i]);
+  if (!(gSplit < gFeed)) return undefined;
+  const Kout = Float64Array.from(K);
+  // components absent from the feed: K at infinite dilution
+  for (let i = 0; i < n; i++) if (!(z[i] > 0)) Kout[i] = Math.exp(phiL[i] - phiV[i]);
+  const f: FlashResult = {
+    status: 'converged', phase: 'two-phase', beta, x: Float64Array.from(x), y: Float64Array.from(y), K: Kout,
+    iterations: 0, residual, evaluations: 0, history: [], method: 'from-K0',
+  };
+  if (eos.z(T, P, y, 'stable').root === 'liquid' && eos.z(T, P, x, 'stable').root === 'liquid') {
+    f.liquidLiquid = true;
+    f.note = 'both phases are liquid-like: the model predicts a liquid-liquid split (check the k_ij of polar pairs such as water-methanol)';
+  }
+  return f;
 }
 
 /** Ideal-gas temperature of the specification within [Tmin, Tmax] (the default start). */
@@ -363,6 +529,17 @@ function saturationTemperature(ctx: Ctx, i: number, Tmin: number, Tmax: number):
   return undefined;
 }
 
+/** Entropy of an evaluated state (PH computes it once, at the end). */
+function entropyOf(ctx: Ctx, e: Eval): number {
+  const { eos, P } = ctx;
+  const f = e.flash;
+  const p = ctx.props;
+  if (f.phase !== 'two-phase') return phasePropertiesInto(eos, e.T, P, ctx.z, 'stable', true, p).S;
+  const sV = phasePropertiesInto(eos, e.T, P, f.y, 'stable', true, p).S;
+  const sL = phasePropertiesInto(eos, e.T, P, f.x, 'stable', true, p).S;
+  return f.beta * sV + (1 - f.beta) * sL;
+}
+
 function result(ctx: Ctx, status: StateFlashResult['status'], e: Eval, message?: string): StateFlashResult {
   const f = e.flash;
   const r: StateFlashResult = {
@@ -370,7 +547,7 @@ function result(ctx: Ctx, status: StateFlashResult['status'], e: Eval, message?:
     x: f.x, y: f.y, K: f.K, H: e.H, iterations: ctx.iterations, flashes: ctx.flashes, evaluations: ctx.evaluations,
     residual: Math.abs(e.v - ctx.target), history: ctx.history,
   };
-  if (ctx.withS) r.S = e.S;
+  if (ctx.withS) r.S = ctx.kind === 'S' ? e.S : entropyOf(ctx, e);
   if (message !== undefined) r.message = message;
   else if (f.note) r.message = f.note;
   return r;
@@ -412,7 +589,8 @@ function solve(eos: Eos, P: number, kind: Kind, target: number, z: ArrayLike<num
     sum += v;
   }
   if (!(sum > 0)) throw new RangeError(`${name}: feed must have a positive sum`);
-  const zz = new Float64Array(n);
+  const ws = workspaceFor(eos);
+  const zz = ws.z;
   let nPresent = 0;
   let only = -1;
   for (let i = 0; i < n; i++) {
@@ -425,11 +603,10 @@ function solve(eos: Eos, P: number, kind: Kind, target: number, z: ArrayLike<num
   const miss = missingThermoData(eos.components, kind === 'H' ? 'enthalpy' : 'entropy', zz);
   if (miss) return miss;
   const withS = kind === 'S' || missingThermoData(eos.components, 'entropy', zz) === undefined;
-  const a = (): Float64Array => new Float64Array(n);
   const ctx: Ctx = {
     eos, P, z: zz, kind, target, withS, tol: opts.tol ?? 1e-8, flashTol: opts.flashTol, K: opts.K0,
-    flashes: 0, evaluations: 0, iterations: 0, history: [], props: newPhaseProperties(),
-    phiA: a(), phiB: a(), phiC: a(), phiD: a(), dlnK: a(),
+    flashes: 0, evaluations: 0, iterations: 0, history: [], props: ws.props,
+    phiA: ws.phiA, phiB: ws.phiB, phiC: ws.phiC, phiD: ws.phiD, dlnK: ws.dlnK, work: ws.work,
   };
   const maxIt = opts.maxIterations ?? 60;
   let [Tmin, Tmax] = range(eos.components, zz, opts);
@@ -481,9 +658,21 @@ function solve(eos: Eos, P: number, kind: Kind, target: number, z: ArrayLike<num
   if (lo !== undefined && T <= lo.T) T = lo.T + Math.min(1, 0.01 * span);
   if (hi !== undefined && T >= hi.T) T = hi.T - Math.min(1, 0.01 * span);
 
+  // Predictor without a flash: the feed as one phase on its stable root at the start. A
+  // single-phase answer then needs one isothermal flash, to confirm it.
+  {
+    const p0 = phasePropertiesInto(eos, T, P, zz, 'stable', false, ctx.props);
+    const Tp = singlePhaseNewton(ctx, T, p0.root, lo ? lo.T : Tmin, hi ? hi.T : Tmax);
+    if (Number.isFinite(Tp)) T = Tp;
+  }
+
   let prev: Eval | undefined;
   /** History length at the last bisection (the slowness test looks at the evaluations after it). */
   let sinceBisection = 0;
+  let simultaneousRuns = 0;
+  /** The phase whose single-phase answer the next evaluation tests, and those refused. */
+  let frozenFrom: 'vapor' | 'liquid' | undefined;
+  const rejected = { vapor: false, liquid: false };
   for (;;) {
     const got = evaluate(ctx, T);
     if (typeof got === 'string') {
@@ -514,10 +703,21 @@ function solve(eos: Eos, P: number, kind: Kind, target: number, z: ArrayLike<num
     }
     // next temperature
     let Tn: number;
+    if (frozenFrom !== undefined && e.flash.phase !== frozenFrom) rejected[frozenFrom] = true;
+    frozenFrom = undefined;
     if (e.flash.phase !== 'two-phase') {
-      Tn = singlePhaseNewton(ctx, e.T, e.root, a0, b0);
+      // a phase whose single-phase answer the equilibrium has already refused is not asked again
+      Tn = rejected[e.root] ? NaN : singlePhaseNewton(ctx, e.T, e.root, a0, b0);
       // an answer pressed against an end of the bracket is the single phase failing, not a solution
       if (lo && hi && (Tn - a0 < 1e-3 * (b0 - a0) || b0 - Tn < 1e-3 * (b0 - a0))) Tn = NaN;
+      if (Number.isFinite(Tn)) frozenFrom = e.root;
+    } else if (simultaneousRuns < 3) {
+      simultaneousRuns++;
+      const sim = simultaneous(ctx, e, a0, b0);
+      if (sim.kind === 'converged') return result(ctx, 'converged', sim.e);
+      // a bubble or dew point crossed, or no progress: the nested iteration goes on from there
+      Tn = Math.min(Math.max(sim.T, a0 + 1e-3 * (b0 - a0)), b0 - 1e-3 * (b0 - a0));
+      if (sim.kind === 'left') ctx.K = undefined;
     } else {
       let slope = NaN;
       if (prev !== undefined && prev.flash.phase === 'two-phase' && prev.T !== e.T) {
@@ -534,10 +734,9 @@ function solve(eos: Eos, P: number, kind: Kind, target: number, z: ArrayLike<num
     const slow = lo !== undefined && hi !== undefined && k - sinceBisection >= 4 && h[k - 1] > 0.5 * h[k - 4];
     if (!Number.isFinite(Tn) || Tn <= a0 || Tn >= b0) {
       if (lo && hi) {
-        // false position, kept off the ends
-        const w = b0 - a0;
-        Tn = a0 - (lo.d * w) / (hi.d - lo.d);
-        Tn = Math.min(Math.max(Tn, a0 + 0.05 * w), b0 - 0.05 * w);
+        // bisection: H(T) bends sharply at bubble and dew points, where false position crawls
+        Tn = 0.5 * (a0 + b0);
+        sinceBisection = ctx.history.length;
       } else if (e.r < 0) Tn = Math.min(2 * e.T, hi ? 0.5 * (e.T + b0) : Tmax);
       else Tn = Math.max(0.5 * e.T, lo ? 0.5 * (e.T + a0) : Tmin);
     }
