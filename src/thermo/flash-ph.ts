@@ -659,11 +659,13 @@ function solve(eos: Eos, P: number, kind: Kind, target: number, z: ArrayLike<num
   if (hi !== undefined && T >= hi.T) T = hi.T - Math.min(1, 0.01 * span);
 
   // Predictor without a flash: the feed as one phase on its stable root at the start. A
-  // single-phase answer then needs one isothermal flash, to confirm it.
+  // single-phase answer then needs one isothermal flash, to confirm it. A start from the caller
+  // is kept when the predictor would move it far (more than 5 %): that is a two-phase state,
+  // for which the caller's temperature is the better start.
   {
     const p0 = phasePropertiesInto(eos, T, P, zz, 'stable', false, ctx.props);
     const Tp = singlePhaseNewton(ctx, T, p0.root, lo ? lo.T : Tmin, hi ? hi.T : Tmax);
-    if (Number.isFinite(Tp)) T = Tp;
+    if (Number.isFinite(Tp) && (opts.T0 === undefined || Math.abs(Tp - T) <= 0.05 * T)) T = Tp;
   }
 
   let prev: Eval | undefined;
