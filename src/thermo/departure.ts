@@ -68,8 +68,8 @@ function aScratch(eos: CubicEos): Float64Array {
 
 /**
  * Residual properties of composition x (mole fractions, normalised internally) at T (K),
- * P (Pa) on the chosen root, written into `out` (no arrays are allocated; eos.z returns its
- * small root record). The root label is 'vapor' or 'liquid' as eos.z gives it.
+ * P (Pa) on the chosen root, written into `out` (allocation-free). The root label is 'vapor'
+ * or 'liquid' as eos.z gives it.
  */
 export function departureInto(eos: Eos, T: number, P: number, x: ArrayLike<number>, which: RootChoice, out: Departure): Departure {
   if (eos.name === 'ideal') {
@@ -86,10 +86,8 @@ export function departureInto(eos: Eos, T: number, P: number, x: ArrayLike<numbe
   if (!(eos instanceof CubicEos)) {
     throw new RangeError(`departure functions are defined for the SRK, PR and ideal-gas models, not "${eos.name}"`);
   }
-  const r = eos.z(T, P, x, which);
-  const Z = r.Z;
-  const A = r.A;
-  const B = r.B;
+  const Z = eos.zValue(T, P, x, which);
+  const root = eos.lastRoot;
   const d1 = eos.params.delta1;
   const d2 = eos.params.delta2;
   const ad = eos.aDerivatives(T, x, aScratch(eos));
@@ -97,10 +95,12 @@ export function departureInto(eos: Eos, T: number, P: number, x: ArrayLike<numbe
   const a1 = ad[1];
   const a2 = ad[2];
   const b = ad[3];
+  const RT = R * T;
+  const A = (a * P) / (RT * RT);
+  const B = (b * P) / RT;
   const den = Z + d2 * B;
   const u = ((d1 - d2) * B) / den;
   const lambda = (u === 0 ? 1 : Math.log1p(u) / u) / den;
-  const RT = R * T;
   const lnZB = Math.log(Z - B);
   const Ta1a = (T * a1) / a;
   const gR = Z - 1 - lnZB - A * lambda;
@@ -116,7 +116,7 @@ export function departureInto(eos: Eos, T: number, P: number, x: ArrayLike<numbe
   const cvR = (a2 * P * lambda) / R;
   const cpR = cvR + (T * dPdT * dPdT) / -dPdV - R;
   out.Z = Z;
-  out.root = r.root;
+  out.root = root;
   out.G = gR * RT;
   out.H = hR * RT;
   out.S = sR * R;

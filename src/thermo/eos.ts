@@ -269,6 +269,11 @@ export class CubicEos implements EosModel {
     };
   }
 
+  /** Label of the root selected by the last zValue/z/lnPhi/molarVolume/residualGibbs call (allocation-free). */
+  get lastRoot(): 'vapor' | 'liquid' {
+    return this.rootSel === ROOT_LIQUID ? 'liquid' : 'vapor';
+  }
+
   zValue(T: number, P: number, x: ArrayLike<number>, which: RootChoice = 'stable'): number {
     checkState(T, P, x, this.n);
     this.setT(T);
