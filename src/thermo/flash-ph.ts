@@ -676,7 +676,21 @@ function solve(eos: Eos, P: number, kind: Kind, target: number, z: ArrayLike<num
   let frozenFrom: 'vapor' | 'liquid' | undefined;
   const rejected = { vapor: false, liquid: false };
   for (;;) {
-    const got = evaluate(ctx, T);
+    let got = evaluate(ctx, T);
+    // An isothermal flash that fails at one temperature (a split that runs off to beta outside
+    // [0, 1], typically with three phases close) is tried again from scratch a little to either
+    // side, inside the bracket, before the state is given up.
+    for (let retry = 1; typeof got === 'string' && retry <= 4 && ctx.flashes < maxIt; retry++) {
+      const step = 1e-3 * retry * T * (retry % 2 === 1 ? 1 : -1);
+      const Tr = T + step;
+      if (!(Tr > (lo ? lo.T : Tmin) && Tr < (hi ? hi.T : Tmax))) continue;
+      ctx.K = undefined;
+      const again = evaluate(ctx, Tr);
+      if (typeof again !== 'string') {
+        got = again;
+        T = Tr;
+      }
+    }
     if (typeof got === 'string') {
       return prev ? result(ctx, 'not-converged', prev, got) : failedAt(ctx, T, got);
     }
