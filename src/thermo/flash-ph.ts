@@ -472,7 +472,8 @@ function idealGuess(ctx: Ctx, Tmin: number, Tmax: number): number {
     const s = slope(T);
     let Tn = s > 0 ? T - f / s : NaN;
     if (!(Tn > lo && Tn < hi)) Tn = 0.5 * (lo + hi);
-    if (Math.abs(Tn - T) <= 1e-10 * T) return Tn;
+    // a start, refined by the real-gas steps: a millikelvin is plenty
+    if (Math.abs(Tn - T) <= 1e-3) return Tn;
     T = Tn;
   }
   return T;
