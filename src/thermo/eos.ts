@@ -85,6 +85,8 @@ export class CubicEos implements EosModel {
   // T-dependent cache
   private lastT = NaN;
   private readonly sqrtA: Float64Array;
+  /** d sqrt(a_i)/dT scratch of aDerivatives. */
+  private readonly dSqrtA: Float64Array;
   /** Omega_a/Omega_b and Zc/Omega_b of the model (single-root classification). */
   private readonly critRatio: number;
   private readonly critVolume: number;
@@ -144,6 +146,7 @@ export class CubicEos implements EosModel {
       this.oneMinusK = null;
     }
     this.sqrtA = new Float64Array(n);
+    this.dSqrtA = new Float64Array(n);
     this.critRatio = params.omegaA / params.omegaB;
     this.critVolume = params.zc / params.omegaB;
     this.sumA = new Float64Array(n);
@@ -266,6 +269,11 @@ export class CubicEos implements EosModel {
     };
   }
 
+  /** Label of the root selected by the last zValue/z/lnPhi/molarVolume/residualGibbs call (allocation-free). */
+  get lastRoot(): 'vapor' | 'liquid' {
+    return this.rootSel === ROOT_LIQUID ? 'liquid' : 'vapor';
+  }
+
   zValue(T: number, P: number, x: ArrayLike<number>, which: RootChoice = 'stable'): number {
     checkState(T, P, x, this.n);
     this.setT(T);
@@ -286,6 +294,78 @@ export class CubicEos implements EosModel {
   residualGibbs(T: number, P: number, x: ArrayLike<number>, which: RootChoice = 'stable'): number {
     this.zValue(T, P, x, which);
     return this.gr(this.zSel, this.Asel, this.Bsel);
+  }
+
+  /**
+   * Mixture energy parameter and its temperature derivatives for composition x (normalised
+   * here) at T, for the residual enthalpy, entropy and heat capacity (departure.ts). Writes
+   * out[0] = a (J m3/mol2), out[1] = da/dT, out[2] = d2a/dT2, out[3] = b (m3/mol); returns out.
+   * With s_i = sqrt(a_i) = sqrt(a_c,i) |1 + m_i (1 - sqrt(T/Tc_i))|:
+   *   s_i' = -sigma_i sqrt(a_c,i) m_i / (2 sqrt(T Tc_i)),  s_i'' = -s_i' / (2T)
+   * (sigma_i the sign of 1 + m_i(1 - sqrt(T/Tc_i))), and with a = sum_ij x_i x_j (1 - k_ij) s_i s_j:
+   *   a'  = 2 sum_i x_i s_i' sum_j (1 - k_ij) x_j s_j
+   *   a'' = 2 sum_i x_i s_i'' sum_j (1 - k_ij) x_j s_j + 2 sum_i x_i s_i' sum_j (1 - k_ij) x_j s_j'.
+   * Allocation-free.
+   */
+  aDerivatives(T: number, x: ArrayLike<number>, out: Float64Array): Float64Array {
+    if (!(T > 0) || T === Infinity) throw new RangeError(`temperature must be a finite positive number of kelvin, got ${T}`);
+    if (x.length !== this.n) throw new RangeError(`composition has ${x.length} entries, expected ${this.n}`);
+    this.setT(T);
+    const n = this.n;
+    const s = this.sqrtA;
+    const ds = this.dSqrtA;
+    let xs = 0;
+    let bm = 0;
+    for (let i = 0; i < n; i++) {
+      const xi = x[i];
+      if (!(xi >= 0)) throw new RangeError(`mole fraction ${i} must be >= 0, got ${xi}`);
+      xs += xi;
+      bm += xi * this.b[i];
+      const f = 1 + this.m[i] * (1 - Math.sqrt(T * this.invTc[i]));
+      const sigma = f < 0 ? -1 : 1;
+      ds[i] = (-sigma * this.sqrtAc[i] * this.m[i] * Math.sqrt(this.invTc[i] / T)) / 2;
+    }
+    if (!(xs > 0) || xs === Infinity) throw new RangeError('composition must have a positive finite sum');
+    const inv = 1 / xs;
+    // s'' = -s'/(2T) for every component, so sum x_i s_i'' (...) = -(1/(2T)) sum x_i s_i' (...)
+    const omk = this.oneMinusK;
+    let a = 0;
+    let a1 = 0;
+    let a2b = 0; // sum_i x_i s_i' sum_j k_ij x_j s_j'
+    if (omk === null) {
+      let S = 0;
+      let S1 = 0;
+      for (let i = 0; i < n; i++) {
+        S += x[i] * s[i];
+        S1 += x[i] * ds[i];
+      }
+      S *= inv;
+      S1 *= inv;
+      a = S * S;
+      a1 = 2 * S * S1;
+      a2b = S1 * S1;
+    } else {
+      for (let i = 0; i < n; i++) {
+        const xi = x[i] * inv;
+        if (xi === 0) continue;
+        const row = i * n;
+        let t0 = 0;
+        let t1 = 0;
+        for (let j = 0; j < n; j++) {
+          const w = omk[row + j] * x[j] * inv;
+          t0 += w * s[j];
+          t1 += w * ds[j];
+        }
+        a += xi * s[i] * t0;
+        a1 += 2 * xi * ds[i] * t0;
+        a2b += xi * ds[i] * t1;
+      }
+    }
+    out[0] = a;
+    out[1] = a1;
+    out[2] = -a1 / (2 * T) + 2 * a2b;
+    out[3] = bm * inv;
+    return out;
   }
 
   lnPhi(T: number, P: number, x: ArrayLike<number>, which: RootChoice, out: Float64Array): RootResult {
