@@ -84,6 +84,10 @@ export const RECONCILE_DEFAULTS: Required<ReconcileOptions> = {
 };
 
 const SQRT_EPS = Math.sqrt(Number.EPSILON);
+/** Scaled residual of G z = g above which the linearised balances count as contradictory. */
+const INCONSISTENCY_TOL = 1e-8;
+/** Scaled step below which a finite-difference Jacobian is kept from one iteration to the next. */
+const CHORD_STEP = 1e-4;
 
 /** Reconciles one snapshot: prepareReconciliation(problem, options).solve(). */
 export function reconcile(problem: ReconciliationProblem, options: ReconcileOptions = {}, snapshot?: Snapshot): ReconcileResult {
@@ -107,6 +111,8 @@ interface StepInfo {
   step: number;
   /** Largest residual of the projected balances that G z = g cannot meet (0 when consistent). */
   inconsistency: number;
+  /** Largest |g_i|, the size the inconsistency is judged against. */
+  gScale: number;
 }
 
 /**
@@ -231,10 +237,37 @@ export class PreparedReconciliation {
     let converged = false;
     let stalled = false;
     let info: StepInfo | undefined;
+    // With a finite-difference Jacobian the steps cannot fall below its rounding noise (about
+    // 1e-7 here); once the steps are small the Jacobian is kept (a chord iteration, which
+    // converges to the same balances with a Jacobian a few steps old) and rebuilt only when a
+    // step grows.
+    const differenced = !this.problem.constraints.jacobian && !this.problem.constraints.linear;
+    let frozen = false;
+    let lastStep = Infinity;
     while (iterations < options.maxIterations) {
       iterations++;
-      this.formJacobian();
+      if (!frozen) this.formJacobian();
       info = this.linearStep();
+      if (differenced) {
+        if (frozen && info.step > lastStep) {
+          frozen = false;
+          this.formJacobian();
+          info = this.linearStep();
+        } else if (info.step <= CHORD_STEP) {
+          frozen = true;
+        }
+        lastStep = info.step;
+      }
+      // Bounds held together with the balances may ask the impossible (a start far from the
+      // balances can block several variables at once): release the bound that restores a
+      // consistent system, then step again.
+      if (!this.consistent(info) && releases < 3 * n && this.anyActive()) {
+        const released = this.releaseOne(true);
+        if (released >= 0) {
+          releases++;
+          continue;
+        }
+      }
       const objective = this.objective(x);
       // Cut the step at the nearest bound it would cross; hold that variable there.
       let alpha = 1;
@@ -377,11 +410,14 @@ export class PreparedReconciliation {
       cons.jacobian(x, J);
     } else {
       // Forward differences, step relative to the variable (Dennis and Schnabel 1983, Sec. 5.4),
-      // taken backwards where the forward step would leave the upper bound; c(x) reused.
+      // taken backwards where the forward step would leave the upper bound; c(x) reused. For
+      // linear balances a difference quotient has no truncation error, so the step is the
+      // variable's whole size, which keeps the rounding error near machine precision.
       const cw = this.cWork;
+      const rel = cons.linear ? 1 : SQRT_EPS;
       for (let j = 0; j < n; j++) {
         const xj = x[j];
-        let h = SQRT_EPS * Math.max(Math.abs(xj), this.typical[j]);
+        let h = rel * Math.max(Math.abs(xj), this.typical[j]);
         if (xj + h > this.upper[j]) h = -h;
         x[j] = xj + h;
         h = x[j] - xj;
@@ -443,6 +479,7 @@ export class PreparedReconciliation {
     const Gt = this.Gt;
     const ldG = this.maxRows;
     const g = this.g;
+    let gScale = 0;
     for (let i = 0; i < mg; i++) {
       let s = -cs[r + i];
       for (let k = 0; k < p; k++) {
@@ -451,6 +488,7 @@ export class PreparedReconciliation {
         s += v * z[k];
       }
       g[i] = s;
+      gScale = Math.max(gScale, Math.abs(s));
     }
     // Minimum-norm z with G z = g: G' P = Q_G R_G; R11' w = (P'g)[0:rho]; z = Q_G w.
     const rho = p > 0 && mg > 0 ? qrPivoted(Gt, p, mg, ldG, tol, this.qrG) : 0;
@@ -490,24 +528,28 @@ export class PreparedReconciliation {
       dx[j] = rhs[k] * typical[j];
       step = Math.max(step, Math.abs(rhs[k]));
     }
-    return { rows: M, rankB: r, rankG: rho, step, inconsistency };
+    return { rows: M, rankB: r, rankG: rho, step, inconsistency, gScale };
   }
 
   /**
-   * At a converged point with bounds held: the bound whose release moves its variable furthest
-   * back inside is released (returns its index); -1 when every held bound is needed. The
-   * buffers are left holding the system with the bounds in force.
+   * Releases one held bound and returns its variable's index, or -1 when every held bound is
+   * needed (the buffers then hold the system with the bounds in force again).
+   * At a converged point: the bound whose release moves its variable furthest back inside
+   * (a negative multiplier in the language of active-set methods).
+   * For an inconsistent system (forConsistency): among the bounds whose release makes the
+   * system consistent, the one whose variable moves furthest inside (or least outside).
    */
-  private releaseOne(): number {
+  private releaseOne(forConsistency = false): number {
     const { n, active, options } = this;
     let best = -1;
-    let bestMove = options.stepTolerance;
+    let bestMove = forConsistency ? -Infinity : options.stepTolerance;
     for (let j = 0; j < n; j++) {
       const side = active[j];
       if (side === 0) continue;
       active[j] = 0;
-      this.linearStep();
+      const trial = this.linearStep();
       active[j] = side;
+      if (forConsistency && !this.consistent(trial)) continue;
       const scale = this.isMeasured[j] === 1 ? this.sigma[j] : this.typical[j];
       const inward = (side < 0 ? this.dx[j] : -this.dx[j]) / scale;
       if (inward > bestMove) {
@@ -518,6 +560,16 @@ export class PreparedReconciliation {
     if (best >= 0) active[best] = 0;
     else this.linearStep();
     return best;
+  }
+
+  private anyActive(): boolean {
+    for (let j = 0; j < this.n; j++) if (this.active[j] !== 0) return true;
+    return false;
+  }
+
+  /** The linearised balances (with the bounds held) can be met: G z = g has a solution. */
+  private consistent(info: StepInfo): boolean {
+    return info.inconsistency <= INCONSISTENCY_TOL * Math.max(1, info.gScale);
   }
 
   // ---------------------------------------------------------------- measures

@@ -65,16 +65,29 @@ function hxProblem(measured: number[], opts: { analytic?: boolean; sigma?: numbe
 
 const ALL = [0, 1, 2, 3, 4, 5];
 
-/** The Lagrange solution x = y - V A' (A V A')^-1 A y and Cov(x) = V - V A' (A V A')^-1 A V. */
-function closedForm(a: number[][], y: number[], sigma: number[]) {
+/**
+ * The Lagrange solution of min (x - y)' V^-1 (x - y) subject to A x = b:
+ * x = y - V A' (A V A')^-1 (A y - b), and Cov(x) = V - V A' (A V A')^-1 A V.
+ * Null when A V A' is singular or the balances cannot be met (rows that contradict each other).
+ */
+function closedForm(a: number[][], y: number[], sigma: number[], b: number[] = a.map(() => 0)) {
   const A = new Matrix(a);
   const V = Matrix.diag(sigma.map((s) => s * s));
   const Y = Matrix.columnVector(y);
-  const K = V.mmul(A.transpose()).mmul(inverse(A.mmul(V).mmul(A.transpose())));
-  const x = Y.sub(K.mmul(A).mmul(Y));
+  let inv: Matrix;
+  try {
+    inv = inverse(A.mmul(V).mmul(A.transpose()));
+  } catch {
+    return null;
+  }
+  const K = V.mmul(A.transpose()).mmul(inv);
+  const x = Y.sub(K.mmul(A.mmul(Y).sub(Matrix.columnVector(b)))).to1DArray();
+  for (let i = 0; i < a.length; i++) {
+    if (Math.abs(a[i].reduce((s, aij, j) => s + aij * x[j], -b[i])) > 1e-8) return null;
+  }
   const covAdj = K.mmul(A).mmul(V);
   const covX = V.sub(covAdj);
-  return { x: x.to1DArray(), covX, covAdj };
+  return { x, covX, covAdj };
 }
 
 function estimate(r: ReconcileResult, name: string) {
@@ -93,14 +106,14 @@ describe('Narasimhan and Jordache (2000), Example 1.1: heat exchanger with bypas
   });
 
   it('equals the Lagrange closed form x = y - V A\'(A V A\')^-1 A y, computed here with plain matrix algebra', () => {
-    const cf = closedForm(HX_A, HX_Y, HX_Y.map(() => 1));
+    const cf = closedForm(HX_A, HX_Y, HX_Y.map(() => 1))!;
     cf.x.forEach((v, j) => expect(Math.abs(r.x[j] - v)).toBeLessThan(1e-9));
     // The balances close exactly.
     expect(r.scaledResidual).toBeLessThan(1e-12);
   });
 
   it('gives the covariance V - V A\'(A V A\')^-1 A V of the reconciled values and the adjustments\' variances', () => {
-    const cf = closedForm(HX_A, HX_Y, HX_Y.map(() => 1));
+    const cf = closedForm(HX_A, HX_Y, HX_Y.map(() => 1))!;
     const { indices, matrix } = r.covariance;
     expect(indices).toEqual(ALL);
     for (let a = 0; a < 6; a++) for (let b = 0; b < 6; b++) expect(matrix[a * 6 + b]).toBeCloseTo(cf.covX.get(a, b), 10);
@@ -290,36 +303,51 @@ describe('bounds', () => {
   });
 
   it('matches the best of every choice of bounds held, on seeded random readings (brute force)', () => {
-    // Four flows into one mixer, all read: in1 + in2 + in3 - out = 0, small inlet flows with
-    // coarse meters so that some reconcile to the bound. The exact optimum is found here by
-    // trying every subset of inlets held at zero with the closed form, keeping the feasible
-    // one of least weighted sum of squares.
-    let seed = 12345;
+    // Two balances over three bounded flows and one free term, readings drawn around zero so
+    // that bounds are held, released and sometimes contradict the balances when all are held:
+    //   F0 - F1 - F2 - F3 = 0,   F1 - 0.5 F2 + F3 = 0.2,   F0, F1, F2 >= 0.
+    // The exact optimum of this convex problem is the feasible closed-form solution of least
+    // weighted sum of squares over every subset of bounds held as equalities.
+    let seed = 777;
     const rand = () => {
       seed = (seed * 1103515245 + 12345) % 2147483648;
       return seed / 2147483648;
     };
-    for (let trial = 0; trial < 30; trial++) {
-      const y = [rand() * 2 - 0.5, rand() * 2 - 0.5, rand() * 10, rand() * 12];
-      const sigma = [1, 0.8, 0.5, 0.3];
+    const rowsBase = [
+      [1, -1, -1, -1],
+      [0, 1, -0.5, 1],
+    ];
+    let released = 0;
+    for (let trial = 0; trial < 300; trial++) {
+      const y = [rand() * 3 - 1.5, rand() * 3 - 1.5, rand() * 3 - 1.5, rand() * 4 - 2];
+      const sigma = y.map(() => 0.1 + rand());
       const r = reconcile({
-        variables: y.map((v, j) => ({ name: `F${j}`, start: v, lower: 0, measured: { value: v, sigma: sigma[j] } })),
-        constraints: linearBalances([[1, 1, 1, -1]], ['mixer']),
+        variables: y.map((v, j) => ({ name: `F${j}`, start: v, lower: j < 3 ? 0 : undefined, measured: { value: v, sigma: sigma[j] } })),
+        constraints: linearBalances(rowsBase, ['first', 'second'], [0, 0.2], trial % 2 === 0),
       });
       expect(r.status).toBe('reconciled');
+      const held = r.history.map((h) => h.activeBounds);
+      if (held.some((v, i) => i > 0 && v < held[i - 1])) released++;
       let best = { obj: Infinity, x: [] as number[] };
-      for (let mask = 0; mask < 16; mask++) {
-        const rows = [[1, 1, 1, -1]];
-        for (let j = 0; j < 4; j++) if (mask & (1 << j)) rows.push([0, 1, 2, 3].map((k) => (k === j ? 1 : 0)));
-        if (rows.length > 4) continue;
-        const x = closedForm(rows, y, sigma).x;
-        if (x.some((v) => v < -1e-12)) continue;
+      for (let mask = 0; mask < 8; mask++) {
+        const rows = rowsBase.map((row) => row.slice());
+        const b = [0, 0.2];
+        for (let j = 0; j < 3; j++) {
+          if (mask & (1 << j)) {
+            rows.push([0, 1, 2, 3].map((k) => (k === j ? 1 : 0)));
+            b.push(0);
+          }
+        }
+        const x = closedForm(rows, y, sigma, b)?.x;
+        if (!x || x.slice(0, 3).some((v) => v < -1e-9)) continue;
         const obj = x.reduce((s, v, j) => s + ((v - y[j]) / sigma[j]) ** 2, 0);
         if (obj < best.obj) best = { obj, x };
       }
       for (let j = 0; j < 4; j++) expect(Math.abs(r.x[j] - best.x[j])).toBeLessThan(1e-8);
       expect(r.objective).toBeCloseTo(best.obj, 8);
     }
+    // The release rule was exercised, not only the holding rule.
+    expect(released).toBeGreaterThan(10);
   });
 });
 
