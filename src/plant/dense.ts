@@ -10,113 +10,143 @@
  * Method: Golub and Van Loan, "Matrix Computations", 4th ed. (2013), Alg. 5.1.1 (Householder
  * vector) and Alg. 5.4.1 (Householder QR with column pivoting): at step k the remaining column of
  * largest norm is swapped to position k, so |R_00| >= |R_11| >= ... and the numerical rank is the
- * number of diagonal entries with |R_kk| > tol * |R_00|. Column norms are recomputed at each step
- * (the matrices here are a few tens of rows, and recomputing avoids the cancellation that
- * downdated norms suffer).
+ * number of diagonal entries with |R_kk| > tol * |R_00|. The remaining column norms are
+ * downdated after each step and recomputed where the downdate has cancelled most of the norm
+ * (the safeguard of LAPACK's xGEQP3: Drmac and Bujanovic, "On the failure of rank-revealing QR
+ * factorization software - a case study", ACM TOMS 35 (2008) 12).
  *
- * Storage: a matrix of `rows` x `cols` at stride `ld` (entry (i, j) at i * ld + j). After
+ * Storage: column-major, a matrix of `rows` x `cols` with leading dimension `ld` (entry (i, j)
+ * at j * ld + i), so that the inner loops run down contiguous columns. After
  * `qrPivoted` the upper triangle holds R, the part below the diagonal of column k holds the
  * Householder vector v_k (v_k[k] = 1 implied) and beta[k] its factor: H_k = I - beta_k v_k v_k'.
  * Q = H_0 H_1 ... H_{K-1}, K = min(rows, cols).
  */
 
-/** Result of a pivoted QR: its numerical rank; R, the reflectors and perm stay in the buffers. */
+/** Work space of a pivoted QR: reflector factors, the permutation, column norms. */
 export interface QrWork {
   /** beta[k] of each reflector (length >= min(rows, cols)). */
   beta: Float64Array;
   /** perm[k] = original column at position k (length >= cols). */
   perm: Int32Array;
-  /** Workspace for column norms (length >= cols). */
+  /** Downdated column norms, and the norms they were last recomputed at (length >= cols). */
   norms: Float64Array;
+  norms0: Float64Array;
 }
 
 export function newQrWork(maxCols: number): QrWork {
   const k = Math.max(1, maxCols);
-  return { beta: new Float64Array(k), perm: new Int32Array(k), norms: new Float64Array(k) };
+  return { beta: new Float64Array(k), perm: new Int32Array(k), norms: new Float64Array(k), norms0: new Float64Array(k) };
+}
+
+const TOL3Z = Math.sqrt(Number.EPSILON);
+
+function columnNorm(a: Float64Array, from: number, to: number): number {
+  let scale = 0;
+  let s = 0;
+  for (let i = from; i < to; i++) {
+    const v = a[i];
+    s += v * v;
+    const av = Math.abs(v);
+    if (av > scale) scale = av;
+  }
+  return scale === 0 ? 0 : Math.sqrt(s);
 }
 
 /**
- * Householder QR with column pivoting of a (rows x cols, stride ld), in place.
+ * Householder QR with column pivoting of a (rows x cols, leading dimension ld), in place.
  * Returns the numerical rank: the number of leading |R_kk| > relTol * |R_00| (0 for a zero
- * matrix). The factorisation stops at the rank: columns past it are left as they are after the
- * reflectors applied so far (R12 is complete, the rest is the negligible remainder).
+ * matrix). The factorisation stops at the rank: columns past it hold R12 in their first rows
+ * and the negligible remainder below.
  */
 export function qrPivoted(a: Float64Array, rows: number, cols: number, ld: number, relTol: number, w: QrWork): number {
-  const { beta, perm, norms } = w;
-  for (let j = 0; j < cols; j++) perm[j] = j;
+  const { beta, perm, norms, norms0 } = w;
+  for (let j = 0; j < cols; j++) {
+    perm[j] = j;
+    norms[j] = columnNorm(a, j * ld, j * ld + rows);
+    norms0[j] = norms[j];
+  }
   const kmax = Math.min(rows, cols);
   let r00 = 0;
   for (let k = 0; k < kmax; k++) {
-    // Pivot: the remaining column (rows k..) of largest norm.
-    let best = -1;
-    let bestNorm = -1;
-    for (let j = k; j < cols; j++) {
-      let s = 0;
-      for (let i = k; i < rows; i++) {
-        const v = a[i * ld + j];
-        s += v * v;
-      }
-      norms[j] = s;
-      if (s > bestNorm) {
-        bestNorm = s;
-        best = j;
-      }
-    }
-    const colNorm = Math.sqrt(bestNorm);
-    if (k === 0) r00 = colNorm;
-    if (colNorm === 0 || colNorm <= relTol * r00) return k;
+    // Pivot: the remaining column of largest (downdated) norm.
+    let best = k;
+    for (let j = k + 1; j < cols; j++) if (norms[j] > norms[best]) best = j;
     if (best !== k) {
+      const ob = best * ld;
+      const ok = k * ld;
       for (let i = 0; i < rows; i++) {
-        const t = a[i * ld + k];
-        a[i * ld + k] = a[i * ld + best];
-        a[i * ld + best] = t;
+        const t = a[ok + i];
+        a[ok + i] = a[ob + i];
+        a[ob + i] = t;
       }
       const tp = perm[k];
       perm[k] = perm[best];
       perm[best] = tp;
+      norms[best] = norms[k];
+      norms0[best] = norms0[k];
     }
+    const ok = k * ld;
+    const colNorm = columnNorm(a, ok + k, ok + rows);
+    if (k === 0) r00 = colNorm;
+    if (colNorm === 0 || colNorm <= relTol * r00) return k;
     // Householder vector for column k, rows k..rows-1 (Golub and Van Loan Alg. 5.1.1 form).
-    const x0 = a[k * ld + k];
+    const x0 = a[ok + k];
     const alpha = x0 >= 0 ? -colNorm : colNorm;
     const u0 = x0 - alpha;
-    beta[k] = -u0 / alpha;
-    for (let i = k + 1; i < rows; i++) a[i * ld + k] /= u0;
-    a[k * ld + k] = alpha;
-    // Apply H_k to the remaining columns.
-    const b = beta[k];
+    const b = -u0 / alpha;
+    beta[k] = b;
+    for (let i = k + 1; i < rows; i++) a[ok + i] /= u0;
+    a[ok + k] = alpha;
+    // Apply H_k to the remaining columns and downdate their norms.
     for (let j = k + 1; j < cols; j++) {
-      let s = a[k * ld + j];
-      for (let i = k + 1; i < rows; i++) s += a[i * ld + k] * a[i * ld + j];
+      const oj = j * ld;
+      let s = a[oj + k];
+      for (let i = k + 1; i < rows; i++) s += a[ok + i] * a[oj + i];
       s *= b;
-      if (s === 0) continue;
-      a[k * ld + j] -= s;
-      for (let i = k + 1; i < rows; i++) a[i * ld + j] -= s * a[i * ld + k];
+      if (s !== 0) {
+        a[oj + k] -= s;
+        for (let i = k + 1; i < rows; i++) a[oj + i] -= s * a[ok + i];
+      }
+      if (norms[j] !== 0) {
+        const ratio = Math.abs(a[oj + k]) / norms[j];
+        const t = Math.max(0, (1 + ratio) * (1 - ratio));
+        const t2 = t * (norms[j] / norms0[j]) ** 2;
+        if (t2 <= TOL3Z) {
+          norms[j] = columnNorm(a, oj + k + 1, oj + rows);
+          norms0[j] = norms[j];
+        } else {
+          norms[j] *= Math.sqrt(t);
+        }
+      }
     }
   }
   return kmax;
 }
 
-/** y <- Q' y for the first `nref` reflectors of a factored a (rows x ., stride ld). y has `rows` entries. */
+/** y <- Q' y for the first `nref` reflectors of a factored a (rows x ., leading dimension ld);
+ *  y has `rows` entries from yOff with stride yStride. */
 export function applyQt(a: Float64Array, rows: number, ld: number, beta: Float64Array, nref: number, y: Float64Array, yOff = 0, yStride = 1): void {
   for (let k = 0; k < nref; k++) {
+    const ok = k * ld;
     let s = y[yOff + k * yStride];
-    for (let i = k + 1; i < rows; i++) s += a[i * ld + k] * y[yOff + i * yStride];
+    for (let i = k + 1; i < rows; i++) s += a[ok + i] * y[yOff + i * yStride];
     s *= beta[k];
     if (s === 0) continue;
     y[yOff + k * yStride] -= s;
-    for (let i = k + 1; i < rows; i++) y[yOff + i * yStride] -= s * a[i * ld + k];
+    for (let i = k + 1; i < rows; i++) y[yOff + i * yStride] -= s * a[ok + i];
   }
 }
 
 /** y <- Q y (reflectors applied in reverse order). */
 export function applyQ(a: Float64Array, rows: number, ld: number, beta: Float64Array, nref: number, y: Float64Array, yOff = 0, yStride = 1): void {
   for (let k = nref - 1; k >= 0; k--) {
+    const ok = k * ld;
     let s = y[yOff + k * yStride];
-    for (let i = k + 1; i < rows; i++) s += a[i * ld + k] * y[yOff + i * yStride];
+    for (let i = k + 1; i < rows; i++) s += a[ok + i] * y[yOff + i * yStride];
     s *= beta[k];
     if (s === 0) continue;
     y[yOff + k * yStride] -= s;
-    for (let i = k + 1; i < rows; i++) y[yOff + i * yStride] -= s * a[i * ld + k];
+    for (let i = k + 1; i < rows; i++) y[yOff + i * yStride] -= s * a[ok + i];
   }
 }
 
@@ -124,7 +154,7 @@ export function applyQ(a: Float64Array, rows: number, ld: number, beta: Float64A
 export function solveUpper(a: Float64Array, ld: number, r: number, b: Float64Array, bOff = 0, bStride = 1): void {
   for (let i = r - 1; i >= 0; i--) {
     let s = b[bOff + i * bStride];
-    for (let j = i + 1; j < r; j++) s -= a[i * ld + j] * b[bOff + j * bStride];
+    for (let j = i + 1; j < r; j++) s -= a[j * ld + i] * b[bOff + j * bStride];
     b[bOff + i * bStride] = s / a[i * ld + i];
   }
 }
@@ -132,8 +162,9 @@ export function solveUpper(a: Float64Array, ld: number, r: number, b: Float64Arr
 /** Solves R11' x = b in place (forward substitution with the transpose of the upper triangle). */
 export function solveUpperTransposed(a: Float64Array, ld: number, r: number, b: Float64Array, bOff = 0, bStride = 1): void {
   for (let i = 0; i < r; i++) {
+    const oi = i * ld;
     let s = b[bOff + i * bStride];
-    for (let j = 0; j < i; j++) s -= a[j * ld + i] * b[bOff + j * bStride];
-    b[bOff + i * bStride] = s / a[i * ld + i];
+    for (let j = 0; j < i; j++) s -= a[oi + j] * b[bOff + j * bStride];
+    b[bOff + i * bStride] = s / a[oi + i];
   }
 }

@@ -439,6 +439,7 @@ export class PreparedReconciliation {
    */
   private linearStep(): StepInfo {
     const { n, m, p, q, x, J, c, active, meas, unmeas, sigma, typical, rowScale, cs, B, A } = this;
+    const R = this.maxRows;
     const tol = this.options.rankTolerance;
     // Rows: balances.
     let M = 0;
@@ -448,8 +449,8 @@ export class PreparedReconciliation {
       for (let k = 0; k < q; k++) s = Math.max(s, Math.abs(J[i * n + unmeas[k]]) * typical[unmeas[k]]);
       if (s === 0) s = 1;
       rowScale[M] = s;
-      for (let k = 0; k < p; k++) A[M * n + k] = (J[i * n + meas[k]] * sigma[meas[k]]) / s;
-      for (let k = 0; k < q; k++) B[M * n + k] = (J[i * n + unmeas[k]] * typical[unmeas[k]]) / s;
+      for (let k = 0; k < p; k++) A[k * R + M] = (J[i * n + meas[k]] * sigma[meas[k]]) / s;
+      for (let k = 0; k < q; k++) B[k * R + M] = (J[i * n + unmeas[k]] * typical[unmeas[k]]) / s;
       cs[M] = c[i] / s;
       M++;
     }
@@ -459,32 +460,32 @@ export class PreparedReconciliation {
       const measured = this.isMeasured[j] === 1;
       const bound = active[j] < 0 ? this.lower[j] : this.upper[j];
       const s = measured ? sigma[j] : typical[j];
-      for (let k = 0; k < p; k++) A[M * n + k] = 0;
-      for (let k = 0; k < q; k++) B[M * n + k] = 0;
-      if (measured) A[M * n + this.position[j]] = 1;
-      else B[M * n + this.position[j]] = 1;
+      for (let k = 0; k < p; k++) A[k * R + M] = 0;
+      for (let k = 0; k < q; k++) B[k * R + M] = 0;
+      if (measured) A[this.position[j] * R + M] = 1;
+      else B[this.position[j] * R + M] = 1;
       rowScale[M] = s;
       cs[M] = (x[j] - bound) / s;
       M++;
     }
     // Unmeasured columns: B P = Q R, rank r.
-    const r = q > 0 ? qrPivoted(B, M, q, n, tol, this.qrB) : 0;
+    const r = q > 0 ? qrPivoted(B, M, q, R, tol, this.qrB) : 0;
     // Q' A and Q' c.
-    for (let k = 0; k < p; k++) applyQt(B, M, n, this.qrB.beta, r, A, k, n);
-    applyQt(B, M, n, this.qrB.beta, r, cs);
+    for (let k = 0; k < p; k++) applyQt(B, M, R, this.qrB.beta, r, A, k * R);
+    applyQt(B, M, R, this.qrB.beta, r, cs);
     // Projected balances G = (Q'A)[r:, :], h = (Q'c)[r:]; current z; g = G z - h.
     const z = this.z;
     for (let k = 0; k < p; k++) z[k] = (x[meas[k]] - this.y[meas[k]]) / sigma[meas[k]];
     const mg = M - r;
     const Gt = this.Gt;
-    const ldG = this.maxRows;
+    const ldG = n;
     const g = this.g;
     let gScale = 0;
     for (let i = 0; i < mg; i++) {
       let s = -cs[r + i];
       for (let k = 0; k < p; k++) {
-        const v = A[(r + i) * n + k];
-        Gt[k * ldG + i] = v;
+        const v = A[k * R + r + i];
+        Gt[i * ldG + k] = v;
         s += v * z[k];
       }
       g[i] = s;
@@ -499,7 +500,7 @@ export class PreparedReconciliation {
     let inconsistency = 0;
     for (let i = rho; i < mg; i++) {
       let s = -t[i];
-      for (let k = 0; k < rho; k++) s += Gt[k * ldG + i] * t[k];
+      for (let k = 0; k < rho; k++) s += Gt[i * ldG + k] * t[k];
       inconsistency = Math.max(inconsistency, Math.abs(s));
     }
     const dx = this.dx;
@@ -517,10 +518,10 @@ export class PreparedReconciliation {
     const rhs = this.vec;
     for (let k = 0; k < r; k++) {
       let s = cs[k];
-      for (let l = 0; l < p; l++) s += A[k * n + l] * z[l];
+      for (let l = 0; l < p; l++) s += A[l * R + k] * z[l];
       rhs[k] = -s;
     }
-    solveUpper(B, n, r, rhs);
+    solveUpper(B, R, r, rhs);
     const permB = this.qrB.perm;
     for (let k = 0; k < q; k++) dx[unmeas[permB[k]]] = 0;
     for (let k = 0; k < r; k++) {
@@ -653,7 +654,8 @@ export class PreparedReconciliation {
   /** Classification, covariance and tests from the factorisations of the last linearisation. */
   private summarise(info: StepInfo, iterations: number, history: ReconcileHistoryEntry[]): ReconcileResult {
     const { n, p, q, meas, unmeas, sigma, typical, A, B, Gt, QG, T, active, options } = this;
-    const ldG = this.maxRows;
+    const ldG = n;
+    const R = this.maxRows;
     const r = info.rankB;
     const rho = info.rankG;
     const zeroTol = options.zeroTolerance;
@@ -665,12 +667,12 @@ export class PreparedReconciliation {
       col.fill(0, 0, p);
       col[l] = 1;
       applyQ(Gt, p, ldG, this.qrG.beta, rho, col);
-      for (let k = 0; k < p; k++) QG[k * ldG + l] = col[k];
+      for (let k = 0; k < p; k++) QG[l * ldG + k] = col[k];
     }
     const leverage = new Float64Array(p);
     for (let k = 0; k < p; k++) {
       let s = 0;
-      for (let l = 0; l < rho; l++) s += QG[k * ldG + l] * QG[k * ldG + l];
+      for (let l = 0; l < rho; l++) s += QG[l * ldG + k] * QG[l * ldG + k];
       leverage[k] = Math.min(1, s);
     }
     const redundant = new Uint8Array(p);
@@ -678,7 +680,7 @@ export class PreparedReconciliation {
 
     // K = R11^-1 (Q1'A): how the basic unmeasured variables follow the measured ones.
     const permB = this.qrB.perm;
-    for (let l = 0; l < p; l++) solveUpper(B, n, r, A, l, n);
+    for (let l = 0; l < p; l++) solveUpper(B, R, r, A, l * R);
     // Observability: basic columns with a zero row of R11^-1 R12 (on the balances alone, so that a
     // bound held on an unmeasured variable does not make it look determined by the data).
     const observable = new Uint8Array(q);
@@ -699,8 +701,8 @@ export class PreparedReconciliation {
       const maxRow = new Float64Array(rf);
       const col = this.vec;
       for (let f = 0; f < free; f++) {
-        for (let k = 0; k < rf; k++) col[k] = Bf[k * n + rf + f];
-        solveUpper(Bf, n, rf, col);
+        for (let k = 0; k < rf; k++) col[k] = Bf[(rf + f) * R + k];
+        solveUpper(Bf, R, rf, col);
         for (let k = 0; k < rf; k++) maxRow[k] = Math.max(maxRow[k], Math.abs(col[k]));
       }
       for (let k = 0; k < rf; k++) if (maxRow[k] <= zeroTol) observable[permF[k]] = 1;
@@ -712,54 +714,22 @@ export class PreparedReconciliation {
     // Covariance over measured + observable unmeasured, scaled: L C L' with C = I - Q_G Q_G',
     // L = [I; -K], then unscaled by sigma and typical magnitudes.
     const indices: number[] = [];
-    const scale: number[] = [];
-    const Lrows: Float64Array[] = [];
-    for (let k = 0; k < p; k++) {
-      indices.push(meas[k]);
-      scale.push(sigma[meas[k]]);
-      const row = new Float64Array(p);
-      row[k] = 1;
-      Lrows.push(row);
-    }
-    for (let k = 0; k < q; k++) {
-      if (!observable[k]) continue;
-      const j = unmeas[k];
-      indices.push(j);
-      scale.push(typical[j]);
-      const b = basicPos[k];
-      const row = new Float64Array(p);
-      for (let l = 0; l < p; l++) row[l] = -A[b * n + l];
-      Lrows.push(row);
-    }
+    for (let k = 0; k < p; k++) indices.push(meas[k]);
+    for (let k = 0; k < q; k++) if (observable[k]) indices.push(unmeas[k]);
     const N = indices.length;
-    // LC = L (I - QG QG')
-    const LC: Float64Array[] = Lrows.map((row) => {
-      const proj = new Float64Array(rho);
-      for (let l = 0; l < rho; l++) {
-        let s = 0;
-        for (let k = 0; k < p; k++) s += row[k] * QG[k * ldG + l];
-        proj[l] = s;
-      }
-      const out = Float64Array.from(row);
-      for (let k = 0; k < p; k++) {
-        let s = 0;
-        for (let l = 0; l < rho; l++) s += QG[k * ldG + l] * proj[l];
-        out[k] -= s;
-      }
-      return out;
-    });
-    const cov = new Float64Array(N * N);
-    for (let a = 0; a < N; a++) {
-      for (let b = a; b < N; b++) {
-        let s = 0;
-        const la = LC[a];
-        const lb = Lrows[b];
-        for (let k = 0; k < p; k++) s += la[k] * lb[k];
-        s *= scale[a] * scale[b];
-        cov[a * N + b] = s;
-        cov[b * N + a] = s;
-      }
+    const L = new Float64Array(N * p);
+    const scale = new Float64Array(N);
+    for (let k = 0; k < p; k++) {
+      L[k * p + k] = 1;
+      scale[k] = sigma[meas[k]];
     }
+    for (let a = p; a < N; a++) {
+      const j = indices[a];
+      const b = basicPos[this.position[j]];
+      scale[a] = typical[j];
+      for (let l = 0; l < p; l++) L[a * p + l] = -A[l * R + b];
+    }
+    const cov = projectedCovariance(L, N, p, QG, ldG, rho, scale);
     const covIndex = new Map<number, number>();
     indices.forEach((j, a) => covIndex.set(j, a));
 
@@ -772,7 +742,7 @@ export class PreparedReconciliation {
       rho === 0
         ? { status: 'not-redundant', statistic: objective, dof: 0, critical: NaN, pValue: NaN, confidence }
         : (() => {
-            const critical = chiSquareCritical(rho, confidence);
+            const critical = this.cached(`chi2 ${rho}`, () => chiSquareCritical(rho, confidence));
             return {
               status: objective > critical ? 'failed' : 'passed',
               statistic: objective,
@@ -785,7 +755,7 @@ export class PreparedReconciliation {
     let measurementTest: MeasurementTestInfo | undefined;
     if (redundantCount > 0) {
       const level = sidakLevel(confidence, redundantCount);
-      measurementTest = { count: redundantCount, confidence, level, critical: normalCritical(level) };
+      measurementTest = { count: redundantCount, confidence, level, critical: this.cached(`normal ${redundantCount}`, () => normalCritical(level)) };
     }
 
     // Estimates.
@@ -879,19 +849,61 @@ export class PreparedReconciliation {
     };
   }
 
+  /** Critical values by degrees of freedom or number of tests (the confidence is fixed per
+   *  prepared problem): a chi-square quantile costs as much as a whole linearised step. */
+  private readonly criticalValues = new Map<string, number>();
+
+  private cached(key: string, compute: () => number): number {
+    let v = this.criticalValues.get(key);
+    if (v === undefined) {
+      v = compute();
+      this.criticalValues.set(key, v);
+    }
+    return v;
+  }
+
   private rankBalancesOnly = 0;
   private permBalancesOnly: Int32Array = new Int32Array(0);
 
   /** Pivoted QR of the scaled unmeasured columns of the balances alone (no bound rows), into T. */
   private factorBalancesOnly(): void {
     const { n, m, q, J, unmeas, typical, T, rowScale } = this;
+    const R = this.maxRows;
     for (let i = 0; i < m; i++) {
-      for (let k = 0; k < q; k++) T[i * n + k] = (J[i * n + unmeas[k]] * typical[unmeas[k]]) / rowScale[i];
+      for (let k = 0; k < q; k++) T[k * R + i] = (J[i * n + unmeas[k]] * typical[unmeas[k]]) / rowScale[i];
     }
     const w = newQrWork(n);
-    this.rankBalancesOnly = q > 0 ? qrPivoted(T, m, q, n, this.options.rankTolerance, w) : 0;
+    this.rankBalancesOnly = q > 0 ? qrPivoted(T, m, q, R, this.options.rankTolerance, w) : 0;
     this.permBalancesOnly = w.perm;
   }
+}
+
+/**
+ * Scaled covariance L (I - Q Q') L' of N linear functions (rows of L, N x p) of p unit-variance
+ * readings, Q the p x rho orthonormal basis (column-major, leading dimension ldQ), unscaled: cov_ab = s_a s_b (...).
+ * Computed as L L' - (L Q)(L Q)'.
+ */
+function projectedCovariance(L: Float64Array, N: number, p: number, Q: Float64Array, ldQ: number, rho: number, scale: Float64Array): Float64Array {
+  const LQ = new Float64Array(N * rho);
+  for (let a = 0; a < N; a++) {
+    for (let l = 0; l < rho; l++) {
+      let s = 0;
+      for (let k = 0; k < p; k++) s += L[a * p + k] * Q[l * ldQ + k];
+      LQ[a * rho + l] = s;
+    }
+  }
+  const cov = new Float64Array(N * N);
+  for (let a = 0; a < N; a++) {
+    for (let b = a; b < N; b++) {
+      let s = 0;
+      for (let k = 0; k < p; k++) s += L[a * p + k] * L[b * p + k];
+      for (let l = 0; l < rho; l++) s -= LQ[a * rho + l] * LQ[b * rho + l];
+      s *= scale[a] * scale[b];
+      cov[a * N + b] = s;
+      cov[b * N + a] = s;
+    }
+  }
+  return cov;
 }
 
 /** Problems with the problem's shape and constant data (one message per problem). */

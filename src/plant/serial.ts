@@ -100,12 +100,15 @@ export function serialElimination(prepared: PreparedReconciliation, snapshot: Sn
       stopReason = 'limit';
       break;
     }
-    const candidates = current.estimates.filter((e) => e.test).sort((a, b) => b.test!.statistic - a.test!.statistic || a.index - b.index);
+    const candidates = current.estimates.filter((e) => e.test);
     if (candidates.length === 0) {
       stopReason = 'nothing-left';
       break;
     }
-    const top = candidates[0];
+    // The largest statistic; among readings tied with it (to rounding), the first in problem order.
+    const largest = Math.max(...candidates.map((e) => e.test!.statistic));
+    const tied = candidates.filter((e) => e.test!.statistic >= largest * (1 - TIE));
+    const top = tied[0];
     removed.push(top.index);
     const trial = solveWithout();
     if (trial.status === 'invalid' || trial.status === 'not-converged') {
@@ -120,24 +123,20 @@ export function serialElimination(prepared: PreparedReconciliation, snapshot: Sn
       stopReason = 'would-lose-observability';
       break;
     }
-    const maxStat = top.test!.statistic;
     const bias = top.reading! - implied.value;
     suspects.push({
       index: top.index,
       name: top.name,
       reading: top.reading!,
       sigma: top.sigma!,
-      statistic: maxStat,
+      statistic: top.test!.statistic,
       critical: top.test!.critical,
       implied: implied.value,
       impliedUncertainty: implied.uncertainty!,
       bias,
       biasUncertainty: Math.sqrt(top.sigma! ** 2 + implied.uncertainty! ** 2),
       relativeBias: bias / top.reading!,
-      indistinguishableFrom: candidates
-        .slice(1)
-        .filter((e) => Math.abs(e.test!.statistic - maxStat) <= TIE * maxStat)
-        .map((e) => e.name),
+      indistinguishableFrom: tied.slice(1).map((e) => e.name),
     });
     current = trial;
   }
