@@ -1,5 +1,5 @@
 #!/usr/bin/env node
-// Reconciliation speed on one plant-sized problem (bench/reconcile-problem.mjs: a methanol loop,
+// Reconciliation speed on one plant-sized problem (bench/reconcile-problem.ts: a methanol loop,
 // 36 variables, 21 balances, 19 readings; an invented scenario with seeded noise).
 //
 //   node bench/reconcile.mjs [--json] [--quick] [--root DIR]
@@ -8,16 +8,17 @@
 //   snapshot        prepared.solve() of one snapshot (analytic Jacobian; and by differences)
 //   prepare+solve   reconcile(problem) with its set-up
 //   serial          serialElimination on a snapshot with one meter reading 6 % high
-//   8760 rows       one prepared problem over a year of hourly snapshots (wall time)
+//   8760 rows       one prepared problem over a year of hourly snapshots (total), started cold
+//                   and started from the previous row's solution
 // The engine is bundled from DIR/src/plant (default: this checkout) with esbuild, so the figure
 // does not depend on what the library entry exports.
 import { build } from 'esbuild';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { cpus, loadavg, tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { fmt, measure, table } from './timing.mjs';
-import { F, problem, steadyState } from './reconcile-problem.mjs';
+
 
 const here = dirname(fileURLToPath(import.meta.url));
 const args = process.argv.slice(2);
@@ -33,8 +34,12 @@ const root = resolve(value('--root', join(here, '..')));
 const dir = mkdtempSync(join(tmpdir(), 'loopclose-bench-'));
 const outfile = join(dir, 'plant.mjs');
 const banner = { js: "import { createRequire as __r } from 'node:module'; const require = __r(import.meta.url);" };
-await build({ entryPoints: [join(root, 'src/plant/index.ts')], bundle: true, platform: 'node', format: 'esm', target: 'node20', outfile, banner, logLevel: 'warning' });
-const plant = await import(pathToFileURL(outfile).href);
+// One bundle of the engine and the problem generator (bench/reconcile-problem.ts, also used by
+// the tests); the engine comes from DIR/src/plant, the generator from this checkout.
+const entry = join(dir, 'entry.ts');
+writeFileSync(entry, `export * as plant from ${JSON.stringify(join(root, 'src/plant/index.ts'))};\nexport * from ${JSON.stringify(join(here, 'reconcile-problem.ts'))};\n`);
+await build({ entryPoints: [entry], bundle: true, platform: 'node', format: 'esm', target: 'node20', outfile, banner, logLevel: 'warning', nodePaths: [join(here, '..', 'node_modules')] });
+const { plant, F, problem, steadyState } = await import(pathToFileURL(outfile).href);
 rmSync(dir, { recursive: true, force: true });
 
 // ------------------------------------------------------------------ measurements
@@ -83,6 +88,14 @@ for (let r = 0; r < rows; r++) {
 const yearMs = performance.now() - t0;
 const yearCpu = process.cpuUsage(c0);
 const yearCpuMs = (yearCpu.user + yearCpu.system) / 1000;
+// The same rows, each started from the previous row's solution.
+let previous;
+const c1 = process.cpuUsage();
+const t1 = performance.now();
+for (let r = 0; r < rows; r++) previous = prepared.solve({ values: values[r], start: previous }).x;
+const warmMs = performance.now() - t1;
+const warmCpu = process.cpuUsage(c1);
+const warmCpuMs = (warmCpu.user + warmCpu.system) / 1000;
 
 const out = {
   problem: { variables: p.variables.length, balances: p.constraints.count, readings: p.variables.filter((v) => v.measured).length },
@@ -99,6 +112,8 @@ const out = {
   rows,
   rowsMs: yearMs,
   rowsCpuMs: yearCpuMs,
+  rowsWarmMs: warmMs,
+  rowsWarmCpuMs: warmCpuMs,
   loadAverage: loadavg()[0],
   rowStatuses: statuses,
 };
@@ -116,6 +131,7 @@ if (json) {
         ['reconcile() with its set-up', fmt(fresh.ms, 3), fmt(fresh.cpu, 3)],
         [`serial elimination, makeup 6 % high (found: ${out.serialFound.join(', ') || 'none'})`, fmt(serial.ms, 3), fmt(serial.cpu, 3)],
         [`${rows} hourly rows, prepared (total)`, fmt(yearMs, 4), fmt(yearCpuMs, 4)],
+        [`${rows} hourly rows, each started from the previous (total)`, fmt(warmMs, 4), fmt(warmCpuMs, 4)],
       ],
     ) + '\n',
   );

@@ -229,7 +229,12 @@ export class PreparedReconciliation {
 
     const { n, x, c, active, options } = this;
     const history: ReconcileHistoryEntry[] = [];
-    active.fill(0);
+    // A reading outside its bounds (an analyzer reading a little below zero) starts held at
+    // the bound it crossed; the release rule frees it at the end if the data pull it inside.
+    for (let j = 0; j < n; j++) {
+      const yj = this.y[j];
+      active[j] = this.isMeasured[j] && yj < this.lower[j] ? -1 : this.isMeasured[j] && yj > this.upper[j] ? 1 : 0;
+    }
     if (!this.evaluate(x, c)) return this.invalid([this.nonFiniteMessage('at the start')]);
 
     let iterations = 0;
@@ -262,9 +267,9 @@ export class PreparedReconciliation {
       // balances can block several variables at once): release the bound that restores a
       // consistent system, then step again.
       if (!this.consistent(info) && releases < 3 * n && this.anyActive()) {
-        const released = this.releaseOne(true);
-        if (released >= 0) {
-          releases++;
+        const released = this.releaseBounds(true);
+        if (released > 0) {
+          releases += released;
           continue;
         }
       }
@@ -309,9 +314,9 @@ export class PreparedReconciliation {
       const stepOk = info.step <= options.stepTolerance || (this.problem.constraints.linear === true && info.inconsistency <= options.zeroTolerance);
       if (alpha === 1 && stepOk && residualOk) {
         if (activeCount > 0 && releases < 3 * n) {
-          const released = this.releaseOne();
-          if (released >= 0) {
-            releases++;
+          const released = this.releaseBounds();
+          if (released > 0) {
+            releases += released;
             continue;
           }
         }
@@ -330,7 +335,7 @@ export class PreparedReconciliation {
       return this.notConverged(iterations, history, why);
     }
     // The factorisations in the buffers belong to the last linearisation with the bounds in force
-    // (releaseOne leaves them so); the step they gave is below tolerance, so they describe the solution.
+    // (releaseBounds leaves them so); the step they gave is below tolerance, so they describe the solution.
     return this.summarise(info, iterations, history);
   }
 
@@ -533,34 +538,98 @@ export class PreparedReconciliation {
   }
 
   /**
-   * Releases one held bound and returns its variable's index, or -1 when every held bound is
-   * needed (the buffers then hold the system with the bounds in force again).
-   * At a converged point: the bound whose release moves its variable furthest back inside
-   * (a negative multiplier in the language of active-set methods).
-   * For an inconsistent system (forConsistency): among the bounds whose release makes the
-   * system consistent, the one whose variable moves furthest inside (or least outside).
+   * Releases held bounds; returns how many (0 when every held bound is needed: the buffers then
+   * hold the system with the bounds in force again).
+   * At a converged point: the bound whose release alone moves its variable furthest back
+   * inside (a negative multiplier in the language of active-set methods). Held bounds can pin
+   * each other through a balance (three zero flows around a mixer: releasing any one alone
+   * leaves it pinned by the other two), so when no single release moves inward, all are
+   * released together for one trial step and those whose variables move inward are freed.
+   * For an inconsistent system (forConsistency): the same, counting only trial systems that
+   * are consistent, the single release whose variable moves furthest inside (or least outside).
    */
-  private releaseOne(forConsistency = false): number {
+  private releaseBounds(forConsistency = false): number {
     const { n, active, options } = this;
+    this.saveStep();
     let best = -1;
     let bestMove = forConsistency ? -Infinity : options.stepTolerance;
+    let held = 0;
     for (let j = 0; j < n; j++) {
       const side = active[j];
       if (side === 0) continue;
+      held++;
       active[j] = 0;
       const trial = this.linearStep();
       active[j] = side;
       if (forConsistency && !this.consistent(trial)) continue;
-      const scale = this.isMeasured[j] === 1 ? this.sigma[j] : this.typical[j];
-      const inward = (side < 0 ? this.dx[j] : -this.dx[j]) / scale;
+      const inward = this.inward(j, side);
       if (inward > bestMove) {
         bestMove = inward;
         best = j;
       }
     }
-    if (best >= 0) active[best] = 0;
-    else this.linearStep();
-    return best;
+    if (best >= 0) {
+      active[best] = 0;
+      return 1;
+    }
+    if (held >= 2) {
+      // Release all; hold again the one the trial step moves furthest outward, and repeat until
+      // every released variable moves inward (each round holds one again, so it ends).
+      const sides = Int8Array.from(active);
+      active.fill(0);
+      let released = held;
+      while (released > 0) {
+        const trial = this.linearStep();
+        if (forConsistency && !this.consistent(trial)) {
+          released = 0;
+          break;
+        }
+        let worst = -1;
+        let worstMove = options.stepTolerance;
+        for (let j = 0; j < n; j++) {
+          if (sides[j] === 0 || active[j] !== 0) continue;
+          const move = this.inward(j, sides[j]);
+          if (move <= worstMove) {
+            worstMove = move;
+            worst = j;
+          }
+        }
+        if (worst < 0) break;
+        active[worst] = sides[worst];
+        released--;
+      }
+      if (released > 0) return released;
+      active.set(sides);
+    }
+    this.restoreStep();
+    return 0;
+  }
+
+  /** How far the last step moves variable j back inside from the bound on `side` (scaled). */
+  private inward(j: number, side: number): number {
+    const scale = this.isMeasured[j] === 1 ? this.sigma[j] : this.typical[j];
+    return (side < 0 ? this.dx[j] : -this.dx[j]) / scale;
+  }
+
+  /** Copies of what linearStep leaves behind, so that trial steps can be undone without
+   *  factorising again. */
+  private saved?: { buffers: Float64Array[]; perms: Int32Array[]; copies: Float64Array[]; permCopies: Int32Array[] };
+
+  private saveStep(): void {
+    if (!this.saved) {
+      const buffers = [this.rowScale, this.cs, this.B, this.A, this.Gt, this.g, this.z, this.dx, this.qrB.beta, this.qrG.beta];
+      const perms = [this.qrB.perm, this.qrG.perm];
+      this.saved = { buffers, perms, copies: buffers.map((b) => new Float64Array(b.length)), permCopies: perms.map((b) => new Int32Array(b.length)) };
+    }
+    const sv = this.saved;
+    sv.buffers.forEach((b, i) => sv.copies[i].set(b));
+    sv.perms.forEach((b, i) => sv.permCopies[i].set(b));
+  }
+
+  private restoreStep(): void {
+    const sv = this.saved!;
+    sv.buffers.forEach((b, i) => b.set(sv.copies[i]));
+    sv.perms.forEach((b, i) => b.set(sv.permCopies[i]));
   }
 
   private anyActive(): boolean {

@@ -3,26 +3,31 @@
 // reactor out, loop gas, crude liquid) and six flows: 36 variables, 21 balances (fraction sums,
 // mixer and separator component balances, reactor element balances with free extents), 19
 // readings. An invented scenario; its steady state is generated here and the readings are that
-// state plus seeded noise.
+// state plus seeded noise. Used by bench/reconcile.mjs (bundled with esbuild) and by
+// test/plant/methanol.test.ts.
+import type { PlantVariable, ReconciliationProblem } from '../src/plant/index.js';
 
 const COMP = ['H2', 'CO', 'CO2', 'H2O', 'CH3OH', 'N2'];
 // Atoms per molecule: C, H, O, N.
-const ATOMS = { H2: [0, 2, 0, 0], CO: [1, 0, 1, 0], CO2: [1, 0, 2, 0], H2O: [0, 2, 1, 0], CH3OH: [1, 4, 1, 0], N2: [0, 0, 0, 2] };
+const ATOMS: Record<string, number[]> = { H2: [0, 2, 0, 0], CO: [1, 0, 1, 0], CO2: [1, 0, 2, 0], H2O: [0, 2, 1, 0], CH3OH: [1, 4, 1, 0], N2: [0, 0, 0, 2] };
 const NC = COMP.length;
 const STREAMS = ['makeup', 'reactor-in', 'reactor-out', 'loop-gas', 'crude'];
 const FLOWS = ['makeup', 'reactor-in', 'reactor-out', 'purge', 'recycle', 'crude'];
 // Variable layout: flows, then fractions stream by stream.
-export const F = Object.fromEntries(FLOWS.map((s, i) => [s, i]));
-const X = (stream, k) => FLOWS.length + STREAMS.indexOf(stream) * NC + k;
-const N = FLOWS.length + STREAMS.length * NC;
+export const F: Record<string, number> = Object.fromEntries(FLOWS.map((s, i) => [s, i]));
+export const X = (stream: string, k: number): number => FLOWS.length + STREAMS.indexOf(stream) * NC + k;
+export const N = FLOWS.length + STREAMS.length * NC;
 
 /** The steady state by direct substitution on the recycle (invented design figures). */
-export function steadyState() {
+export function steadyState(): Float64Array {
   const makeup = [0.7, 0.06, 0.2, 0, 0, 0.04].map((v) => v * 100); // mol/s
   const toLiquid = [0.001, 0.002, 0.02, 0.99, 0.97, 0.0005];
   const purgeFraction = 0.04;
-  let recycle = new Array(NC).fill(0);
-  let s1, s2, liquid, vapour;
+  let recycle: number[] = new Array(NC).fill(0);
+  let s1: number[] = [];
+  let s2: number[] = [];
+  let liquid: number[] = [];
+  let vapour: number[] = [];
   for (let it = 0; it < 5000; it++) {
     s1 = makeup.map((m, k) => m + recycle[k]);
     const xi1 = 0.25 * s1[1]; // CO + 2 H2 -> CH3OH
@@ -37,9 +42,9 @@ export function steadyState() {
     vapour = s2.map((v, k) => v - liquid[k]);
     recycle = vapour.map((v) => v * (1 - purgeFraction));
   }
-  const sum = (a) => a.reduce((p, q) => p + q, 0);
+  const sum = (a: number[]) => a.reduce((p, q) => p + q, 0);
   const x = new Float64Array(N);
-  const set = (stream, flows) => {
+  const set = (stream: string, flows: number[]) => {
     const t = sum(flows);
     flows.forEach((v, k) => (x[X(stream, k)] = v / t));
     return t;
@@ -55,9 +60,12 @@ export function steadyState() {
 }
 
 /** Balances as sums of coefficient x variable (x variable): evaluate and analytic Jacobian. */
-function balances() {
-  const rows = [];
-  const names = [];
+/** A term: [coefficient], [coefficient, j] or [coefficient, j, k] for c, c x_j, c x_j x_k. */
+type Term = number[];
+
+function balances(): { rows: Term[][]; names: string[] } {
+  const rows: Term[][] = [];
+  const names: string[] = [];
   for (const s of STREAMS) {
     rows.push([[-1], ...COMP.map((_, k) => [1, X(s, k)])]);
     names.push(`${s} fractions sum to 1`);
@@ -67,7 +75,7 @@ function balances() {
     names.push(`mixer ${c}`);
   });
   ['C', 'H', 'O', 'N'].forEach((e, ei) => {
-    const row = [];
+    const row: Term[] = [];
     COMP.forEach((c, k) => {
       const a = ATOMS[c][ei];
       if (a === 0) return;
@@ -83,7 +91,7 @@ function balances() {
   return { rows, names };
 }
 
-export function problem(state, seed, { analytic = true, biased } = {}) {
+export function problem(state: Float64Array, seed: number, { analytic = true, biased }: { analytic?: boolean; biased?: number } = {}): ReconciliationProblem {
   const { rows, names } = balances();
   let a = seed >>> 0;
   const uniform = () => {
@@ -101,11 +109,11 @@ export function problem(state, seed, { analytic = true, biased } = {}) {
   }
   measured.add(X('crude', 3));
   measured.add(X('crude', 4));
-  const variables = [];
+  const variables: PlantVariable[] = [];
   for (let j = 0; j < N; j++) {
     const isFlow = j < FLOWS.length;
     const name = isFlow ? `${FLOWS[j]}.flow` : `${STREAMS[Math.floor((j - FLOWS.length) / NC)]}.${COMP[(j - FLOWS.length) % NC]}`;
-    let meas;
+    let meas: PlantVariable['measured'];
     if (measured.has(j)) {
       const sigma = isFlow ? 0.01 * state[j] : Math.max(0.01 * state[j], 1e-4);
       let v = state[j] + sigma * normal();
