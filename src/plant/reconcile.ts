@@ -53,9 +53,12 @@
  * observable unmeasured estimates inherit them through dx_basic = -R11^-1 Q1' A dx_m.
  * Bounds: a primal active-set rule (Nocedal and Wright, "Numerical Optimization", 2nd ed.,
  * Springer 2006, Sec. 16.5): a step that would cross a bound is cut at it and the variable is
- * held there as an exact balance x_j = bound; at convergence a held bound is released when the
- * step without it moves the variable back inside. A result with a bound in force says so: the
- * tests then take the bound as exact.
+ * held there as an exact balance x_j = bound (a reading outside its bounds starts held); at
+ * convergence a held bound is released when the step without it moves the variable back
+ * inside. Bounds that pin each other through a balance (zero water in three streams around a
+ * mixer) are released together, holding again one at a time those that would move outward;
+ * held bounds that contradict the balances are released until the system is consistent. A
+ * result with a bound in force says so: the tests then take the bound as exact.
  * Convergence: the last step is at most stepTolerance (in sigmas, or typical magnitudes for
  * unmeasured variables) and every balance residual at most constraintTolerance times the size
  * of its terms. A problem that does not converge, or whose balances cannot all be met, returns
@@ -76,7 +79,7 @@ import type {
 
 export const RECONCILE_DEFAULTS: Required<ReconcileOptions> = {
   maxIterations: 50,
-  stepTolerance: 1e-9,
+  stepTolerance: 1e-8,
   constraintTolerance: 1e-10,
   rankTolerance: 1e-10,
   zeroTolerance: 1e-8,
@@ -174,7 +177,8 @@ export class PreparedReconciliation {
     const vars = problem.variables;
     const cons = problem.constraints;
     const n = vars.length;
-    const m = cons.count;
+    // A count that is not a whole number >= 0 is reported by checkShape; allocate for none.
+    const m = Number.isInteger(cons.count) && cons.count >= 0 ? cons.count : 0;
     this.n = n;
     this.m = m;
     this.names = vars.map((v) => v.name);

@@ -71,7 +71,7 @@ export interface ReconcileOptions {
   /** Gauss-Newton iterations (default 50). */
   maxIterations?: number;
   /** Converged when the last step is at most this, measured in sigmas for measured variables
-   *  and in typical magnitudes for unmeasured ones (default 1e-9)... */
+   *  and in typical magnitudes for unmeasured ones (default 1e-8)... */
   stepTolerance?: number;
   /** ...and every |c_i| is at most this times the size of its terms, sum_j |dc_i/dx_j| |x_j|
    *  (default 1e-10). */

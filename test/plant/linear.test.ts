@@ -386,6 +386,14 @@ describe('bad problems and failures are results, not exceptions', () => {
     expect(r.globalTest).toBeUndefined();
   });
 
+  it('a negative constraint count and a confidence above 1 are reported, not thrown', () => {
+    const p = hxProblem(ALL);
+    const r = reconcile({ variables: p.variables, constraints: { ...p.constraints, count: -1, names: [] } }, { confidence: 1.5 });
+    expect(r.status).toBe('invalid');
+    expect(r.issues.join('\n')).toMatch(/count -1 is not a whole number/);
+    expect(r.issues.join('\n')).toMatch(/confidence 1.5 is not between 0 and 1/);
+  });
+
   it('snapshots with the wrong length are invalid', () => {
     const prep = prepareReconciliation(hxProblem(ALL));
     const r = prep.solve({ values: [1, 2, 3] });
