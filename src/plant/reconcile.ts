@@ -315,7 +315,9 @@ export class PreparedReconciliation {
       for (let j = 0; j < n; j++) if (active[j] !== 0) activeCount++;
       history.push({ iteration: iterations, objective, residual: scaled, step: info.step, stepLength: alpha, activeBounds: activeCount });
       const residualOk = scaled <= options.constraintTolerance;
-      const stepOk = info.step <= options.stepTolerance || (this.problem.constraints.linear === true && info.inconsistency <= options.zeroTolerance);
+      // Linear balances: the step just taken was exact, so a consistent system is converged once
+      // its residual is.
+      const stepOk = info.step <= options.stepTolerance || (this.problem.constraints.linear === true && this.consistent(info));
       if (alpha === 1 && stepOk && residualOk) {
         if (activeCount > 0 && releases < 3 * n) {
           const released = this.releaseBounds();
