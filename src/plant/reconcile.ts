@@ -247,9 +247,10 @@ export class PreparedReconciliation {
     let stalled = false;
     let info: StepInfo | undefined;
     // With a finite-difference Jacobian the steps cannot fall below its rounding noise (about
-    // 1e-7 here); once the steps are small the Jacobian is kept (a chord iteration, which
-    // converges to the same balances with a Jacobian a few steps old) and rebuilt only when a
-    // step grows.
+    // 1e-7 in scaled units); once the steps are below 1e-4 the Jacobian is kept (a chord
+    // iteration) and rebuilt only when a step grows. The balances are then met exactly; the
+    // optimality condition holds with a Jacobian at most one small step old, an error of the
+    // order of the differencing error itself (the bilinear test compares both to 1e-6).
     const differenced = !this.problem.constraints.jacobian && !this.problem.constraints.linear;
     let frozen = false;
     let lastStep = Infinity;
