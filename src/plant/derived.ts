@@ -1,0 +1,60 @@
+/**
+ * A quantity computed from a reconciliation (a per-pass conversion = extent / inlet flow of the
+ * key, a purge ratio, a closure) and its standard uncertainty by first-order propagation of the
+ * result's covariance (JCGM 100:2008, "Guide to the expression of uncertainty in measurement",
+ * Sec. 5.2, law of propagation of uncertainty for correlated input quantities, eq. (13)):
+ *     u^2(f) = g' C g,   g_k = df/dx_k by central differences at the reconciled x.
+ * A quantity that depends on an unobservable variable has no value: the result's x holds NaN
+ * there, so f comes out NaN and the answer says so.
+ */
+import type { ReconcileResult } from './types.js';
+
+export interface DerivedEstimate {
+  /** f at the reconciled x; null when f depends on an unobservable variable or is not finite. */
+  value: number | null;
+  /** Standard uncertainty of f; null with value. */
+  uncertainty: number | null;
+  /** df/dx_k for each index of the result's covariance. */
+  sensitivities: { index: number; derivative: number }[];
+  note?: string;
+}
+
+/** Value and standard uncertainty of f(x) at a reconciled result (status reconciled or not-redundant). */
+export function derivedEstimate(result: ReconcileResult, f: (x: Float64Array) => number): DerivedEstimate {
+  if (result.status !== 'reconciled' && result.status !== 'not-redundant') {
+    return { value: null, uncertainty: null, sensitivities: [], note: `no estimate: the reconciliation is ${result.status}` };
+  }
+  const x = Float64Array.from(result.x);
+  const value = f(x);
+  if (!Number.isFinite(value)) {
+    return { value: null, uncertainty: null, sensitivities: [], note: 'not determined: it depends on an unobservable variable (or is not finite at the solution)' };
+  }
+  const { indices, matrix } = result.covariance;
+  const N = indices.length;
+  const grad = new Float64Array(N);
+  const h0 = Math.cbrt(Number.EPSILON);
+  for (let a = 0; a < N; a++) {
+    const j = indices[a];
+    const xj = x[j];
+    const sd = Math.sqrt(Math.max(0, matrix[a * N + a]));
+    const h = h0 * Math.max(Math.abs(xj), sd, 1e-300);
+    x[j] = xj + h;
+    const fp = f(x);
+    x[j] = xj - h;
+    const fm = f(x);
+    x[j] = xj;
+    grad[a] = (fp - fm) / (2 * h);
+  }
+  let variance = 0;
+  for (let a = 0; a < N; a++) {
+    if (grad[a] === 0) continue;
+    let s = 0;
+    for (let b = 0; b < N; b++) s += matrix[a * N + b] * grad[b];
+    variance += grad[a] * s;
+  }
+  return {
+    value,
+    uncertainty: Math.sqrt(Math.max(0, variance)),
+    sensitivities: Array.from(indices, (index, a) => ({ index, derivative: grad[a] })),
+  };
+}
