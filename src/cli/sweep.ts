@@ -116,6 +116,17 @@ function options(o: Required<Pick<SweepCliOptions, 'report' | 'target' | 'by' | 
   return { jobs, shard, block, method, maxPasses, rtol };
 }
 
+/**
+ * Test hook: LOOPCLOSE_INTERRUPT_AFTER=N[:SIGNAL] makes the sweep send itself SIGNAL (default
+ * SIGKILL) once N rows are written, so that the interruption tests stop it at a known point
+ * whatever the speed of the machine. It changes nothing else.
+ */
+function interruptHook(): { rows: number; signal: NodeJS.Signals } | undefined {
+  const v = process.env.LOOPCLOSE_INTERRUPT_AFTER;
+  const m = v ? /^(\d+)(?::(SIG[A-Z]+))?$/.exec(v) : null;
+  return m ? { rows: Number(m[1]), signal: (m[2] ?? 'SIGKILL') as NodeJS.Signals } : undefined;
+}
+
 export async function runSweep(file: string, axes: AxisSpec[], given: SweepCliOptions): Promise<number> {
   const o = { ...given, report: given.report ?? [], target: given.target ?? [], by: given.by ?? [], within: given.within ?? [] };
   const opt = options(o);
@@ -182,12 +193,14 @@ export async function runSweep(file: string, axes: AxisSpec[], given: SweepCliOp
   };
   process.on('SIGINT', onSignal);
   process.on('SIGTERM', onSignal);
+  const interruptAt = interruptHook();
   const hooks = {
     onRow(row: Parameters<typeof rowText>[2]) {
       sink.write(rowText(ctx, header, row));
       written++;
       tally.set(row.status, (tally.get(row.status) ?? 0) + 1);
       progress.tick();
+      if (interruptAt && written === interruptAt.rows) process.kill(process.pid, interruptAt.signal);
     },
     stopped: () => signal !== undefined || !sink.open,
   };

@@ -110,11 +110,10 @@ function judge(rt: Runtime, result: SolveResult, conditions: readonly Condition[
       const b = buildUpMessage(buildUp);
       return { status: 'infeasible', message: b.message, failure: { kind: 'infeasible', message: b.message, component: buildUp.component, help: b.help } };
     }
-    const infeasible = conditions.find((c) => c.failure.kind === 'infeasible');
-    if (infeasible) {
-      // The loop drifted towards a state that needs more reactant than exists.
-      return { status, failure, message: `${message ?? 'not converged'}; in the last pass: ${infeasible.failure.message}` };
-    }
+    // What a unit met in the last pass comes first: it is the physics behind the numbers (a
+    // flash that fails, a reactor that runs short as the loop drifts).
+    const met = conditions.find((c) => c.failure.kind !== 'infeasible') ?? conditions[0];
+    if (met) return { status, failure: met.failure, message: `${met.failure.message}; ${message ?? 'not converged'}` };
   }
   return { status, message, failure };
 }

@@ -26,7 +26,8 @@
  * A singular Jacobian, a failed line search or a spent budget end the solve as
  * 'not-converged' with a message; nothing here throws for numerical reasons.
  */
-import { LuDecomposition, Matrix } from 'ml-matrix';
+import { buildJacobian, checkStructure, columnGroups } from './jacobian.js';
+import { factor, luStep, newFactored, type Factored } from './linear.js';
 import {
   DEFAULT_ATOL,
   DEFAULT_RTOL,
@@ -46,20 +47,16 @@ import {
 import type {
   EvaluationFailure,
   FixedPointProblem,
-  JacobianStructure,
   RootProblem,
   SolveOptions,
   SolveResult,
 } from './types.js';
 
 export const NEWTON_DEFAULTS = { maxIterations: 100, maxPasses: 2000, reuse: 3 } as const;
-const SQRT_EPS = Math.sqrt(Number.EPSILON);
 /** Smallest typical magnitude used for finite-difference steps. */
 const TYPICAL_FLOOR = 1e-8;
 const ARMIJO_C = 1e-4;
 const LAMBDA_MIN = 1e-5;
-/** Smallest |U_ii| / max |U_jj| of the equilibrated LU before the Jacobian counts as singular. */
-const PIVOT_RATIO_MIN = 1e-12;
 
 /** The system Newton works on, whatever problem it came from. */
 interface NewtonSystem {
@@ -81,196 +78,6 @@ interface NewtonSystem {
   what: string;
   /** Scratch: x before the Jacobian's perturbations. */
   saved: Float64Array;
-}
-
-/**
- * Column groups for a finite-difference Jacobian: columns are taken in order and put into the
- * first group none of whose columns shares a row (the sequential method of Curtis, Powell and
- * Reid 1974). Without rows every column is its own group.
- */
-export function columnGroups(n: number, rows?: readonly (readonly number[])[]): number[][] {
-  if (!rows) return Array.from({ length: n }, (_, j) => [j]);
-  const groups: number[][] = [];
-  const used: Uint8Array[] = [];
-  for (let j = 0; j < n; j++) {
-    let placed = false;
-    for (let g = 0; g < groups.length && !placed; g++) {
-      if (rows[j].every((r) => used[g][r] === 0)) {
-        groups[g].push(j);
-        for (const r of rows[j]) used[g][r] = 1;
-        placed = true;
-      }
-    }
-    if (!placed) {
-      const mark = new Uint8Array(n);
-      for (const r of rows[j]) mark[r] = 1;
-      groups.push([j]);
-      used.push(mark);
-    }
-  }
-  return groups;
-}
-
-/** Checks a JacobianStructure; returns a message or undefined. */
-function checkStructure(n: number, s: JacobianStructure): string | undefined {
-  if (s.rows.length !== n) return `structure.rows has ${s.rows.length} entries but n is ${n}`;
-  for (let j = 0; j < n; j++) {
-    for (const r of s.rows[j]) {
-      if (!Number.isInteger(r) || r < 0 || r >= n) return `structure.rows[${j}] names row ${r}, outside 0..${n - 1}`;
-    }
-  }
-  if (s.groups) {
-    const seen = new Int32Array(n).fill(-1);
-    s.groups.forEach((group, g) => {
-      for (const j of group) if (Number.isInteger(j) && j >= 0 && j < n) seen[j] = seen[j] === -1 ? g : -2;
-    });
-    for (let j = 0; j < n; j++) {
-      if (seen[j] === -1) return `structure.groups leaves out column ${j}`;
-      if (seen[j] === -2) return `structure.groups lists column ${j} more than once`;
-    }
-    for (const group of s.groups) {
-      const rowOwner = new Int32Array(n).fill(-1);
-      for (const j of group) {
-        if (!Number.isInteger(j) || j < 0 || j >= n) return `structure.groups names column ${j}, outside 0..${n - 1}`;
-        for (const r of s.rows[j]) {
-          if (rowOwner[r] >= 0) return `structure.groups puts columns ${rowOwner[r]} and ${j}, which share row ${r}, in one group`;
-          rowOwner[r] = j;
-        }
-      }
-    }
-  }
-  return undefined;
-}
-
-interface JacobianOutcome {
-  failure?: EvaluationFailure;
-  /** Column whose perturbation gave a non-finite residual, and the row and value. */
-  nonFinite?: { column: number; row: number; value: number };
-}
-
-/**
- * Forward-difference Jacobian of F at x (F(x) given in f0) into J (n*n, row-major), one
- * evaluation per column group. h holds the steps actually used. Returns on the first failure.
- */
-function buildJacobian(
-  sys: NewtonSystem,
-  x: Float64Array,
-  f0: Float64Array,
-  J: Float64Array,
-  h: Float64Array,
-  ft: Float64Array,
-  countPass: () => void,
-): JacobianOutcome {
-  const { n, lower, upper, typical, rows, groups } = sys;
-  for (let j = 0; j < n; j++) {
-    let step = SQRT_EPS * Math.max(Math.abs(x[j]), typical[j]);
-    if (upper && x[j] + step > upper[j]) step = -step;
-    if (lower && x[j] + step < lower[j]) step = -step; // only reached after a reversal
-    // Use the representable difference (Dennis and Schnabel, Alg. A5.6.3).
-    h[j] = x[j] + step - x[j];
-  }
-  if (rows) J.fill(0); // a dense build writes every entry
-  for (let g = 0; g < groups.length; g++) {
-    const group = groups[g];
-    for (let k = 0; k < group.length; k++) x[group[k]] += h[group[k]];
-    const failure = sys.f(x, ft);
-    countPass();
-    // Restore exactly: x_j + h_j - h_j need not be x_j in floating point.
-    for (let k = 0; k < group.length; k++) x[group[k]] = sys.saved[group[k]];
-    if (failure) return { failure };
-    for (let k = 0; k < group.length; k++) {
-      const j = group[k];
-      const hj = h[j];
-      if (rows) {
-        const rj = rows[j];
-        for (let q = 0; q < rj.length; q++) {
-          const r = rj[q];
-          const v = (ft[r] - f0[r]) / hj;
-          if (!Number.isFinite(v)) return { nonFinite: { column: j, row: r, value: ft[r] } };
-          J[r * n + j] = v;
-        }
-      } else {
-        for (let r = 0; r < n; r++) {
-          const v = (ft[r] - f0[r]) / hj;
-          if (!Number.isFinite(v)) return { nonFinite: { column: j, row: r, value: ft[r] } };
-          J[r * n + j] = v;
-        }
-      }
-    }
-  }
-  return {};
-}
-
-/**
- * A factored, equilibrated Jacobian: dx = colScale .* (LU \ (rowScale .* -F)).
- * The scaled matrix and scale vectors are allocated once per solve; the LU is ml-matrix's.
- */
-interface Factored {
-  /** The equilibrated Jacobian, row-major n*n (scratch). */
-  scaled: Float64Array;
-  lu: LuDecomposition | null;
-  rowScale: Float64Array;
-  colScale: Float64Array;
-  rhs: Matrix;
-}
-
-function newFactored(n: number): Factored {
-  return { scaled: new Float64Array(n * n), lu: null, rowScale: new Float64Array(n), colScale: new Float64Array(n), rhs: new Matrix(n, 1) };
-}
-
-/** Equilibrates and factors J into fac (ml-matrix LU, partial pivoting); returns a message when J is singular. */
-function factor(sys: NewtonSystem, J: Float64Array, x: Float64Array, fac: Factored): string | undefined {
-  const n = sys.n;
-  const { colScale, rowScale, scaled: A } = fac;
-  for (let j = 0; j < n; j++) colScale[j] = Math.max(Math.abs(x[j]), sys.typical[j]);
-  for (let i = 0; i < n; i++) {
-    let big = 0;
-    const row = i * n;
-    for (let j = 0; j < n; j++) {
-      const a = J[row + j] * colScale[j];
-      A[row + j] = a;
-      if (Math.abs(a) > big) big = Math.abs(a);
-    }
-    if (big === 0) {
-      return `singular Jacobian: residual ${residualLabel(i, sys)} does not change with any variable`;
-    }
-    const inv = 1 / big;
-    rowScale[i] = inv;
-    for (let j = 0; j < n; j++) A[row + j] *= inv;
-  }
-  for (let j = 0; j < n; j++) {
-    let zero = true;
-    for (let i = 0; i < n && zero; i++) if (A[i * n + j] !== 0) zero = false;
-    if (zero) return `singular Jacobian: ${nameOf(j, sys.names)} has no effect on any residual`;
-  }
-  const lu = new LuDecomposition(Matrix.from1DArray(n, n, A));
-  const U = lu.upperTriangularMatrix;
-  let maxPivot = 0;
-  let minPivot = Infinity;
-  let minAt = 0;
-  for (let i = 0; i < n; i++) {
-    const p = Math.abs(U.get(i, i));
-    if (p > maxPivot) maxPivot = p;
-    if (p < minPivot) {
-      minPivot = p;
-      minAt = i;
-    }
-  }
-  if (lu.isSingular() || !(minPivot > PIVOT_RATIO_MIN * maxPivot)) {
-    fac.lu = null;
-    return `singular Jacobian (smallest pivot ${minPivot.toExponential(2)} at elimination step ${minAt} against largest ${maxPivot.toExponential(2)}): the residuals are not independent near this point; check for a variable that is fixed by no equation or two equations that say the same`;
-  }
-  fac.lu = lu;
-  return undefined;
-}
-
-/** dx = colScale .* (LU \ (rowScale .* -f)). */
-function luStep(fac: Factored, f: Float64Array, dx: Float64Array): void {
-  const { rowScale, colScale, rhs } = fac;
-  const n = colScale.length;
-  for (let i = 0; i < n; i++) rhs.set(i, 0, -f[i] * rowScale[i]);
-  const y = fac.lu!.solve(rhs);
-  for (let j = 0; j < n; j++) dx[j] = y.get(j, 0) * colScale[j];
 }
 
 /**
@@ -383,7 +190,7 @@ function newtonCore(sys: NewtonSystem, options: SolveOptions): SolveResult {
     // A neighbour's Jacobian: a chord to start with (rebuilt at the first step that fails).
     J.set(given);
     haveJ = true;
-    if (factor(sys, J, x, work) === undefined) {
+    if (factor(J, x, sys.typical, work, (i) => residualLabel(i, sys), (j) => nameOf(j, sys.names)) === undefined) {
       factored = work;
       fresh = false;
       reused = 0;
@@ -414,7 +221,7 @@ function newtonCore(sys: NewtonSystem, options: SolveOptions): SolveResult {
       }
       pinSatisfiedRows(J, f, s, n);
       haveJ = true;
-      const bad = factor(sys, J, x, work);
+      const bad = factor(J, x, sys.typical, work, (i) => residualLabel(i, sys), (j) => nameOf(j, sys.names));
       if (bad !== undefined) return finish('not-converged', bad);
       factored = work;
       fresh = true;

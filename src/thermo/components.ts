@@ -24,6 +24,7 @@
  * ethylene oxide "C2H4O"); a prefix for alkane isomers ("nC4H10", "iC4H10"). The
  * `formula` field is always parseable by parseFormula for element balances.
  */
+import { editDistance } from '../diagnostics.js';
 import { THERMO } from './data/thermochem.js';
 import type { ComponentData } from './types.js';
 
@@ -174,26 +175,6 @@ export function findComponent(id: string): ComponentData | undefined {
 /** All ids in table order (a fresh array). */
 export function componentIds(): string[] {
   return COMPONENTS.map((c) => c.id);
-}
-
-/**
- * Levenshtein edit distance (insertions, deletions, substitutions each cost 1), computed
- * with the two-row dynamic programme of Wagner and Fischer, J. ACM 21 (1974) 168-173.
- */
-function editDistance(a: string, b: string): number {
-  if (a === b) return 0;
-  let prev = new Array<number>(b.length + 1);
-  let cur = new Array<number>(b.length + 1);
-  for (let j = 0; j <= b.length; j++) prev[j] = j;
-  for (let i = 1; i <= a.length; i++) {
-    cur[0] = i;
-    for (let j = 1; j <= b.length; j++) {
-      const sub = prev[j - 1] + (a[i - 1] === b[j - 1] ? 0 : 1);
-      cur[j] = Math.min(sub, prev[j] + 1, cur[j - 1] + 1);
-    }
-    [prev, cur] = [cur, prev];
-  }
-  return prev[b.length];
 }
 
 /**

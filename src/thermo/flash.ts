@@ -21,6 +21,7 @@
  * Only vapour-liquid (two-phase) splits are computed; three-phase equilibria are not.
  * Each phase uses the root of lower Gibbs energy for its own composition.
  */
+import { solveDense } from '../solve/linear.js';
 import type { Eos } from './types.js';
 import { stabilityTest } from './stability.js';
 import { solveRachfordRice, rachfordRiceCompositions } from './rachford-rice.js';
@@ -185,36 +186,6 @@ interface SplitOutcome {
   history: number[];
 }
 
-/** Solves A dx = b in place (Gaussian elimination, partial pivoting). Returns false if singular. */
-function solveLinear(A: Float64Array, b: Float64Array, n: number): boolean {
-  for (let k = 0; k < n; k++) {
-    let p = k;
-    let best = Math.abs(A[k * n + k]);
-    for (let i = k + 1; i < n; i++) {
-      const v = Math.abs(A[i * n + k]);
-      if (v > best) { best = v; p = i; }
-    }
-    if (!(best > 1e-300)) return false;
-    if (p !== k) {
-      for (let j = 0; j < n; j++) { const t = A[k * n + j]; A[k * n + j] = A[p * n + j]; A[p * n + j] = t; }
-      const t = b[k]; b[k] = b[p]; b[p] = t;
-    }
-    const inv = 1 / A[k * n + k];
-    for (let i = k + 1; i < n; i++) {
-      const f = A[i * n + k] * inv;
-      if (f === 0) continue;
-      for (let j = k; j < n; j++) A[i * n + j] -= f * A[k * n + j];
-      b[i] -= f * b[k];
-    }
-  }
-  for (let k = n - 1; k >= 0; k--) {
-    let s = b[k];
-    for (let j = k + 1; j < n; j++) s -= A[k * n + j] * b[j];
-    b[k] = s / A[k * n + k];
-  }
-  return true;
-}
-
 /** Successive substitution with GDEM, then Newton on ln K when slow. */
 function phaseSplit(eos: Eos, T: number, P: number, s: SplitState, tol: number, maxIt: number): SplitOutcome {
   const n = s.n;
@@ -319,7 +290,7 @@ function newtonSplit(
       }
     }
     for (let i = 0; i < n; i++) du[i] = -F[i];
-    if (!ok || !solveLinear(J, du, n)) {
+    if (!ok || !solveDense(J, du, n)) {
       const gRT = ev.gRT;
       s.lnK.set(u);
       evaluate(eos, T, P, s, res, probe);

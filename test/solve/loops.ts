@@ -40,32 +40,38 @@ export function purgeLoopSolution(FA: number, FI: number, X: number, p: number):
 }
 
 /**
- * Methanol synthesis loop CO2 + 3 H2 -> CH3OH + H2O with inert I, after the problem statement
- * of Felder and Rousseau, 3rd ed., Example 4.7-2 (problem statement from memory): fresh feed
- * with H2 and CO2 in stoichiometric proportion and 0.500 mol% inert; all methanol and water
- * condensed out; a purge taken from the recycle gas; reactor feed (not fresh feed) 2.00 mol%
- * inert; single-pass conversion of hydrogen 60.0%; methanol production 155 kmol/h.
- * Tear: recycle (CO2, H2, I) in mol/s. Components are coupled through the stoichiometry.
+ * Methanol synthesis loop CO2 + 3 H2 -> CH3OH + H2O with inert I: the problem statement of
+ * Felder and Rousseau, Elementary Principles of Chemical Processes, 3rd ed., Example 4.7-2
+ * (statement from memory): fresh feed of H2, CO2 and 0.400 mol% inert; the condenser takes out
+ * all methanol and water and none of the reactants or inert; a purge is taken from the recycle;
+ * the reactor feed (not the fresh feed) is 28.0 mol% CO2, 70.0 mol% H2 and 2.00 mol% inert; the
+ * single-pass conversion of hydrogen is 60.0 %; methanol production 155 kmol/h. The book's
+ * answers are not quoted here: the fresh feed, its composition and the purge share that meet the
+ * statement are derived below from the balances, and the solvers must reproduce the statement.
+ * Tear: recycle (CO2, H2, I) in mol/s.
  */
-export const methanolSpec = { xInertFresh: 0.005, yInertReactorFeed: 0.02, conversionH2: 0.6, methanolKmolPerH: 155 };
+export const methanolSpec = { xInertFresh: 0.004, reactorFeed: [0.28, 0.7, 0.02] as const, conversionH2: 0.6, methanolKmolPerH: 155 };
 
 /**
- * Fresh feed F (mol/s) and purge fraction p that meet the specification, from the overall
- * inert balance and the overall reactant balance (derived here; Felder and Rousseau Sec. 4.7
- * method). With M the methanol rate, X the H2 conversion, yI the inert fraction of the reactor
- * feed R and xI the inert fraction of the fresh feed:
- *   methanol      M = X * (3/4)(1 - yI) R / 3          ->  R = 4 M / (X (1 - yI))
- *   inert         xI F = p yI R
- *   reactants     (1 - xI) F = 4 M + p (1 - X)(1 - yI) R
- *   ->  p = 4 M / (R [ (1 - xI) yI / xI - (1 - X)(1 - yI) ]),   F = p yI R / xI.
+ * The fresh feed F (mol/s), its mole fractions (CO2, H2, I) and the purge fraction p of the
+ * condenser gas that meet the statement (derived here by the method of Felder and Rousseau
+ * Sec. 4.7). With R the reactor feed and zCO2, zH2, zI its fractions, X the H2 conversion:
+ *   extent        e = X zH2 R / 3 = M (the methanol rate)        ->  R = 3 M / (X zH2)
+ *   condenser gas G = (zCO2 R - e) + (zH2 R - 3 e) + zI R
+ *   inert         xI F = p zI R
+ *   total moles   F = 4 e + p G   (each extent turns 4 mol of reactants into 2 of methanol and water, both condensed)
+ *   ->  p = 4 e / (zI R / xI - G),  F = p zI R / xI;  fresh CO2 = e + p (zCO2 R - e),  H2 = 3 e + p (zH2 R - 3 e).
  */
-export function methanolDesign(): { F: number; p: number; M: number; R: number } {
-  const { xInertFresh: xI, yInertReactorFeed: yI, conversionH2: X, methanolKmolPerH } = methanolSpec;
+export function methanolDesign(): { F: number; p: number; M: number; R: number; fresh: [number, number, number] } {
+  const { xInertFresh: xI, reactorFeed: [zC, zH, zI], conversionH2: X, methanolKmolPerH } = methanolSpec;
   const M = (methanolKmolPerH * 1000) / 3600; // mol/s
-  const R = (4 * M) / (X * (1 - yI));
-  const p = (4 * M) / (R * (((1 - xI) * yI) / xI - (1 - X) * (1 - yI)));
-  const F = (p * yI * R) / xI;
-  return { F, p, M, R };
+  const R = (3 * M) / (X * zH);
+  const e = M;
+  const G = zC * R - e + (zH * R - 3 * e) + zI * R;
+  const p = (4 * e) / ((zI * R) / xI - G);
+  const F = (p * zI * R) / xI;
+  const fresh: [number, number, number] = [e + p * (zC * R - e), 3 * e + p * (zH * R - 3 * e), xI * F];
+  return { F, p, M, R, fresh };
 }
 
 export interface MethanolPass {
@@ -75,9 +81,7 @@ export interface MethanolPass {
   reactorFeed: Float64Array;
 }
 
-export function methanolLoop(F: number, p: number, X: number): { problem: FixedPointProblem; last: MethanolPass } {
-  const xI = methanolSpec.xInertFresh;
-  const fresh = [((1 - xI) * F) / 4, (3 * (1 - xI) * F) / 4, xI * F];
+export function methanolLoop(fresh: readonly [number, number, number], p: number, X: number): { problem: FixedPointProblem; last: MethanolPass } {
   const last: MethanolPass = { methanol: 0, reactorFeed: new Float64Array(3) };
   const problem: FixedPointProblem = {
     n: 3,
