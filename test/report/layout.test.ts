@@ -1,29 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import type { ReportTopology } from '../../src/report/html/input.js';
 import { elkGraph, layoutFlowsheet, type Box, type Layout } from '../../src/report/html/layout.js';
-import { DEMOS, inputOf, streamNames } from './solved.js';
+import { DEMOS, inputOf, streamNames, TRAIN } from './solved.js';
 
-/** Two stages with nested recycles, long names and a four-way separator: a harder layout than the demos. */
-const TRAIN: ReportTopology = {
-  feeds: ['fresh-hydrogen-makeup', 'aromatics-feed', 'quench-gas'],
-  units: [
-    { name: 'first-stage-mixer', type: 'mixer', inlets: ['fresh-hydrogen-makeup', 'aromatics-feed', 'first-stage-recycle', 'liquid-return'], outlets: ['first-reactor-in'] },
-    { name: 'first-reactor', type: 'reactor', inlets: ['first-reactor-in'], outlets: ['first-reactor-out'] },
-    { name: 'interstage-cooler', type: 'condenser', inlets: ['first-reactor-out'], outlets: ['interstage-gas', 'interstage-liquid'] },
-    { name: 'interstage-split', type: 'splitter', inlets: ['interstage-gas'], outlets: ['first-stage-recycle', 'to-second-stage'] },
-    { name: 'second-stage-mixer', type: 'mixer', inlets: ['to-second-stage', 'quench-gas', 'second-stage-recycle'], outlets: ['second-reactor-in'] },
-    { name: 'second-reactor', type: 'reactor', inlets: ['second-reactor-in'], outlets: ['second-reactor-out'] },
-    { name: 'hp-flash', type: 'flash', inlets: ['second-reactor-out'], outlets: ['hp-gas', 'hp-liquid'] },
-    { name: 'purge-split', type: 'splitter', inlets: ['hp-gas'], outlets: ['purge', 'second-stage-recycle', 'overall-recycle'] },
-    { name: 'liquid-mixer', type: 'mixer', inlets: ['interstage-liquid', 'hp-liquid'], outlets: ['column-feed'] },
-    { name: 'product-column', type: 'separator', inlets: ['column-feed'], outlets: ['light-ends', 'product', 'heavy-ends', 'liquid-return'] },
-    { name: 'recycle-compressor', type: 'booster', inlets: ['overall-recycle'], outlets: ['compressed-recycle'] },
-  ],
-  products: ['purge', 'light-ends', 'product', 'heavy-ends', 'compressed-recycle'],
-  tears: ['first-stage-recycle', 'second-stage-recycle', 'liquid-return'],
-  loops: [['first-stage-mixer', 'first-reactor', 'interstage-cooler', 'interstage-split', 'second-stage-mixer', 'second-reactor', 'hp-flash', 'purge-split', 'liquid-mixer', 'product-column']],
-  recycles: ['first-stage-recycle', 'second-stage-recycle', 'liquid-return'],
-};
 
 function overlap(a: Box, b: Box): boolean {
   return a.x < b.x + b.w && b.x < a.x + a.w && a.y < b.y + b.h && b.y < a.y + a.h;
