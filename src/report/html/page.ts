@@ -28,7 +28,7 @@ p{margin:4px 0}
 .notsolution h3{color:var(--bad)}
 figure{margin:8px 0}
 .drawing{overflow-x:auto;border:1px solid var(--rule)}
-.drawing svg{display:block;max-width:none}
+.drawing svg{display:block;max-width:100%;height:auto}
 .panel{min-height:3em;border:1px solid var(--rule);background:var(--band);padding:6px 10px;margin-top:6px}
 .panel table{margin:4px 0 0}
 figcaption{color:var(--muted);font-size:12px}
@@ -47,7 +47,6 @@ footer{margin-top:24px;color:var(--muted);font-size:12px}
   @page{size:auto;margin:12mm}
   body{padding:0;font-size:10pt}
   .drawing{overflow:visible;border:none}
-  .drawing svg{max-width:100%;height:auto}
   .panel,.noprint{display:none}
   .scroll{overflow:visible}
   table{font-size:8.5pt;page-break-inside:auto}
