@@ -24,6 +24,7 @@ export async function runPlot(file: string, o: PlotCliOptions): Promise<string> 
   if (!y.length) problems.push({ severity: 'error', message: '--y: give the path of at least one column to plot', help: 'e.g. --y streams.purge.total or --y closure.N,closure.H' });
   const ext = o.out ? extname(o.out).toLowerCase() : '';
   if (o.out && ext !== '.svg' && ext !== '.html' && ext !== '.htm') problems.push({ severity: 'error', message: `--out: \`${o.out}\` ends in neither .html nor .svg`, help: 'name the output plot.html (a page) or plot.svg (the picture alone)' });
+  if (o.svg && (ext === '.html' || ext === '.htm')) problems.push({ severity: 'error', message: `--svg asks for SVG, but --out \`${o.out}\` names an HTML page`, help: 'leave out --svg, or name the output plot.svg' });
   if (problems.length) throw new InputError(problems);
   firstLine(file); // a clear message when the file cannot be read
   const table = readStudyTable(readFileSync(file, 'utf8'), file);

@@ -118,5 +118,8 @@ describe('loopclose plot', () => {
     expect(r.stderr).toContain('--x: give the path of the x axis');
     expect(r.stderr).toContain('ends in neither .html nor .svg');
     expect(r.stderr).not.toMatch(/\n\s+at /);
+    r = cli(['plot', SWEEP, '--x', 'reactor.reactions.0.conversion', '--y', 'streams.purge.total', '--svg', '--out', join(dir, 'p2.html')]);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toContain('--svg asks for SVG');
   });
 });

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { reportHtml, reportSvg } from '../../src/report/html/page.js';
 import { CAUTION } from '../../src/report/format.js';
 import { esc } from '../../src/report/html/markup.js';
+import { textWidth } from '../../src/report/html/layout.js';
 import { DEMOS, inputOf, streamNames, svgTexts } from './solved.js';
 
 /** Any reference to something outside the page: src/href/xlink:href/url()/@import with a scheme or a protocol-relative address. */
@@ -104,5 +105,13 @@ describe('HTML report of the demo flowsheets', () => {
     const html = await reportHtml(input);
     expect(html).not.toContain('<script>alert(1)');
     expect(html).toContain('Loop &lt;script&gt;alert(1)&lt;/script&gt; &amp; &quot;more&quot;');
+  });
+
+  it('a long title widens the drawing so that its heading is not cut off', async () => {
+    const input = inputOf('flowsheets/ammonia-loop.yaml');
+    input.title = 'A very long title '.repeat(12).trim();
+    const svg = await reportSvg(input);
+    const width = Number(/<svg[^>]* width="([\d.]+)"/.exec(svg)![1]);
+    expect(width).toBeGreaterThanOrEqual(textWidth(`${input.title} - ${input.file} (converged)`, 13));
   });
 });

@@ -207,7 +207,8 @@ function legend(input: ReportInput, width: number, top: number): { svg: string; 
 /** The drawing as an SVG element (no XML prolog), from a layout made by layoutFlowsheet. */
 export function drawLayout(input: ReportInput, layout: Layout): string {
   const d = new Display(input);
-  const width = Math.max(layout.width + 2 * MARGIN, 720);
+  const head = `${input.title ? `${input.title} - ` : ''}${input.file} (${input.status})`;
+  const width = Math.max(layout.width + 2 * MARGIN, 720, textWidth(head, 13) + 2 * MARGIN);
   const oy = HEAD;
   const inLoop = loopStreams(input, layout);
   const recycles = new Set(input.topology.recycles);
@@ -246,7 +247,6 @@ export function drawLayout(input: ReportInput, layout: Layout): string {
   }
   const leg = legend(input, width, oy + layout.height + 18);
   const height = oy + layout.height + 18 + leg.height + MARGIN;
-  const head = `${input.title ? `${input.title} - ` : ''}${input.file} (${input.status})`;
   return [
     `<svg xmlns="http://www.w3.org/2000/svg" class="lc-svg" width="${f1(width)}" height="${f1(height)}" viewBox="0 0 ${f1(width)} ${f1(height)}" role="img" aria-label="${esc(`flowsheet of ${head}`)}">`,
     `<title>${esc(`Flowsheet: ${head}`)}</title>`,
