@@ -5,8 +5,6 @@ import { EXIT, exitCodeOf } from './exit.js';
 import { writeErr, writeFileAtomic, writeOut } from './io.js';
 import { runMeter } from './meter.js';
 import { runSolve } from './solve.js';
-import { runReport } from './report.js';
-import { runPlot } from './plot.js';
 import { registerSweep } from './sweep.js';
 import { registerMerge } from './merge.js';
 import { readFileSync } from 'node:fs';
@@ -124,9 +122,10 @@ export async function main(argv: string[]): Promise<void> {
     .option('--no-date', 'leave the date out of the report (the same file then gives the same bytes)')
     .action(async (file: string, o) => {
       faultHook();
-      const { text, code: c } = await runReport(file, o);
-      await emit(text, o.out);
-      code = c;
+      const r = await (await import('./pictures.js')).report(file, o);
+      if (!r.ok) throw new InputError(r.diagnostics);
+      await emit(r.text, o.out);
+      code = r.code;
     });
 
   program
@@ -141,7 +140,9 @@ export async function main(argv: string[]): Promise<void> {
     .option('--out <file>', 'plot.html (a page with the plot inline) or plot.svg')
     .action(async (file: string, o) => {
       faultHook();
-      await emit(await runPlot(file, o), o.out);
+      const r = await (await import('./pictures.js')).plot(file, o);
+      if (!r.ok) throw new InputError(r.diagnostics);
+      await emit(r.text, o.out);
     });
 
   registerSweep(program, (c) => {

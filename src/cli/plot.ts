@@ -5,6 +5,7 @@
 import { readFileSync } from 'node:fs';
 import { extname } from 'node:path';
 import { InputError, type Diagnostic } from '../diagnostics.js';
+import { plotHtml, plotSvg } from '../report/plot.js';
 import { readStudyTable } from '../report/study-table.js';
 import { firstLine } from './report.js';
 
@@ -28,7 +29,6 @@ export async function runPlot(file: string, o: PlotCliOptions): Promise<string> 
   if (problems.length) throw new InputError(problems);
   firstLine(file); // a clear message when the file cannot be read
   const table = readStudyTable(readFileSync(file, 'utf8'), file);
-  const { plotHtml, plotSvg } = await import('../report/plot.js');
   const opts = { x: o.x!, y, ...(o.series !== undefined ? { series: o.series } : {}), heatmap: !!o.heatmap };
   return ext === '.svg' || (!o.out && o.svg) ? plotSvg(table, opts) : plotHtml(table, opts);
 }

@@ -3,12 +3,14 @@
  * solved first; or, for a sweep output, the plots of that study. A file is read as a study
  * output when its first line is a study header (`# loopclose sweep ...`, `# loopclose
  * reconcile ...`, or the JSON Lines header object) or its name ends in .csv or .jsonl.
- * The drawing and plot code (elkjs, vega) is loaded only here, so `solve` and `meter` start as fast as before.
+ * main.ts loads this file through pictures.ts with import(), so `solve` and `meter` never load it.
  */
 import { closeSync, openSync, readFileSync, readSync } from 'node:fs';
 import { extname } from 'node:path';
 import { InputError } from '../diagnostics.js';
 import { reportInputOf } from '../report/html/adapter.js';
+import { reportHtml, reportSvg } from '../report/html/page.js';
+import { studyReportHtml } from '../report/plot.js';
 import { readStudyTable, studyKindOf } from '../report/study-table.js';
 import { exitCodeOf, EXIT } from './exit.js';
 import { runSolve } from './solve.js';
@@ -58,11 +60,9 @@ export async function runReport(file: string, o: ReportCliOptions): Promise<{ te
   if (isStudyFile(file)) {
     if (o.svg) throw new InputError([{ severity: 'error', message: '--svg draws a flowsheet; this file is a study output', help: 'for one plot as SVG use `loopclose plot FILE --x PATH --y PATH --out plot.svg`' }]);
     const table = readStudyTable(readFileSync(file, 'utf8'), file);
-    const { studyReportHtml } = await import('../report/plot.js');
     return { text: await studyReportHtml(table), code: EXIT.ok };
   }
   const { result } = runSolve(file, { method: o.method, maxPasses: o.maxPasses, flowUnit: o.flowUnit });
   const input = reportInputOf(result, { flowUnit: o.flowUnit, ...(o.date === false ? {} : { generated: madeAt() }) });
-  const { reportHtml, reportSvg } = await import('../report/html/page.js');
   return { text: o.svg ? await reportSvg(input) : await reportHtml(input), code: exitCodeOf(result.status) };
 }
