@@ -1,4 +1,3 @@
-/// <reference lib="dom" />
 /**
  * The reports and plots opened in a real browser (Debian's chromium through playwright-core):
  * nothing leaves the page, no console error, every name visible, no two labels overlapping,
@@ -40,7 +39,8 @@ interface TextBox {
 async function drawingTexts(page: Page): Promise<TextBox[]> {
   return page.$$eval('.drawing svg text', (els) => els.map((el) => {
     const r = el.getBoundingClientRect();
-    const s = getComputedStyle(el);
+    // This runs in the page; the test program has no DOM types, so the window is read untyped.
+    const s = (globalThis as unknown as { getComputedStyle(e: unknown): { visibility: string; display: string } }).getComputedStyle(el);
     return { text: el.textContent ?? '', x: r.x, y: r.y, w: r.width, h: r.height, visible: s.visibility !== 'hidden' && s.display !== 'none' && r.width > 0 && r.height > 0 };
   }));
 }
@@ -64,13 +64,15 @@ async function colours(context: BrowserContext, png: Buffer): Promise<number> {
   try {
     await page.setContent('<canvas id="c"></canvas>');
     return await page.evaluate(async (b64) => {
-      const img = new Image();
+      // This runs in the page; the test program has no DOM types, so the window is read untyped.
+      const w = globalThis as any;
+      const img = new w.Image();
       img.src = `data:image/png;base64,${b64}`;
       await img.decode();
-      const c = document.getElementById('c') as HTMLCanvasElement;
+      const c = w.document.getElementById('c');
       c.width = img.width;
       c.height = img.height;
-      const g = c.getContext('2d')!;
+      const g = c.getContext('2d');
       g.drawImage(img, 0, 0);
       const d = g.getImageData(0, 0, c.width, c.height).data;
       const seen = new Set<number>();
