@@ -127,6 +127,41 @@ export async function main(argv: string[]): Promise<void> {
       code = exitCodeOf(result.status);
     });
 
+  program
+    .command('report')
+    .description('a self-contained HTML report: a flowsheet (solved first) with its drawing, stream table, units, loop and balance; or a sweep output with its plots. FILE is read as a sweep output when its first line is `# loopclose sweep ...` (or a JSON Lines sweep header) or its name ends in .csv or .jsonl; otherwise as a flowsheet')
+    .argument('<file>', 'flowsheet file, or a sweep output (CSV or JSON Lines)')
+    .option('--out <file>', 'write the report to a file, e.g. loop.html (default: standard output)')
+    .option('--svg', 'write the flowsheet drawing alone, as SVG')
+    .option('--flow-unit <unit>', 'display unit of molar flows, e.g. kmol/h')
+    .option('--method <name>', 'direct, wegstein, newton or auto (Wegstein, then Newton)')
+    .option('--max-passes <n>', 'budget of flowsheet passes')
+    .option('--no-date', 'leave the date out of the report (the same file then gives the same bytes)')
+    .action(async (file: string, o) => {
+      faultHook();
+      const r = await (await import('./pictures.js')).report(file, o);
+      if (!r.ok) throw new InputError(r.diagnostics);
+      await emit(r.text, o.out);
+      code = r.code;
+    });
+
+  program
+    .command('plot')
+    .description('plot a sweep output (CSV or JSON Lines) or a reconciliation output over time: lines against one axis, one line per value of a second axis, or a heat map; failed points are gaps, marked')
+    .argument('<file>', 'sweep output, or reconciliation output')
+    .option('--x <path>', 'column of the x axis: an input of the sweep, or timestamp')
+    .option('--y <paths>', 'columns to plot, comma-separated (one chart each; repeatable), e.g. "streams.purge.total,streams.recycle.fractions.N2"', collect, [])
+    .option('--series <path>', 'second axis: one line per value (default: the other inputs of the sweep)')
+    .option('--heatmap', 'a heat map over --x and --series instead of lines')
+    .option('--svg', 'write SVG (also chosen by an --out name ending in .svg)')
+    .option('--out <file>', 'plot.html (a page with the plot inline) or plot.svg')
+    .action(async (file: string, o) => {
+      faultHook();
+      const r = await (await import('./pictures.js')).plot(file, o);
+      if (!r.ok) throw new InputError(r.diagnostics);
+      await emit(r.text, o.out);
+    });
+
   registerSweep(program, (c) => {
     code = c;
   });
