@@ -2,13 +2,13 @@
 import { solveFlowsheet } from '../../src/flowsheet/solve.js';
 import { reportInputOf } from '../../src/report/html/adapter.js';
 import type { ReportInput, ReportTopology } from '../../src/report/html/input.js';
-import { ParametricFlowsheet } from '../../src/study/params.js';
+import { loadFlowsheet } from '../../src/flowsheet/validate.js';
 
 export const DEMOS = ['flowsheets/ammonia-loop.yaml', 'flowsheets/benzene-hydrogenation.yaml', 'flowsheets/methanol-pilot.yaml', 'flowsheets/methanol-pilot-split.yaml'];
 
 export function inputOf(file: string, opts: { maxPasses?: number; flowUnit?: string } = {}): ReportInput {
-  const p = new ParametricFlowsheet(file);
-  const r = solveFlowsheet(p.base.model, opts.maxPasses ? { maxPasses: opts.maxPasses, method: 'wegstein' } : {});
+  const model = loadFlowsheet(file).model;
+  const r = solveFlowsheet(model, opts.maxPasses ? { maxPasses: opts.maxPasses, method: 'wegstein' } : {});
   return reportInputOf(r, { flowUnit: opts.flowUnit });
 }
 
