@@ -8,9 +8,8 @@
  *   const rt = createRuntime(model);                       // yours; reuse it across solves
  *   const r = solveFlowsheet(m2, { runtime: rt });
  */
-export { loadFlowsheet, validateText } from './flowsheet/validate.js';
-export type { LoadedFile } from './flowsheet/validate.js';
-export type { Model, FeedSpec, UnitSpecBase, ThermoSpec, SolverSpec, DisplaySpec, TargetDecl } from './flowsheet/model.js';
+export { loadFlowsheet, validateText } from './flowsheet/load.js';
+export type { LoadedFile, Model, FeedSpec, UnitSpecBase, ThermoSpec, SolverSpec, DisplaySpec, TargetDecl } from './flowsheet/model.js';
 export { solveFlowsheet } from './flowsheet/solve.js';
 export type { FlowsheetResult, StreamResult, SolveFlowsheetOptions, LoopFigures, TargetReport } from './flowsheet/solve.js';
 export { createRuntime } from './flowsheet/runtime.js';

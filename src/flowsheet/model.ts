@@ -110,6 +110,13 @@ export interface Model {
   warnings: readonly Diagnostic[];
 }
 
+/** A validated file: the model and the text it was read from. */
+export interface LoadedFile {
+  model: Model;
+  /** The file as read. */
+  source: { readonly path: string; readonly text: string };
+}
+
 /** A read-only Map: set, delete and clear throw, as they would on a frozen object. */
 export class FrozenMap<K, V> extends Map<K, V> {
   private sealed = false;

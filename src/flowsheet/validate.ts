@@ -12,7 +12,7 @@ import type { BlockDef } from '../blocks/types.js';
 import { parseFormula } from '../thermo/formula.js';
 import type { ComponentData } from '../thermo/types.js';
 import { planFlowsheet, type GraphUnit } from './graph.js';
-import { deepFreeze, FrozenMap, type FeedSpec, type Model, type TargetDecl, type UnitSpecBase } from './model.js';
+import { deepFreeze, FrozenMap, type FeedSpec, type LoadedFile, type Model, type TargetDecl, type UnitSpecBase } from './model.js';
 import { readComponent } from './read-components.js';
 import { readDisplay, readKij, readSolver, readThermo } from './read-sections.js';
 import { isSettingMap, type OwnerSettings, type Setting, type SettingMap } from './settings.js';
@@ -23,10 +23,7 @@ import { findRecycles } from './recycles.js';
 
 const TOP_KEYS = ['title', 'components', 'thermo', 'display', 'feeds', 'units', 'tears', 'solver', 'targets'] as const;
 
-export interface LoadedFile {
-  model: Model;
-  source: SourceFile;
-}
+export type { LoadedFile } from './model.js';
 
 /** Reads and validates a flowsheet file. Throws InputError with every problem found. */
 export function loadFlowsheet(path: string): LoadedFile {

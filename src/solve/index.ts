@@ -22,7 +22,6 @@ export { solveDirect, DIRECT_MAX_PASSES } from './direct.js';
 export { solveWegstein, WEGSTEIN_DEFAULTS } from './wegstein.js';
 export { solveRoot, solveNewtonFixedPoint, NEWTON_DEFAULTS } from './newton.js';
 export { columnGroups } from './jacobian.js';
-export { solveDense } from './linear.js';
 export {
   DEFAULT_ATOL,
   DEFAULT_RTOL,
