@@ -35,15 +35,14 @@ export function readComponent(r: Reader, e: Entry): ComponentData | undefined {
   if (!f) return undefined;
   r.checkKeys(f, ['Tc', 'Pc', 'omega', 'MW', 'formula', 'name'], `component \`${e.key}\``);
   const ctx = { atmosphere: 101325 };
-  const need = (key: string) => {
-    if (!lib && !r.find(f, key)) {
-      r.bag.error(`component \`${e.key}\` is not in the built-in table, so \`${key}\` is required`, r.at(e.keyNode),
-        didYouMean(e.key, componentIds()) ?? `add \`${key}\` (e.g. \`${key === 'Tc' ? 'Tc: 408.1 K' : key === 'Pc' ? 'Pc: 36.5 bar' : key === 'omega' ? 'omega: 0.183' : 'formula: C4H10'}\`)`);
-      return false;
-    }
-    return true;
-  };
-  const ok = [need('Tc'), need('Pc'), need('omega'), need('formula')].every(Boolean);
+  // One message names every key a component of the file's own lacks.
+  const missing = lib ? [] : ['Tc', 'Pc', 'omega', 'formula'].filter((k) => !r.find(f, k) && !r.strayNear(f, k));
+  if (missing.length) {
+    const example: Record<string, string> = { Tc: '`Tc: 408.1 K`', Pc: '`Pc: 36.5 bar`', omega: '`omega: 0.183` (the acentric factor)', formula: '`formula: C4H10`' };
+    r.bag.error(`component \`${e.key}\` is not in the built-in table and has no ${missing.map((k) => `\`${k}\``).join(', ')}`, r.at(e.keyNode),
+      `add ${missing.map((k) => example[k]).join(', ')}`);
+  }
+  const ok = missing.length === 0;
   const get = (k: string) => r.find(f, k);
   const Tc = get('Tc') ? quantityAt(r, get('Tc')!.value, 'temperature', `\`Tc\` of \`${e.key}\``, { above: 0, example: '408.1 K' }, ctx) : lib?.Tc;
   const Pc = get('Pc') ? quantityAt(r, get('Pc')!.value, 'pressure', `\`Pc\` of \`${e.key}\``, { above: 0, example: '36.5 bar' }, ctx) : lib?.Pc;

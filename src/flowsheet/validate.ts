@@ -6,7 +6,7 @@
  */
 import { readFileSync, statSync } from 'node:fs';
 import type { Node } from 'yaml';
-import { DiagnosticBag, InputError, didYouMean, type SourceSpan } from '../diagnostics.js';
+import { DiagnosticBag, InputError, didYouMean, nearest, type SourceSpan } from '../diagnostics.js';
 import { BLOCKS, FEED, blockTypes } from '../blocks/registry.js';
 import type { BlockDef } from '../blocks/types.js';
 import { parseFormula } from '../thermo/formula.js';
@@ -181,16 +181,23 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag()): Load
 
   // Stream connectivity: each stream taken at most once, and only existing streams taken.
   const takenBy = new Map<string, string>();
-  const madeNames = [...streamSpans.keys()];
+  const allInlets = new Set(units.flatMap((u) => u.inlets));
+  // Streams made but taken by no unit: a misspelt inlet most likely meant one of these.
+  const untaken = [...streamSpans.keys()].filter((x) => !allInlets.has(x));
   for (const u of units) {
     const own = settings.get(u.name)!;
     for (const s of u.inlets) {
       const at = streamSpan(own, s, 'in') ?? u.span;
       if (!streamSpans.has(s) && !maybeMade.has(s) && !feedsUnreadable) {
-        // Suggest only names that exist and that another unit does not take already.
-        const free = madeNames.filter((x) => x !== s && !u.outlets.includes(x));
-        bag.error(`unit \`${u.name}\` takes stream \`${s}\`, which no feed or unit makes`, at,
-          didYouMean(s, free) ?? 'add a feed of that name, or take the outlet of another unit');
+        const near = nearest(s, untaken.filter((x) => !u.outlets.includes(x)), 1)[0];
+        if (near !== undefined && !feedNamesOf(feeds).has(near)) {
+          const maker = makers.get(near)!;
+          bag.error(`unit \`${u.name}\` takes stream \`${s}\`, which no feed or unit makes, and \`${maker}\` makes \`${near}\`, which no unit takes: one of the two names is misspelt`, at,
+            `write the same name in both places: \`${s}\` for the outlet of \`${maker}\`, or \`${near}\` in the \`in\` of \`${u.name}\``);
+        } else {
+          bag.error(`unit \`${u.name}\` takes stream \`${s}\`, which no feed or unit makes`, at,
+            didYouMean(s, untaken.filter((x) => !u.outlets.includes(x))) ?? 'add a feed of that name, or take the outlet of another unit');
+        }
       }
       const prev = takenBy.get(s);
       if (prev !== undefined) {
@@ -265,6 +272,10 @@ export function streamSpan(own: OwnerSettings, stream: string, role: 'in' | 'out
     if (isSettingMap(v) && v.has(stream)) return own.spans.get(`${key}.${stream}.@`);
   }
   return undefined;
+}
+
+function feedNamesOf(feeds: readonly FeedSpec[]): Set<string> {
+  return new Set(feeds.map((f) => f.name));
 }
 
 function toRecord(counts: unknown): Record<string, number> {

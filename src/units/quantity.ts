@@ -238,9 +238,9 @@ const DIM_VECTORS: ReadonlyArray<[Exclude<Dimension, 'standardFlow'> | string, r
   // Dimensions loopclose does not take, named for messages only.
   ['a length', [0, 1, 0, 0, 0, 0, 0, 0, 0]],
   ['an area', [0, 2, 0, 0, 0, 0, 0, 0, 0]],
-  ['a volume (not a flow: add a time, e.g. m3/h)', [0, 3, 0, 0, 0, 0, 0, 0, 0]],
-  ['a mass (not a flow: add a time, e.g. kg/h)', [1, 0, 0, 0, 0, 0, 0, 0, 0]],
-  ['an amount of substance (not a flow: add a time, e.g. kmol/h)', [0, 0, 0, 0, 0, 0, 1, 0, 0]],
+  ['a volume', [0, 3, 0, 0, 0, 0, 0, 0, 0]],
+  ['a mass', [1, 0, 0, 0, 0, 0, 0, 0, 0]],
+  ['an amount of substance', [0, 0, 0, 0, 0, 0, 1, 0, 0]],
   ['a force', [1, 1, -2, 0, 0, 0, 0, 0, 0]],
   ['an energy', [1, 2, -2, 0, 0, 0, 0, 0, 0]],
   ['a power', [1, 2, -3, 0, 0, 0, 0, 0, 0]],
@@ -507,12 +507,27 @@ export function parseQuantity(
   }
 }
 
+/** What a flow of this amount would be written as (a volume, a mass or an amount without a time). */
+const FLOW_OF: Readonly<Record<string, [Dimension, string]>> = {
+  'a volume': ['volumeFlow', 'm3/h'],
+  'a mass': ['massFlow', 'kg/h'],
+  'an amount of substance': ['molarFlow', 'kmol/h'],
+};
+
 function wrongDimension(unit: string, what: string, dims: readonly Dimension[]): UnitError {
   let help = `accepted units: ${listFor(dims)}`;
-  if (dims.includes('standardFlow') && what === DIMENSION_NAMES.volumeFlow) {
+  let said = what;
+  const flow = FLOW_OF[what];
+  if (flow && dims.includes(flow[0])) {
+    // A flow without its time: the one case where adding a time is the fix.
+    said = `${what}, not a flow`;
+    help = `add a time, e.g. \`${flow[1]}\`. ${help}`;
+  } else if (dims.includes('standardFlow') && what === DIMENSION_NAMES.volumeFlow) {
     help = `a standard flow states its reference: write Nm3/h, Sm3/h, SCFM or e.g. m3/h@normal. ${help}`;
+  } else if (dims.includes('volumeFlow') && !dims.includes('standardFlow') && what.startsWith(DIMENSION_NAMES.standardFlow)) {
+    help = 'a meter reads the actual volume at line pressure and temperature (m3/h, acfm); a flow in standard volume goes under `standard-flow:` of the feed, with `T:` and `P:` of the stream';
   }
-  return new UnitError(`\`${unit}\` is ${what}; expected ${expectedText(dims)}`, help, 'wrong-dimension');
+  return new UnitError(`\`${unit}\` is ${said}; ${expectedText(dims)} is wanted here`, help, 'wrong-dimension');
 }
 
 // ---------------------------------------------------------------------------------------------

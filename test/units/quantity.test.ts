@@ -199,13 +199,18 @@ describe('errors', () => {
     const e = errorOf(() => parseQuantity('30 kg/h', 'pressure'));
     expect(e.kind).toBe('wrong-dimension');
     expect(e.message).toContain('mass flow');
-    expect(e.message).toContain('expected a pressure');
+    expect(e.message).toContain('a pressure is wanted here');
     expect(e.help).toContain('barg');
     const e2 = errorOf(() => parseQuantity('5 m', 'temperature'));
     expect(e2.message).toContain('length');
+    // An amount where a molar flow is wanted: the fix is a time.
     const e3 = errorOf(() => parseQuantity('5 kmol', 'molarFlow'));
-    expect(e3.message).toContain('amount of substance');
-    expect(e3.message).toContain('kmol/h');
+    expect(e3.message).toContain('an amount of substance, not a flow');
+    expect(e3.help).toContain('add a time, e.g. `kmol/h`');
+    // A mass where a pressure is wanted: said as such, no advice to add a time.
+    const e4 = errorOf(() => parseQuantity('78 kg', 'pressure'));
+    expect(e4.message).toBe('`kg` is a mass; a pressure is wanted here');
+    expect(e4.help).not.toMatch(/time/);
   });
 
   it('a standard flow where an actual volume flow is expected, and the reverse', () => {
