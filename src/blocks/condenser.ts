@@ -1,5 +1,5 @@
 /**
- * Condenser and flash drum: vapour and liquid outlets at a set T and P.
+ * Condenser and flash drum: vapor and liquid outlets at a set T and P.
  * - `model: equilibrium` (default): isothermal flash with the file's equation of state
  *   (fugacity K-values; see src/thermo/flash.ts). The last K-values start the next pass.
  * - `model: split`: a fixed fraction of each component goes to the liquid.
@@ -23,7 +23,7 @@ function makeDef(type: 'condenser' | 'flash'): BlockDef<CondenserSpec> {
   return {
     type,
     description: type === 'condenser'
-      ? 'cools to a set T and P and parts vapour from liquid (equilibrium flash or fixed split)'
+      ? 'cools to a set T and P and parts vapor from liquid (equilibrium flash or fixed split)'
       : 'isothermal flash drum at a set T and P (equilibrium or fixed split)',
     keys: ['in', 'T', 'P', 'model', 'split', 'vapor', 'liquid'],
     read(name, f) {
@@ -43,7 +43,7 @@ function makeDef(type: 'condenser' | 'flash'): BlockDef<CondenserSpec> {
       }
       if (!inlet || T === undefined || P === undefined || !vapor || !liquid) return undefined;
       if (vapor === liquid) {
-        f.error('liquid', `the vapour and liquid outlets of \`${name}\` are the same stream`, 'give them different names');
+        f.error('liquid', `the vapor and liquid outlets of \`${name}\` are the same stream`, 'give them different names');
         return undefined;
       }
       return { name, type, inlets: inlet, outlets: [vapor, liquid], T, P, model, split };
@@ -52,7 +52,7 @@ function makeDef(type: 'condenser' | 'flash'): BlockDef<CondenserSpec> {
     outputs: () => [{ name: 'vapor-fraction', dimension: 'dimensionless', read: (u: UnitSummary) => u.figures.find((x) => x.key === 'vaporFraction')?.value ?? Number.NaN }],
     structure(spec, model) {
       return {
-        // outlets: [vapour, liquid]. Under an equilibrium flash any component dissolves a little
+        // outlets: [vapor, liquid]. Under an equilibrium flash any component dissolves a little
         // (except under the ideal-gas model, where the flash gives no liquid).
         passes: (k, i) => (spec.model === 'split' && spec.split ? (k === 1 ? spec.split[i] > 0 : spec.split[i] < 1) : model.thermo.eos === 'ideal' ? k === 0 : true),
         openOutlet: (k, id) => `let some \`${id}\` go to \`${spec.outlets[k]}\` in the \`split\` of \`${spec.name}\``,
@@ -118,11 +118,11 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
         };
       }
       if (r.liquidLiquid) {
-        // Two liquids, no vapour: a vapour outlet fed a liquid would be no solution.
+        // Two liquids, no vapor: a vapor outlet fed a liquid would be no solution.
         problem = {
           kind: 'invalid',
           unit: spec.name,
-          message: `the flash in \`${spec.name}\` finds two liquid phases and no vapour at the set T and P`,
+          message: `the flash in \`${spec.name}\` finds two liquid phases and no vapor at the set T and P`,
           help: 'set binary interaction parameters for the polar pairs under `thermo.kij` (from a fit to phase-equilibrium data), or use `model: split`',
         };
       }
@@ -141,12 +141,12 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
         v.flows.set(feed);
         l.flows.fill(0);
         lastBeta = 1;
-        note = r.note ?? 'all vapour at the set T and P: no liquid';
+        note = r.note ?? 'all vapor at the set T and P: no liquid';
       } else {
         l.flows.set(feed);
         v.flows.fill(0);
         lastBeta = 0;
-        note = r.note ?? 'all liquid at the set T and P: no vapour';
+        note = r.note ?? 'all liquid at the set T and P: no vapor';
       }
       v.vf = 1;
       l.vf = 0;
@@ -155,7 +155,7 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
     summary() {
       return {
         figures: [
-          { label: 'vapour fraction', value: lastBeta, kind: 'fraction', key: 'vaporFraction' },
+          { label: 'vapor fraction', value: lastBeta, kind: 'fraction', key: 'vaporFraction' },
           ...(spec.model === 'equilibrium' ? [{ label: 'flash iterations in the last pass (from the previous K-values)', value: lastIterations, kind: 'count' as const, key: 'flashIterations' }] : []),
         ],
         notes: note ? [note] : [],

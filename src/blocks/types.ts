@@ -18,7 +18,7 @@ export interface Stream {
   T: number;
   /** Pa, absolute */
   P: number;
-  /** Vapour mole fraction, NaN where not computed (a mixer outlet, a feed given by mass). */
+  /** Vapor mole fraction, NaN where not computed (a mixer outlet, a feed given by mass). */
   vf: number;
 }
 
@@ -31,7 +31,7 @@ export interface BuildContext {
   eos: Eos;
 }
 
-/** A figure a unit reports after the solve (extent, conversion, vapour fraction...). */
+/** A figure a unit reports after the solve (extent, conversion, vapor fraction...). */
 export interface UnitFigure {
   label: string;
   /** SI value (mol/s, fraction, K, Pa) */

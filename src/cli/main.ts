@@ -2,7 +2,7 @@
 import { Command, CommanderError } from 'commander';
 import { InputError, diagnosticsJson, formatDiagnostics } from '../diagnostics.js';
 import { EXIT, exitCodeOf } from './exit.js';
-import { writeErr, writeFileAtomic, writeOut } from './io.js';
+import { writeErr, writeOut, writeOutput } from './io.js';
 import { runMeter } from './meter.js';
 import { runSolve } from './solve.js';
 import { registerSweep } from './sweep.js';
@@ -46,17 +46,9 @@ async function reportError(e: unknown, debug: boolean, json: boolean): Promise<n
   return EXIT.internal;
 }
 
-async function emit(text: string, out?: string): Promise<void> {
-  if (out) {
-    try {
-      writeFileAtomic(out, text.endsWith('\n') ? text : `${text}\n`);
-    } catch (e) {
-      const code = (e as NodeJS.ErrnoException).code;
-      if (!code) throw e;
-      const why = code === 'ENOENT' ? 'its folder does not exist' : code === 'EACCES' || code === 'EPERM' ? 'permission denied' : code === 'EISDIR' ? 'it is a folder' : code;
-      throw new InputError([{ severity: 'error', message: `--out: cannot write ${out}: ${why}`, help: 'give the path of a file in an existing folder that you may write to' }]);
-    }
-  } else await writeOut(text);
+async function emit(text: string, out?: string, overwrite?: boolean): Promise<void> {
+  if (out) writeOutput(out, text.endsWith('\n') ? text : `${text}\n`, { overwrite });
+  else await writeOut(text);
 }
 
 /**
@@ -71,6 +63,7 @@ function faultHook(): void {
 export async function main(argv: string[]): Promise<void> {
   const debug = argv.includes('--debug');
   const json = argv.includes('--json');
+  const commanderErrors: string[] = [];
   // A reader that goes away (`loopclose merge ... | head -1`) ends the output quietly.
   for (const stream of [process.stdout, process.stderr]) {
     stream.on('error', (err: NodeJS.ErrnoException) => {
@@ -86,7 +79,11 @@ export async function main(argv: string[]): Promise<void> {
     .version(VERSION)
     .option('--debug', 'show details of internal errors')
     .exitOverride()
-    .configureOutput({ writeErr: (s) => process.stderr.write(s) });
+    .configureOutput({
+      writeErr: (s) => process.stderr.write(s),
+      // With --json a mistake in the command line is JSON diagnostics too.
+      outputError: (s, write) => (json ? commanderErrors.push(s.replace(/^error: /, '').trim()) : write(s)),
+    });
 
   program
     .command('meter')
@@ -101,9 +98,10 @@ export async function main(argv: string[]): Promise<void> {
     .option('--atmosphere <quantity>', 'local atmosphere for gauge readings (default 101.325 kPa)')
     .option('--flow-unit <unit>', 'display unit of molar flows')
     .option('--out <file>', 'write the report to a file')
+    .option('--overwrite', 'replace --out when it exists')
     .action(async (file: string | undefined, o) => {
       faultHook();
-      await emit(runMeter(file, o), o.out);
+      await emit(runMeter(file, o), o.out, o.overwrite);
     });
 
   program
@@ -120,10 +118,16 @@ export async function main(argv: string[]): Promise<void> {
     .option('--by <input>', 'the input adjusted for the matching --target, e.g. purge-split.out.recycle', collect, [])
     .option('--within <low:high>', 'bounds of that input, e.g. 0.8:0.999 or "10:14 m3/h"', collect, [])
     .option('--out <file>', 'write the report to a file')
+    .option('--overwrite', 'replace --out when it exists')
     .action(async (file: string, o) => {
       faultHook();
       const { text, result } = runSolve(file, o);
-      await emit(text, o.out);
+      await emit(text, o.out, o.overwrite);
+      if (o.csv && result.status !== 'converged') {
+        // The CSV holds no stream table for a state that is not a solution: say why where a
+        // person or a script will see it.
+        await writeErr(`loopclose: ${result.status}: ${result.message ?? 'no solution'}`);
+      }
       code = exitCodeOf(result.status);
     });
 
@@ -137,11 +141,12 @@ export async function main(argv: string[]): Promise<void> {
     .option('--method <name>', 'direct, wegstein, newton or auto (Wegstein, then Newton)')
     .option('--max-passes <n>', 'budget of flowsheet passes')
     .option('--no-date', 'leave the date out of the report (the same file then gives the same bytes)')
+    .option('--overwrite', 'replace --out when it exists')
     .action(async (file: string, o) => {
       faultHook();
       const r = await (await import('./pictures.js')).report(file, o);
       if (!r.ok) throw new InputError(r.diagnostics);
-      await emit(r.text, o.out);
+      await emit(r.text, o.out, o.overwrite);
       code = r.code;
     });
 
@@ -155,11 +160,12 @@ export async function main(argv: string[]): Promise<void> {
     .option('--heatmap', 'a heat map over --x and --series instead of lines')
     .option('--svg', 'write SVG (also chosen by an --out name ending in .svg)')
     .option('--out <file>', 'plot.html (a page with the plot inline) or plot.svg')
+    .option('--overwrite', 'replace --out when it exists')
     .action(async (file: string, o) => {
       faultHook();
       const r = await (await import('./pictures.js')).plot(file, o);
       if (!r.ok) throw new InputError(r.diagnostics);
-      await emit(r.text, o.out);
+      await emit(r.text, o.out, o.overwrite);
     });
 
   registerSweep(program, (c) => {
@@ -174,6 +180,9 @@ export async function main(argv: string[]): Promise<void> {
   } catch (e) {
     if (e instanceof CommanderError) {
       code = e.exitCode === 0 ? EXIT.ok : EXIT.input;
+      if (json && commanderErrors.length) {
+        await writeOut(JSON.stringify(diagnosticsJson(commanderErrors.map((message) => ({ severity: 'error' as const, message, help: 'see `loopclose help` for the options of each command' }))), null, 2));
+      }
     } else {
       code = await reportError(e, debug, json);
     }

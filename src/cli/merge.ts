@@ -3,7 +3,7 @@ import type { Command } from 'commander';
 import { InputError, type Diagnostic } from '../diagnostics.js';
 import { mergeShards, type ShardFile } from '../study/merge.js';
 import { EXIT } from './exit.js';
-import { writeFileAtomic } from './io.js';
+import { writeOutput } from './io.js';
 import { readFileSync } from 'node:fs';
 
 export function registerMerge(program: Command, setCode: (code: number) => void): void {
@@ -12,7 +12,8 @@ export function registerMerge(program: Command, setCode: (code: number) => void)
     .description('join the outputs of the shards of a sweep (--shard i/N) into the output of the full run; checks that no point is missing or doubled')
     .argument('<files...>', 'the output file of every shard')
     .option('--out <file>', 'write the merged output to a file (written whole, or not at all)')
-    .action(async (paths: string[], o: { out?: string }) => {
+    .option('--overwrite', 'replace --out when it exists')
+    .action(async (paths: string[], o: { out?: string; overwrite?: boolean }) => {
       const files: ShardFile[] = [];
       const problems: Diagnostic[] = [];
       for (const path of paths) {
@@ -25,7 +26,7 @@ export function registerMerge(program: Command, setCode: (code: number) => void)
       }
       if (problems.length) throw new InputError(problems);
       const text = mergeShards(files);
-      if (o.out) writeFileAtomic(o.out, text);
+      if (o.out) writeOutput(o.out, text, { overwrite: o.overwrite });
       else await new Promise<void>((resolve) => process.stdout.write(text, () => resolve()));
       setCode(EXIT.ok);
     });

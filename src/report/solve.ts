@@ -17,7 +17,7 @@ function record(ids: readonly string[], a: Float64Array): Record<string, number>
   return o;
 }
 
-/** A number, or null where it was not computed (a mixer's vapour fraction, the T of an empty stream). */
+/** A number, or null where it was not computed (a mixer's vapor fraction, the T of an empty stream). */
 function orNull(v: number): number | null {
   return Number.isFinite(v) ? v : null;
 }
@@ -96,8 +96,9 @@ export function solveCsv(r: FlowsheetResult, opts: SolveReportOptions = {}): str
   const ctx = { atmosphere: r.model.thermo.atmosphere };
   const pu = r.model.display.pressureUnit;
   const tu = r.model.display.temperatureUnit;
-  const lines = [csvLine(['stream', ...ids.map((id) => `${id} [${fu}]`), `total [${fu}]`, ...ids.map((id) => `x ${id}`), `T [${tu}]`, `P [${pu}]`, 'vapour fraction'])];
-  if (r.status !== 'converged') return `${lines[0]}\n`;
+  const lines = [csvLine(['stream', ...ids.map((id) => `${id} [${fu}]`), `total [${fu}]`, ...ids.map((id) => `x ${id}`), `T [${tu}]`, `P [${pu}]`, 'vapor fraction'])];
+  // A state that is not a solution gives no rows; the first line says so, as a comment.
+  if (r.status !== 'converged') return `# status: ${r.status}: ${(r.message ?? 'no solution').replace(/\s+/g, ' ')}\n${lines[0]}\n`;
   for (const name of r.streamOrder) {
     const s = r.streams.get(name)!;
     lines.push(csvLine([
@@ -168,7 +169,7 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
   ids.forEach((id, i) => rows.push([`x ${id}`, ...names.map((s) => num(r.streams.get(s)!.fractions[i], 4))]));
   rows.push(['T', ...names.map((s) => num(toUnit(r.streams.get(s)!.T, 'temperature', tu, ctx), 5))]);
   rows.push(['P', ...names.map((s) => num(toUnit(r.streams.get(s)!.P, 'pressure', pu, ctx), 5))]);
-  rows.push(['vapour fraction', ...names.map((s) => num(r.streams.get(s)!.vaporFraction, 4))]);
+  rows.push(['vapor fraction', ...names.map((s) => num(r.streams.get(s)!.vaporFraction, 4))]);
   out.push(table(['', ...names], rows));
 
   out.push('');

@@ -125,6 +125,6 @@ export function solveWegstein(problem: FixedPointProblem, options: SolveOptions 
   return finish(
     'not-converged',
     `Wegstein did not converge in ${maxPasses} passes (largest scaled residual ${m.scaled.toPrecision(3)} at ${nameOf(m.index, names)}); ` +
-      `q is bounded to ${qMin} <= q <= ${qMax}, which holds back a slow loop (a small purge or a high recycle ratio): widen the bound (\`solver: { q-min: -50 }\`) or use --method newton or auto`,
+      `q is bounded to ${qMin} <= q <= ${qMax}, which holds back a slow loop (a small purge or a high recycle ratio): widen it (\`solver: { acceleration: { lowest: -50 } }\`) or use --method newton or auto`,
   );
 }

@@ -33,9 +33,12 @@ export class SweepSink {
   private fd: number | undefined;
   private lastSync = Date.now();
   private broken = false;
+  /** A regular file is synced to disk; a device or a pipe (`--out /dev/stdout`) cannot be. */
+  private readonly sync: boolean;
 
-  private constructor(readonly path: string | undefined, fd: number | undefined) {
+  private constructor(readonly path: string | undefined, fd: number | undefined, sync = true) {
     this.fd = fd;
+    this.sync = sync;
     if (path === undefined) {
       process.stdout.on('error', () => {
         // The reader went away (e.g. `| head`): stop writing.
@@ -60,6 +63,13 @@ export class SweepSink {
       return { sink: new SweepSink(undefined, undefined), existing: [] };
     }
     const path = o.path;
+    if (existsSync(path) && !statSync(path).isFile()) {
+      // A terminal, a pipe or /dev/stdout: written straight, never synced, never resumed.
+      if (o.resume) throw refuse(`--resume: \`${path}\` is not a regular file`, 'a sweep written to a device or a pipe cannot be resumed; write it to a file');
+      const fd = openSync(path, 'w');
+      writeSync(fd, headerText);
+      return { sink: new SweepSink(path, fd, false), existing: [] };
+    }
     if (o.resume && existsSync(path) && statSync(path).size > 0) {
       const existing = readExisting(path, header, headerText, order);
       if (existing) {
@@ -84,6 +94,7 @@ export class SweepSink {
       return;
     }
     writeSync(this.fd, `${line}\n`);
+    if (!this.sync) return;
     const now = Date.now();
     if (now - this.lastSync >= FSYNC_INTERVAL_MS) {
       fsyncSync(this.fd);
@@ -93,7 +104,7 @@ export class SweepSink {
 
   close(): void {
     if (this.fd === undefined) return;
-    fsyncSync(this.fd);
+    if (this.sync) fsyncSync(this.fd);
     closeSync(this.fd);
     this.fd = undefined;
   }

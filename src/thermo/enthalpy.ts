@@ -24,7 +24,7 @@
  * several percent, and liquid heat capacities by more (Poling, Prausnitz and O'Connell, The
  * Properties of Gases and Liquids, 5th ed., chapters 4 and 6, (from memory)). The tests
  * measure it for water against the IAPWS-IF97 verification values (test/thermo/enthalpy.test.ts):
- * the enthalpy of liquid water at 300 K and 3 MPa relative to the vapour at 3.5 kPa comes out
+ * the enthalpy of liquid water at 300 K and 3 MPa relative to the vapor at 3.5 kPa comes out
  * 6.9 % (SRK) and 4.0 % (PR) too large in magnitude, and the residual enthalpy of dense steam
  * at 700 K and 30 MPa 7.4 % (SRK) and 6.0 % (PR) too small.
  * Condenser duties and adiabatic temperatures of streams with much polar liquid carry that
@@ -245,7 +245,7 @@ export interface SplitProperties {
   /** Per mole of stream, J/mol and J/(mol K). */
   H: number;
   S: number;
-  /** Present when the split has vapour (beta > 0). */
+  /** Present when the split has vapor (beta > 0). */
   vapor?: { H: number; S: number; Z: number };
   /** Present when the split has liquid (beta < 1). */
   liquid?: { H: number; S: number; Z: number };
@@ -290,7 +290,7 @@ export interface StreamState {
   T: number;
   P: number;
   phase: 'two-phase' | 'vapor' | 'liquid';
-  /** Vapour mole fraction. */
+  /** Vapor mole fraction. */
   beta: number;
   x: Float64Array;
   y: Float64Array;

@@ -24,7 +24,7 @@
  * component's Tc the two are equal and a(T)/T falls with T). Below it, the single root is
  * 'liquid' when its volume is below the pseudo-critical volume, V/b < Zc/Omega_b (3.85 SRK,
  * 3.95 PR), else 'vapor'; above it, 'vapor'. For a pure component this is exact (below Tc the
- * liquid spinodal volume lies below Vc and the vapour spinodal above it). For mixtures it is a
+ * liquid spinodal volume lies below Vc and the vapor spinodal above it). For mixtures it is a
  * label only, and near the critical region of an asymmetric mixture it can call a dense phase
  * 'vapor' just above its bubble point (methane + n-butane 0.6/0.4 at 310 K, SRK: bubble point
  * about 122 bar, single phase above it labelled 'vapor'), as any pseudo-critical rule does.

@@ -36,11 +36,11 @@
  * Entropy works the same way with S(T) (dS/dT = Cp/T).
  *
  * A pure component (one component present) has a saturation temperature at P (below its
- * critical pressure) where H jumps from the saturated liquid's to the saturated vapour's. It is
+ * critical pressure) where H jumps from the saturated liquid's to the saturated vapor's. It is
  * found first (Newton on ln phi^L = ln phi^V, with d/dT = (H^R,V - H^R,L)/(R T^2)); an enthalpy
- * between the two is returned at that temperature with the vapour fraction
+ * between the two is returned at that temperature with the vapor fraction
  * beta = (H - H^L)/(H^V - H^L); outside it the search is confined to the liquid side (below) or
- * the vapour side (above).
+ * the vapor side (above).
  *
  * Convergence: |H - H_spec| <= tol R T (default tol 1e-8), or |S - S_spec| <= tol R. A state
  * that cannot be found (target outside what [Tmin, Tmax] can reach, an inner flash that fails,
@@ -85,7 +85,7 @@ export interface StateFlashResult {
   T: number;
   P: number;
   phase: 'two-phase' | 'vapor' | 'liquid';
-  /** Vapour mole fraction. */
+  /** Vapor mole fraction. */
   beta: number;
   x: Float64Array;
   y: Float64Array;
@@ -282,7 +282,7 @@ function singlePhaseNewton(ctx: Ctx, T: number, root: 'vapor' | 'liquid', a: num
 }
 
 /**
- * dH/dT (or dS/dT) of the two-phase equilibrium at T with vapour fraction beta, K-values K and
+ * dH/dT (or dS/dT) of the two-phase equilibrium at T with vapor fraction beta, K-values K and
  * d ln K_i/dT at fixed phase compositions in dlnK (see the module comment); cpV and cpL are the
  * phases' heat capacities at fixed composition. Falls back to the frozen heat capacity when
  * the estimate is not positive.
@@ -636,7 +636,7 @@ function solve(eos: Eos, P: number, kind: Kind, target: number, z: ArrayLike<num
           status: 'converged', spec: kind === 'H' ? 'PH' : 'PS', target, T: Ts, P, phase: 'two-phase', beta,
           x: Float64Array.from(zz), y: Float64Array.from(zz), K, H, iterations: ctx.iterations, flashes: 0, evaluations: 0,
           residual: Math.abs(v - target), history: ctx.history,
-          message: `pure ${eos.components[only].id} at its saturation temperature: the vapour fraction carries the ${kind === 'H' ? 'enthalpy' : 'entropy'} balance`,
+          message: `pure ${eos.components[only].id} at its saturation temperature: the vapor fraction carries the ${kind === 'H' ? 'enthalpy' : 'entropy'} balance`,
         };
         if (withS) r.S = S;
         return r;

@@ -18,7 +18,7 @@
  * x_i = y_i = 0 and a K_i from the converged fugacity coefficients (infinite dilution).
  * Trivial solution (K -> 1, both phases alike, near a critical point) is detected by
  * sum z_i (ln K_i)^2 < 1e-8 and reported (trivial: true, note), never as a split.
- * Only vapour-liquid (two-phase) splits are computed; three-phase equilibria are not.
+ * Only vapor-liquid (two-phase) splits are computed; three-phase equilibria are not.
  * Each phase uses the root of lower Gibbs energy for its own composition.
  */
 import { solveDense } from '../solve/linear.js';
@@ -39,11 +39,11 @@ export interface FlashOptions {
 export interface FlashResult {
   status: 'converged' | 'not-converged';
   phase: 'two-phase' | 'vapor' | 'liquid';
-  /** Vapour mole fraction (1 for all vapour, 0 for all liquid). */
+  /** Vapor mole fraction (1 for all vapor, 0 for all liquid). */
   beta: number;
   /** Liquid composition (the feed when single phase). */
   x: Float64Array;
-  /** Vapour composition (the feed when single phase). */
+  /** Vapor composition (the feed when single phase). */
   y: Float64Array;
   /** K_i = y_i / x_i of the split; for a single phase the estimate used (Wilson or the start). */
   K: Float64Array;

@@ -1,6 +1,6 @@
 /**
  * Pure-component helpers on top of an equation of state: phase at (T, P) and the model's own
- * vapour pressure.
+ * vapor pressure.
  */
 import type { Eos } from './types.js';
 
@@ -21,7 +21,7 @@ function checkIndex(eos: Eos, i: number): void {
  * - T >= Tc and P >= Pc: 'supercritical'; T >= Tc and P < Pc: 'vapor' (a gas above Tc).
  *   For SRK and PR the model's critical point is exactly the given (Tc, Pc).
  * - T < Tc: the root of lower Gibbs energy when the cubic has three roots (this is the same as
- *   comparing P with the model's vapour pressure: the liquid is stable above it), otherwise the
+ *   comparing P with the model's vapor pressure: the liquid is stable above it), otherwise the
  *   single root, classified by the model's critical volume (see eos.ts).
  * For the ideal gas every state is 'vapor' below Tc, as the model has no liquid.
  */
@@ -35,9 +35,9 @@ export function purePhase(eos: Eos, i: number, T: number, P: number): PurePhase 
 
 export interface SaturationResult {
   status: 'converged' | 'not-converged';
-  /** Vapour pressure of the model, Pa (NaN when T >= Tc or the model has no liquid). */
+  /** Vapor pressure of the model, Pa (NaN when T >= Tc or the model has no liquid). */
   P: number;
-  /** Compressibility factors of the coexisting liquid and vapour. */
+  /** Compressibility factors of the coexisting liquid and vapor. */
   zLiquid: number;
   zVapor: number;
   iterations: number;
@@ -47,7 +47,7 @@ export interface SaturationResult {
 }
 
 /**
- * Vapour pressure of pure component i predicted by the equation of state at T < Tc: the
+ * Vapor pressure of pure component i predicted by the equation of state at T < Tc: the
  * pressure where ln phi_L = ln phi_V. Newton on ln P, using d(ln phi)/d(ln P) = Z - 1 for a pure
  * fluid, so d(ln phi_L - ln phi_V)/d ln P = Z_L - Z_V. Start: Wilson's estimate
  * P = Pc exp(5.373 (1 + omega)(1 - Tc/T)) (Wilson, G. M., "A modified Redlich-Kwong equation of
@@ -71,7 +71,7 @@ export function saturationPressure(eos: Eos, i: number, T: number, tol = 1e-12, 
   for (let it = 1; it <= maxIterations; it++) {
     const rl = eos.lnPhi(T, P, x, 'liquid', phiL);
     if (rl.nRoots === 1) {
-      // only one root: liquid-like means P is above the vapour spinodal, gas-like below the liquid one
+      // only one root: liquid-like means P is above the vapor spinodal, gas-like below the liquid one
       P *= rl.root === 'liquid' ? 0.8 : 1.25;
       continue;
     }
@@ -85,5 +85,5 @@ export function saturationPressure(eos: Eos, i: number, T: number, tol = 1e-12, 
     else if (step < -0.5) step = -0.5;
     P *= Math.exp(step);
   }
-  return { status: 'not-converged', P, zLiquid: zl, zVapor: zv, iterations: maxIterations, residual: Math.abs(g), note: 'vapour-pressure iteration did not converge (close to Tc?)' };
+  return { status: 'not-converged', P, zLiquid: zl, zVapor: zv, iterations: maxIterations, residual: Math.abs(g), note: 'vapor-pressure iteration did not converge (close to Tc?)' };
 }

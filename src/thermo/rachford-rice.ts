@@ -1,5 +1,5 @@
 /**
- * Rachford-Rice equation for the vapour fraction beta of an isothermal two-phase split with
+ * Rachford-Rice equation for the vapor fraction beta of an isothermal two-phase split with
  * given equilibrium ratios K_i = y_i / x_i (Rachford and Rice, "Procedure for use of electronic
  * digital computers in calculating flash vaporization hydrocarbon equilibrium",
  * J. Petrol. Technol. 4 (1952), section 1, 19):

@@ -9,7 +9,7 @@
  * substitution. At a stationary point tm = 1 - sum W and the tangent-plane distance of the
  * normalised trial phase is tpd = sum_i w_i (ln w_i + ln phi_i(w) - d_i) = -ln(sum W).
  * The feed is unstable if any stationary point has tpd < 0. Two trial phases are started from
- * Wilson's K (wilson.ts): vapour-like W_i = z_i K_i and liquid-like W_i = z_i / K_i.
+ * Wilson's K (wilson.ts): vapor-like W_i = z_i K_i and liquid-like W_i = z_i / K_i.
  * Every evaluation uses the root of lower Gibbs energy ('stable').
  * Every 5th step the iteration is extrapolated along the dominant eigenvector (Michelsen 1982,
  * Part II, FPE 9, 21: lambda = (D_k . D_k)/(D_k-1 . D_k), step D_k lambda/(1 - lambda)); the
@@ -223,7 +223,7 @@ export function stabilityTest(eos: Eos, T: number, P: number, z: ArrayLike<numbe
   let incomplete = false;
   const outcomes: TrialOutcome[] = [];
   for (let t = 0; t < 2; t++) {
-    const sign = t === 0 ? 1 : -1; // vapour-like trial first, then liquid-like
+    const sign = t === 0 ? 1 : -1; // vapor-like trial first, then liquid-like
     for (let i = 0; i < n; i++) lnW[i] = present[i] ? lnz[i] + sign * lnKw[i] : 0;
     const o = runTrial(eos, T, P, lnz, d, present, lnW, tol, maxIt, work.trials[t]);
     iterations += o.iterations;

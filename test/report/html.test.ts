@@ -71,7 +71,7 @@ describe('HTML report of the demo flowsheets', () => {
     expect(plain).not.toContain('enthalpy flow');
     expect(plain).not.toContain('<h3>Energy</h3>');
     expect(plain).toContain('<th scope="row">to purge</th><td class="n">0.025000</td>');
-    expect(plain).toContain('<th scope="row">vapour fraction</th>');
+    expect(plain).toContain('<th scope="row">vapor fraction</th>');
     const units = input.result.units as Record<string, Record<string, unknown>>;
     units.chiller.duty = -1.5e6;
     units.converter.heatLoss = 2500;

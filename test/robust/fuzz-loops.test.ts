@@ -33,7 +33,7 @@ function check(spec: LoopSpec): Outcome {
   }
   const r = solveFlowsheet(model);
   // `invalid`: a unit met a state it cannot compute as specified (e.g. a flash that finds two
-  // liquids and no vapour); a clear non-solution like the other two.
+  // liquids and no vapor); a clear non-solution like the other two.
   expect(['converged', 'not-converged', 'infeasible', 'invalid'], text).toContain(r.status);
   const obj = resultObject(r);
   expect(nonFinitePaths(obj), text).toEqual([]);
@@ -145,7 +145,7 @@ units:
     else expect(r.message ?? '').toMatch(/balance of \w+ closes only to|singular Jacobian/);
   });
 
-  // seed 7715, first run: mixer and reactor outlets carried NaN vapour fractions into the
+  // seed 7715, first run: mixer and reactor outlets carried NaN vapor fractions into the
   // result object (fixed in src/report/solve.ts: null where not computed).
   it('a loop of pure ammonia condensing: every number in the result object is finite', () => {
     const text = `components: { H2: {}, C2H6: {}, NH3: {}, Ar: {} }

@@ -1,6 +1,6 @@
 /**
  * Hard cases while solving: very high recycle ratios, tiny purges, components at zero flow,
- * all-liquid and all-vapour condensers, a flash near a mixture critical point, hydrogen's
+ * all-liquid and all-vapor condensers, a flash near a mixture critical point, hydrogen's
  * negative acentric factor, very low and very high meter pressures; and how a run that is no
  * solution ends (not-converged exit 3, infeasible exit 4, internal error exit 1).
  */
@@ -102,10 +102,10 @@ units:
   split: { type: splitter, in: gas, out: { purge: 0.1, recycle: rest } }
 `;
 
-  it('all liquid: water and methanol at 300 K and 50 bar: no vapour, the liquid takes the feed', () => {
+  it('all liquid: water and methanol at 300 K and 50 bar: no vapor, the liquid takes the feed', () => {
     const r = solveFlowsheet(validateText('liq.yaml', condenserLoop('300 K', '50 bar', 'H2O: 0.5, CH3OH: 0.5')).model);
     // Either a converged all-liquid state or a clear statement that the flash finds two
-    // liquids (SRK with k_ij = 0 for water-methanol); never a made-up vapour.
+    // liquids (SRK with k_ij = 0 for water-methanol); never a made-up vapor.
     if (r.status === 'converged') {
       expectSolution(r);
       expect(r.streams.get('gas')!.total).toBe(0);
@@ -125,12 +125,12 @@ units:
     expect(r.units.get('cool')!.figures.find((f) => f.key === 'vaporFraction')!.value).toBe(0);
   });
 
-  it('all vapour: hydrogen and nitrogen at 300 K: no liquid, the purge takes all', () => {
+  it('all vapor: hydrogen and nitrogen at 300 K: no liquid, the purge takes all', () => {
     const r = solveFlowsheet(validateText('vap.yaml', condenserLoop('300 K', '50 bar', 'H2: 0.75, N2: 0.25')).model);
     expectSolution(r);
     expect(r.streams.get('liquid')!.total).toBe(0);
     expect(r.streams.get('purge')!.total).toBeCloseTo(2, 9);
-    expect(r.units.get('cool')!.notes.join(' ')).toMatch(/vapour/);
+    expect(r.units.get('cool')!.notes.join(' ')).toMatch(/vapor/);
   });
 });
 

@@ -26,7 +26,7 @@ describe('solveCubic', () => {
     expect(out[0]).toBeCloseTo(1, 14);
   });
 
-  it('handles widely separated roots typical of a liquid/vapour cubic', () => {
+  it('handles widely separated roots typical of a liquid/vapor cubic', () => {
     // roots 1e-3, 0.05, 0.95: coefficients from Vieta's formulas
     const r1 = 1e-3, r2 = 0.05, r3 = 0.95;
     const c2 = -(r1 + r2 + r3), c1 = r1 * r2 + r1 * r3 + r2 * r3, c0 = -r1 * r2 * r3;
@@ -77,7 +77,7 @@ describe('solveCubic', () => {
 
   it('reproduces the Redlich-Kwong volumes of n-butane at 350 K, 9.4573 bar', () => {
     // Smith, Van Ness and Abbott, Introduction to Chemical Engineering Thermodynamics, 7th ed.,
-    // Example 3.9 (Redlich/Kwong): saturated vapour 2555 cm3/mol (Z = 0.8305), saturated liquid
+    // Example 3.9 (Redlich/Kwong): saturated vapor 2555 cm3/mol (Z = 0.8305), saturated liquid
     // 133.3 cm3/mol (Z = 0.04331). Constants from SVA Table B.1: Tc = 425.1 K, Pc = 37.96 bar.
     // Redlich-Kwong is the cubic with d1 = 1, d2 = 0 and alpha = Tr^-1/2 (Redlich and Kwong,
     // Chem. Rev. 44 (1949) 233); it exercises the cubic solver independently of srk.ts.

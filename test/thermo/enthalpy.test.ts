@@ -27,7 +27,7 @@ function state(r: StreamState | MissingThermoData): StreamState {
 describe('departure functions against a published worked example', () => {
   // Y. V. C. Rao, Chemical Engineering Thermodynamics (Universities Press, Hyderabad, 1997),
   // Example 8.6 (SRK) and Example 8.7 (PR), p. 281-282: enthalpy and entropy departure of
-  // n-octane vapour at 427.85 K and 0.215 MPa, with a, b and Z from the book's Examples 3.15
+  // n-octane vapor at 427.85 K and 0.215 MPa, with a, b and Z from the book's Examples 3.15
   // and 3.16. The inputs below were read from a public transcription of the examples (not from
   // the printed book): Tc = 569.4 K; SRK: m = 1.0786, alpha = 1.3079, a = 5.0180 Pa m6/mol2,
   // b = 1.6426e-4 m3/mol, B = 9.9282e-3, Z = 0.9191; PR: m = 0.9457, alpha = 1.2677,
@@ -105,7 +105,7 @@ describe('departure functions of water against the IAPWS-IF97 verification value
       expect(Math.abs(hi.Z - (30e3 * 0.00542946619) / (Rw * 700))).toBeLessThan(0.06);
     });
 
-    it(`${name}: liquid at 300 K, 3 MPa against the vapour at 300 K, 3.5 kPa (the weak liquid)`, () => {
+    it(`${name}: liquid at 300 K, 3 MPa against the vapor at 300 K, 3.5 kPa (the weak liquid)`, () => {
       const eos = water(name);
       const liq = departure(eos, 300, 3e6, [1]);
       const vap = departure(eos, 300, 3500, [1], 'vapor');
@@ -221,7 +221,7 @@ describe('enthalpy and entropy on the formation basis', () => {
     expect(cp.value).toBeCloseTo((H(320.01) - H(319.99)) / 0.02, 4);
   });
 
-  it('a stream: two-phase H and S are the phase values weighted by the vapour fraction', () => {
+  it('a stream: two-phase H and S are the phase values weighted by the vapor fraction', () => {
     const eos = makeEos('SRK', LOOP);
     const st = state(streamState(eos, 313.15, 30e5, LOOP_FEED));
     expect(st.status).toBe('converged');
@@ -235,7 +235,7 @@ describe('enthalpy and entropy on the formation basis', () => {
     expect(st.S).toBeCloseTo(st.beta * sV.value + (1 - st.beta) * sL.value, 9);
     expect(st.vapor!.H).toBeCloseTo(hV.value, 6);
     expect(st.liquid!.H).toBeCloseTo(hL.value, 6);
-    // condensing lowers the enthalpy below that of the same mixture as a (metastable) vapour
+    // condensing lowers the enthalpy below that of the same mixture as a (metastable) vapor
     const hGas = phaseEnthalpy(eos, 313.15, 30e5, LOOP_FEED, 'vapor');
     if (hGas.status !== 'ok') throw new Error('data');
     expect(st.H).toBeLessThan(hGas.value);

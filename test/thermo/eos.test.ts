@@ -21,7 +21,7 @@ const cm3 = (v: number): number => v * 1e6;
 
 describe('saturated n-butane, 350 K, 9.4573 bar', () => {
   // Smith, Van Ness and Abbott, 7th ed., section 3.6, table after Example 3.9 comparing cubic
-  // equations for n-butane at 350 K and its vapour pressure 9.4573 bar (from memory):
+  // equations for n-butane at 350 K and its vapor pressure 9.4573 bar (from memory):
   //   SRK: V_vap 2520 cm3/mol, V_liq 127.8 cm3/mol;  PR: V_vap 2486 cm3/mol, V_liq 112.6 cm3/mol;
   //   experiment: 2482 and 115.0 cm3/mol. (The RK figures 2555 and 133.3 of Example 3.9 itself
   //   are checked in cubic.test.ts.)
@@ -38,8 +38,8 @@ describe('saturated n-butane, 350 K, 9.4573 bar', () => {
     expect(cm3(eos.molarVolume(T, P, [1], 'vapor'))).toBeCloseTo(2486, -0.3); // computed 2486.5
     expect(cm3(eos.molarVolume(T, P, [1], 'liquid'))).toBeCloseTo(112.6, 1); // computed 112.60
   });
-  it('the models reproduce the vapour pressure 9.4573 bar (SVA Example 3.9) within 1.5 %', () => {
-    // SRK and PR were fitted to vapour pressures through m(omega); 1-2 % is their usual accuracy
+  it('the models reproduce the vapor pressure 9.4573 bar (SVA Example 3.9) within 1.5 %', () => {
+    // SRK and PR were fitted to vapor pressures through m(omega); 1-2 % is their usual accuracy
     // for light hydrocarbons (Reid, Prausnitz and Poling, The Properties of Gases and Liquids,
     // 4th ed., chapter 3, common practice).
     for (const name of ['SRK', 'PR'] as const) {
@@ -162,8 +162,8 @@ describe('low-pressure limit', () => {
 });
 
 describe('root selection by Gibbs energy', () => {
-  it('n-butane at 350 K, 12 bar (above its vapour pressure): three roots, the liquid is stable', () => {
-    // Vapour pressure at 350 K is 9.4573 bar (SVA 7th ed., Example 3.9); at 12 bar the vapour
+  it('n-butane at 350 K, 12 bar (above its vapor pressure): three roots, the liquid is stable', () => {
+    // Vapor pressure at 350 K is 9.4573 bar (SVA 7th ed., Example 3.9); at 12 bar the vapor
     // root is metastable, so 'stable' must not return the largest root.
     for (const name of ['SRK', 'PR'] as const) {
       const eos = makeEos(name, [nButane]);
@@ -173,7 +173,7 @@ describe('root selection by Gibbs energy', () => {
       const zv = eos.z(350, 12e5, [1], 'vapor').Z;
       expect(r.Z).toBeLessThan(zv);
       expect(eos.residualGibbs(350, 12e5, [1], 'liquid')).toBeLessThan(eos.residualGibbs(350, 12e5, [1], 'vapor'));
-      // below the vapour pressure the vapour is stable
+      // below the vapor pressure the vapor is stable
       expect(eos.z(350, 8e5, [1], 'stable').root).toBe('vapor');
       expect(purePhase(eos, 0, 350, 12e5)).toBe('liquid');
       expect(purePhase(eos, 0, 350, 8e5)).toBe('vapor');
@@ -181,7 +181,7 @@ describe('root selection by Gibbs energy', () => {
   });
 
   it('n-butane at 300 K, 20 bar is liquid (single root, classified liquid)', () => {
-    // Vapour pressure of n-butane at 300 K is about 2.6 bar (SVA 7th ed., Table B.2 Antoine
+    // Vapor pressure of n-butane at 300 K is about 2.6 bar (SVA 7th ed., Table B.2 Antoine
     // constants, from memory); 20 bar is compressed liquid.
     for (const name of ['SRK', 'PR'] as const) {
       const eos = makeEos(name, [nButane]);
@@ -189,7 +189,7 @@ describe('root selection by Gibbs energy', () => {
       expect(r.root).toBe('liquid');
       expect(r.Z).toBeLessThan(0.1);
       expect(purePhase(eos, 0, 300, 20e5)).toBe('liquid');
-      // 'vapor' cannot invent a vapour root where there is none
+      // 'vapor' cannot invent a vapor root where there is none
       expect(eos.z(300, 20e5, [1], 'vapor').Z).toBe(r.Z);
     }
   });

@@ -229,7 +229,7 @@ describe('across phase boundaries', () => {
     // it is the model's own saturation temperature at 10 bar (pure.ts, an independent Newton in P)
     const sat = saturationPressure(eos, 0, Tsat[0]);
     expect(Math.abs(sat.P / P - 1)).toBeLessThan(1e-9);
-    // beta carries the balance: linear in H between the saturated liquid and vapour
+    // beta carries the balance: linear in H between the saturated liquid and vapor
     const hL = ok(flashPH(eos, P, liq.H, [1]));
     expect(hL.phase).toBe('liquid');
     const mid = ok(flashPH(eos, P, 0.5 * (liq.H + vap.H), [1]));
@@ -258,7 +258,7 @@ describe('across phase boundaries', () => {
     expect(mid.beta).toBeLessThan(1);
     expect(Math.abs(saturationPressure(eos, 0, mid.T).P / P - 1)).toBeLessThan(1e-9);
     // the model's normal boiling point of water: 375.6 K against 373.12 K (steam tables, from
-    // memory): SRK's generalised alpha function misses water's vapour pressure by a few percent
+    // memory): SRK's generalised alpha function misses water's vapor pressure by a few percent
     expect(Math.abs(mid.T - 373.12)).toBeLessThan(3);
   });
 });

@@ -1,5 +1,5 @@
 /**
- * The isothermal flash against published, measured vapour-liquid equilibrium.
+ * The isothermal flash against published, measured vapor-liquid equilibrium.
  *
  * Source of the check values:
  *   Reamer, H. H., Sage, B. H. and Lacey, W. N., "Phase Equilibria in Hydrocarbon Systems.
@@ -27,8 +27,8 @@
  *   liquid x_CH4: 0.015 mole fraction. A two-constant cubic EOS with one k_ij typically
  *     reproduces good binary VLE data to about 0.01 in mole fraction away from the critical
  *     region (common practice, no source). Computed worst case over the points below: 0.012.
- *   vapour y_CH4: 0.02 mole fraction. At the lowest pressures the gas is mostly H2S and y is set
- *     by the equation of state's own H2S vapour pressure (a generalised alpha function, not fitted
+ *   vapor y_CH4: 0.02 mole fraction. At the lowest pressures the gas is mostly H2S and y is set
+ *     by the equation of state's own H2S vapor pressure (a generalised alpha function, not fitted
  *     to H2S); worst case 0.0145 (SRK, 40 degF, 200 psia).
  *   beta: not measured; the lever rule turns composition errors dx, dy into
  *     |d beta| <= max(|dx|, |dy|)/(y - x), so the bound is 0.02/(y - x) point by point.
@@ -36,7 +36,7 @@
  * 1950 psia at 40 degF and 1910 psia at 100 degF) are left out: above 1300 psia a cubic EOS with a
  * constant k_ij is known to misplace the critical point, and the comparison would test that
  * instead of the flash. So is the 100 degF, 400 psia point, which lies within a few psi of the
- * vapour pressure of H2S (x = 0.0007), where the model's pure-H2S vapour pressure decides alone.
+ * vapor pressure of H2S (x = 0.0007), where the model's pure-H2S vapor pressure decides alone.
  *
  * Results must be reviewed by a qualified engineer; they are not for relief, safety or code
  * compliance design, and local codes and licensed practice govern.
@@ -134,7 +134,7 @@ describe('flash against Reamer, Sage and Lacey (1951), methane + hydrogen sulfid
         for (const d of deviations(eosName, K_CH4_H2S, degF, points)) {
           const where = `${eosName} ${degF} degF ${d.P} psia`;
           expect(Math.abs(d.dx), `${where}: liquid x_CH4`).toBeLessThanOrEqual(TOL_X);
-          expect(Math.abs(d.dy), `${where}: vapour y_CH4`).toBeLessThanOrEqual(TOL_Y);
+          expect(Math.abs(d.dy), `${where}: vapor y_CH4`).toBeLessThanOrEqual(TOL_Y);
           expect(Math.abs(d.dBeta), `${where}: beta`).toBeLessThanOrEqual(d.betaBound);
         }
       });

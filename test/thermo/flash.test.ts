@@ -68,7 +68,7 @@ describe('Rachford-Rice', () => {
     expect(solveRachfordRice([0.9, 0.1], [2, 0.5]).beta).toBeCloseTo(1.7, 12);
   });
 
-  it('reports all-liquid and all-vapour K sets', () => {
+  it('reports all-liquid and all-vapor K sets', () => {
     expect(solveRachfordRice([0.5, 0.5], [0.9, 0.2]).kind).toBe('all-liquid');
     expect(solveRachfordRice([0.5, 0.5], [1.1, 3]).kind).toBe('all-vapor');
     // a component with z = 0 does not count
@@ -111,7 +111,7 @@ describe('flash: methanol-loop condenser (H2, N2, CO2, H2O, CH3OH at 313.15 K, 3
       expect(r.phase).toBe('two-phase');
       expect(r.liquidLiquid).toBeUndefined();
       checkSplit(eos, T, P, LOOP_FEED, r);
-      // light gases go to the vapour, methanol and water to the liquid
+      // light gases go to the vapor, methanol and water to the liquid
       expect(r.K[0]).toBeGreaterThan(50);
       expect(r.K[4]).toBeLessThan(0.1);
       expect(r.K[3]).toBeLessThan(0.1);
@@ -159,7 +159,7 @@ describe('flash: methanol-loop condenser (H2, N2, CO2, H2O, CH3OH at 313.15 K, 3
 
 describe('flash: single-phase detection', () => {
   for (const name of ['SRK', 'PR'] as const) {
-    it(`${name}: H2/N2 at 300 K, 10 bar is all vapour`, () => {
+    it(`${name}: H2/N2 at 300 K, 10 bar is all vapor`, () => {
       const eos = makeEos(name, LOOP);
       const r = flashTP(eos, 300, 10e5, [0.75, 0.25, 0, 0, 0]);
       expect(r.status).toBe('converged');
@@ -168,13 +168,13 @@ describe('flash: single-phase detection', () => {
       expect(Array.from(r.y)).toEqual([0.75, 0.25, 0, 0, 0]);
     });
     it(`${name}: water at 300 K, 10 bar is all liquid`, () => {
-      // vapour pressure of water at 300 K is 0.0354 bar (steam tables, from memory)
+      // vapor pressure of water at 300 K is 0.0354 bar (steam tables, from memory)
       const eos = makeEos(name, LOOP);
       const r = flashTP(eos, 300, 10e5, [0, 0, 0, 1, 0]);
       expect(r.phase).toBe('liquid');
       expect(r.beta).toBe(0);
     });
-    it(`${name}: pure n-butane either side of its model vapour pressure at 350 K`, () => {
+    it(`${name}: pure n-butane either side of its model vapor pressure at 350 K`, () => {
       const eos = makeEos(name, [CH4, nC4]);
       const ps = saturationPressure(eos, 1, 350).P;
       expect(flashTP(eos, 350, ps * 1.05, [0, 1]).phase).toBe('liquid');

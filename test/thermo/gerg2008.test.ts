@@ -297,7 +297,7 @@ describe('GERG-2008 density iteration in hard states', () => {
 
   it('finds both roots of carbon dioxide just below its critical point', () => {
     // Span and Wagner (1996), Table 34: at 304 K the saturation pressure is 7.3555 MPa, with
-    // saturated vapour 406.42 kg/m3 and liquid 530.30 kg/m3. GERG-2008's short CO2 equation is not
+    // saturated vapor 406.42 kg/m3 and liquid 530.30 kg/m3. GERG-2008's short CO2 equation is not
     // expected to reproduce the critical region closely (1.4 % and 0.7 % here); the check is that
     // both searches converge to distinct roots of the right kind, within 3 %.
     const m = model(['CO2']);
@@ -331,7 +331,7 @@ describe('GERG-2008 density iteration in hard states', () => {
   });
 
   it('returns the liquid root, and says so, when a gas is asked for above every gas-like state', () => {
-    // Methane at 100 K, 10 MPa: far above its vapour pressure (about 0.03 MPa), the isotherm
+    // Methane at 100 K, 10 MPa: far above its vapor pressure (about 0.03 MPa), the isotherm
     // reaches 10 MPa only on the liquid branch. Setzmann and Wagner (1991), Table 40: 446.02 kg/m3.
     const m = model(['CH4']);
     const r = m.density(100, 10e6, [1]);
@@ -356,9 +356,9 @@ describe('GERG-2008 density iteration in hard states', () => {
     expect(gas.phase).toBe('gas-like');
   });
 
-  it('keeps the metastable gas root below the vapour pressure when a liquid exists too', () => {
+  it('keeps the metastable gas root below the vapor pressure when a liquid exists too', () => {
     // CO2 at 230 K, 1 MPa: liquid is stable (Span and Wagner (1996), Table 35: 1128.97 kg/m3) and the
-    // gas root is a supersaturated vapour. The two searches return the two roots; phase stability is
+    // gas root is a supersaturated vapor. The two searches return the two roots; phase stability is
     // a flash's question, not the density solver's.
     const m = model(['CO2']);
     const gas = m.density(230, 1e6, [1]);

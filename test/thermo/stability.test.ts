@@ -45,7 +45,7 @@ describe('tangent-plane stability test (Michelsen 1982)', () => {
       const r = stabilityTest(eos, 313.15, 30e5, z);
       expect(r.stable).toBe(false);
       expect(r.tpd).toBeLessThan(-0.1);
-      // hydrogen to the vapour, water to the liquid (the lowest-tpd trial here is water-rich)
+      // hydrogen to the vapor, water to the liquid (the lowest-tpd trial here is water-rich)
       expect(r.K![0]).toBeGreaterThan(1);
       expect(r.K![3]).toBeLessThan(1);
       // the reported tpd is the tangent-plane distance of the reported trial phase
@@ -77,7 +77,7 @@ describe('tangent-plane stability test (Michelsen 1982)', () => {
   });
 
   it('each equilibrium phase touches the tangent plane of the other (tpd = 0)', () => {
-    // At equilibrium the tangent plane of the liquid passes through the vapour: tpd(y; x) = 0.
+    // At equilibrium the tangent plane of the liquid passes through the vapor: tpd(y; x) = 0.
     const eos = makeEos('PR', LOOP);
     const f = flashTP(eos, 313.15, 30e5, [0.7, 0.05, 0.05, 0.05, 0.15]);
     expect(Math.abs(tpdOf(eos, 313.15, 30e5, f.x, f.y))).toBeLessThan(1e-9);

@@ -134,7 +134,7 @@ function streamTables(input: ReportInput, d: Display, per = 7): string {
     for (const id of ids) rows.push([`x ${id} [mole fraction]`, ...group.map((n) => d.fraction(obj(s(n).fractions)?.[id]))]);
     rows.push([`T [${d.temperatureUnit}]`, ...group.map((n) => d.T(s(n).T))]);
     rows.push([`P [${d.pressureUnit}]`, ...group.map((n) => d.P(s(n).P))]);
-    rows.push(['vapour fraction', ...group.map((n) => d.fraction(s(n).vaporFraction))]);
+    rows.push(['vapor fraction', ...group.map((n) => d.fraction(s(n).vaporFraction))]);
     rows.push(['mass flow [kg/h]', ...group.map((n) => d.mass(s(n).massFlow))]);
     if (group.some((n) => numberOr(s(n).enthalpy) !== undefined)) rows.push(['enthalpy flow [kW]', ...group.map((n) => d.power(s(n).enthalpy))]);
     out.push(tableHtml(['stream', ...group], rows));

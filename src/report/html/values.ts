@@ -96,7 +96,7 @@ export function figureInfo(input: ReportInput, unit: string, key: string): Figur
   if (key === 'duty') return { label: 'duty', kind: 'power' };
   if (key === 'power') return { label: 'power', kind: 'power' };
   if (/duty$|power$/i.test(key)) return { label: words(key), kind: 'power' };
-  if (key === 'vaporFraction') return { label: 'vapour fraction', kind: 'fraction' };
+  if (key === 'vaporFraction') return { label: 'vapor fraction', kind: 'fraction' };
   let m = /^fraction\.(.+)$/.exec(key);
   if (m) return { label: `to ${m[1]}`, kind: 'fraction' };
   m = /^extent\.(\d+)$/.exec(key);
@@ -130,7 +130,7 @@ export function streamFacts(input: ReportInput, d: Display, name: string, from: 
     [`total [${d.flowUnit}]`, d.flow(s.total)],
     [`T [${d.temperatureUnit}]`, d.T(s.T)],
     [`P [${d.pressureUnit}]`, d.P(s.P)],
-    ['vapour fraction', d.fraction(s.vaporFraction)],
+    ['vapor fraction', d.fraction(s.vaporFraction)],
     ['mass flow [kg/h]', d.mass(s.massFlow)],
   ];
   if (numberOr(s.enthalpy) !== undefined) rows.push(['enthalpy flow [kW]', d.power(s.enthalpy)]);
