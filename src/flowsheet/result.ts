@@ -35,6 +35,8 @@ export interface TargetReport {
   met: boolean;
   /** Which bound stopped it, when it is infeasible. */
   bound?: 'lower' | 'upper';
+  /** How a person reads them: the output in the unit of the target's value (else the file's display unit), the input in the unit of its bounds. */
+  shown?: { output: string; input: string };
 }
 
 export interface FlowsheetResult {
@@ -113,7 +115,8 @@ function streamResult(rt: Runtime, s: Stream): StreamResult {
     total += s.flows[i];
     mass += s.flows[i] * rt.model.components[i].MW;
   }
-  const fractions = new Float64Array(rt.n);
+  // An empty stream has no composition (not a composition of zeros).
+  const fractions = new Float64Array(rt.n).fill(total > 0 ? 0 : Number.NaN);
   if (total > 0) for (let i = 0; i < rt.n; i++) fractions[i] = s.flows[i] / total;
   return { flows: Float64Array.from(s.flows), total, fractions, T: s.T, P: s.P, vaporFraction: s.vf, massFlow: mass };
 }

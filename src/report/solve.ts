@@ -11,9 +11,9 @@ export interface SolveReportOptions {
   flowUnit?: string;
 }
 
-function record(ids: readonly string[], a: Float64Array): Record<string, number> {
-  const o: Record<string, number> = {};
-  ids.forEach((id, i) => (o[id] = a[i]));
+function record(ids: readonly string[], a: Float64Array): Record<string, number | null> {
+  const o: Record<string, number | null> = {};
+  ids.forEach((id, i) => (o[id] = orNull(a[i])));
   return o;
 }
 
@@ -74,7 +74,7 @@ export function resultObject(r: FlowsheetResult): Record<string, unknown> {
 }
 
 /** The last iterate by tear stream: component flows (mol/s), T (K), P (Pa). */
-function lastTears(r: FlowsheetResult): { stream: string; flows: Record<string, number>; T: number; P: number }[] {
+function lastTears(r: FlowsheetResult): { stream: string; flows: Record<string, number | null>; T: number; P: number }[] {
   const ids = r.model.ids;
   const m = ids.length + 2;
   if (r.x.length !== r.tears.length * m) return [];
@@ -105,7 +105,7 @@ export function solveCsv(r: FlowsheetResult, opts: SolveReportOptions = {}): str
       name,
       ...ids.map((_, i) => toUnit(s.flows[i], 'molarFlow', fu, ctx)),
       toUnit(s.total, 'molarFlow', fu, ctx),
-      ...ids.map((_, i) => s.fractions[i]),
+      ...ids.map((_, i) => (Number.isFinite(s.fractions[i]) ? s.fractions[i] : '')),
       Number.isFinite(s.T) ? toUnit(s.T, 'temperature', tu, ctx) : '',
       Number.isFinite(s.P) ? toUnit(s.P, 'pressure', pu, ctx) : '',
       Number.isFinite(s.vaporFraction) ? s.vaporFraction : '',
@@ -130,7 +130,7 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
   if (r.targets?.length) {
     out.push('');
     out.push('Targets');
-    for (const t of r.targets) out.push(`  ${t.text}: reached ${num(t.output, 8)} by ${t.inputPath} = ${num(t.input, 8)}${t.met ? '' : ` (not met${t.bound ? `: stopped by its ${t.bound} bound` : ''})`}`);
+    for (const t of r.targets) out.push(`  ${t.text}: reached ${t.shown?.output ?? num(t.output, 8)} by ${t.inputPath} = ${t.shown?.input ?? num(t.input, 8)}${t.met ? '' : ` (not met${t.bound ? `: stopped by its ${t.bound} bound` : ''})`}`);
   }
   if (r.status !== 'converged') {
     out.push('');
@@ -145,7 +145,7 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
     if (tears.length) {
       out.push(`  last iterate of the tear streams (${fu}; T in ${tu}, P in ${pu}; not a solution):`);
       for (const t of tears) {
-        const flows = ids.map((id) => `${id} ${F(t.flows[id])}`).join(', ');
+        const flows = ids.map((id) => `${id} ${F(t.flows[id] ?? Number.NaN)}`).join(', ');
         out.push(`    ${t.stream}: ${flows}; T ${num(toUnit(t.T, 'temperature', tu, ctx), 5)}, P ${num(toUnit(t.P, 'pressure', pu, ctx), 5)}`);
       }
     }
@@ -179,7 +179,7 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
     for (const rx of u.reactions ?? []) parts.push(`${rx.equation}: extent ${F(rx.extent)} ${fu}, conversion of ${rx.key} ${num(rx.conversion, 5)}`);
     for (const f of u.figures) {
       if (f.key.startsWith('extent.') || f.kind === 'count') continue;
-      parts.push(`${f.label} ${f.kind === 'molarFlow' ? `${F(f.value)} ${fu}` : num(f.value, 5)}`);
+      parts.push(`${f.label} ${f.kind === 'molarFlow' ? `${F(f.value)} ${fu}` : f.kind === 'temperature' ? `${num(toUnit(f.value, 'temperature', tu, ctx), 5)} ${tu}` : f.kind === 'pressure' ? `${num(toUnit(f.value, 'pressure', pu, ctx), 5)} ${pu}` : num(f.value, 5)}`);
     }
     out.push(`  ${name} (${u.type}): ${parts.join('; ') || '-'}${u.notes.length ? `  [${u.notes.join('; ')}]` : ''}`);
   }

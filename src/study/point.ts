@@ -20,7 +20,7 @@ import { solveFlowsheet, type FlowsheetResult } from '../flowsheet/solve.js';
 import { freshFeed, readTears, setTears, tearProblem } from '../flowsheet/tear-problem.js';
 import { solveRoot } from '../solve/index.js';
 import type { EvaluationFailure, MethodName, RootProblem, SolveResult, Status } from '../solve/types.js';
-import { parseQuantity, UnitError } from '../units/index.js';
+import { parseQuantity, toUnit, UnitError } from '../units/index.js';
 import { parseOutput, type OutputRef } from './outputs.js';
 import { assertVariable, checkUnit, checkValue, fromSI, parameter, toSI, withValues, type Parameter, type ParameterValue } from './parameters.js';
 
@@ -37,6 +37,8 @@ export interface TargetSpec {
   upper: number;
   /** The unit the bounds were written in ('' for a plain number): reports speak it. */
   unit: string;
+  /** The unit the target's value was written in (reports give the output in it; else the file's display unit). */
+  valueUnit?: string;
   /** Absolute tolerance on the output, SI; undefined: from the solve's tolerance. */
   tolerance?: number;
 }
@@ -108,7 +110,8 @@ export function parseTarget(model: Model, text: string, by: string, within: stri
     if (bad) throw err(`target \`${text}\`: the bound ${round(fromSI(model, p, b, unit))}${unit ? ` ${unit}` : ''} of \`${by}\` is outside what the file accepts: ${bad}`, 'keep --within inside the range the file accepts');
     withValues(model, [{ parameter: p, value: b }], { structure: false });
   }
-  return { text: `${output.path} = ${m[2]}`, output, value, by: p, lower, upper, unit, tolerance };
+  const written = m[2].trim().replace(/^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?\s*/, '');
+  return { text: `${output.path} = ${m[2]}`, output, value, by: p, lower, upper, unit, valueUnit: written || undefined, tolerance };
 }
 
 /** The target's tolerance on its output: given, else from the solve's tolerance. */
@@ -238,7 +241,11 @@ function solveTargets(model: Model, targets: readonly TargetSpec[], opts: PointO
     const near = 1e-6 * (t.upper - t.lower);
     const atLower = u[j] <= t.lower + near;
     const atUpper = u[j] >= t.upper - near;
-    return { text: t.text, output: y, target: t.value, tolerance: tolerances[j], input: u[j], inputPath: t.by.path, met, bound: !met && atLower ? 'lower' : !met && atUpper ? 'upper' : undefined };
+    return {
+      text: t.text, output: y, target: t.value, tolerance: tolerances[j], input: u[j], inputPath: t.by.path, met,
+      bound: !met && atLower ? 'lower' : !met && atUpper ? 'upper' : undefined,
+      shown: { output: outputText(model, t, y), input: inputText(model, t, u[j]) },
+    };
   });
   const start = new Float64Array(N + k);
   start.set(final.x);
@@ -254,11 +261,18 @@ function solveTargets(model: Model, targets: readonly TargetSpec[], opts: PointO
   if (k === 1) {
     // One target: it is infeasible exactly when its value lies outside what the bounds reach.
     const t = targets[0];
-    const ends = [t.lower, t.upper].map((b) => {
-      const mb = modelAt([b]);
-      if (!('units' in mb)) return undefined;
-      const fr = solveFlowsheet(mb, { runtime: rt, start: final.x, method: opts.method, maxPasses: opts.maxPasses, rtol });
-      return fr.status === 'converged' ? { b, y: t.output.read(fr), result: fr } : undefined;
+    // Each bound, or just inside it where the output is not defined at the bound itself (the
+    // composition of a stream that a splitter empties at a fraction of 0 or 1).
+    const ends = [t.lower, t.upper].map((bound, side) => {
+      for (const b of [bound, bound + (side === 0 ? 1 : -1) * 1e-6 * (t.upper - t.lower)]) {
+        const mb = modelAt([b]);
+        if (!('units' in mb)) return undefined;
+        const fr = solveFlowsheet(mb, { runtime: rt, start: final.x, method: opts.method, maxPasses: opts.maxPasses, rtol });
+        if (fr.status !== 'converged') continue;
+        const y = t.output.read(fr);
+        if (Number.isFinite(y)) return { b, y, result: fr };
+      }
+      return undefined;
     });
     if (ends[0] && ends[1]) {
       const [lo, hi] = [ends[0], ends[1]];
@@ -266,30 +280,59 @@ function solveTargets(model: Model, targets: readonly TargetSpec[], opts: PointO
       if (outside) {
         const near = Math.abs(lo.y - t.value) < Math.abs(hi.y - t.value) ? lo : hi;
         const bound = near === lo ? 'lower' : 'upper';
-        const rep: TargetReport = { text: t.text, output: near.y, target: t.value, tolerance: tolerances[0], input: near.b, inputPath: t.by.path, met: false, bound };
-        const message = infeasibleMessage(model, t, near.y, near.b, bound, lo.y, hi.y);
+        const rep: TargetReport = {
+          text: t.text, output: near.y, target: t.value, tolerance: tolerances[0], input: near.b, inputPath: t.by.path, met: false, bound,
+          shown: { output: outputText(model, t, near.y), input: inputText(model, t, near.b) },
+        };
+        const message = infeasibleMessage(model, t, near.y, bound === 'lower' ? t.lower : t.upper, bound, lo.y, hi.y);
         return { status: 'infeasible', result: { ...near.result, ...summary, status: 'infeasible', message, targets: [rep] }, message, targets: [rep] };
       }
     }
   }
   const blocked = missed.filter((r) => r.bound);
-  const parts = missed.map((r, j) => `target \`${r.text}\` not met: closest ${fmt(r.output)} with \`${r.inputPath}\` = ${fmt(fromSI(model, targets[j].by, r.input, targets[j].unit))}${targets[j].unit ? ` ${targets[j].unit}` : ''}${r.bound ? ` (stopped by its ${r.bound} bound)` : ''}`);
+  const parts = missed.map((r) => {
+    const t = targets[reports.indexOf(r)];
+    return `target \`${r.text}\` not met: closest ${r.shown!.output} with \`${r.inputPath}\` = ${r.shown!.input}${r.bound ? ` (stopped by its ${r.bound} bound${atPhysicalLimit(t, r.bound, r.input) ? `, as far as \`${r.inputPath}\` can go: change the target or adjust another input` : '; widen --within or change the target'})` : ''}`;
+  });
   const status: Status = blocked.length > 0 ? 'infeasible' : 'not-converged';
   const message = `${parts.join('; ') || 'targets not met'}${blocked.length ? '' : `; ${sol.message ?? ''}`}`;
   return { status, result: withReports(final, status, message), message, targets: reports };
+}
+
+/** A value of the target's output as a person reads it (the unit of the target's value, else the display unit). */
+function outputText(model: Model, t: TargetSpec, y: number): string {
+  const d = t.output.dimension;
+  if (d === 'dimensionless') return t.valueUnit === '%' ? `${fmt(y * 100)} %` : fmt(y);
+  const unit = t.valueUnit ?? displayUnit(model, d);
+  if (!unit) return `${fmt(y)} (SI)`;
+  return `${fmt(toUnit(y, d, unit, { atmosphere: model.thermo.atmosphere }))} ${unit}`;
+}
+
+/** The adjusted parameter as a person reads it (the unit of its bounds). */
+function inputText(model: Model, t: TargetSpec, u: number): string {
+  return `${fmt(fromSI(model, t.by, u, t.unit || undefined))}${t.unit ? ` ${t.unit}` : ''}`;
+}
+
+function displayUnit(model: Model, d: string): string | undefined {
+  return d === 'molarFlow' ? model.display.flowUnit : d === 'pressure' ? model.display.pressureUnit : d === 'temperature' ? model.display.temperatureUnit : undefined;
 }
 
 /** Why a single target is out of reach, in the user's units, with advice that applies. */
 function infeasibleMessage(model: Model, t: TargetSpec, y: number, b: number, bound: 'lower' | 'upper', yLo: number, yHi: number): string {
   const unit = t.unit ? ` ${t.unit}` : '';
   const inU = (v: number) => fmt(fromSI(model, t.by, v, t.unit));
-  const head = `target \`${t.text}\` cannot be met with \`${t.by.path}\` within ${inU(t.lower)} to ${inU(t.upper)}${unit}: the closest is ${fmt(y)} at its ${bound} bound ${inU(b)}${unit}`;
+  const head = `target \`${t.text}\` cannot be met with \`${t.by.path}\` within ${inU(t.lower)} to ${inU(t.upper)}${unit}: the closest is ${outputText(model, t, y)} at its ${bound} bound ${inU(b)}${unit}`;
   if (Math.abs(yHi - yLo) <= 1e-12 * Math.max(1, Math.abs(yLo))) return `${head}; the output does not change with \`${t.by.path}\` (it does not depend on it): adjust another input`;
-  const physical = bound === 'upper' ? t.by.bounds.max : (t.by.bounds.min ?? t.by.bounds.above);
-  if (physical !== undefined && Math.abs(b - physical) <= 1e-12 * Math.max(1, Math.abs(physical))) {
+  if (atPhysicalLimit(t, bound, b)) {
     return `${head}, which is as far as \`${t.by.path}\` can go; change the target or adjust another input`;
   }
   return `${head}; widen --within or change the target`;
+}
+
+/** Whether a bound reached is also the farthest the parameter can go by the file's rules (a fraction of 1). */
+function atPhysicalLimit(t: TargetSpec, bound: 'lower' | 'upper', b: number): boolean {
+  const physical = bound === 'upper' ? t.by.bounds.max : (t.by.bounds.min ?? t.by.bounds.above);
+  return physical !== undefined && Math.abs(b - physical) <= 1e-9 * Math.max(1, Math.abs(physical));
 }
 
 function placeholder(): SolveResult {
