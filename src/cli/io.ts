@@ -38,6 +38,14 @@ export function writeErr(text: string): Promise<void> {
   });
 }
 
+/**
+ * Whether --out names standard output itself (`-`, /dev/stdout, /dev/fd/1): written through the
+ * process's own stream, which works whatever it is connected to (a pipe, a socket, a terminal).
+ */
+export function isStandardOutput(path: string): boolean {
+  return path === '-' || path === '/dev/stdout' || path === '/dev/fd/1' || path === '/proc/self/fd/1';
+}
+
 /** Whether a path names something other than a regular file (a terminal, a pipe, /dev/stdout). */
 export function isDevice(path: string): boolean {
   try {

@@ -2,7 +2,7 @@
 import { Command, CommanderError } from 'commander';
 import { InputError, diagnosticsJson, formatDiagnostics } from '../diagnostics.js';
 import { EXIT, exitCodeOf } from './exit.js';
-import { writeErr, writeOut, writeOutput } from './io.js';
+import { isStandardOutput, writeErr, writeOut, writeOutput } from './io.js';
 import { runMeter } from './meter.js';
 import { runSolve } from './solve.js';
 import { registerSweep } from './sweep.js';
@@ -47,7 +47,7 @@ async function reportError(e: unknown, debug: boolean, json: boolean): Promise<n
 }
 
 async function emit(text: string, out?: string, overwrite?: boolean): Promise<void> {
-  if (out) writeOutput(out, text.endsWith('\n') ? text : `${text}\n`, { overwrite });
+  if (out && !isStandardOutput(out)) writeOutput(out, text.endsWith('\n') ? text : `${text}\n`, { overwrite });
   else await writeOut(text);
 }
 

@@ -3,7 +3,7 @@ import type { Command } from 'commander';
 import { InputError, type Diagnostic } from '../diagnostics.js';
 import { mergeShards, type ShardFile } from '../study/merge.js';
 import { EXIT } from './exit.js';
-import { writeOutput } from './io.js';
+import { isStandardOutput, writeOutput } from './io.js';
 import { readFileSync } from 'node:fs';
 
 export function registerMerge(program: Command, setCode: (code: number) => void): void {
@@ -26,7 +26,7 @@ export function registerMerge(program: Command, setCode: (code: number) => void)
       }
       if (problems.length) throw new InputError(problems);
       const text = mergeShards(files);
-      if (o.out) writeOutput(o.out, text, { overwrite: o.overwrite });
+      if (o.out && !isStandardOutput(o.out)) writeOutput(o.out, text, { overwrite: o.overwrite });
       else await new Promise<void>((resolve) => process.stdout.write(text, () => resolve()));
       setCode(EXIT.ok);
     });

@@ -7,7 +7,7 @@ import { parseTarget, solvePoint } from '../study/point.js';
 import { solveCsv, solveJson, solveText } from '../report/solve.js';
 import type { MethodName } from '../solve/types.js';
 import { METHODS } from '../flowsheet/read-sections.js';
-import { parseQuantity, UnitError } from '../units/index.js';
+import { checkFlowDisplayUnit, UnitError } from '../units/index.js';
 
 export interface SolveCliOptions {
   target?: string[];
@@ -40,7 +40,7 @@ export function runSolve(file: string, o: SolveCliOptions): { text: string; resu
   }
   if (o.flowUnit !== undefined) {
     try {
-      parseQuantity(`1 ${o.flowUnit}`, 'molarFlow');
+      checkFlowDisplayUnit(o.flowUnit);
     } catch (e) {
       if (e instanceof UnitError) errs.push(`--flow-unit: ${e.message}; ${e.help}`);
       else throw e;

@@ -15,7 +15,7 @@ import { parseShard, shardBlocks, type Shard } from '../study/shard.js';
 import { SweepSink } from '../study/sink.js';
 import { DEFAULT_BLOCK, prepareSweep, type SweepSpec } from '../study/sweep.js';
 import { EXIT } from './exit.js';
-import { writeErr } from './io.js';
+import { isStandardOutput, writeErr } from './io.js';
 
 export interface SweepCliOptions {
   report?: string[];
@@ -169,7 +169,7 @@ export async function runSweep(file: string, axes: AxisSpec[], given: SweepCliOp
     at += ctx.blocks[b].length;
   }
 
-  const { sink, existing } = SweepSink.open({ path: o.out, resume: !!o.resume, overwrite: !!o.overwrite }, header, headerText(header), order);
+  const { sink, existing } = SweepSink.open({ path: o.out && !isStandardOutput(o.out) ? o.out : undefined, resume: !!o.resume, overwrite: !!o.overwrite }, header, headerText(header), order);
   const tally = new Map<string, number>();
   for (const r of existing) tally.set(r.status, (tally.get(r.status) ?? 0) + 1);
   // Blocks already written are skipped; a block cut short is solved again from its cold start,

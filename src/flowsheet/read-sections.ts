@@ -5,7 +5,7 @@
  */
 import { didYouMean } from '../diagnostics.js';
 import type { EosName } from '../thermo/types.js';
-import { BUILTIN_STANDARDS, defineStandard, parseQuantity, type Dimension, type StandardRef } from '../units/index.js';
+import { BUILTIN_STANDARDS, checkFlowDisplayUnit, defineStandard, parseQuantity, type Dimension, type StandardRef } from '../units/index.js';
 import type { DisplaySpec, SolverSpec } from './model.js';
 import type { Entry, Reader } from './source.js';
 import { quantityAt, reportUnitError, requiredQuantity } from './yaml-fields.js';
@@ -117,7 +117,8 @@ export function readDisplay(r: Reader, e: Entry | undefined, atmosphere: number)
     const u = r.string(d.value, `\`display.${key}\``);
     if (u === undefined) return;
     try {
-      parseQuantity(`1 ${u}`, dim, { atmosphere });
+      if (key === 'flow-unit') checkFlowDisplayUnit(u, { atmosphere });
+      else parseQuantity(`1 ${u}`, dim, { atmosphere });
       display[prop] = u;
     } catch (err) {
       reportUnitError(r, d.value, `\`display.${key}\``, err);

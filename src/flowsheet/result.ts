@@ -3,7 +3,7 @@
  * it (streams, units, loop figures, balance). Assembled once, when the solve is over; nothing
  * edits a result afterwards.
  */
-import type { FeedResult } from '../blocks/feed.js';
+import { phaseAt, type FeedResult } from '../blocks/feed.js';
 import type { Stream, UnitSummary } from '../blocks/types.js';
 import type { EvaluationFailure, HistoryEntry, SolveResult, Status } from '../solve/types.js';
 import type { Balance } from './balance.js';
@@ -20,6 +20,10 @@ export interface StreamResult {
   vaporFraction: number;
   /** kg/s */
   massFlow: number;
+  /** kg/mol of the mixture (NaN for an empty stream). */
+  molarMass: number;
+  /** kg/m3 at the stream's T and P from the file's equation of state, for a single phase; NaN where two-phase or not computed. */
+  density: number;
 }
 
 export interface TargetReport {
@@ -80,9 +84,10 @@ export function assembleResult(
   balance: Balance,
   warnings: string[],
   targets?: TargetReport[],
+  opts: { densities?: boolean } = {},
 ): FlowsheetResult {
   const streams = new Map<string, StreamResult>();
-  for (const name of rt.streamOrder) streams.set(name, streamResult(rt, rt.streams.get(name)!));
+  for (const name of rt.streamOrder) streams.set(name, streamResult(rt, rt.streams.get(name)!, opts.densities ?? true));
   const units = new Map<string, UnitSummary & { type: string }>();
   const done = new Set<string>();
   for (const { block, ins, outs } of rt.sequence) {
@@ -108,7 +113,7 @@ export function assembleResult(
   };
 }
 
-function streamResult(rt: Runtime, s: Stream): StreamResult {
+function streamResult(rt: Runtime, s: Stream, withDensity: boolean): StreamResult {
   let total = 0;
   let mass = 0;
   for (let i = 0; i < rt.n; i++) {
@@ -118,5 +123,18 @@ function streamResult(rt: Runtime, s: Stream): StreamResult {
   // An empty stream has no composition (not a composition of zeros).
   const fractions = new Float64Array(rt.n).fill(total > 0 ? 0 : Number.NaN);
   if (total > 0) for (let i = 0; i < rt.n; i++) fractions[i] = s.flows[i] / total;
-  return { flows: Float64Array.from(s.flows), total, fractions, T: s.T, P: s.P, vaporFraction: s.vf, massFlow: mass };
+  const molarMass = total > 0 ? mass / total : Number.NaN;
+  return { flows: Float64Array.from(s.flows), total, fractions, T: s.T, P: s.P, vaporFraction: s.vf, massFlow: mass, molarMass, density: withDensity ? densityOf(rt, s, fractions, molarMass) : Number.NaN };
+}
+
+/** Density of a single-phase stream (kg/m3); NaN when it is two-phase or its state is not known. */
+function densityOf(rt: Runtime, s: Stream, x: Float64Array, molarMass: number): number {
+  if (!(s.T > 0) || !(s.P > 0) || !(molarMass > 0)) return Number.NaN;
+  let phase: 'vapor' | 'liquid' | 'two-phase';
+  if (s.vf === 1) phase = 'vapor';
+  else if (s.vf === 0) phase = 'liquid';
+  else if (Number.isNaN(s.vf)) phase = phaseAt(rt.eos, s.T, s.P, x);
+  else phase = 'two-phase';
+  if (phase === 'two-phase') return Number.NaN;
+  return molarMass / rt.eos.molarVolume(s.T, s.P, x, phase);
 }

@@ -4,7 +4,7 @@
  * is shown as a diagnosis, never as a stream table.
  */
 import type { FlowsheetResult } from '../flowsheet/solve.js';
-import { toUnit } from '../units/index.js';
+import { standardOfFlowUnit, toUnit } from '../units/index.js';
 import { CAUTION, csvLine, num, pct, table, toJson } from './format.js';
 
 export interface SolveReportOptions {
@@ -50,7 +50,7 @@ export function resultObject(r: FlowsheetResult): Record<string, unknown> {
   if (ok) {
     base.streams = Object.fromEntries(r.streamOrder.map((name) => {
       const s = r.streams.get(name)!;
-      return [name, { flows: record(ids, s.flows), total: s.total, fractions: record(ids, s.fractions), T: orNull(s.T), P: orNull(s.P), vaporFraction: orNull(s.vaporFraction), massFlow: s.massFlow }];
+      return [name, { flows: record(ids, s.flows), total: s.total, fractions: record(ids, s.fractions), T: orNull(s.T), P: orNull(s.P), vaporFraction: orNull(s.vaporFraction), massFlow: s.massFlow, molarMass: orNull(s.molarMass), density: orNull(s.density) }];
     }));
     base.products = r.products;
     base.units = Object.fromEntries([...r.units].map(([name, u]) => [name, {
@@ -86,6 +86,12 @@ function lastTears(r: FlowsheetResult): { stream: string; flows: Record<string, 
   }));
 }
 
+/** For a flow unit that is a standard volume (Nm3/h), what it means: said beside the numbers. */
+export function flowNote(unit: string, ctx: { atmosphere: number }): string {
+  const ref = standardOfFlowUnit(unit, ctx);
+  return ref ? ` (ideal-gas volume at ${ref.label})` : '';
+}
+
 export function solveJson(r: FlowsheetResult): string {
   return toJson(resultObject(r));
 }
@@ -96,7 +102,7 @@ export function solveCsv(r: FlowsheetResult, opts: SolveReportOptions = {}): str
   const ctx = { atmosphere: r.model.thermo.atmosphere };
   const pu = r.model.display.pressureUnit;
   const tu = r.model.display.temperatureUnit;
-  const lines = [csvLine(['stream', ...ids.map((id) => `${id} [${fu}]`), `total [${fu}]`, ...ids.map((id) => `x ${id}`), `T [${tu}]`, `P [${pu}]`, 'vapor fraction'])];
+  const lines = [csvLine(['stream', ...ids.map((id) => `${id} [${fu}]`), `total [${fu}]`, ...ids.map((id) => `x ${id}`), `T [${tu}]`, `P [${pu}]`, 'vapor fraction', 'molar mass [g/mol]', 'density [kg/m3]'])];
   // A state that is not a solution gives no rows; the first line says so, as a comment.
   if (r.status !== 'converged') return `# status: ${r.status}: ${(r.message ?? 'no solution').replace(/\s+/g, ' ')}\n${lines[0]}\n`;
   for (const name of r.streamOrder) {
@@ -109,6 +115,8 @@ export function solveCsv(r: FlowsheetResult, opts: SolveReportOptions = {}): str
       Number.isFinite(s.T) ? toUnit(s.T, 'temperature', tu, ctx) : '',
       Number.isFinite(s.P) ? toUnit(s.P, 'pressure', pu, ctx) : '',
       Number.isFinite(s.vaporFraction) ? s.vaporFraction : '',
+      Number.isFinite(s.molarMass) ? s.molarMass * 1000 : '',
+      Number.isFinite(s.density) ? s.density : '',
     ]));
   }
   return lines.join('\n') + '\n';
@@ -161,7 +169,7 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
   }
 
   out.push('');
-  out.push(`Streams (flows in ${fu}, T in ${tu}, P in ${pu})`);
+  out.push(`Streams (flows in ${fu}${flowNote(fu, ctx)}, T in ${tu}, P in ${pu})`);
   const names = r.streamOrder;
   const rows: string[][] = [];
   ids.forEach((id, i) => rows.push([id, ...names.map((s) => F(r.streams.get(s)!.flows[i]))]));
@@ -170,6 +178,8 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
   rows.push(['T', ...names.map((s) => num(toUnit(r.streams.get(s)!.T, 'temperature', tu, ctx), 5))]);
   rows.push(['P', ...names.map((s) => num(toUnit(r.streams.get(s)!.P, 'pressure', pu, ctx), 5))]);
   rows.push(['vapor fraction', ...names.map((s) => num(r.streams.get(s)!.vaporFraction, 4))]);
+  rows.push(['molar mass g/mol', ...names.map((s) => num(r.streams.get(s)!.molarMass * 1000, 5))]);
+  rows.push(['density kg/m3', ...names.map((s) => num(r.streams.get(s)!.density, 5))]);
   out.push(table(['', ...names], rows));
 
   out.push('');

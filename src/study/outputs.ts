@@ -1,6 +1,6 @@
 /**
  * Outputs addressed by path, read from a solved flowsheet:
- *   streams.NAME.flows.ID | streams.NAME.fractions.ID | streams.NAME.{total,T,P,vapor-fraction,mass-flow}
+ *   streams.NAME.flows.ID | streams.NAME.fractions.ID | streams.NAME.{total,T,P,vapor-fraction,mass-flow,molar-mass,density}
  *   loop.recycle-ratio | loop.fresh-feed | loop.conversion.ID (overall; ID a key component)
  *   feeds.NAME.PATH and UNIT.PATH: what the block declares (BlockDef.outputs), e.g.
  *   UNIT.conversion.ID, UNIT.extent.K, UNIT.vapor-fraction, feeds.NAME.{molar-flow,Z,ideal-error}
@@ -15,7 +15,7 @@ import { blockOf, FEED } from '../blocks/registry.js';
 import type { OutputDecl } from '../blocks/types.js';
 import type { FlowsheetResult } from '../flowsheet/solve.js';
 import type { Model } from '../flowsheet/model.js';
-import { parseQuantity, toUnit, UnitError, type Dimension } from '../units/index.js';
+import { checkFlowDisplayUnit, parseQuantity, toUnit, UnitError, type Dimension } from '../units/index.js';
 
 export interface OutputRef {
   text: string;
@@ -25,12 +25,14 @@ export interface OutputRef {
   read(r: FlowsheetResult): number;
 }
 
-const STREAM_FIELDS: Record<string, [Dimension | 'dimensionless', (s: { total: number; T: number; P: number; vaporFraction: number; massFlow: number }) => number]> = {
+const STREAM_FIELDS: Record<string, [Dimension | 'dimensionless', (s: { total: number; T: number; P: number; vaporFraction: number; massFlow: number; molarMass: number; density: number }) => number]> = {
   total: ['molarFlow', (s) => s.total],
   T: ['temperature', (s) => s.T],
   P: ['pressure', (s) => s.P],
   'vapor-fraction': ['dimensionless', (s) => s.vaporFraction],
   'mass-flow': ['massFlow', (s) => s.massFlow],
+  'molar-mass': ['molarMass', (s) => s.molarMass],
+  density: ['density', (s) => s.density],
 };
 
 /** The paths a unit or feed offers, as full paths. */
@@ -80,7 +82,7 @@ export function parseOutput(text: string, model: Model): OutputRef {
       dimension = d;
       read = (r) => f(r.streams.get(name)!);
     } else {
-      throw err(`output \`${path}\`: a stream offers flows.ID, fractions.ID, total, T, P, vapor-fraction and mass-flow`, `for example \`streams.${name}.flows.${model.ids[0]}\``);
+      throw err(`output \`${path}\`: a stream offers flows.ID, fractions.ID, total, T, P, vapor-fraction, mass-flow, molar-mass and density`, `for example \`streams.${name}.flows.${model.ids[0]}\``);
     }
   } else if (p[0] === 'loop') {
     const keys = loopKeys(model);
@@ -134,7 +136,8 @@ export function parseOutput(text: string, model: Model): OutputRef {
     try {
       if (dimension === 'dimensionless') {
         if (unit !== '1' && unit !== '%') throw new UnitError(`\`${unit}\` is not a unit for a fraction`, 'use [%] or leave the unit out', 'wrong-dimension');
-      } else parseQuantity(`1 ${unit}`, dimension, { atmosphere: model.thermo.atmosphere });
+      } else if (dimension === 'molarFlow') checkFlowDisplayUnit(unit, { atmosphere: model.thermo.atmosphere });
+      else parseQuantity(`1 ${unit}`, dimension, { atmosphere: model.thermo.atmosphere });
     } catch (e) {
       if (e instanceof UnitError) throw err(`output \`${text}\`: ${e.message}`, e.help);
       throw e;

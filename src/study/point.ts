@@ -221,7 +221,7 @@ function solveTargets(model: Model, targets: readonly TargetSpec[], opts: PointO
       rt.pass();
       readTears(rt, gx);
       for (let i = 0; i < N; i++) out[i] = gx[i] - x[i];
-      const view = assembleResult(rt, placeholder(), x, computeBalance(rt), []);
+      const view = assembleResult(rt, placeholder(), x, computeBalance(rt), [], undefined, { densities: false });
       for (let j = 0; j < k; j++) {
         const y = targets[j].output.read(view);
         out[N + j] = Number.isFinite(y) ? y - targets[j].value : Number.NaN;

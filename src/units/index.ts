@@ -5,6 +5,8 @@ export {
   toUnit,
   fromUnit,
   clearUnitCache,
+  standardOfFlowUnit,
+  checkFlowDisplayUnit,
   UnitError,
   STANDARD_ATMOSPHERE,
 } from './quantity.js';

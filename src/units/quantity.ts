@@ -17,7 +17,7 @@
  */
 import { create, unitDependencies } from 'mathjs';
 import type { MathJsInstance, Unit } from 'mathjs';
-import { PSI, STANDARD_SPELLINGS, findStandard, matchStandardSpelling } from './standard.js';
+import { PSI, R_GAS, STANDARD_SPELLINGS, findStandard, matchStandardSpelling } from './standard.js';
 import type { StandardRef } from './standard.js';
 import { lookupUnit } from './table.js';
 
@@ -550,8 +550,30 @@ function linear(
     resolveStandard(info, u, ctx);
     return { factor: info.factor, inverse: info.inverse, offset: 0 };
   }
+  if (info.kind === 'standard' && d === 'molarFlow') {
+    // A molar flow shown as a standard volume flow: the ideal-gas volume at the reference,
+    // n R T_ref / P_ref (what `Nm3/h` means for a stream that need not be a gas at the reference).
+    const ref = resolveStandard(info, u, ctx);
+    const perMol = (R_GAS * ref.T) / ref.P;
+    const factor = info.factor / perMol;
+    return { factor, inverse: 1 / factor, offset: 0 };
+  }
   parseQuantity(`1 ${u}`, d, ctx); // throws the UnitError that says what is wrong
   throw new UnitError(`\`${unit}\` cannot display ${DIMENSION_NAMES[d]}`, `accepted units: ${listFor([d])}`, 'wrong-dimension');
+}
+
+/**
+ * The reference a display unit of molar flow stands for, when it is a standard volume flow
+ * (`Nm3/h`): reports name it beside the numbers. undefined for a molar unit.
+ */
+export function standardOfFlowUnit(unit: string, ctx?: Partial<UnitContext>): StandardRef | undefined {
+  const info = unitInfo(unit.trim());
+  return info.kind === 'standard' ? resolveStandard(info, unit.trim(), ctx) : undefined;
+}
+
+/** Checks a display unit of molar flows: a molar unit, or a standard volume flow (ideal-gas basis). Throws UnitError. */
+export function checkFlowDisplayUnit(unit: string, ctx?: Partial<UnitContext>): void {
+  linear('molarFlow', unit, ctx);
 }
 
 /**
