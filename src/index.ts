@@ -20,6 +20,7 @@ export type { FeedResult } from './blocks/feed.js';
 export type { BlockDef, BlockRuntime, UnitSummary, OutputDecl, StructureRules } from './blocks/types.js';
 export { makeEos } from './thermo/eos.js';
 export { makeMeterEos, meterEosFor, MeterEos } from './thermo/meter-eos.js';
+export { makeGerg2008, gergUnsupported, GERG2008_IDS } from './thermo/gerg2008/index.js';
 export type { MeterEosName, MeterPhase, MeterState, ModelUncertainty } from './thermo/meter-eos.js';
 export { meterBudget, standardUncertainty } from './thermo/meter-budget.js';
 export type { BudgetReading, InstrumentUncertainty, BudgetLine, BudgetInput, MeterBudget } from './thermo/meter-budget.js';

@@ -135,7 +135,7 @@ export function computeFeed(spec: FeedSpec, eos: Eos, meter: MeterEos = makeMete
       if (phase === 'liquid' || phase === 'two-phase') {
         warnings.push(`feed \`${spec.name}\` is ${phase === 'liquid' ? 'liquid' : 'two-phase (gas and liquid)'} at the meter conditions (${fmt(T)} K, ${fmt(P)} Pa): a gas-meter reading is not valid there`);
       } else if (phase === 'dense') {
-        warnings.push(`feed \`${spec.name}\` is a dense fluid at the meter conditions (${fmt(T)} K, ${fmt(P)} Pa): above its pseudo-critical temperature (${fmt(Tpc)} K) at ${fmt(rho)} kg/m3, denser than its pseudo-critical density (${fmt(MW / vpc)} kg/m3); a gas meter is not reading a gas here: check that the meter is rated and calibrated for this fluid`);
+        warnings.push(`feed \`${spec.name}\` is a dense fluid at the meter conditions (${fmt(T)} K, ${fmt(P)} Pa): above its pseudo-critical temperature (${fmt(Tpc)} K) at ${fmt(rho)} kg/m3, denser than its pseudo-critical density (${fmt(MW / vpc)} kg/m3) and compressed like a liquid (1 % of pressure changes the density by ${fmt(Math.abs(dlnvdlnP))} %); a gas meter is not reading a gas here: check that the meter is rated and calibrated for this fluid`);
       }
       if (nearCritical) {
         warnings.push(`feed \`${spec.name}\`: the conversion is sensitive at the meter conditions (near the critical point): 1 % of pressure changes the density by ${fmt(Math.abs(dlnvdlnP))} %, 1 K by ${fmt((100 * Math.abs(dlnvdlnT)) / T)} % (flagged above 3 % and 1 %); the line pressure and temperature must be known closely`);
@@ -182,8 +182,11 @@ export function computeFeed(spec: FeedSpec, eos: Eos, meter: MeterEos = makeMete
     name: spec.name, Z, molarVolume: v, molarFlow,
     idealMolarFlow,
     idealError: idealMolarFlow !== undefined ? (idealMolarFlow - molarFlow) / molarFlow : undefined,
-    phase, model, ...(converts && fallback ? { fallback } : {}),
-    ...(b.kind === 'meter' ? { sensitivity: { pressure: dlnvdlnP, temperature: dlnvdlnT, nearCritical }, ...(b.uncertainty ? { uncertainty: b.uncertainty } : {}) } : {}),
+    phase, model,
+    // Every field set on every result (undefined where it does not apply): one object shape.
+    fallback: converts && fallback ? fallback : undefined,
+    sensitivity: b.kind === 'meter' ? { pressure: dlnvdlnP, temperature: dlnvdlnT, nearCritical } : undefined,
+    uncertainty: b.kind === 'meter' ? b.uncertainty : undefined,
     flows, composition: z, T: spec.T, P: spec.P, molarMass: MW, density: rho, basis: b.kind, reference, densityCorrection, warnings,
   };
 }

@@ -101,7 +101,7 @@ export function meterText(r: MeterReport): string {
   }
   out.push('');
   out.push('ideal-gas error = (ideal - real) / real: what the ideal-gas law would have made of the same reading.');
-  if (r.feeds.some((f) => f.phase === 'dense')) out.push('dense: above the pseudo-critical temperature and denser than the pseudo-critical density (Kay\'s rule): a supercritical fluid of liquid-like density, not a gas.');
+  if (r.feeds.some((f) => f.phase === 'dense')) out.push('dense: above the pseudo-critical temperature, denser than the pseudo-critical density (Kay\'s rule) and less than half as compressible as an ideal gas: a supercritical fluid that behaves like a liquid, not a gas.');
   if (refs.length) out.push('For a standard-flow feed it compares the ideal and the real molar volume at the standard reference (zero on the ideal basis).');
   for (const w of r.warnings) out.push(`warning: ${w}`);
   out.push(`note: ${CAUTION}`);

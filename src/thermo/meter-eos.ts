@@ -18,16 +18,20 @@
  * Phase class (this project's rules, the same whichever model gives the density):
  *   - 'two-phase': the mixture splits at T and P by the tangent-plane stability test of the file's
  *     cubic equation (Michelsen, Fluid Phase Equilib. 9 (1982) 1; src/thermo/stability.ts);
- *   - 'dense': above the pseudo-critical temperature and denser than the pseudo-critical density,
- *     both by Kay's rule (W. B. Kay, Ind. Eng. Chem. 28 (1936) 1014, from memory): Tpc = sum x_i Tc_i,
- *     v_pc = sum x_i Zc_i R Tc_i / Pc_i with Zc_i = 0.291 - 0.080 omega_i (Pitzer's correlation of the
- *     critical compressibility; Reid, Prausnitz and Poling, The Properties of Gases and Liquids, 4th
- *     ed., chapter 2, from memory). A supercritical fluid of liquid-like density, such as carbon
- *     dioxide at 150 barg and 40 degC (about 780 kg/m3 against a critical density of 468 kg/m3):
- *     not a gas to a gas meter. The rule is one of density against the (pseudo-)critical density,
- *     so that the class does not depend on which equation gives the density (the cubics' own
- *     critical volume, Zc = 1/3 for SRK, would put methane at 150 barg and 0 degC, a pipeline gas,
- *     on the dense side);
+ *   - 'dense' (liquid-like): above the pseudo-critical temperature, denser than the pseudo-critical
+ *     density, and less than half as compressible as an ideal gas (|d ln v / d ln P| < 0.5; an ideal
+ *     gas has 1, a liquid a few hundredths). Pseudo-critical values by Kay's rule (W. B. Kay, Ind.
+ *     Eng. Chem. 28 (1936) 1014, from memory): Tpc = sum x_i Tc_i, v_pc = sum x_i Zc_i R Tc_i / Pc_i
+ *     with Zc_i = 0.291 - 0.080 omega_i (Pitzer's correlation of the critical compressibility; Reid,
+ *     Prausnitz and Poling, The Properties of Gases and Liquids, 4th ed., chapter 2, from memory).
+ *     Carbon dioxide at 150 barg and 40 degC (about 780 kg/m3 against a critical density of
+ *     468 kg/m3, |d ln v / d ln P| = 0.30) is dense: not a gas to a gas meter. The density test
+ *     alone would also take a natural gas at 150 barg and 0 degC (1.02 of its pseudo-critical
+ *     density by GERG-2008, 0.97 by SRK, but as compressible as an ideal gas) and hydrogen at
+ *     1000 bar and 300 K (nine times its critical temperature) for liquid-like; the compressibility
+ *     test keeps them gases. Both tests use values that do not depend much on the equation (the
+ *     cubics' own critical volume, Zc = 1/3 for SRK, would move the line). The half is this
+ *     project's choice;
  *   - 'liquid': at or below Tpc on the liquid root (the file's cubic picks the stable root by its
  *     Gibbs energy; GERG-2008 is then asked for its liquid-like root, and a GERG-2008 result on its
  *     liquid-like branch counts as liquid too);
@@ -60,6 +64,8 @@ export type MeterEosName = EosName | 'GERG-2008';
 /** Phase class of a state at a meter (see the file header). */
 export type MeterPhase = 'vapor' | 'liquid' | 'two-phase' | 'dense';
 
+/** |d ln v / d ln P| below which a supercritical state denser than its pseudo-critical density is liquid-like ('dense'). */
+export const DENSE_COMPRESSIBILITY = 0.5;
 /** |d ln v / d ln P| above which a state is near-critical (1 % of pressure moves the density by more than 3 %). */
 export const SENSITIVE_PRESSURE = 3;
 /** |d ln v / d T| (1/K) above which a state is near-critical (1 K moves the density by more than 1 %). */
@@ -281,7 +287,7 @@ export class MeterEos {
       }
     }
     if (split) out.phase = 'two-phase';
-    else if (T > out.Tpc) out.phase = out.v < out.vpc ? 'dense' : 'vapor';
+    else if (T > out.Tpc) out.phase = out.v < out.vpc && Math.abs(out.dlnvdlnP) < DENSE_COMPRESSIBILITY ? 'dense' : 'vapor';
     else out.phase = label === 'liquid' || gergLiquid ? 'liquid' : 'vapor';
     out.nearCritical = Math.abs(out.dlnvdlnP) > SENSITIVE_PRESSURE || Math.abs(out.dlnvdlnT) / T > SENSITIVE_TEMPERATURE;
     return out;

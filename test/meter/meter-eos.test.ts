@@ -178,6 +178,19 @@ describe('dense and near-critical states', () => {
     }
   });
 
+  it('keeps a natural gas at 150 barg and 0 degC (about its pseudo-critical density, as compressible as an ideal gas) and hydrogen at 1000 bar a gas', () => {
+    const ng = { CH4: 0.9, C2H6: 0.06, C3H8: 0.02, N2: 0.01, CO2: 0.01 }; // an invented pipeline gas
+    for (const name of ['GERG-2008', 'SRK'] as const) {
+      expect(reading(name, ng, 273.15, barg(150)).phase, name).toBe('vapor');
+      expect(reading(name, { H2: 1 }, 300, 1000e5).phase, name).toBe('vapor');
+    }
+    // Ethane just above its critical temperature at 100 bar is liquid-like (about 330 kg/m3 against a
+    // critical density of 207 kg/m3, from memory).
+    const e = reading('GERG-2008', { C2H6: 1 }, 320, 100e5);
+    expect(e.phase).toBe('dense');
+    expect(Math.abs(e.sensitivity!.pressure)).toBeLessThan(0.5);
+  });
+
   it('says the conversion is sensitive near the critical point of carbon dioxide (310 K, 75 bar)', () => {
     const f = reading('GERG-2008', { CO2: 1 }, 310, 75e5);
     expect(f.sensitivity!.nearCritical).toBe(true);
