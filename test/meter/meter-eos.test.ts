@@ -29,6 +29,8 @@ import { findComponent } from '../../src/thermo/components.js';
 import { makeEos } from '../../src/thermo/eos.js';
 import { makeGerg2008 } from '../../src/thermo/gerg2008/index.js';
 import { makeMeterEos, meterEosFor, type MeterEosName } from '../../src/thermo/meter-eos.js';
+import { parameter, withValues } from '../../src/study/parameters.js';
+import { solveFlowsheet } from '../../src/flowsheet/solve.js';
 
 const R_GERG = 8.314472; // GERG-2008's own gas constant (Kunz and Wagner 2012)
 const barg = (v: number) => v * 1e5 + 101325;
@@ -297,6 +299,22 @@ feeds:
     expect(errorOf(base('{ eos: SRK, meter-eos: GERG-2004 }', M))[0].message).toMatch(/unknown equation of state `GERG-2004` for the meters/);
     expect(errorOf(base('{ eos: SRK, meter-eos: PR }', M))[0].help).toMatch(/GERG-2008/);
     expect(errorOf(base('{ eos: SRK }', '{ flow: 12.6 m3/h, pressure: 30 barg, temperature: 35 degC, uncertainty: { flow: 1.5 } }'))[0].message).toMatch(/at most 0\.5/);
+  });
+
+  it('keeps the declared uncertainties through the parameter layer, and a study can set them', () => {
+    const { model } = validateText('t.yaml', base('{ eos: SRK, meter-eos: GERG-2008 }', '{ flow: 12.6 m3/h, pressure: 30 barg, temperature: 35 degC, uncertainty: { flow: 1 %, temperature: 0.5 K } }'));
+    const m2 = withValues(model, [{ parameter: parameter(model, 'feeds.a.meter.flow'), value: 0.004 }]);
+    const b2 = m2.feeds[0].basis;
+    if (b2.kind !== 'meter') throw new Error('not a meter');
+    expect(b2.flow).toBe(0.004);
+    expect(b2.uncertainty).toEqual({ statedAs: 'standard', flow: 0.01, temperature: 0.5 });
+    const m3 = withValues(model, [{ parameter: parameter(model, 'feeds.a.meter.uncertainty.flow'), value: 0.02 }]);
+    const b3 = m3.feeds[0].basis;
+    if (b3.kind !== 'meter') throw new Error('not a meter');
+    expect(b3.uncertainty!.flow).toBe(0.02);
+    // The study's model keeps the meters' equation: the solve converts with GERG-2008.
+    expect(m2.thermo.meterEos).toBe('GERG-2008');
+    expect(solveFlowsheet(m2).feeds[0].model).toBe('GERG-2008');
   });
 
   it('accepts meter-eos spelled as the file\'s own equation', () => {
