@@ -16,7 +16,7 @@ import type { Eos } from '../thermo/types.js';
 import { makeMeterEos, meterEosFor, type MeterEos, type MeterEosName, type MeterPhase } from '../thermo/meter-eos.js';
 import type { BlockDef, Stream, UnitSummary } from './types.js';
 
-/** Phase class of a feed at its meter (or stream) conditions; 'dense': supercritical at a liquid-like density (see src/thermo/meter-eos.ts). */
+/** Phase class of a feed at its meter (or stream) conditions; 'dense': supercritical and liquid-like (see src/thermo/meter-eos.ts). */
 export type FeedPhase = MeterPhase;
 
 export interface FeedResult {
@@ -70,8 +70,8 @@ export function mixtureMolarMass(eos: Eos, x: ArrayLike<number>): number {
 
 /**
  * Phase of a stream at T, P: a pure component by its stable root; a mixture by the
- * tangent-plane stability test (Michelsen 1982), then the stable root; 'dense' above the
- * pseudo-critical temperature at more than the pseudo-critical density (src/thermo/meter-eos.ts).
+ * tangent-plane stability test (Michelsen 1982), then the stable root; 'dense' for a
+ * supercritical, liquid-like state (the rules are in src/thermo/meter-eos.ts).
  */
 export function phaseAt(eos: Eos, T: number, P: number, x: ArrayLike<number>): FeedPhase {
   if (eos.name === 'ideal') return 'vapor';
