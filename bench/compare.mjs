@@ -38,12 +38,14 @@ function compare(label, make, batchMs = 60) {
 const rows = [];
 const gas = (lib, ids, x, T, P, flow) => {
   const eos = lib.makeEos('SRK', ids.map((id) => ({ ...lib.findComponent(id), id })));
+  // A build with a meter EOS gets the runtime's one, made once; an earlier build takes two arguments.
+  const meter = lib.makeMeterEos ? lib.makeMeterEos('SRK', eos) : undefined;
   const spec = feedSpec(x, flow, T, P);
   let k = 0;
   return () => {
     k = (k + 1) & 1023;
     spec.T = spec.basis.T = T + k * 1e-3;
-    return lib.computeFeed(spec, eos);
+    return lib.computeFeed(spec, eos, meter);
   };
 };
 const feedSpec = (x, flow, T, P) => ({ name: 'r', type: 'feed', inlets: [], outlets: ['r'], composition: Float64Array.from(x), basis: { kind: 'meter', flow, T, P }, T, P });

@@ -3,7 +3,7 @@
 // runs after a warm-up; comparisons are ratios measured in the same run (absolute times on a
 // shared machine drift from run to run).
 //
-//   node bench/run.mjs [--json] [--quick] [--root DIR] [--only meter,demos,scaling,sweep,cold]
+//   node bench/run.mjs [--json] [--quick] [--root DIR] [--only meter,gerg,demos,scaling,sweep,cold]
 //
 // --root DIR benchmarks another build of the project (DIR/dist/index.mjs, DIR/bin/loopclose.js,
 // DIR/flowsheets), e.g. a copy of an earlier commit, so before and after come from one machine.
@@ -15,6 +15,7 @@ import { fileURLToPath, pathToFileURL } from 'node:url';
 import { cpus } from 'node:os';
 import { fmt, logLogSlope, measure, processTime, table } from './timing.mjs';
 import { generateFlowsheet } from './generate.mjs';
+import { GERG_HEADER, measureGerg } from './gerg.mjs';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const args = process.argv.slice(2);
@@ -26,7 +27,7 @@ const value = (f, d) => {
 const json = flag('--json');
 const quick = flag('--quick');
 const root = resolve(value('--root', join(here, '..')));
-const only = new Set((value('--only', 'meter,demos,scaling,sweep,cold')).split(','));
+const only = new Set((value('--only', 'meter,gerg,demos,scaling,sweep,cold')).split(','));
 const libPath = join(root, 'dist', 'index.mjs');
 const cliPath = join(root, 'bin', 'loopclose.js');
 if (!existsSync(libPath)) {
@@ -59,10 +60,19 @@ if (only.has('meter')) {
       T: 298.15, P: 41.01325e5, flow: 250 / 3600,
     },
   ];
+  // A 5-component loop gas through GERG-2008 (the meters' reference equation), where the build has it.
+  if (lib.makeMeterEos) {
+    cases.push({
+      label: '5-component loop gas (GERG-2008)', ids: ['H2', 'N2', 'CH4', 'Ar', 'CO'], x: [0.7, 0.23, 0.04, 0.02, 0.01],
+      T: 313.15, P: 151.01325e5, flow: 1200 / 3600, meterEos: 'GERG-2008',
+    });
+  }
   const rows = [];
   out.meter = [];
   for (const c of cases) {
     const eos = lib.makeEos('SRK', comp(c.ids));
+    // The runtime's meter EOS, made once (builds before it have none: computeFeed takes two arguments).
+    const meter = lib.makeMeterEos ? lib.makeMeterEos(c.meterEos ?? 'SRK', eos) : undefined;
     const composition = Float64Array.from(c.x);
     const spec = { name: 'reading', composition, basis: { kind: 'meter', flow: c.flow, T: c.T, P: c.P }, T: c.T, P: c.P };
     // Vary the reading a little between calls so nothing can be cached on identical input.
@@ -70,7 +80,7 @@ if (only.has('meter')) {
     const m = measure(() => {
       k = (k + 1) & 1023;
       spec.T = spec.basis.T = c.T + k * 1e-3;
-      return lib.computeFeed(spec, eos).molarFlow;
+      return lib.computeFeed(spec, eos, meter).molarFlow;
     }, reps);
     // With the three readings parsed from text as a file or the command line gives them.
     const readings = ['12.6 m3/h', '30 barg', '35 degC'];
@@ -78,15 +88,30 @@ if (only.has('meter')) {
       const flow = lib.parseQuantity(readings[0], 'volumeFlow').value;
       const P = lib.parseQuantity(readings[1], 'pressure').value;
       const T = lib.parseQuantity(readings[2], 'temperature').value;
-      return lib.computeFeed({ name: 'r', composition, basis: { kind: 'meter', flow, T, P }, T, P }, eos).molarFlow;
+      return lib.computeFeed({ name: 'r', composition, basis: { kind: 'meter', flow, T, P }, T, P }, eos, meter).molarFlow;
     }, reps);
     const perS = 1000 / m.ms;
     const perSParsed = 1000 / mp.ms;
-    rows.push([c.label, fmt(perS), fmt(perSParsed), c.ids.length === 1 ? '>= 1e6' : '>= 2e5']);
+    rows.push([c.label, fmt(perS), fmt(perSParsed), c.meterEos ? '' : c.ids.length === 1 ? '>= 1e6' : '>= 2e5']);
     out.meter.push({ case: c.label, conversionsPerSecond: perS, withParsingPerSecond: perSParsed, usPerConversion: m.ms * 1000 });
   }
   say('\n1. Meter conversions per second (one core)');
   say(table(['case', 'conversions/s', 'with 3 readings parsed', 'aim'], rows));
+}
+
+// ---------------------------------------------------------------------------------------------
+// 1b. GERG-2008 density and properties calls (bench/gerg.mjs measureGerg on this build).
+// ---------------------------------------------------------------------------------------------
+if (only.has('gerg')) {
+  say('\n1b. GERG-2008: microseconds per density(T, P, x) and properties(T, D, x) call');
+  if (!lib.makeGerg2008) {
+    out.gerg = { skipped: 'this build does not export makeGerg2008' };
+    say('not measured: this build does not export makeGerg2008');
+  } else {
+    const g = measureGerg(lib, { quick });
+    out.gerg = g.cases;
+    say(table(GERG_HEADER, g.rows));
+  }
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -9,14 +9,15 @@
  *   q_v,actual = q_v,indicated sqrt(rho_d / rho),  q_m = q_v,indicated sqrt(rho_d rho).
  */
 import type { FieldReader } from '../flowsheet/fields.js';
-import type { FeedBasis, FeedSpec, MeterDesign } from '../flowsheet/model.js';
+import type { FeedBasis, FeedSpec, MeterDesign, MeterUncertainty } from '../flowsheet/model.js';
 import { getIn, isSettingMap, setIn } from '../flowsheet/settings.js';
 import { R } from '../thermo/constants.js';
 import type { Eos } from '../thermo/types.js';
-import { stabilityTest } from '../thermo/stability.js';
+import { makeMeterEos, meterEosFor, type MeterEos, type MeterEosName, type MeterPhase } from '../thermo/meter-eos.js';
 import type { BlockDef, Stream, UnitSummary } from './types.js';
 
-export type FeedPhase = 'vapor' | 'liquid' | 'two-phase';
+/** Phase class of a feed at its meter (or stream) conditions; 'dense': supercritical and liquid-like (see src/thermo/meter-eos.ts). */
+export type FeedPhase = MeterPhase;
 
 export interface FeedResult {
   name: string;
@@ -31,6 +32,17 @@ export interface FeedResult {
   /** (ideal - real) / real. */
   idealError?: number;
   phase: FeedPhase;
+  /** The equation that converted the reading (the meter EOS, or the file's EOS where it fell back). */
+  model: MeterEosName;
+  /** Why the file's EOS converted this reading instead of the meter EOS, when it did. */
+  fallback?: string;
+  /**
+   * Metered feeds: log-derivatives of the molar volume at the meter, (d ln v / d ln P)_T and
+   * (d ln v / d ln T)_P (-1 and 1 for an ideal gas), and whether the conversion is sensitive there.
+   */
+  sensitivity?: { pressure: number; temperature: number; nearCritical: boolean };
+  /** Metered feeds: the instrument uncertainties the file declares (`meter.uncertainty`). */
+  uncertainty?: MeterUncertainty;
   /** Component molar flows, mol/s. */
   flows: Float64Array;
   /** Mole fractions. */
@@ -58,37 +70,44 @@ export function mixtureMolarMass(eos: Eos, x: ArrayLike<number>): number {
 
 /**
  * Phase of a stream at T, P: a pure component by its stable root; a mixture by the
- * tangent-plane stability test (Michelsen 1982), then the stable root.
+ * tangent-plane stability test (Michelsen 1982), then the stable root; 'dense' for a
+ * supercritical, liquid-like state (the rules are in src/thermo/meter-eos.ts).
  */
 export function phaseAt(eos: Eos, T: number, P: number, x: ArrayLike<number>): FeedPhase {
   if (eos.name === 'ideal') return 'vapor';
-  let nonzero = 0;
-  for (let i = 0; i < eos.n; i++) if (x[i] > 0) nonzero++;
-  if (nonzero > 1) {
-    const st = stabilityTest(eos, T, P, x);
-    if (!st.stable) return 'two-phase';
-  }
-  const r = eos.z(T, P, x, 'stable');
-  return r.root === 'liquid' ? 'liquid' : 'vapor';
+  return makeMeterEos(eos.name, eos).state(T, P, x).phase;
 }
 
-export function computeFeed(spec: FeedSpec, eos: Eos): FeedResult {
+/**
+ * A feed's reading -> molar flow. `meter` chooses the equation for every meter and standard-volume
+ * conversion (and the Z, density and phase the feed reports); without it, the file's EOS `eos`.
+ * Pass the runtime's meter EOS: making one per call costs time (and, for GERG-2008, a model).
+ */
+export function computeFeed(spec: FeedSpec, eos: Eos, meter: MeterEos = makeMeterEos(eos.name, eos)): FeedResult {
   const z = spec.composition;
+  const b = spec.basis;
   // Z, density and phase at the meter's conditions for a metered feed, else at the stream's.
-  const T = spec.basis.kind === 'meter' ? spec.basis.T : spec.T;
-  const P = spec.basis.kind === 'meter' ? spec.basis.P : spec.P;
+  const T = b.kind === 'meter' ? b.T : spec.T;
+  const P = b.kind === 'meter' ? b.P : spec.P;
   const warnings: string[] = [];
-  const root = eos.z(T, P, z, 'stable');
-  const Z = root.Z;
-  const v = (Z * R * T) / P;
+  const st = meter.state(T, P, z);
+  const Z = st.Z;
+  const v = st.v;
+  const phase = st.phase;
+  let model = st.model;
+  let fallback = st.fallback;
+  const nearCritical = st.nearCritical;
+  const dlnvdlnP = st.dlnvdlnP;
+  const dlnvdlnT = st.dlnvdlnT;
+  const outside = st.outsideNormalRange;
+  const Tpc = st.Tpc;
+  const vpc = st.vpc;
   const MW = mixtureMolarMass(eos, z);
   const rho = MW / v;
-  const phase = phaseAt(eos, T, P, z);
   let molarFlow: number;
   let idealMolarFlow: number | undefined;
   let reference: FeedResult['reference'];
   let densityCorrection: number | undefined;
-  const b = spec.basis;
   switch (b.kind) {
     case 'meter': {
       if (b.design) {
@@ -102,7 +121,7 @@ export function computeFeed(spec: FeedSpec, eos: Eos): FeedResult {
           const Td = b.design.T!;
           const Pd = b.design.P!;
           const Md = mixtureMolarMass(eos, zc);
-          rhoD = (Md * Pd) / (eos.z(Td, Pd, zc, 'stable').Z * R * Td);
+          rhoD = Md / meter.molarVolume(Td, Pd, zc);
           rhoDIdeal = (Md * Pd) / (R * Td);
         }
         densityCorrection = Math.sqrt(rhoD / rho);
@@ -113,21 +132,30 @@ export function computeFeed(spec: FeedSpec, eos: Eos): FeedResult {
         molarFlow = b.flow / v;
         idealMolarFlow = (b.flow * P) / (R * T);
       }
-      if (phase !== 'vapor') {
+      if (phase === 'liquid' || phase === 'two-phase') {
         warnings.push(`feed \`${spec.name}\` is ${phase === 'liquid' ? 'liquid' : 'two-phase (gas and liquid)'} at the meter conditions (${fmt(T)} K, ${fmt(P)} Pa): a gas-meter reading is not valid there`);
+      } else if (phase === 'dense') {
+        warnings.push(`feed \`${spec.name}\` is a dense fluid at the meter conditions (${fmt(T)} K, ${fmt(P)} Pa): above its pseudo-critical temperature (${fmt(Tpc)} K) at ${fmt(rho)} kg/m3, denser than its pseudo-critical density (${fmt(MW / vpc)} kg/m3) and compressed like a liquid (1 % of pressure changes the density by ${fmt(Math.abs(dlnvdlnP))} %); a gas meter is not reading a gas here: check that the meter is rated and calibrated for this fluid`);
+      }
+      if (nearCritical) {
+        warnings.push(`feed \`${spec.name}\`: the conversion is sensitive at the meter conditions (near the critical point): 1 % of pressure changes the density by ${fmt(Math.abs(dlnvdlnP))} %, 1 K by ${fmt((100 * Math.abs(dlnvdlnT)) / T)} % (flagged above 3 % and 1 %); the line pressure and temperature must be known closely`);
       }
       break;
     }
     case 'standard-flow': {
       const ref = b.reference;
       const vIdeal = (R * ref.T) / ref.P;
-      const vRef = b.realGas ? (eos.z(ref.T, ref.P, z, 'stable').Z * R * ref.T) / ref.P : vIdeal;
+      let vRef = vIdeal;
+      if (b.realGas) {
+        const rs = meter.state(ref.T, ref.P, z);
+        vRef = rs.v;
+        model = rs.model;
+        fallback = rs.fallback;
+        if (rs.phase !== 'vapor') warnings.push(`feed \`${spec.name}\` would not be all gas at its standard reference (${ref.label}); its standard volume is not well defined`);
+      }
       molarFlow = b.flow / vRef;
       idealMolarFlow = b.flow / vIdeal;
       reference = { name: ref.name, label: ref.label, T: ref.T, P: ref.P, basis: b.realGas ? 'real' : 'ideal' };
-      if (b.realGas && phaseAt(eos, ref.T, ref.P, z) !== 'vapor') {
-        warnings.push(`feed \`${spec.name}\` would not be all gas at its standard reference (${ref.label}); its standard volume is not well defined`);
-      }
       break;
     }
     case 'molar-flow':
@@ -142,6 +170,11 @@ export function computeFeed(spec: FeedSpec, eos: Eos): FeedResult {
       break;
     }
   }
+  const converts = b.kind === 'meter' || (b.kind === 'standard-flow' && b.realGas);
+  if (converts && fallback) {
+    warnings.push(`feed \`${spec.name}\`: ${fallback}, so this reading is converted with ${model} (the file's equation of state) instead of ${meter.name}`);
+  }
+  if (converts && outside && model === 'GERG-2008' && b.kind === 'meter') warnings.push(gergRangeWarning(spec.name, meter, T, P, z));
   const flows = new Float64Array(z.length);
   if (b.kind === 'flows') flows.set(b.flows);
   else for (let i = 0; i < z.length; i++) flows[i] = molarFlow * z[i];
@@ -149,8 +182,20 @@ export function computeFeed(spec: FeedSpec, eos: Eos): FeedResult {
     name: spec.name, Z, molarVolume: v, molarFlow,
     idealMolarFlow,
     idealError: idealMolarFlow !== undefined ? (idealMolarFlow - molarFlow) / molarFlow : undefined,
-    phase, flows, composition: z, T: spec.T, P: spec.P, molarMass: MW, density: rho, basis: b.kind, reference, densityCorrection, warnings,
+    phase, model,
+    // Every field set on every result (undefined where it does not apply): one object shape.
+    fallback: converts && fallback ? fallback : undefined,
+    sensitivity: b.kind === 'meter' ? { pressure: dlnvdlnP, temperature: dlnvdlnT, nearCritical } : undefined,
+    uncertainty: b.kind === 'meter' ? b.uncertainty : undefined,
+    flows, composition: z, T: spec.T, P: spec.P, molarMass: MW, density: rho, basis: b.kind, reference, densityCorrection, warnings,
   };
+}
+
+/** The warning for a GERG-2008 conversion outside its normal range, with the authors' figure there. */
+function gergRangeWarning(name: string, meter: MeterEos, T: number, P: number, z: ArrayLike<number>): string {
+  const u = meter.modelUncertainty(T, P, z);
+  const figure = u.relative === null ? 'GERG-2008 states no uncertainty there' : `its uncertainty in density there is about ${fmt(200 * u.relative)} % (k = 2)`;
+  return `feed \`${name}\`: the meter conditions (${fmt(T)} K, ${fmt(P)} Pa) are outside GERG-2008's normal range (90 K to 450 K, up to 35 MPa): ${figure}`;
 }
 
 function fmt(v: number): string {
@@ -170,7 +215,7 @@ export const feed: BlockDef<FeedSpec> & { result(rt: unknown): FeedResult } = {
   keys: ['composition', 'mass-composition', 'normalize', ...FLOW_FORMS, 'T', 'P'],
   read: readFeed,
   build(spec, ctx) {
-    const r = computeFeed(spec, ctx.eos);
+    const r = computeFeed(spec, ctx.eos, ctx.meter ?? meterEosFor(ctx.model.thermo.meterEos, ctx.eos));
     return Object.assign(
       {
         spec,
@@ -297,7 +342,7 @@ function readFeed(name: string, f: FieldReader): FeedSpec | undefined {
   if (form === 'meter') {
     const m = f.sub('meter');
     if (!m) return undefined;
-    m.checkKeys(['flow', 'pressure', 'temperature', 'design']);
+    m.checkKeys(['flow', 'pressure', 'temperature', 'design', 'uncertainty']);
     const flow = m.quantity('flow', 'volumeFlow', { required: true, above: 0, example: '12.6 m3/h' });
     const Pm = m.quantity('pressure', 'pressure', { required: true, above: 0, example: '30 barg' });
     const Tm = m.quantity('temperature', 'temperature', { required: true, above: 0, example: '35 degC' });
@@ -325,8 +370,9 @@ function readFeed(name: string, f: FieldReader): FeedSpec | undefined {
         }
       }
     }
+    const uncertainty = m.has('uncertainty') ? readUncertainty(m, what, Pm) : undefined;
     if (flow === undefined || Pm === undefined || Tm === undefined) return undefined;
-    basis = { kind: 'meter', flow, T: Tm, P: Pm, design };
+    basis = { kind: 'meter', flow, T: Tm, P: Pm, design, ...(uncertainty ? { uncertainty } : {}) };
     T = Tm;
     P = Pm;
   } else if (form === 'molar-flow') {
@@ -377,6 +423,48 @@ function readFeed(name: string, f: FieldReader): FeedSpec | undefined {
   }
   if (T === undefined || P === undefined || !basis || !composition) return undefined;
   return { name, type: 'feed', inlets: [], outlets: [name], composition, basis, T, P };
+}
+
+/** Largest temperature uncertainty read as a difference; above it the value was written on an offset scale. */
+const MAX_TEMPERATURE_UNCERTAINTY = 50;
+
+/**
+ * `meter.uncertainty: { flow: 1.5 %, pressure: 0.1 bar, temperature: 0.5 K, stated-as: standard }`:
+ * the instrument uncertainties of a metered feed. flow: relative (`%` or a fraction); pressure and
+ * temperature: differences (bar, kPa, psi; K). stated-as: `standard` (the default: standard
+ * uncertainties, k = 1), `expanded` (k = 2, as calibration certificates state them) or `limits`
+ * (plus or minus a, as data sheets state accuracies: a rectangular distribution, u = a / sqrt(3)).
+ */
+function readUncertainty(m: FieldReader, what: string, Pline: number | undefined): MeterUncertainty | undefined {
+  const u = m.sub('uncertainty');
+  if (!u) return undefined;
+  u.checkKeys(['flow', 'pressure', 'temperature', 'stated-as']);
+  const out: MeterUncertainty = { statedAs: 'standard' };
+  const statedAs = u.string('stated-as', { oneOf: ['standard', 'expanded', 'limits'] });
+  if (statedAs) out.statedAs = statedAs as MeterUncertainty['statedAs'];
+  const flow = u.quantity('flow', 'dimensionless', { min: 0, max: 0.5, example: '1.5 %' });
+  if (flow !== undefined) out.flow = flow;
+  const p = u.quantity('pressure', 'pressure', { min: 0, example: '0.1 bar' });
+  if (p !== undefined) {
+    // A gauge unit (barg, psig) adds the atmosphere: an uncertainty above a tenth of the reading
+    // is no meter reading at all, and usually that mistake.
+    if (Pline !== undefined && p > 0.1 * Pline) {
+      u.error('pressure', `the pressure uncertainty of ${what} reads as ${fmt(p)} Pa, more than a tenth of the line pressure (${fmt(Pline)} Pa absolute)`,
+        'write it as a difference in bar, kPa or psi (`0.1 bar`): a gauge unit such as barg or psig adds the atmosphere');
+    } else out.pressure = p;
+  }
+  const t = u.quantity('temperature', 'temperature', { min: 0, example: '0.5 K' });
+  if (t !== undefined) {
+    if (t > MAX_TEMPERATURE_UNCERTAINTY) {
+      u.error('temperature', `the temperature uncertainty of ${what} reads as ${fmt(t)} K: degC and degF are scales with an offset, not differences`,
+        'write the difference in kelvin: `0.5 K` for plus or minus 0.5 degC');
+    } else out.temperature = t;
+  }
+  if (out.flow === undefined && out.pressure === undefined && out.temperature === undefined && !u.has('flow') && !u.has('pressure') && !u.has('temperature')) {
+    u.error(null, `\`meter.uncertainty\` of ${what} declares nothing`, 'give at least one of `flow: 1.5 %`, `pressure: 0.1 bar`, `temperature: 0.5 K`');
+    return undefined;
+  }
+  return out;
 }
 
 /**

@@ -8,6 +8,7 @@ import type { FieldReader } from '../flowsheet/fields.js';
 import type { Model, UnitSpecBase } from '../flowsheet/model.js';
 import type { SettingMap } from '../flowsheet/settings.js';
 import type { EvaluationFailure } from '../solve/types.js';
+import type { MeterEos } from '../thermo/meter-eos.js';
 import type { Eos } from '../thermo/types.js';
 import type { Dimension } from '../units/index.js';
 
@@ -29,6 +30,8 @@ export function newStream(n: number): Stream {
 export interface BuildContext {
   model: Model;
   eos: Eos;
+  /** The runtime's meter equation of state (feeds); a feed makes its own when it is absent. */
+  meter?: MeterEos;
 }
 
 /** A figure a unit reports after the solve (extent, conversion, vapor fraction...). */

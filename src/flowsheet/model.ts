@@ -6,6 +6,7 @@
  * (Typed arrays inside cannot be frozen by JavaScript; by convention nothing writes to them.)
  */
 import type { Diagnostic, SourceSpan } from '../diagnostics.js';
+import type { MeterEosName } from '../thermo/meter-eos.js';
 import type { ComponentData, EosName } from '../thermo/types.js';
 import type { StandardRef } from '../units/index.js';
 import type { Plan } from './graph.js';
@@ -13,6 +14,11 @@ import type { OwnerSettings } from './settings.js';
 
 export interface ThermoSpec {
   eos: EosName;
+  /**
+   * The equation for every meter and standard-volume conversion of the feeds (`thermo.meter-eos`);
+   * absent: `eos`. The loop's units always use `eos`.
+   */
+  meterEos?: MeterEosName;
   /** Binary interaction parameters, n*n row-major, symmetric, zero diagonal. */
   kij: Float64Array;
   /** Local atmospheric pressure for gauge readings, Pa. */
@@ -37,7 +43,7 @@ export interface UnitSpecBase {
 
 /** How a feed's flow is given. */
 export type FeedBasis =
-  | { kind: 'meter'; flow: number; T: number; P: number; design?: MeterDesign }
+  | { kind: 'meter'; flow: number; T: number; P: number; design?: MeterDesign; uncertainty?: MeterUncertainty }
   | { kind: 'molar-flow'; flow: number }
   | { kind: 'mass-flow'; flow: number }
   | { kind: 'standard-flow'; flow: number; reference: StandardRef; realGas: boolean }
@@ -51,6 +57,21 @@ export interface MeterDesign {
   P?: number;
   /** Design mole fractions (defaults to the feed's composition). */
   composition?: Float64Array;
+}
+
+/**
+ * The instrument uncertainties a metered feed declares (`meter.uncertainty`), as written: each is
+ * a standard uncertainty, an expanded one (k = 2) or the half-width of limits (rectangular), as
+ * `statedAs` says; standardUncertainty() in src/thermo/meter-budget.ts turns them into standard ones.
+ */
+export interface MeterUncertainty {
+  /** Of the volume flow reading, relative (0.015 for 1.5 %). */
+  flow?: number;
+  /** Of the line pressure, Pa (a difference). */
+  pressure?: number;
+  /** Of the line temperature, K (a difference). */
+  temperature?: number;
+  statedAs: 'standard' | 'expanded' | 'limits';
 }
 
 /** A feed: a block with no inlets and one outlet of its own name. */

@@ -4,6 +4,7 @@
  * `solver` (method, tolerance, budget, Wegstein's acceleration bounds).
  */
 import { didYouMean } from '../diagnostics.js';
+import { matchMeterEos, type MeterEosName } from '../thermo/meter-eos.js';
 import type { EosName } from '../thermo/types.js';
 import { BUILTIN_STANDARDS, checkFlowDisplayUnit, defineStandard, parseQuantity, type Dimension, type StandardRef } from '../units/index.js';
 import type { DisplaySpec, SolverSpec } from './model.js';
@@ -12,6 +13,8 @@ import { quantityAt, reportUnitError, requiredQuantity } from './yaml-fields.js'
 
 export interface ThermoSection {
   eos: EosName;
+  /** `meter-eos`: the equation of the meters and standard volumes of the feeds (absent: `eos`). */
+  meterEos?: MeterEosName;
   atmosphere: number;
   standards: Map<string, StandardRef>;
   failedStandards: Set<string>;
@@ -21,7 +24,7 @@ export interface ThermoSection {
 
 export function readThermo(r: Reader, e: Entry | undefined): ThermoSection {
   const entries = e ? r.entries(e.value, '`thermo`', e.keyNode) ?? [] : [];
-  r.checkKeys(entries, ['eos', 'kij', 'atmosphere', 'standards'], '`thermo`');
+  r.checkKeys(entries, ['eos', 'meter-eos', 'kij', 'atmosphere', 'standards'], '`thermo`');
   let eos: EosName = 'SRK';
   const eosE = r.find(entries, 'eos');
   if (eosE) {
@@ -30,6 +33,20 @@ export function readThermo(r: Reader, e: Entry | undefined): ThermoSection {
       const m = matchEos(v);
       if (!m) r.bag.error(`unknown equation of state \`${v}\``, r.at(eosE.value), 'use `SRK`, `PR` (Peng-Robinson) or `ideal`');
       else eos = m;
+    }
+  }
+  // The meters' own equation: GERG-2008 (a reference equation for the gases it covers), or one of
+  // the cubics. The loop's units keep `eos`.
+  let meterEos: MeterEosName | undefined;
+  const meterE = r.find(entries, 'meter-eos');
+  if (meterE) {
+    const v = r.string(meterE.value, '`thermo.meter-eos`', 'GERG-2008');
+    if (v !== undefined) {
+      const m = matchMeterEos(v);
+      if (!m) r.bag.error(`unknown equation of state \`${v}\` for the meters`, r.at(meterE.value), 'use `GERG-2008` (the reference equation for natural gases and similar mixtures), or `SRK`, `PR`, `ideal`');
+      else if (m !== 'GERG-2008' && m !== eos) {
+        r.bag.error(`\`thermo.meter-eos\` is ${m} but \`thermo.eos\` is ${eos}`, r.at(meterE.value), `the meters use either GERG-2008 or the file's own equation: write \`meter-eos: GERG-2008\`, or leave \`meter-eos\` out to use ${eos}`);
+      } else meterEos = m;
     }
   }
   let atmosphere = 101325;
@@ -58,7 +75,7 @@ export function readThermo(r: Reader, e: Entry | undefined): ThermoSection {
       else failedStandards.add(s.key);
     }
   }
-  return { eos, atmosphere, standards, failedStandards, kijEntry: r.find(entries, 'kij') };
+  return { eos, ...(meterEos ? { meterEos } : {}), atmosphere, standards, failedStandards, kijEntry: r.find(entries, 'kij') };
 }
 
 /** Binary interaction parameters, n*n symmetric; a pair given twice with two values is an error. */

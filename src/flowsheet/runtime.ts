@@ -12,6 +12,7 @@ import { BLOCKS } from '../blocks/registry.js';
 import { newStream, type BlockRuntime, type Stream } from '../blocks/types.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import { makeEos } from '../thermo/eos.js';
+import { meterEosFor, type MeterEos } from '../thermo/meter-eos.js';
 import type { Eos } from '../thermo/types.js';
 import type { Plan } from './graph.js';
 import type { FeedSpec, Model, UnitSpecBase } from './model.js';
@@ -63,6 +64,8 @@ export interface Runtime {
 class FlowsheetRuntime implements Runtime {
   model!: Model;
   eos!: Eos;
+  /** The meters' equation (thermo.meter-eos), made with the EOS: one per runtime. */
+  private meter!: MeterEos;
   n = 0;
   feeds: FeedResult[] = [];
   streams = new Map<string, Stream>();
@@ -105,7 +108,7 @@ class FlowsheetRuntime implements Runtime {
       return;
     }
     this.model = model;
-    const ctx = { model, eos: this.eos };
+    const ctx = { model, eos: this.eos, meter: this.meter };
     model.feeds.forEach((f, k) => {
       if (f === cur.feeds[k]) return;
       this.feeds[k] = this.feedResult(f);
@@ -122,7 +125,7 @@ class FlowsheetRuntime implements Runtime {
   }
 
   private feedResult(f: FeedSpec): FeedResult {
-    return FEED.result(FEED.build(f, { model: this.model, eos: this.eos }));
+    return FEED.result(FEED.build(f, { model: this.model, eos: this.eos, meter: this.meter }));
   }
 
   private setFeedStream(f: FeedResult): void {
@@ -139,6 +142,7 @@ class FlowsheetRuntime implements Runtime {
     this.n = n;
     this.perTear = n + 2;
     this.eos = this.fixedEos ?? makeEos(model.thermo.eos, model.components, model.thermo.kij);
+    this.meter = meterEosFor(model.thermo.meterEos, this.eos);
     this.streams = new Map();
     this.streamOrder = [];
     this.feeds = [];

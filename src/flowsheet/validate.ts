@@ -235,7 +235,7 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag()): Load
   for (const note of plan.notes) bag.warning(note, tearsE ? r.at(tearsE.value) : undefined);
   const model: Model = {
     file: path, title: title ?? undefined, components, ids, index, elements,
-    thermo: { eos: thermo.eos, kij, atmosphere: thermo.atmosphere, standards: new FrozenMap(thermo.standards) }, display,
+    thermo: { eos: thermo.eos, ...(thermo.meterEos ? { meterEos: thermo.meterEos } : {}), kij, atmosphere: thermo.atmosphere, standards: new FrozenMap(thermo.standards) }, display,
     feeds, units, tears, plan, solver, targets,
     streamSpans: new FrozenMap(streamSpans), unitSpans: new FrozenMap(unitSpans), settings: new FrozenMap(settings), warnings: [],
   };

@@ -1,12 +1,18 @@
 /** Reporters for `loopclose meter`: a short table, or JSON in SI. */
 import type { FeedResult } from '../blocks/feed.js';
+import type { BudgetLine, MeterBudget } from '../thermo/meter-budget.js';
 import { toUnit } from '../units/index.js';
 import type { Model } from '../flowsheet/model.js';
 import { CAUTION, num, pct, table, toJson } from './format.js';
 
 export interface MeterReport {
   file?: string;
+  /** The file's equation of state (the loop's; phase test and fallback of the meters). */
   eos: string;
+  /** The meters' equation (GERG-2008, or the same as eos). */
+  meterEos?: string;
+  /** The uncertainty budget of each metered feed, by name. */
+  budgets?: ReadonlyMap<string, MeterBudget>;
   ids: readonly string[];
   feeds: FeedResult[];
   warnings: string[];
@@ -25,6 +31,10 @@ export function meterJson(r: MeterReport): string {
       molarFlow: f.molarFlow,
       ...(f.idealMolarFlow !== undefined ? { idealMolarFlow: f.idealMolarFlow, idealError: f.idealError } : {}),
       phase: f.phase,
+      model: f.model,
+      ...(f.fallback ? { fallback: f.fallback } : {}),
+      ...(f.sensitivity ? { sensitivity: f.sensitivity } : {}),
+      ...(r.budgets?.get(f.name) ? { uncertainty: budgetJson(r.budgets.get(f.name)!) } : {}),
       flows,
       T: f.T,
       P: f.P,
@@ -35,7 +45,27 @@ export function meterJson(r: MeterReport): string {
       ...(f.densityCorrection !== undefined ? { densityCorrection: f.densityCorrection } : {}),
     };
   }
-  return toJson({ eos: r.eos, feeds, warnings: r.warnings, caution: CAUTION });
+  return toJson({ eos: r.eos, meterEos: r.meterEos ?? r.eos, feeds, warnings: r.warnings, caution: CAUTION });
+}
+
+/** A budget in SI: each input's standard uncertainty, sensitivity (mol/s per unit), contribution, share. */
+function budgetJson(b: MeterBudget) {
+  return {
+    law: 'GUM (JCGM 100:2008), uncorrelated inputs',
+    molarFlow: b.molarFlow,
+    model: b.model,
+    contributions: b.lines.map((l) => ({
+      input: l.input, label: l.label, u: l.u, unit: l.unit, distribution: l.distribution, sensitivity: l.sensitivity, relativeSensitivity: l.relativeSensitivity,
+      contribution: l.contribution, relative: l.relative, share: l.share, source: l.source,
+    })),
+    missing: b.missing,
+    combined: b.combined,
+    combinedRelative: b.combinedRelative,
+    expanded: b.expanded,
+    expandedRelative: b.expandedRelative,
+    coverage: b.coverage,
+    notes: b.notes,
+  };
 }
 
 export function meterText(r: MeterReport): string {
@@ -53,17 +83,52 @@ export function meterText(r: MeterReport): string {
     f.phase,
   ]);
   const out: string[] = [];
-  out.push(`loopclose meter${r.file ? `: ${r.file}` : ''} (equation of state: ${r.eos})`);
+  const meterEos = r.meterEos ?? r.eos;
+  out.push(`loopclose meter${r.file ? `: ${r.file}` : ''} (equation of state: ${r.eos}${meterEos !== r.eos ? `; meters: ${meterEos}` : ''})`);
   out.push('');
-  out.push(table(['feed', 'basis', `T ${d.temperatureUnit}`, `P ${d.pressureUnit}`, 'Z', 'v cm3/mol', `flow ${d.flowUnit}`, 'ideal-gas error', 'phase'], rows,
-    ['left', 'left', 'right', 'right', 'right', 'right', 'right', 'right', 'left']));
+  const byModel = meterEos !== r.eos;
+  rows.forEach((row, k) => {
+    if (byModel) row.push(r.feeds[k].model);
+  });
+  out.push(table(['feed', 'basis', `T ${d.temperatureUnit}`, `P ${d.pressureUnit}`, 'Z', 'v cm3/mol', `flow ${d.flowUnit}`, 'ideal-gas error', 'phase', ...(byModel ? ['converted by'] : [])], rows,
+    ['left', 'left', 'right', 'right', 'right', 'right', 'right', 'right', 'left', 'left']));
   const refs = r.feeds.filter((f) => f.reference);
   for (const f of refs) out.push(`  ${f.name}: standard volume at ${f.reference!.label}, ${f.reference!.basis === 'real' ? 'real-gas volume at the reference' : 'ideal-gas volume at the reference'}`);
   for (const f of r.feeds) if (f.densityCorrection !== undefined) out.push(`  ${f.name}: differential-pressure reading corrected by sqrt(design density / actual density) = ${num(f.densityCorrection, 6)}`);
+  for (const f of r.feeds) {
+    const b = r.budgets?.get(f.name);
+    if (b) out.push('', ...budgetText(f.name, b, r));
+  }
   out.push('');
   out.push('ideal-gas error = (ideal - real) / real: what the ideal-gas law would have made of the same reading.');
+  if (r.feeds.some((f) => f.phase === 'dense')) out.push('dense: above the pseudo-critical temperature, denser than the pseudo-critical density (Kay\'s rule) and less than half as compressible as an ideal gas: a supercritical fluid that behaves like a liquid, not a gas.');
   if (refs.length) out.push('For a standard-flow feed it compares the ideal and the real molar volume at the standard reference (zero on the ideal basis).');
   for (const w of r.warnings) out.push(`warning: ${w}`);
   out.push(`note: ${CAUTION}`);
   return out.join('\n');
+}
+
+/** The budget of one feed as a table: input, standard uncertainty, distribution, sensitivity, share. */
+function budgetText(name: string, b: MeterBudget, r: MeterReport): string[] {
+  const d = r.display;
+  const ctx = { atmosphere: r.atmosphere };
+  const F = (v: number) => num(toUnit(v, 'molarFlow', d.flowUnit, ctx), 4);
+  const out = [`Uncertainty of ${name} (GUM, JCGM 100:2008; inputs uncorrelated; converted by ${b.model})`];
+  if (b.lines.length) {
+    out.push(table(['input', 'u (k = 1)', 'distribution', 'sensitivity %/%', `u(n) ${d.flowUnit}`, 'u(n)/n', 'share'], b.lines.map((l) => [
+      l.label, inputText(l, r), l.distribution, num(l.relativeSensitivity, 3), F(l.contribution), pct(l.relative, 3).replace('+', ''), `${(100 * l.share).toFixed(1)} %`,
+    ]), ['left', 'right', 'left', 'right', 'right', 'right', 'right']));
+    for (const l of b.lines) if (l.input === 'equation-of-state' || l.input === 'reference-equation') out.push(`  ${l.label}: ${l.source}`);
+  }
+  out.push(`  molar flow ${F(b.molarFlow)} ${d.flowUnit}; combined standard uncertainty ${F(b.combined)} ${d.flowUnit} (${pct(b.combinedRelative, 3).replace('+', '')}); expanded (k = 2) ${F(b.expanded)} ${d.flowUnit} (${pct(b.expandedRelative, 3).replace('+', '')})`);
+  for (const note of b.notes) out.push(`  note: ${note}`);
+  return out;
+}
+
+function inputText(l: BudgetLine, r: MeterReport): string {
+  if (l.unit === '1') return pct(l.u, 3).replace('+', '');
+  if (l.unit === 'K') return `${num(l.u, 3)} K`;
+  const unit = r.display.pressureUnit.replace(/g$|\(g\)$/, '');
+  const ctx = { atmosphere: r.atmosphere };
+  return `${num(toUnit(l.u, 'pressure', unit, ctx) - toUnit(0, 'pressure', unit, ctx), 3)} ${unit}`;
 }

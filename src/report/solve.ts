@@ -43,7 +43,8 @@ export function resultObject(r: FlowsheetResult): Record<string, unknown> {
     feeds: Object.fromEntries(r.feeds.map((f) => [f.name, {
       Z: f.Z, molarVolume: f.molarVolume, molarFlow: f.molarFlow,
       ...(f.idealMolarFlow !== undefined ? { idealMolarFlow: f.idealMolarFlow, idealError: f.idealError } : {}),
-      phase: f.phase, flows: record(ids, f.flows), T: f.T, P: f.P, basis: f.basis,
+      phase: f.phase, model: f.model, ...(f.fallback ? { fallback: f.fallback } : {}), ...(f.sensitivity ? { sensitivity: f.sensitivity } : {}),
+      flows: record(ids, f.flows), T: f.T, P: f.P, basis: f.basis,
       ...(f.reference ? { reference: f.reference } : {}),
     }])),
   };
@@ -216,7 +217,7 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
     out.push('');
     out.push('Feeds');
     for (const f of r.feeds) {
-      out.push(`  ${f.name}: ${F(f.molarFlow)} ${fu} (${f.basis}), Z ${num(f.Z, 5)}, ${f.phase}${f.idealError !== undefined ? `, ideal-gas error ${pct(f.idealError)}` : ''}${f.reference ? `, standard volume at ${f.reference.label}` : ''}`);
+      out.push(`  ${f.name}: ${F(f.molarFlow)} ${fu} (${f.basis}${f.model !== r.model.thermo.eos ? `, ${f.model}` : ''}), Z ${num(f.Z, 5)}, ${f.phase}${f.idealError !== undefined ? `, ideal-gas error ${pct(f.idealError)}` : ''}${f.reference ? `, standard volume at ${f.reference.label}` : ''}`);
     }
   }
   for (const w of r.warnings) out.push(`warning: ${w}`);
