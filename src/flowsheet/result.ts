@@ -130,11 +130,11 @@ function streamResult(rt: Runtime, s: Stream, withDensity: boolean): StreamResul
 /** Density of a single-phase stream (kg/m3); NaN when it is two-phase or its state is not known. */
 function densityOf(rt: Runtime, s: Stream, x: Float64Array, molarMass: number): number {
   if (!(s.T > 0) || !(s.P > 0) || !(molarMass > 0)) return Number.NaN;
-  let phase: 'vapor' | 'liquid' | 'two-phase';
+  let phase: string;
   if (s.vf === 1) phase = 'vapor';
   else if (s.vf === 0) phase = 'liquid';
   else if (Number.isNaN(s.vf)) phase = phaseAt(rt.eos, s.T, s.P, x);
   else phase = 'two-phase';
   if (phase === 'two-phase') return Number.NaN;
-  return molarMass / rt.eos.molarVolume(s.T, s.P, x, phase);
+  return molarMass / rt.eos.molarVolume(s.T, s.P, x, phase === 'liquid' ? 'liquid' : phase === 'vapor' ? 'vapor' : 'stable');
 }
