@@ -120,6 +120,16 @@ export interface PlantReport {
   notes: string[];
 }
 
+/**
+ * Tolerances of a plant's reconciliation: steps of at most 1e-6 standard uncertainties and
+ * balances closed to 1e-9 of their terms (far below any meter's uncertainty; the engine's own
+ * defaults are tighter still, and cost an iteration more per row).
+ */
+export const PLANT_RECONCILE_DEFAULTS: ReconcileOptions = { stepTolerance: 1e-6, constraintTolerance: 1e-9 };
+
+/** A meter converted with the reconciled composition is settled when its value moves by at most this many of its standard uncertainties. */
+const CONVERSION_SETTLED = 0.05;
+
 const SI_UNIT: Record<string, string> = { meter: 'm3/s', mass: 'kg/s', molar: 'mol/s', standard: 'm3/s', pressure: 'Pa', temperature: 'K', analyzer: '1' };
 
 export function preparePlant(model: Model, options: PlantOptions = {}): PlantReconciliation {
@@ -143,8 +153,19 @@ export class PlantReconciliation {
     this.eos = makeEos(model.thermo.eos, model.components, model.thermo.kij);
     this.budget = options.budget ?? defaultFlowBudget;
     this.byTag = new Map(model.instruments.map((d) => [d.tag, d]));
-    this.prepared = prepareReconciliation({ variables: this.network.variables, constraints: this.network.constraints }, options.reconcile);
+    this.prepared = prepareReconciliation({ variables: this.network.variables, constraints: this.network.constraints }, { ...PLANT_RECONCILE_DEFAULTS, ...options.reconcile });
+    for (const fig of this.network.figures) {
+      try {
+        const p = parameter(model, fig.path);
+        this.fileParameters.set(fig.path, { value: p.value, unit: p.dimension ? fig.unit || 'SI' : '' });
+      } catch {
+        /* a figure of the data, not a parameter of the file */
+      }
+    }
   }
+
+  /** The figures that are parameters of the file: their value in the file. */
+  private readonly fileParameters = new Map<string, { value: number; unit: string }>();
 
   /** Mole fractions of a stream at x (the design's where x does not determine them). */
   composition(s: StreamVars, x: Float64Array | undefined): Float64Array {
@@ -277,7 +298,7 @@ export class PlantReconciliation {
       return (d.kind === 'meter' || d.kind === 'standard') && !network.streams.get(d.stream)!.z;
     });
     for (let pass = 0; compositionDependent && pass < 3 && (initial.status === 'reconciled' || initial.status === 'not-redundant'); pass++) {
-      if (convert(initial.x) <= 0.01) break;
+      if (convert(initial.x) <= CONVERSION_SETTLED) break;
       for (let j = 0; j < n; j++) if (Number.isFinite(initial.x[j])) start[j] = initial.x[j];
       initial = this.prepared.solve({ values, sigmas, start });
     }
@@ -420,17 +441,10 @@ export class PlantReconciliation {
   private describeEstimates(report: PlantReport, res: ReconcileResult, afterSuspects: boolean): void {
     const ok = res.status === 'reconciled' || res.status === 'not-redundant';
     for (const fig of this.network.figures) {
-      let file: number | undefined;
-      let isParameter = false;
-      let unit = fig.unit;
-      try {
-        const p = parameter(this.model, fig.path);
-        file = p.value;
-        isParameter = true;
-        unit = p.dimension ? unit || 'SI' : '';
-      } catch {
-        /* a figure of the data, not a parameter of the file */
-      }
+      const fp = this.fileParameters.get(fig.path);
+      const file = fp?.value;
+      const isParameter = fp !== undefined;
+      const unit = fp ? fp.unit : fig.unit;
       const d = ok ? derivedEstimate(res, (x) => fig.value(x)) : { value: null, uncertainty: null };
       // A figure of a component that is not there at all (0 / 0) is left out.
       if (d.value === null && !isParameter && ok && !Number.isFinite(fig.value(Float64Array.from(this.network.start)))) continue;

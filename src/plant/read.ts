@@ -234,14 +234,17 @@ function readInstrument(
       } else decl.realGas = b === 'real';
     }
   }
-  const dim = kind === 'standard' && decl.reference ? 'volumeFlow' : readingDimension(kind);
+  const dim: Dimension | Dimension[] = kind === 'standard' && decl.reference ? ['standardFlow', 'volumeFlow'] : readingDimension(kind);
   const ue = r.find(f, 'unit');
   if (ue) {
     const unit = r.string(ue.value, `\`unit\` of ${what}`, kind === 'meter' ? 'm3/h' : 't/h');
     if (unit !== undefined) {
       try {
-        parseQuantity(`1 ${unit}`, dim, { atmosphere: ctx.atmosphere, standards: ctx.standards as Map<string, never> });
-        decl.unit = unit;
+        const q = parseQuantity(`1 ${unit}`, dim, { atmosphere: ctx.atmosphere, standards: ctx.standards as Map<string, never> });
+        if (q.standard && decl.reference && q.standard.name !== decl.reference.name) {
+          r.bag.error(`\`unit\` of ${what} is at reference \`${q.standard.name}\`, but it reads at \`${decl.reference.name}\``, r.at(ue.value), 'write the unit of its reference, or change `reference`');
+          ok = false;
+        } else decl.unit = unit;
       } catch (err) {
         reportUnitError(r, ue.value, `\`unit\` of ${what}`, err);
         ok = false;
