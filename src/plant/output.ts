@@ -40,22 +40,22 @@ export function plantText(report: PlantReport, model: Model, opts: { flowUnit?: 
   const rows: string[][] = [];
   for (const [tag, r] of Object.entries(report.instruments)) {
     if (r.use === 'context') {
-      rows.push([tag, r.kind, r.stream, r.reading !== undefined ? num(r.reading) + (r.kind === 'pressure' ? ' Pa' : ' K') : '-', '', '', '', '', '', r.reason ?? 'line condition']);
+      rows.push([tag, r.kind, r.stream, r.reading !== undefined ? num(r.reading) + (r.kind === 'pressure' ? ' Pa' : ' K') : '-', '', '', '', '', r.reason ?? 'line condition']);
       continue;
     }
     const state = r.use !== 'used' ? (r.reason ? `${r.use}: ${r.reason}` : r.use) : `${r.classification ?? ''}${r.suspect ? ', SUSPECT' : r.failed ? ', test fails' : ''}`;
     const test = r.test === null ? '-' : num(r.test, 3);
     if (r.molarFlow) {
       const m = r.molarFlow;
-      rows.push([tag, r.kind, r.stream, flow(m.measured), flow(m.reconciled), flow(m.sigma), flow(m.reconciledSigma), test, '', state]);
+      rows.push([tag, r.kind, r.stream, flow(m.measured), flow(m.reconciled), flow(m.sigma), flow(m.reconciledSigma), test, state]);
     } else if (r.fractions) {
       const fr = Object.entries(r.fractions);
       fr.forEach(([id, e], k) => {
-        rows.push([k === 0 ? tag : '', k === 0 ? r.kind : '', k === 0 ? r.stream : '', `${id} ${e.measured === null ? '-' : num(e.measured, 4)}`, e.reconciled === null ? '-' : num(e.reconciled, 4), e.sigma === null ? '-' : num(e.sigma, 3), e.reconciledSigma === null ? '-' : num(e.reconciledSigma, 3), k === 0 ? test : '', '', k === 0 ? state : '']);
+        rows.push([k === 0 ? tag : '', k === 0 ? r.kind : '', k === 0 ? r.stream : '', `${id} ${e.measured === null ? '-' : num(e.measured, 4)}`, e.reconciled === null ? '-' : num(e.reconciled, 4), e.sigma === null ? '-' : num(e.sigma, 3), e.reconciledSigma === null ? '-' : num(e.reconciledSigma, 3), k === 0 ? test : '', k === 0 ? state : '']);
       });
-    } else rows.push([tag, r.kind, r.stream, '-', '-', '-', '-', test, '', state]);
+    } else rows.push([tag, r.kind, r.stream, '-', '-', '-', '-', test, state]);
   }
-  out.push(table(['tag', 'kind', 'stream', 'measured', 'reconciled', 'sigma', 'sigma after', 'test', '', 'state'], rows, ['left', 'left', 'left', 'right', 'right', 'right', 'right', 'right', 'left', 'left']).replace(/ {2}\n/g, '\n'));
+  out.push(table(['tag', 'kind', 'stream', 'measured', 'reconciled', 'sigma', 'sigma after', 'test', 'state'], rows, ['left', 'left', 'left', 'right', 'right', 'right', 'right', 'right', 'left']));
   out.push('');
   const g = report.globalTest;
   if (g.passed === null) out.push('Global test: none (no redundancy: nothing checks the readings)');

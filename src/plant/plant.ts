@@ -342,7 +342,7 @@ export class PlantReconciliation {
       }
       report.afterRemoving = after;
     }
-    this.describeEstimates(report, final, serial.suspects.length > 0);
+    this.describeEstimates(report, final, serial.suspects.length > 0, usable);
     const pct = (v: number) => `${v >= 0 ? '+' : ''}${(v * 100).toFixed(1)} %`;
     if (initial.status === 'not-redundant') {
       report.status = 'not-redundant';
@@ -438,7 +438,7 @@ export class PlantReconciliation {
     rep.suspect = indices.some((j) => removed.has(j));
   }
 
-  private describeEstimates(report: PlantReport, res: ReconcileResult, afterSuspects: boolean): void {
+  private describeEstimates(report: PlantReport, res: ReconcileResult, afterSuspects: boolean, usable: Map<string, RowReading>): void {
     const ok = res.status === 'reconciled' || res.status === 'not-redundant';
     for (const fig of this.network.figures) {
       const fp = this.fileParameters.get(fig.path);
@@ -450,7 +450,8 @@ export class PlantReconciliation {
       if (d.value === null && !isParameter && ok && !Number.isFinite(fig.value(Float64Array.from(this.network.start)))) continue;
       report.parameters[fig.path] = { value: d.value, sigma: d.uncertainty, unit, ...(file !== undefined ? { file } : {}), parameter: isParameter, observable: d.value !== null };
     }
-    const metered = new Set(this.model.instruments.filter((d) => d.kind !== 'analyzer' && d.kind !== 'pressure' && d.kind !== 'temperature').map((d) => d.stream));
+    // Streams that a flow instrument reads in this row are reported with the instrument.
+    const metered = new Set(this.model.instruments.filter((d) => this.network.instruments.get(d.tag)!.variable !== undefined && usable.has(d.tag) && !report.instruments[d.tag].suspect).map((d) => d.stream));
     for (const [name, s] of this.network.streams) {
       if (metered.has(name)) continue;
       const d = ok ? derivedEstimate(res, (x) => totalOf(s, x)) : { value: null, uncertainty: null };
