@@ -174,7 +174,7 @@ function readInstrument(
       if (v === undefined) ok = false;
       else decl.normalized = v;
     }
-    if (decl.normalized !== false && decl.components && decl.components.length === 1) {
+    if (ok && decl.normalized !== false && decl.components && decl.components.length === 1) {
       r.bag.error(`analyzer \`${e.key}\` reads one component normalized over the components it lists: its reading is always 1`, r.at(ce?.value ?? e.keyNode),
         'add `normalized: false` when it reads the fraction in the whole stream, or list the other components it reads');
       ok = false;
