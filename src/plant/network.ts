@@ -322,10 +322,10 @@ export function buildNetwork(model: Model, design?: FlowsheetResult): Network {
 
   type Term = [number, number, number];
   const rows: { name: string; terms: Term[] }[] = [];
-  /** Terms of coef x flow(s, i) [x mult]. */
-  const flowTerms = (s: StreamVars, i: number, coef: number, mult = -1): Term[] => {
-    if (s.total !== undefined) return s.z![i] !== 0 ? [[coef * s.z![i], s.total, mult]] : [];
-    return s.flows![i] >= 0 ? [[coef, s.flows![i], mult]] : [];
+  /** Terms of coef x flow(s, i) [x times]. */
+  const flowTerms = (s: StreamVars, i: number, coef: number, times = -1): Term[] => {
+    if (s.total !== undefined) return s.z![i] !== 0 ? [[coef * s.z![i], s.total, times]] : [];
+    return s.flows![i] >= 0 ? [[coef, s.flows![i], times]] : [];
   };
 
   const units: UnitVars[] = [];

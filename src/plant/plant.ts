@@ -302,6 +302,8 @@ export class PlantReconciliation {
       for (let j = 0; j < n; j++) if (Number.isFinite(initial.x[j])) start[j] = initial.x[j];
       initial = this.prepared.solve({ values, sigmas, start });
     }
+    // Serial elimination starts its solves from the reconciliation with every reading.
+    if (initial.status === 'reconciled' || initial.status === 'not-redundant') for (let j = 0; j < n; j++) if (Number.isFinite(initial.x[j])) start[j] = initial.x[j];
     const serial = serialElimination(this.prepared, { values, sigmas, start }, { initial, maxSuspects: this.options.maxSuspects });
     const final = serial.final;
 
