@@ -3,7 +3,7 @@
 // runs after a warm-up; comparisons are ratios measured in the same run (absolute times on a
 // shared machine drift from run to run).
 //
-//   node bench/run.mjs [--json] [--quick] [--root DIR] [--only meter,gerg,demos,scaling,sweep,cold]
+//   node bench/run.mjs [--json] [--quick] [--root DIR] [--only meter,gerg,demos,scaling,sweep,cold,plant]
 //
 // --root DIR benchmarks another build of the project (DIR/dist/index.mjs, DIR/bin/loopclose.js,
 // DIR/flowsheets), e.g. a copy of an earlier commit, so before and after come from one machine.
@@ -27,7 +27,7 @@ const value = (f, d) => {
 const json = flag('--json');
 const quick = flag('--quick');
 const root = resolve(value('--root', join(here, '..')));
-const only = new Set((value('--only', 'meter,gerg,demos,scaling,sweep,cold')).split(','));
+const only = new Set((value('--only', 'meter,gerg,demos,scaling,sweep,cold,plant')).split(','));
 const libPath = join(root, 'dist', 'index.mjs');
 const cliPath = join(root, 'bin', 'loopclose.js');
 if (!existsSync(libPath)) {
@@ -237,6 +237,37 @@ if (only.has('cold')) {
     ['loopclose meter methanol-pilot.yaml', fmt(meter.ms), meter.status, '<= 250'],
     ['loopclose solve methanol-pilot.yaml', fmt(solve.ms), solve.status, ''],
   ]));
+}
+
+// ---------------------------------------------------------------------------------------------
+// 6. Plant data: one snapshot in-process (bench/reconcile.mjs: the engine on a 5-stream,
+//    4-element methanol loop), the ammonia demo's snapshot through the plant layer, and the
+//    demo's year of hourly rows (8,760) through the CLI, whole process.
+// ---------------------------------------------------------------------------------------------
+if (only.has('plant')) {
+  say('\n6. Plant data (reconciliation)');
+  const engine = spawnSync(process.execPath, [join(here, 'reconcile.mjs'), '--json', ...(quick ? ['--quick'] : []), '--root', root], { encoding: 'utf8' });
+  let e;
+  try {
+    e = JSON.parse(engine.stdout);
+  } catch {
+    e = undefined;
+  }
+  const demo = flowsheetPath('ammonia-loop.yaml');
+  const year = join(root, 'flowsheets', 'data', 'ammonia-loop-year.csv');
+  const rows = [];
+  if (e) rows.push([`one snapshot, 5 streams, 4 elements (${e.problem.variables} variables), in-process`, fmt(e.snapshotMs, 3), fmt(e.snapshotCpuMs, 3), '<= 2']);
+  else rows.push(['one snapshot, 5 streams, 4 elements, in-process', `failed (exit ${engine.status})`, '', '<= 2']);
+  const ammonia = existsSync(demo) ? demo : undefined;
+  out.plant = { engine: e ?? { exit: engine.status, stderr: engine.stderr.slice(0, 2000) } };
+  if (existsSync(year) && ammonia) {
+    const runs = quick ? 1 : 3;
+    const t = processTime(process.execPath, [cliPath, 'reconcile', demo, '--readings', year], { runs, warmup: 0 });
+    out.plant.yearMs = t.ms;
+    out.plant.yearExit = t.status;
+    rows.push([`8760 hourly rows of ${'ammonia-loop-year.csv'}, whole process (CSV to a pipe)`, fmt(t.ms, 5), '', '<= 5000']);
+  }
+  say(table(['case', 'wall ms', 'cpu ms', 'aim ms'], rows));
 }
 
 if (json) process.stdout.write(`${JSON.stringify(out, null, 2)}\n`);

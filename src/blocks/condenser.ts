@@ -58,6 +58,11 @@ function makeDef(type: 'condenser' | 'flash'): BlockDef<CondenserSpec> {
         openOutlet: (k, id) => `let some \`${id}\` go to \`${spec.outlets[k]}\` in the \`split\` of \`${spec.name}\``,
       };
     },
+    balances(spec, model) {
+      // The fraction of each component that leaves as liquid (the `split` parameter of a split
+      // model; a figure of the data for an equilibrium flash).
+      return { law: 'components', figures: model.ids.map((id, i) => ({ path: `${spec.name}.split.${id}`, value: (v) => v.outlet(1, i) / v.inlet(i) })) };
+    },
   };
 }
 

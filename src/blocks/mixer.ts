@@ -39,4 +39,5 @@ export const mixer: BlockDef<MixerSpec> = {
       summary: () => ({ figures: [], notes: spec.T === undefined ? ['outlet T is the flow-weighted mean of the inlets (no energy balance yet)'] : [] }),
     };
   },
+  balances: () => ({ law: 'components' }),
 };

@@ -238,6 +238,23 @@ export const reactor: BlockDef<ReactorSpec> = {
       })),
     ];
   },
+  balances(spec) {
+    // Conversion per pass of each reaction's key: its extent times the key's coefficient over
+    // what reaches it (the inlet; in sequence, what the reactions before it leave).
+    return {
+      law: 'elements',
+      reactions: spec.reactions.map((rx) => ({ nu: rx.nu, label: rx.equation })),
+      figures: spec.reactions.map((rx, r) => ({
+        path: `${spec.name}.reactions.${r}.${rx.conversion !== undefined ? 'conversion' : 'extent'}`,
+        value: (v) => {
+          if (rx.conversion === undefined) return v.extent(r);
+          let key = v.inlet(rx.key);
+          if (spec.sequence) for (let q = 0; q < r; q++) key += spec.reactions[q].nu[rx.key] * v.extent(q);
+          return (v.extent(r) * -rx.nu[rx.key]) / key;
+        },
+      })),
+    };
+  },
   structure(spec, model) {
     return {
       passes: () => true,

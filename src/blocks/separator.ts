@@ -89,4 +89,11 @@ export const separator: BlockDef<SeparatorSpec> = {
     };
   },
   edit: editOutletFraction,
+  balances(spec, model) {
+    // The recovery of each component to each outlet (a parameter where the file writes one).
+    return {
+      law: 'components',
+      figures: spec.outlets.flatMap((o, k) => model.ids.map((id, i) => ({ path: `${spec.name}.out.${o}.${id}`, value: (v) => v.outlet(k, i) / v.inlet(i) }))),
+    };
+  },
 };

@@ -83,4 +83,10 @@ export const splitter: BlockDef<SplitterSpec> = {
     };
   },
   edit: editOutletFraction,
+  balances(spec) {
+    return {
+      law: 'split',
+      figures: spec.outlets.map((o, k) => ({ path: `${spec.name}.out.${o}`, value: (v) => v.outlet(k) / v.inlet() })),
+    };
+  },
 };

@@ -101,6 +101,41 @@ export interface StructureRules {
   check?(inlet: Uint8Array, report: (message: string, help: string) => void): void;
 }
 
+/**
+ * What a unit conserves, for the reconciliation of plant data (src/plant/network.ts). A unit's
+ * specifications (a conversion, a split, a recovery) are not used there: the data decide them,
+ * and the unit names the figures they decide by their paths.
+ */
+export interface BalanceDecl {
+  /**
+   * components: each component's flow in equals its flow out (mixer, condenser, separator);
+   * elements: each element's flow in equals its flow out, with the reactions' extents free
+   *   (reactor); `reactions` are the extents the file writes (other element-balanced changes,
+   *   if the elements allow any, get free extents of their own);
+   * split: as components, and every outlet has the inlet's composition (splitter).
+   */
+  law: 'components' | 'elements' | 'split';
+  reactions?: readonly { nu: Float64Array; label: string }[];
+  /** Figures the data decide, by path (a parameter of the file where the path is one). */
+  figures?: readonly BalanceFigure[];
+}
+
+/** The reconciled flows around one unit, as a figure reads them (mol/s). */
+export interface BalanceView {
+  /** Flow of component i into the unit (all inlets), or the total when i is undefined. */
+  inlet(i?: number): number;
+  /** Flow of component i in outlet k, or its total. */
+  outlet(k: number, i?: number): number;
+  /** Extent of the unit's reaction r (law elements). */
+  extent(r: number): number;
+}
+
+export interface BalanceFigure {
+  /** `converter.reactions.0.conversion`, `purge-split.out.purge`, `chiller.split.NH3`. */
+  path: string;
+  value(v: BalanceView): number;
+}
+
 /** A study's edit of one parameter in a block's settings. */
 export type ParameterEdit = SettingMap | { error: string; help?: string };
 
@@ -122,4 +157,6 @@ export interface BlockDef<S extends UnitSpecBase = UnitSpecBase> {
    * is not the whole story (a splitter's other outlet); default: the value is set as it is.
    */
   edit?(name: string, settings: SettingMap, key: readonly string[], value: number): ParameterEdit;
+  /** What the unit conserves, for plant-data reconciliation (default: none: the unit cannot be reconciled). */
+  balances?(spec: S, model: Model): BalanceDecl;
 }

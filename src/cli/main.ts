@@ -7,6 +7,7 @@ import { runMeter } from './meter.js';
 import { runSolve } from './solve.js';
 import { registerSweep } from './sweep.js';
 import { registerMerge } from './merge.js';
+import { registerReconcile } from './reconcile.js';
 import { readFileSync } from 'node:fs';
 
 const VERSION = '0.1.0';
@@ -179,6 +180,9 @@ export async function main(argv: string[]): Promise<void> {
   registerMerge(program, (c) => {
     code = c;
   });
+  registerReconcile(program, (c) => {
+    code = c;
+  }, emit);
 
   try {
     await program.parseAsync(argv);

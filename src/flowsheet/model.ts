@@ -11,6 +11,7 @@ import type { ComponentData, EosName } from '../thermo/types.js';
 import type { StandardRef } from '../units/index.js';
 import type { Plan } from './graph.js';
 import type { OwnerSettings } from './settings.js';
+import type { InstrumentDecl, ReadingDecl } from '../plant/declarations.js';
 
 export interface ThermoSpec {
   eos: EosName;
@@ -128,6 +129,9 @@ export interface Model {
   unitSpans: ReadonlyMap<string, SourceSpan | undefined>;
   /** What each feed (`feeds.NAME`) and unit (`NAME`) read, by that prefix: the parameter layer. */
   settings: ReadonlyMap<string, OwnerSettings>;
+  /** The plant's instruments and its snapshot of readings (`instruments:`, `readings:`; src/plant). */
+  instruments: readonly InstrumentDecl[];
+  readings: ReadonlyMap<string, ReadingDecl>;
   warnings: readonly Diagnostic[];
 }
 

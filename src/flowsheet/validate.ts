@@ -20,8 +20,9 @@ import { Reader, SourceFile, MAX_FILE_BYTES, type Entry } from './source.js';
 import { checkStructure } from './structure.js';
 import { YamlFields, type FieldContext, type Recording } from './yaml-fields.js';
 import { findRecycles } from './recycles.js';
+import { readPlantSections } from '../plant/read.js';
 
-const TOP_KEYS = ['title', 'components', 'thermo', 'display', 'feeds', 'units', 'tears', 'solver', 'targets'] as const;
+const TOP_KEYS = ['title', 'components', 'thermo', 'display', 'feeds', 'units', 'tears', 'solver', 'targets', 'instruments', 'readings'] as const;
 
 export type { LoadedFile } from './model.js';
 
@@ -228,6 +229,7 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag()): Load
 
   const solver = readSolver(r, get('solver'));
   const targets = readTargets(r, get('targets'));
+  const plant = readPlantSections(r, get('instruments'), get('readings'), ctx, streamSpans, feedsUnreadable ? null : maybeMade);
 
   if (bag.hasErrors) throw new InputError(bag.items);
   const graph: GraphUnit[] = units.map((u) => ({ name: u.name, inlets: u.inlets, outlets: u.outlets }));
@@ -237,7 +239,8 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag()): Load
     file: path, title: title ?? undefined, components, ids, index, elements,
     thermo: { eos: thermo.eos, ...(thermo.meterEos ? { meterEos: thermo.meterEos } : {}), kij, atmosphere: thermo.atmosphere, standards: new FrozenMap(thermo.standards) }, display,
     feeds, units, tears, plan, solver, targets,
-    streamSpans: new FrozenMap(streamSpans), unitSpans: new FrozenMap(unitSpans), settings: new FrozenMap(settings), warnings: [],
+    streamSpans: new FrozenMap(streamSpans), unitSpans: new FrozenMap(unitSpans), settings: new FrozenMap(settings),
+    instruments: plant.instruments, readings: new FrozenMap(plant.readings), warnings: [],
   };
   // Structure: whether a steady state can exist at all (see structure.ts).
   checkStructure(model, bag);

@@ -69,6 +69,9 @@ export interface SerialOptions {
   /** Variable indices that must stay determined (measured or observable). Default: every
    *  variable determined in the reconciliation with all readings. */
   required?: readonly number[];
+  /** The reconciliation of this snapshot with every reading, when the caller has it already
+   *  (prepared.solve(snapshot)): it is not solved again. */
+  initial?: ReconcileResult;
 }
 
 const TIE = 1e-6;
@@ -77,7 +80,7 @@ export function serialElimination(prepared: PreparedReconciliation, snapshot: Sn
   const baseUnmeasured = snapshot.unmeasured ?? [];
   const removed: number[] = [];
   const solveWithout = () => prepared.solve({ ...snapshot, unmeasured: [...baseUnmeasured, ...removed] });
-  const initial = solveWithout();
+  const initial = options.initial ?? solveWithout();
   if (initial.status === 'invalid' || initial.status === 'not-converged') {
     return { status: initial.status, stopReason: initial.status, message: initial.message, suspects: [], initial, final: initial };
   }

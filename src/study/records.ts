@@ -129,14 +129,15 @@ export function parseHeader(lines: readonly string[]): SweepHeader | undefined {
     } catch {
       return undefined;
     }
-    if (o.loopclose !== 'sweep' || typeof o.digest !== 'string') return undefined;
+    // A reconciliation over time (src/plant/rows.ts) writes the same layout under its own kind.
+    if ((o.loopclose !== 'sweep' && o.loopclose !== 'reconcile') || typeof o.digest !== 'string') return undefined;
     return {
       format: 'jsonl', digest: o.digest, flowsheet: String(o.flowsheet), command: String(o.command), points: Number(o.points),
       shape: (o.shape as number[]) ?? [], block: Number(o.block), shard: String(o.shard),
       inputs: (o.inputs as Column[]) ?? [], outputs: (o.outputs as Column[]) ?? [], adjusted: (o.adjusted as Column[]) ?? [],
     };
   }
-  const m = /^# loopclose sweep ([0-9a-f]{64}) (.*)$/.exec(first);
+  const m = /^# loopclose (?:sweep|reconcile) ([0-9a-f]{64}) (.*)$/.exec(first);
   const c = /^# command: (.*)$/.exec(lines[1] ?? '');
   if (!m || !c || lines.length < 4) return undefined;
   const kv = new Map(m[2].split(' ').map((pair) => pair.split('=') as [string, string]));

@@ -1,0 +1,111 @@
+/**
+ * Reconciliation of a flowsheet file's instruments (src/plant/plant.ts, network.ts) against
+ * Narasimhan and Jordache, "Data Reconciliation and Gross Error Detection" (Gulf, 2000),
+ * Example 1.1 (heat exchanger with bypass), written as a flowsheet of a splitter and mixers
+ * (test/plant/flowsheets/bypass.yaml), and its redundancy and observability cases.
+ */
+import { inverse, Matrix } from 'ml-matrix';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { loadFlowsheet } from '../../src/flowsheet/load.js';
+import { preparePlant, type RowReading } from '../../src/plant/plant.js';
+
+const FILE = join(__dirname, 'flowsheets', 'bypass.yaml');
+const { model } = loadFlowsheet(FILE);
+const plant = preparePlant(model);
+const TAGS = ['F1', 'F2', 'F3', 'F4', 'F5', 'F6'];
+// Readings of the example (from memory), sigma 1.
+const Y = [101.91, 64.45, 34.65, 64.2, 36.44, 98.88];
+
+function run(measured: number[]) {
+  const readings = new Map<string, RowReading>();
+  for (const k of measured) readings.set(TAGS[k], { value: Y[k] });
+  return plant.run({ readings }).report;
+}
+
+/** Lagrange solution x = y - V A'(A V A')^-1 A y of the network's balances (all six measured, V = I). */
+function lagrange(): number[] {
+  const A = new Matrix([
+    [1, -1, -1, 0, 0, 0],
+    [0, 1, 0, -1, 0, 0],
+    [0, 0, 1, 0, -1, 0],
+    [0, 0, 0, 1, 1, -1],
+  ]);
+  const y = Matrix.columnVector(Y);
+  const K = A.transpose().mmul(inverse(A.mmul(A.transpose())));
+  return y.sub(K.mmul(A.mmul(y))).to1DArray();
+}
+
+describe('Narasimhan and Jordache (2000), Example 1.1 as a flowsheet: all six flows measured', () => {
+  const r = run([0, 1, 2, 3, 4, 5]);
+
+  it('reconciles to 100.22, 64.50, 35.72, 64.50, 35.72, 100.22 (the published values, from memory)', () => {
+    expect(r.status).toBe('reconciled');
+    const published = [100.22, 64.5, 35.72, 64.5, 35.72, 100.22];
+    TAGS.forEach((t, k) => expect(r.instruments[t].molarFlow!.reconciled!).toBeCloseTo(published[k], 2));
+  });
+
+  it('equals the Lagrange closed form of the same balances to 1e-8', () => {
+    const x = lagrange();
+    TAGS.forEach((t, k) => expect(Math.abs(r.instruments[t].molarFlow!.reconciled! - x[k])).toBeLessThan(1e-8));
+  });
+
+  it('has redundancy 4 and a global test with 4 degrees of freedom on the weighted sum of squared adjustments', () => {
+    expect(r.redundancy).toBe(4);
+    const x = lagrange();
+    const gamma = x.reduce((s, v, k) => s + (v - Y[k]) ** 2, 0);
+    expect(r.globalTest.dof).toBe(4);
+    expect(r.globalTest.statistic!).toBeCloseTo(gamma, 8);
+  });
+
+  it('fits the split fraction of the bypass from the data, not from the file (0.65 in the file)', () => {
+    const p = r.parameters['split.out.s3'];
+    expect(p.parameter).toBe(true);
+    expect(p.file).toBeCloseTo(0.35, 12);
+    expect(p.value!).toBeCloseTo(35.72 / 100.22, 3);
+    expect(p.sigma!).toBeGreaterThan(0);
+  });
+
+  it('closes the raw balance from the readings alone: (101.91 - 98.88) / 101.91 with u = sqrt(1 + (98.88/101.91)^2) / 101.91, k = 2', () => {
+    const m = r.closure.mass!;
+    expect(m.relative).toBeCloseTo((101.91 - 98.88) / 101.91, 10);
+    expect(m.uncertainty).toBeCloseTo((2 * Math.sqrt(1 + (98.88 / 101.91) ** 2)) / 101.91, 10);
+  });
+});
+
+describe('Narasimhan and Jordache (2000), Example 1.1: redundancy and observability', () => {
+  it('flows 1, 3 and 5 measured: 3 and 5 are redundant (F3 = F5), 1 is not; 2, 4 and 6 are observable', () => {
+    const r = run([0, 2, 4]);
+    expect(r.status).toBe('reconciled');
+    expect(r.redundancy).toBe(1);
+    expect(r.instruments.F1.classification).toBe('non-redundant');
+    expect(r.instruments.F3.classification).toBe('redundant');
+    expect(r.instruments.F5.classification).toBe('redundant');
+    const f35 = (34.65 + 36.44) / 2;
+    expect(r.instruments.F3.molarFlow!.reconciled!).toBeCloseTo(f35, 8);
+    expect(r.instruments.F1.molarFlow!.reconciled!).toBeCloseTo(101.91, 8);
+    for (const s of ['s2', 's4', 's6']) expect(r.unmeasured[`streams.${s}.total`].observable).toBe(true);
+    expect(r.unmeasured['streams.s2.total'].value!).toBeCloseTo(101.91 - f35, 8);
+    expect(r.unmeasured['streams.s6.total'].value!).toBeCloseTo(101.91, 8);
+  });
+
+  it('flows 1 and 6 measured: both redundant (F1 = F6); the flows through the exchanger and the bypass are not observable', () => {
+    const r = run([0, 5]);
+    expect(r.redundancy).toBe(1);
+    expect(r.instruments.F1.classification).toBe('redundant');
+    expect(r.instruments.F1.molarFlow!.reconciled!).toBeCloseTo((101.91 + 98.88) / 2, 8);
+    for (const s of ['s2', 's3', 's4', 's5']) {
+      const u = r.unmeasured[`streams.${s}.total`];
+      expect(u.observable).toBe(false);
+      expect(u.value).toBeNull();
+    }
+    expect(r.parameters['split.out.s3'].observable).toBe(false);
+  });
+
+  it('flow 1 alone: nothing to check (status not-redundant), no test', () => {
+    const r = run([0]);
+    expect(r.status).toBe('not-redundant');
+    expect(r.globalTest.passed).toBeNull();
+    expect(r.closure.note).toMatch(/no flow reading on `s6`/);
+  });
+});
