@@ -132,7 +132,7 @@ describe('loopclose reconcile --readings: one row per timestamp', () => {
     expect(r.stderr).toMatch(/did you mean `FI-310`/);
     expect(r.stderr).toMatch(/has no column `FI-310` for instrument `FI-310`/);
     expect(r.stderr).toMatch(/`AI-120` does not read `NH4`/);
-    expect(r.stderr).toMatch(/bad\.csv:2:\d+: error: `[^`]*`: the unit of column `TI-101`: .*expected a temperature/);
+    expect(r.stderr).toMatch(/bad\.csv:2:\d+: error: `[^`]*`: the unit of column `TI-101`: .*a temperature is wanted here/);
     expect(readFileSync(out, 'utf8')).toBe('');
   });
 
