@@ -8,22 +8,22 @@
  * F = Q sqrt(rho_d rho) / M (ISO 5167-1:2003, clause 4). A standard volume flow at a reference
  * is F = Q_ref / v_ref (real-gas molar volume at the reference, ISO 13443, or ideal).
  *
- * The budget is a function passed in (FlowBudget), so that another budget (one that counts the
- * equation of state's own uncertainty against a reference equation) can replace this default.
- * The default combines, by the law of propagation of uncertainty for uncorrelated inputs
- * (JCGM 100:2008, "Guide to the expression of uncertainty in measurement", Sec. 5.1.2, eq. (10)):
- *   - the instrument's own standard uncertainty (its stated U / 2), sensitivity dF/dQ = F / Q;
- *   - the line pressure's and temperature's standard uncertainties (their instruments' U / 2),
- *     sensitivities dF/dP and dF/dT by central differences of the conversion;
- *   - the equation of state's model uncertainty: 0 here, with the note "model uncertainty not
- *     yet counted".
- * The composition used for the conversion is taken as exact (its uncertainty is not counted).
+ * The budget is a function passed in (FlowBudget); the one used (meterFlowBudget) is the meters'
+ * own (src/thermo/meter-budget.ts), which combines by the law of propagation of uncertainty for
+ * uncorrelated inputs (JCGM 100:2008, Sec. 5.1.2, eq. (10)) the instrument's own standard
+ * uncertainty (its stated U / 2), the line pressure's and temperature's (their instruments' U / 2)
+ * through the analytic sensitivities of the molar volume, and the equation of state's own: the
+ * stated figure of GERG-2008 where it converts the reading, else SRK/PR measured against GERG-2008
+ * at that gas and state. The composition used for the conversion is taken as exact (its
+ * uncertainty is not counted).
  */
 import type { MeterDesign } from '../flowsheet/model.js';
 import { R } from '../thermo/constants.js';
 import type { Eos } from '../thermo/types.js';
 import type { StandardRef } from '../units/index.js';
 import type { FlowKind } from './declarations.js';
+import { meterBudget } from '../thermo/meter-budget.js';
+import type { MeterEos } from '../thermo/meter-eos.js';
 
 export interface FlowBudgetInput {
   tag: string;
@@ -64,7 +64,6 @@ export interface FlowBudgetResult {
 /** A flow instrument's converted reading and combined standard uncertainty. */
 export type FlowBudget = (input: FlowBudgetInput) => FlowBudgetResult;
 
-export const MODEL_NOT_COUNTED = 'model uncertainty not yet counted';
 
 function molarMass(eos: Eos, x: ArrayLike<number>): number {
   let m = 0;
@@ -92,40 +91,51 @@ export function standardMolarFlow(eos: Eos, Q: number, ref: StandardRef, realGas
   return (Q * ref.P) / (Z * R * ref.T);
 }
 
-/** The default budget: instrument, line P and T (meters), model uncertainty 0 with a note. */
-export const defaultFlowBudget: FlowBudget = (input) => {
-  const { kind, reading, instrument, eos, composition: x } = input;
-  const notes: string[] = [];
-  if (kind === 'mass' || kind === 'molar') {
-    return { value: reading, basis: kind === 'mass' ? 'mass' : 'molar', sigma: instrument, terms: [{ source: 'instrument', sigma: instrument }], notes };
-  }
-  if (kind === 'standard') {
-    const ref = input.reference!;
-    const F = standardMolarFlow(eos, reading, ref, input.realGas ?? true, x);
-    const uQ = reading > 0 ? (F / reading) * instrument : standardMolarFlow(eos, instrument, ref, input.realGas ?? true, x);
-    const terms: BudgetTerm[] = [
-      { source: 'instrument', sigma: uQ },
-      { source: 'equation of state', sigma: 0, note: MODEL_NOT_COUNTED },
-    ];
-    return { value: F, basis: 'molar', sigma: uQ, terms, notes };
-  }
-  // Meter.
-  const line = input.line!;
-  const f = (Q: number, T: number, P: number) => meterMolarFlow(eos, Q, T, P, x, input.design);
-  const F = f(reading, line.T, line.P);
-  const perQ = f(1, line.T, line.P);
-  const uQ = perQ * instrument;
-  const hP = 1e-4 * line.P;
-  const hT = 1e-4 * line.T;
-  const dFdP = (f(reading, line.T, line.P + hP) - f(reading, line.T, line.P - hP)) / (2 * hP);
-  const dFdT = (f(reading, line.T + hT, line.P) - f(reading, line.T - hT, line.P)) / (2 * hT);
-  const terms: BudgetTerm[] = [
-    { source: 'instrument', sigma: uQ },
-    { source: `line pressure (${line.pressureTag})`, sigma: Math.abs(dFdP) * line.uP },
-    { source: `line temperature (${line.temperatureTag})`, sigma: Math.abs(dFdT) * line.uT },
-    { source: 'equation of state', sigma: 0, note: MODEL_NOT_COUNTED },
-  ];
-  let v = 0;
-  for (const t of terms) v += t.sigma * t.sigma;
-  return { value: F, basis: 'molar', sigma: Math.sqrt(v), terms, notes };
-};
+/**
+ * The budget of the project's meters (src/thermo/meter-budget.ts), for the balances: a meter
+ * through meterBudget (instrument, line pressure and temperature, and the equation of state's
+ * own uncertainty: GERG-2008's stated figure, or SRK/PR measured against GERG-2008); a standard
+ * volume flow through the meter EOS at its reference with the model's figure there; a mass or
+ * molar instrument as it reads.
+ */
+export function meterFlowBudget(meter: MeterEos): FlowBudget {
+  return (input) => {
+    const { kind, reading, instrument, composition: x } = input;
+    const notes: string[] = [];
+    if (kind === 'mass' || kind === 'molar') {
+      return { value: reading, basis: kind === 'mass' ? 'mass' : 'molar', sigma: instrument, terms: [{ source: 'instrument', sigma: instrument }], notes };
+    }
+    if (kind === 'standard') {
+      const ref = input.reference!;
+      const realGas = input.realGas ?? true;
+      const v = realGas ? meter.state(ref.T, ref.P, x).v : (R * ref.T) / ref.P;
+      const F = reading / v;
+      const terms: BudgetTerm[] = [{ source: 'instrument', sigma: reading > 0 ? (F / reading) * instrument : instrument / v }];
+      if (realGas) {
+        const mu = meter.modelUncertainty(ref.T, ref.P, x);
+        terms.push({ source: `equation of state at the reference (${mu.model})`, sigma: mu.relative === null ? 0 : F * mu.relative, note: mu.source });
+        notes.push(...mu.notes);
+      }
+      let u2 = 0;
+      for (const t of terms) u2 += t.sigma * t.sigma;
+      return { value: F, basis: 'molar', sigma: Math.sqrt(u2), terms, notes };
+    }
+    // A meter at line conditions.
+    const line = input.line!;
+    let designDensity: number | undefined;
+    if (input.design) {
+      const d = input.design;
+      const zc = d.composition ?? x;
+      designDensity = d.density ?? molarMass(input.eos, zc) / meter.state(d.T!, d.P!, zc).v;
+    }
+    const b = meterBudget(meter, { flow: reading, T: line.T, P: line.P, x, designDensity }, {
+      flow: reading > 0 ? instrument / reading : undefined, pressure: line.uP, temperature: line.uT,
+    });
+    const terms: BudgetTerm[] = b.lines.map((l) => ({
+      source: l.input === 'pressure' ? `line pressure (${line.pressureTag})` : l.input === 'temperature' ? `line temperature (${line.temperatureTag})` : l.input === 'flow' ? 'instrument' : l.label,
+      sigma: l.contribution,
+      ...(l.input === 'equation-of-state' || l.input === 'reference-equation' ? { note: l.source } : {}),
+    }));
+    return { value: b.molarFlow, basis: 'molar', sigma: b.combined, terms, notes: b.notes };
+  };
+}

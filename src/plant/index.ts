@@ -27,7 +27,7 @@ export type * from './types.js';
 // Plant data on a flowsheet (instruments and readings of the file, its balances, one row at a time).
 export { preparePlant, PlantReconciliation, PLANT_RECONCILE_DEFAULTS, readingProblem } from './plant.js';
 export type { PlantOptions, PlantReport, PlantStatus, RowInput, RowReading, InstrumentReport, Estimate, ClosureEntry, GlobalTestReport } from './plant.js';
-export { defaultFlowBudget, meterMolarFlow, standardMolarFlow, MODEL_NOT_COUNTED } from './budget.js';
+export { meterFlowBudget, meterMolarFlow, standardMolarFlow } from './budget.js';
 export type { FlowBudget, FlowBudgetInput, FlowBudgetResult, BudgetTerm } from './budget.js';
 export { buildNetwork } from './network.js';
 export type { Network } from './network.js';

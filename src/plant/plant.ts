@@ -26,7 +26,8 @@ import { parameter } from '../study/parameters.js';
 import { makeEos } from '../thermo/eos.js';
 import type { Eos } from '../thermo/types.js';
 import type { StandardRef } from '../units/index.js';
-import { defaultFlowBudget, type FlowBudget, type FlowBudgetResult } from './budget.js';
+import { meterFlowBudget, type FlowBudget, type FlowBudgetResult } from './budget.js';
+import { meterEosFor } from '../thermo/meter-eos.js';
 import { closure as rawClosure, type ClosureTerm } from './closure.js';
 import { standardUncertainty, type InstrumentDecl } from './declarations.js';
 import { derivedEstimate } from './derived.js';
@@ -151,7 +152,7 @@ export class PlantReconciliation {
     this.network = buildNetwork(model, design);
     if (design.status !== 'converged') this.network.notes.push(`the design solve of the file is ${design.status}: the reconciliation starts from rough values`);
     this.eos = makeEos(model.thermo.eos, model.components, model.thermo.kij);
-    this.budget = options.budget ?? defaultFlowBudget;
+    this.budget = options.budget ?? meterFlowBudget(meterEosFor(model.thermo.meterEos, this.eos));
     this.byTag = new Map(model.instruments.map((d) => [d.tag, d]));
     this.prepared = prepareReconciliation({ variables: this.network.variables, constraints: this.network.constraints }, { ...PLANT_RECONCILE_DEFAULTS, ...options.reconcile });
     for (const fig of this.network.figures) {

@@ -7,7 +7,8 @@
 import { describe, expect, it } from 'vitest';
 import { computeFeed } from '../../src/blocks/feed.js';
 import type { FeedSpec } from '../../src/flowsheet/model.js';
-import { defaultFlowBudget, meterMolarFlow, MODEL_NOT_COUNTED } from '../../src/plant/budget.js';
+import { meterFlowBudget, meterMolarFlow } from '../../src/plant/budget.js';
+import { makeMeterEos } from '../../src/thermo/meter-eos.js';
 import { findComponent } from '../../src/thermo/components.js';
 import { makeEos } from '../../src/thermo/eos.js';
 
@@ -32,28 +33,35 @@ describe('meter conversion: the same as a metered feed', () => {
   });
 });
 
-describe('the default budget', () => {
-  it('ideal gas: line sensitivities are F/P and F/T exactly; terms combine in quadrature; the model term is 0 with its note', () => {
+describe('the meters\' budget in the balances', () => {
+  it('ideal gas: line sensitivities are F/P and F/T exactly; the equation of state measured against GERG-2008; terms combine in quadrature', () => {
     const eos = makeEos('ideal', comps);
     const Q = 0.01;
     const T = 300;
     const P = 30e5;
     const F = (Q * P) / (8.314462618 * T);
-    const b = defaultFlowBudget({
+    const budget = meterFlowBudget(makeMeterEos('ideal', eos));
+    const b = budget({
       tag: 'FI-1', kind: 'meter', reading: Q, instrument: 0.0001, composition: x, eos,
       line: { T, P, uT: 0.5, uP: 0.25e5, temperatureTag: 'TI-1', pressureTag: 'PI-1' },
     });
     expect(b.value).toBeCloseTo(F, 10);
-    const [inst, p, t, model] = b.terms;
+    const [inst, p, t, ...model] = b.terms;
+    expect(inst.source).toBe('instrument');
     expect(inst.sigma).toBeCloseTo((F / Q) * 0.0001, 12);
+    expect(p.source).toBe('line pressure (PI-1)');
     expect(p.sigma).toBeCloseTo((F / P) * 0.25e5, 8);
+    expect(t.source).toBe('line temperature (TI-1)');
     expect(t.sigma).toBeCloseTo((F / T) * 0.5, 8);
-    expect(model).toEqual({ source: 'equation of state', sigma: 0, note: MODEL_NOT_COUNTED });
-    expect(b.sigma).toBeCloseTo(Math.hypot(inst.sigma, p.sigma, t.sigma), 12);
+    // The ideal-gas law against GERG-2008 at 30 bar: a measured, non-zero figure.
+    expect(model.length).toBeGreaterThan(0);
+    expect(model[0].sigma).toBeGreaterThan(0);
+    expect(model[0].note).toMatch(/GERG-2008/);
+    expect(b.sigma).toBeCloseTo(Math.hypot(...b.terms.map((x) => x.sigma)), 12);
   });
   it('mass and molar readings pass through with the instrument\'s own uncertainty', () => {
     const eos = makeEos('ideal', comps);
-    const b = defaultFlowBudget({ tag: 'FI-2', kind: 'mass', reading: 2, instrument: 0.01, composition: x, eos });
+    const b = meterFlowBudget(makeMeterEos('ideal', eos))({ tag: 'FI-2', kind: 'mass', reading: 2, instrument: 0.01, composition: x, eos });
     expect(b).toMatchObject({ value: 2, basis: 'mass', sigma: 0.01 });
   });
 });

@@ -50,9 +50,10 @@ describe('loopclose reconcile: one snapshot', () => {
     expect(typeof conv.value).toBe('number');
     expect(typeof conv.sigma).toBe('number');
     expect(o.unmeasured['streams.converter-out.total']).toMatchObject({ observable: true });
-    // The meter's budget: instrument, line pressure, line temperature, and the model's share not yet counted.
-    expect(fi.budget.terms.map((t: { source: string }) => t.source)).toEqual(['instrument', 'line pressure (PI-101)', 'line temperature (TI-101)', 'equation of state']);
-    expect(fi.budget.terms[3].note).toBe('model uncertainty not yet counted');
+    // The meter's budget: instrument, line pressure, line temperature, and the equation of state
+    // (SRK measured against GERG-2008 at this gas and state, with GERG-2008's own stated figure).
+    expect(fi.budget.terms.map((t: { source: string }) => t.source)).toEqual(['instrument', 'line pressure (PI-101)', 'line temperature (TI-101)', 'equation of state (SRK)', 'reference equation (GERG-2008)']);
+    expect(fi.budget.terms[3].note).toMatch(/^measured: SRK differs from GERG-2008 by -0\.5\d+ %/);
   });
 
   it('--csv: a header line and one row, with the status', () => {
