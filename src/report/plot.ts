@@ -8,7 +8,7 @@
 import { InputError } from '../diagnostics.js';
 import { CAUTION } from './format.js';
 import { esc } from './html/markup.js';
-import { axisKind, columnOf, OK_STATUS, parseTime, type StudyColumn, type StudyRow, type StudyTable } from './study-table.js';
+import { axisKind, columnOf, isAnswer, parseTime, type StudyColumn, type StudyRow, type StudyTable } from './study-table.js';
 
 export interface PlotOptions {
   /** Path of the x axis. */
@@ -143,7 +143,7 @@ function lineChart(t: StudyTable, r: Resolved, y: StudyColumn): VlSpec {
   for (const row of t.rows) {
     const x = xValue(row, r.x, r.xKind);
     if (x === undefined) continue;
-    const ok = row.status === OK_STATUS;
+    const ok = isAnswer(t.kind, row.status);
     const v = row.values.get(y.path);
     const yv = ok && typeof v === 'number' && Number.isFinite(v) ? v : null;
     const s = series ? seriesKey(row, r.series) : '';
@@ -218,7 +218,7 @@ function heatChart(t: StudyTable, r: Resolved, v: StudyColumn): VlSpec {
     xs.set(xl, x);
     ss.set(sl, sv);
     const value = row.values.get(v.path);
-    if (row.status === OK_STATUS && typeof value === 'number' && Number.isFinite(value)) ok.push({ x: xl, s: sl, v: value });
+    if (isAnswer(t.kind, row.status) && typeof value === 'number' && Number.isFinite(value)) ok.push({ x: xl, s: sl, v: value });
     else failed.push({ x: xl, s: sl, status: row.status });
   }
   const xOrder = [...xs.entries()].sort((a, b) => a[1] - b[1]).map((e) => e[0]);
@@ -287,13 +287,13 @@ td.n{text-align:right;font-variant-numeric:tabular-nums}
 function summary(t: StudyTable): string {
   const counts = new Map<string, number>();
   for (const r of t.rows) counts.set(r.status, (counts.get(r.status) ?? 0) + 1);
-  const failed = t.rows.length - (counts.get(OK_STATUS) ?? 0);
+  const failed = t.rows.filter((r) => !isAnswer(t.kind, r.status)).length;
   const parts = [...counts.entries()].map(([s, n]) => `${n} ${s || '(no status)'}`).join(', ');
   return `<p class="summary${failed ? ' some-failed' : ''}"><strong>${t.rows.length} ${t.kind === 'sweep' ? 'points' : 'rows'}:</strong> ${esc(parts || 'none')}</p>`;
 }
 
 function failedTable(t: StudyTable, limit = 40): string {
-  const failed = t.rows.filter((r) => r.status !== OK_STATUS);
+  const failed = t.rows.filter((r) => !isAnswer(t.kind, r.status));
   if (!failed.length) return '';
   const keys = t.columns.filter((c) => c.role === 'point' || c.role === 'input' || c.role === 'time');
   const rows = failed.slice(0, limit).map((r) => `<tr>${keys.map((c) => `<td class="n">${esc(label(r.values.get(c.path)))}</td>`).join('')}<td>${esc(r.status)}</td><td>${esc(r.message ?? '')}</td></tr>`);

@@ -38,8 +38,14 @@ export interface StudyTable {
   rows: StudyRow[];
 }
 
-/** A study row is a solution only with this status; every other status is a failed point. */
-export const OK_STATUS = 'converged';
+/**
+ * Whether a row holds an answer: a sweep's point only when converged; a reconciliation's row when
+ * it was reconciled (with or without gross errors found, or with nothing to test). Every other
+ * status is a failed point.
+ */
+export function isAnswer(kind: StudyKind, status: string): boolean {
+  return kind === 'reconcile' ? status === 'reconciled' || status === 'gross-error' || status === 'not-redundant' : status === 'converged';
+}
 
 function span(file: string, line: number, col = 1, length = 1): SourceSpan {
   return { file, line, col, endLine: line, endCol: col + length };

@@ -197,7 +197,9 @@ export function withValues(model: Model, values: readonly ParameterValue[], opts
     let s: SettingMap = own.settings;
     let ok = true;
     for (const { parameter: p, value } of list) {
-      const e = def.edit ? def.edit(own.name, s, p.key, value) : setIn(s, p.key, value);
+      // A standard volume flow is kept with its reference: the value is its `value`.
+      const key = p.reference !== undefined ? [...p.key, 'value'] : p.key;
+      const e = def.edit ? def.edit(own.name, s, key, value) : setIn(s, key, value);
       if (!isSettingMap(e as SettingMap)) {
         const r = e as { error: string; help?: string };
         diags.push({ severity: 'error', message: r.error, help: r.help, span: p.span });

@@ -84,3 +84,15 @@ describe('a model is frozen; a change is a new model', () => {
     expect(a1.streams.get('recycle')!.fractions[2]).toBeCloseTo(a2.streams.get('recycle')!.fractions[2], 10);
   });
 });
+
+describe('parameters of every kind of feed reading', () => {
+  it('a standard volume flow keeps its reference: doubled, the molar flow doubles', () => {
+    const { model } = loadFlowsheet('flowsheets/ammonia-loop.yaml');
+    const p = parameter(model, 'feeds.makeup.standard-flow');
+    expect(p.reference).toBe('normal');
+    const m2 = withValues(model, [{ parameter: p, value: 2 * p.value }]);
+    const a = solveFlowsheet(model);
+    const b = solveFlowsheet(m2);
+    expect(b.feeds[0].molarFlow / a.feeds[0].molarFlow).toBeCloseTo(2, 12);
+  });
+});
