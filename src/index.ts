@@ -38,3 +38,5 @@ export { solvePoint, parseTarget } from './study/point.js';
 export type { PointResult, TargetSpec, PointOptions } from './study/point.js';
 export { parseOutput, outputValue } from './study/outputs.js';
 export type { OutputRef } from './study/outputs.js';
+// Plant data: instruments and readings of a file reconciled against its balances (src/plant).
+export * from './plant/index.js';
