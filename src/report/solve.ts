@@ -87,6 +87,39 @@ function lastTears(r: FlowsheetResult): { stream: string; flows: Record<string, 
   }));
 }
 
+/**
+ * The state of a loop that did not converge, in its own terms: which tear streams and components
+ * are still changing from pass to pass (by how much, against their tolerance), and how much the
+ * tears carry against the fresh feed (a loop that carries far more than it is fed is
+ * accumulating something).
+ */
+function loopState(r: FlowsheetResult, F: (v: number) => string, fu: string): string[] {
+  const lines: string[] = [];
+  const byStream = new Map<string, string[]>();
+  for (const w of r.worst ?? []) {
+    if (!w.name || !(w.scaled > 1)) continue;
+    const dot = w.name.lastIndexOf('.');
+    const stream = w.name.slice(0, dot);
+    const what = w.name.slice(dot + 1);
+    const amount = what === 'T' ? `${num(w.residual, 3)} K` : what === 'P' ? `${num(w.residual, 3)} Pa` : `${F(w.residual)} ${fu}`;
+    const list = byStream.get(stream) ?? [];
+    list.push(`${what} by ${amount} (${num(w.scaled, 3)} x its tolerance)`);
+    byStream.set(stream, list);
+  }
+  for (const [stream, parts] of byStream) lines.push(`\`${stream}\` still changes from pass to pass: ${parts.join(', ')}`);
+  const tears = lastTears(r);
+  let carried = 0;
+  for (const t of tears) for (const v of Object.values(t.flows)) carried += v ?? 0;
+  const fresh = r.loop.freshFeed;
+  if (fresh > 0 && carried > 100 * fresh) {
+    let top = '';
+    let big = 0;
+    for (const t of tears) for (const [id, v] of Object.entries(t.flows)) if ((v ?? 0) > big) { big = v ?? 0; top = id; }
+    lines.push(`the tear streams carry ${num(carried / fresh, 3)} times the fresh feed, most of it \`${top}\`: something may be building up in the loop (a component with too little way out)`);
+  }
+  return lines;
+}
+
 /** For a flow unit that is a standard volume (Nm3/h), what it means: said beside the numbers. */
 export function flowNote(unit: string, ctx: { atmosphere: number }): string {
   const ref = standardOfFlowUnit(unit, ctx);
@@ -144,12 +177,15 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
   if (r.status !== 'converged') {
     out.push('');
     out.push(r.status === 'infeasible' ? 'No steady state exists as specified:' : r.status === 'invalid' ? 'The specification cannot be computed as given; this is not a solution:' : 'The loop did not converge; this is not a solution:');
-    if (r.message) out.push(`  ${r.message}`);
-    if (r.failure?.help) out.push(`  help: ${r.failure.help}`);
-    if (r.worst?.length) {
-      out.push('  largest residuals at the last iterate:');
-      for (const w of r.worst) out.push(`    ${w.name ?? `#${w.index}`}: ${w.residual.toExponential(3)} (${num(w.scaled, 3)} x tolerance)`);
-    }
+    // Physics first: what is out of balance in the loop, in the streams and components an
+    // engineer knows; the solver's own account after it.
+    const physics = r.status === 'not-converged' ? loopState(r, F, fu) : [];
+    if (physics.length) {
+      out.push('  what the loop is doing at the last iterate:');
+      for (const l of physics) out.push(`    ${l}`);
+      if (r.message) out.push(`  the solver: ${r.message}`);
+    } else if (r.message) out.push(`  ${r.message}`);
+    if (r.failure?.help) out.push(`  to fix: ${r.failure.help}`);
     const tears = lastTears(r);
     if (tears.length) {
       out.push(`  last iterate of the tear streams (${fu}; T in ${tu}, P in ${pu}; not a solution):`);

@@ -155,3 +155,15 @@ describe('units follow the user', () => {
     expect(r.stdout).toMatch(/^1,0\.1234567890123,converged,/m);
   });
 });
+
+describe('not-converged hints speak physics first', () => {
+  it('names the stream and the components still changing before the solver\'s own account', () => {
+    const r = cli(['solve', PILOT, '--max-passes', '12']);
+    expect(r.code).toBe(3);
+    const physics = r.stdout.indexOf('what the loop is doing at the last iterate:');
+    const solver = r.stdout.indexOf('the solver: ');
+    expect(physics).toBeGreaterThan(0);
+    expect(solver).toBeGreaterThan(physics);
+    expect(r.stdout).toMatch(/`recycle` still changes from pass to pass: \w+ by [\d.e+-]+ kmol\/h \([\d.e+]+ x its tolerance\)/);
+  });
+});
