@@ -52,10 +52,10 @@ const RECONCILE_CSV = [
   `# loopclose reconcile ${'d'.repeat(64)} rows=4`,
   NOTE,
   'timestamp,status,closure.N,closure.H,adjustment.feeds.makeup.meter.flow[m3/h],suspect,message',
-  '2026-03-01T00:00:00Z,converged,0.0012,0.0008,-1.5,makeup,',
-  '2026-03-01T01:00:00Z,converged,0.0010,0.0007,-1.2,makeup,',
+  '2026-03-01T00:00:00Z,reconciled,0.0012,0.0008,-1.5,makeup,',
+  '2026-03-01T01:00:00Z,gross-error,0.0010,0.0007,-1.2,makeup,',
   '2026-03-01T02:00:00Z,not-converged,,,,,"too few readings"',
-  '2026-03-01T04:00:00+01:00,converged,0.0015,0.0009,-2.0,makeup,',
+  '2026-03-01T04:00:00+01:00,reconciled,0.0015,0.0009,-2.0,makeup,',
   '',
 ].join('\n');
 
