@@ -11,7 +11,7 @@ import type { AxisSpec } from '../study/grid.js';
 import { Progress } from '../study/progress.js';
 import { headerText, makeHeader, rowText, type SweepFormat } from '../study/records.js';
 import { runParallel, runSerial, WorkerFailure, type Task } from '../study/runner.js';
-import { parseShard, shardBlocks, type Shard } from '../study/shard.js';
+import { parseShard, shardBlocks, shardFromEnvironment, type Shard } from '../study/shard.js';
 import { SweepSink } from '../study/sink.js';
 import { DEFAULT_BLOCK, prepareSweep, type SweepSpec } from '../study/sweep.js';
 import { EXIT } from './exit.js';
@@ -62,7 +62,7 @@ export function registerSweep(program: Command, setCode: (code: number) => void)
     .option('--resume', 'continue an interrupted sweep in --out: only the missing points are solved')
     .option('--overwrite', 'start again when --out exists')
     .option('--jobs <n>', 'threads solving points (the output is the same as with one)')
-    .option('--shard <i/N>', 'solve only share i of N of the points (merge the shares with `loopclose merge`)')
+    .option('--shard <i/N>', 'solve only share i of N of the points (merge the shares with `loopclose merge`); `auto` takes i and N from an array job (Slurm, Grid Engine)')
     .option('--block <n>', `points solved in a row from one cold start (default ${DEFAULT_BLOCK})`)
     .option('--no-continuation', 'start every point cold instead of from its neighbour')
     .option('--method <name>', 'direct, wegstein, newton or auto for every point (default: the file\'s method from a cold start, newton from a neighbour)')
@@ -106,7 +106,7 @@ function options(o: Required<Pick<SweepCliOptions, 'report' | 'target' | 'by' | 
   let shard: Shard = { index: 1, count: 1 };
   if (o.shard !== undefined) {
     try {
-      shard = parseShard(o.shard);
+      shard = o.shard.trim() === 'auto' ? shardFromEnvironment() : parseShard(o.shard);
     } catch (e) {
       if (e instanceof InputError) errs.push(...e.diagnostics.map((d) => d.message));
       else throw e;

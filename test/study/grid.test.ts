@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { InputError } from '../../src/diagnostics.js';
 import { blocksOf, GridShape, parseAxes, parseGridAxis, parseValuesAxis } from '../../src/study/grid.js';
 import { loadFlowsheet } from '../../src/flowsheet/validate.js';
-import { parseShard, shardBlocks } from '../../src/study/shard.js';
+import { parseShard, shardBlocks, shardFromEnvironment } from '../../src/study/shard.js';
 import { ROOT } from '../helpers/cli.js';
 import { join } from 'node:path';
 
@@ -110,5 +110,21 @@ describe('grid numbering and walk', () => {
     expect(messageOf(() => parseShard('0/4'))).toMatch(/1 <= i <= N/);
     expect(messageOf(() => parseShard('5/4'))).toMatch(/1 <= i <= N/);
     expect(messageOf(() => parseShard('2-4'))).toMatch(/not i\/N/);
+  });
+});
+
+describe('--shard auto: the share from an array job', () => {
+  it('Slurm: the task\'s place in its array (from 0 or 1, with a step) and the array\'s size', () => {
+    expect(shardFromEnvironment({ SLURM_ARRAY_TASK_ID: '3', SLURM_ARRAY_TASK_MIN: '1', SLURM_ARRAY_TASK_COUNT: '8' })).toEqual({ index: 3, count: 8 });
+    expect(shardFromEnvironment({ SLURM_ARRAY_TASK_ID: '0', SLURM_ARRAY_TASK_MIN: '0', SLURM_ARRAY_TASK_COUNT: '4' })).toEqual({ index: 1, count: 4 });
+    expect(shardFromEnvironment({ SLURM_ARRAY_TASK_ID: '5', SLURM_ARRAY_TASK_MIN: '1', SLURM_ARRAY_TASK_STEP: '2', SLURM_ARRAY_TASK_COUNT: '4' })).toEqual({ index: 3, count: 4 });
+  });
+  it('Grid Engine: first, last and step size', () => {
+    expect(shardFromEnvironment({ SGE_TASK_ID: '7', SGE_TASK_FIRST: '1', SGE_TASK_LAST: '8', SGE_TASK_STEPSIZE: '1' })).toEqual({ index: 7, count: 8 });
+  });
+  it('refuses with a clear message when no scheduler set one, or the array is uneven', () => {
+    expect(messageOf(() => shardFromEnvironment({}))).toMatch(/no array-job task is set in the environment \(SLURM_ARRAY_TASK_ID or SGE_TASK_ID\)/);
+    expect(messageOf(() => shardFromEnvironment({ SLURM_ARRAY_TASK_ID: '4', SLURM_ARRAY_TASK_MIN: '1', SLURM_ARRAY_TASK_STEP: '2', SLURM_ARRAY_TASK_COUNT: '4' }))).toMatch(/not on the array's steps/);
+    expect(messageOf(() => shardFromEnvironment({ SLURM_ARRAY_TASK_ID: '4' }))).toMatch(/SLURM_ARRAY_TASK_COUNT/);
   });
 });
