@@ -167,3 +167,27 @@ describe('not-converged hints speak physics first', () => {
     expect(r.stdout).toMatch(/`recycle` still changes from pass to pass: \w+ by [\d.e+-]+ kmol\/h \([\d.e+]+ x its tolerance\)/);
   });
 });
+
+describe('small things that say what they mean', () => {
+  it('a suggested bound is rounded the way a person would type it, in the file\'s unit', () => {
+    const r = cli(['solve', PILOT, '--target', 'streams.purge.total = 2.5 kmol/h', '--by', 'feeds.hydrogen.meter.flow']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toContain('to fix: for example --within "6.3:18.9 m3/h"');
+  });
+
+  it('one spelling: the output says vapor, as the file does', () => {
+    const r = cli(['solve', PILOT]);
+    expect(r.stdout).toMatch(/^vapor fraction /m);
+    expect(r.stdout + cli(['solve', PILOT, '--csv']).stdout).not.toMatch(/vapour/);
+  });
+
+  it('Wegstein\'s bounds are set by solver.acceleration: a wider lowest bound speeds a slow loop', () => {
+    const text = readFileSync(join(ROOT, PILOT), 'utf8');
+    const wide = tempFile('wide.yaml', `${text}solver: { acceleration: { lowest: -20, highest: 0 } }\n`);
+    const a = JSON.parse(cli(['solve', PILOT, '--method', 'wegstein', '--json']).stdout);
+    const b = JSON.parse(cli(['solve', wide, '--method', 'wegstein', '--json']).stdout);
+    expect(a.status).toBe('converged');
+    expect(b.status).toBe('converged');
+    expect(b.passes).toBeLessThan(a.passes / 2);
+  });
+});
