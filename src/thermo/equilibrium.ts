@@ -1,0 +1,1054 @@
+/**
+ * Chemical equilibrium of gas-phase reactions at a given T and P: the extents of several
+ * reactions found together, each reaction optionally held at an approach to equilibrium.
+ *
+ * Method. With extents xi_r (mol/s) of the equilibrium reactions and b_i the flow of component i
+ * that reaches them (the inlet plus the generation of any reactions at fixed conversion, which
+ * the caller applies first), n_i = b_i + sum_r nu_ri xi_r and N = sum_i n_i. Reaction r is at
+ * equilibrium when
+ *   F_r = sum_i nu_ri ln(y_i phi_i P / P0) - ln K_r = 0,     y_i = n_i / N,   P0 = 1 bar,
+ *   ln K_r(T) = -sum_i nu_ri g_i(T) / (R T),
+ * with g_i the ideal-gas Gibbs energy of formation at 1 bar (ideal-gas.ts: gf at 298.15 K carried
+ * to T with the heat-capacity correlation, so that d ln K / dT = Delta h / (R T^2) holds exactly:
+ * the van 't Hoff equation integrated with Cp(T), not a constant heat of reaction). The fugacity
+ * coefficients phi_i come from the file's equation of state on the vapor root of the mixture.
+ * This is the extent ("stoichiometric") form of the Gibbs energy minimum of Smith and Missen,
+ * Chemical Reaction Equilibrium Analysis: Theory and Algorithms (Wiley, 1982), ch. 4 and 6: F is
+ * the gradient of G/(RT) with respect to the extents (the terms sum_i n_i d ln phi_i vanish by
+ * Gibbs-Duhem), and the ideal-gas part of its Jacobian,
+ *   J_rs = sum_i nu_ri nu_si / n_i - dnu_r dnu_s / N,      dnu_r = sum_i nu_ri,
+ * is the Hessian of the ideal-gas G/(RT): symmetric and positive definite for independent
+ * reactions in the interior of the feasible region, so that the ideal-gas problem has one
+ * solution and Newton's direction always lowers G.
+ *
+ * Solution. Newton's method on the extents. The Jacobian is the analytic ideal-gas part above,
+ * evaluated at every iterate, plus the part of the fugacity coefficients,
+ * d(sum_i nu_ri ln phi_i)/d xi_s, taken by forward differences of the extents once at the start
+ * of each solve (one equation-of-state call per reaction and equilibrium temperature) and held
+ * through the solve: a chord for that part only. The fugacity coefficients themselves are
+ * evaluated afresh at every iterate, so the residual is exact; the held part changes little over
+ * a solve (it is about 3 % of the ideal part for ammonia at 300 atm). If a step fails to lower
+ * the residual, that part is differenced again at the current iterate. (Option `jacobian:
+ * 'lagged'` leaves the part out, i.e. the coefficients are lagged, as successive substitution
+ * nested in Newton; `'full'` differences it at every iterate.) Every step stays inside the
+ * feasible region: it is cut so that no species that a reaction uses falls by more than 99 % of
+ * what is left (fraction to the boundary), then halved until the sum of squared residuals falls
+ * (Armijo). Converged when every |F_r| <= tol (default 1e-11, i.e. Q_r/K_r = 1 within 1e-11).
+ * The start is the extents of the last call when the caller passes them (warm start) and they
+ * are feasible; otherwise each reaction that must create a species it needs advances by a tenth
+ * of what its scarcest reactant allows, in the order in which the species become available.
+ *
+ * What can proceed. A reaction can run forward when all its reactants reach it (from the inlet or
+ * from another reaction that can run) and backward when all its products do. One that can do
+ * neither (a reactant and a product absent, e.g. N2 + 3 H2 -> 2 NH3 with no N2 and no NH3) is
+ * held at zero extent, and the result says so. The ones left are solved together. Reactions that
+ * are linear combinations of others are refused when the solver is prepared (their extents are
+ * not unique, and their equilibrium holds already).
+ *
+ * Approach to equilibrium. A reaction with an approach dT (K) is held at the equilibrium of
+ * T + dT when it is exothermic and of T - dT when it is endothermic, judged by the sign of its
+ * ideal-gas heat of reaction at the reactor's T: in both cases the conversion stays below the
+ * equilibrium one. The whole condition of that reaction (K and the fugacity coefficients) is
+ * taken at its equilibrium temperature, so that with one reaction, or with several sharing one
+ * equilibrium temperature, the outlet is exactly the equilibrium mixture of that temperature; it
+ * leaves at the reactor's T.
+ *
+ * Phase. The converter is gas-phase. The mixture must be a vapor at every iterate: when the
+ * equation of state has one root and labels it liquid-like, or three roots and the liquid one
+ * has the lower Gibbs energy, the result is 'infeasible' with reason 'not-gas' (a trial step into
+ * such a state is shortened instead). With `phaseCheck: 'stability'` the converged mixture also
+ * goes through the tangent-plane stability test at the reactor's T and P (stability.ts), which
+ * finds a dew point that the root labels miss; a second phase is then 'infeasible' with reason
+ * 'two-phase'. The test costs some tens of equation-of-state evaluations, so the default
+ * ('root') leaves it to the caller to run once on a converged flowsheet.
+ *
+ * What is assumed, and where it is weak.
+ * - Ideal-gas standard state at 1 bar; the formation data of thermochem.ts (their sources there).
+ *   An error of 1 kJ/mol in Delta g moves K by 15 % at 700 K.
+ * - The mixture's non-ideality is that of the cubic equation of state with its van der Waals
+ *   mixing rules (and the file's k_ij, if any): good for light reaction gases away from their
+ *   critical region, weaker for polar products (methanol, water, ammonia) at high pressure, where
+ *   it carries the error of the one-fluid mixing rule. Against the measured ammonia equilibria of
+ *   Larson and Dodge (1923-24) SRK is within 1.5 mole percent up to 300 atm (see
+ *   test/thermo/equilibrium.test.ts), the ideal gas 1 to 10 points low above 100 atm.
+ * - No liquid phase, no solid (no carbon deposition), no condensation in the converter.
+ * - The heat of reaction that decides the sign of an approach is the ideal-gas one from the
+ *   formation-basis enthalpies at the reactor's T (the residual enthalpy is left out).
+ * - Outside the range of a heat-capacity correlation, the end piece is extrapolated and the
+ *   result says so in its message.
+ *
+ * API (allocation-free in its hot path: arrays live in the solver, and `solve` writes into a
+ * result object the caller keeps):
+ *   const p = prepareEquilibrium(eos, [{ nu, approach, key, label }, ...]);
+ *   if (p.status === 'invalid') ... p.problems (one per problem, with the reaction index)
+ *   const out = p.solver.newResult();
+ *   p.solver.solve({ T, P, flows, generation?, start? }, out);   // out.status, out.extents, ...
+ * Adiabatic converters: see equilibrium-adiabatic.ts.
+ */
+import { R } from './constants.js';
+import { gIG, hIG, outsideRange, P_STD } from './ideal-gas.js';
+import { stabilityTest } from './stability.js';
+import type { ComponentData, Eos } from './types.js';
+
+/** One reaction to hold at equilibrium. */
+export interface EquilibriumReaction {
+  /** Stoichiometric coefficients over the equation of state's components (negative for reactants). */
+  nu: ArrayLike<number>;
+  /** Approach to equilibrium, K (>= 0; default 0). */
+  approach?: number;
+  /** Component whose conversion is reported (index), optional. */
+  key?: number;
+  /** How messages name the reaction, e.g. its equation. */
+  label?: string;
+}
+
+export interface EquilibriumOptions {
+  /** Converged when every |ln(Q_r/K_r)| <= tol (default 1e-11). */
+  tol?: number;
+  /** Newton iterations per solve (default 100). */
+  maxIterations?: number;
+  /** 'root' (default): the equation of state's root labels only; 'stability': also the tangent-plane test of the result. */
+  phaseCheck?: 'root' | 'stability';
+  /**
+   * The fugacity-coefficient part of the Jacobian: 'chord' (default) differenced at the start of each
+   * solve and held; 'lagged' left out; 'full' differenced at every iterate. The ideal gas has none.
+   */
+  jacobian?: 'chord' | 'lagged' | 'full';
+}
+
+/** A problem found when preparing: the reaction it belongs to (index; -1 for the set) and what to change. */
+export interface EquilibriumProblem {
+  reaction: number;
+  /** Components concerned (indices), where there are any. */
+  components?: number[];
+  message: string;
+  help?: string;
+}
+
+export type PreparedEquilibrium =
+  | { status: 'ok'; solver: EquilibriumSolver }
+  | { status: 'invalid'; problems: EquilibriumProblem[] };
+
+/** What reaches the equilibrium reactions. SI: K, Pa, mol/s. */
+export interface EquilibriumState {
+  /** Reactor temperature, K. */
+  T: number;
+  /** Reactor pressure, Pa. */
+  P: number;
+  /** Component flows at the reactor inlet, mol/s (length n). */
+  flows: ArrayLike<number>;
+  /**
+   * Net generation of the reactions at fixed conversion or extent, mol/s per component (sum over
+   * those reactions of nu times extent), applied to the inlet before the equilibrium. Optional.
+   */
+  generation?: ArrayLike<number>;
+  /** Extents to start from (the last pass's), mol/s per equilibrium reaction. Optional. */
+  start?: ArrayLike<number>;
+}
+
+export type EquilibriumStatus = 'converged' | 'not-converged' | 'infeasible' | 'invalid';
+
+/**
+ * Why a result is not a plain converged one: 'bad-input' (T, P or flows not usable), 'no-temperature'
+ * (an approach leaves no temperature above 0 K), 'shortfall' (the fixed generation takes more of a
+ * component than reaches the reactor), 'not-gas' (liquid-like mixture), 'two-phase' (the stability
+ * test finds a second phase), 'iterations' (budget spent), 'line-search' (no step lowers the residual),
+ * 'singular' (the Jacobian cannot be factored), 'underflow' (a species went to zero in floating point).
+ */
+export type EquilibriumReason =
+  | 'bad-input' | 'no-temperature' | 'shortfall' | 'not-gas' | 'two-phase' | 'iterations' | 'line-search' | 'singular' | 'underflow';
+
+export interface EquilibriumResult {
+  status: EquilibriumStatus;
+  /** Set when status is not 'converged'. */
+  reason: EquilibriumReason | null;
+  /** What happened, for people: '' for a plain converged result; notes (a blocked reaction, an extrapolated Cp) otherwise. */
+  message: string;
+  /** Reactor T and P of the call, K and Pa. */
+  T: number;
+  P: number;
+  /** Extent of each reaction, mol/s (0 for a reaction that cannot proceed). */
+  extents: Float64Array;
+  /** Outlet component flows, mol/s: inlet + generation + equilibrium reactions. */
+  flows: Float64Array;
+  /** ln K of each reaction at its equilibrium temperature (1 bar standard state). */
+  lnK: Float64Array;
+  /** Temperature each reaction is held at equilibrium of, K (T +/- approach). */
+  Teq: Float64Array;
+  /** Approach of each reaction as given, K (0 without one). */
+  approach: Float64Array;
+  /** Ideal-gas heat of each reaction at the reactor's T, J per mole of extent (negative: exothermic). */
+  heat: Float64Array;
+  /** Conversion of each reaction's key by that reaction: extent |nu_key| / inlet flow of the key (0 without key or inlet). */
+  conversion: Float64Array;
+  /** 1 where a reaction cannot proceed (a reactant and a product absent): extent 0. */
+  blocked: Uint8Array;
+  /** Largest |ln(Q_r/K_r)| at the extents returned. */
+  residual: number;
+  /** Newton iterations, residual evaluations (each one equation-of-state call per equilibrium temperature), Jacobians with differenced fugacity coefficients. */
+  iterations: number;
+  evaluations: number;
+  jacobians: number;
+  /** Largest |F| before each iteration: history[0 .. historyLength - 1]. */
+  history: Float64Array;
+  historyLength: number;
+  /** Phase of the converged mixture at the reactor's T and P, as far as it was checked. */
+  phase: 'vapor' | 'liquid-like' | 'two-phase' | 'unchecked';
+  /** Whether the extents came from `start` (warm) rather than the built-in start. */
+  warm: boolean;
+}
+
+/** K of a reaction from a result: exp(lnK). */
+export function equilibriumConstant(r: EquilibriumResult, reaction: number): number {
+  return Math.exp(r.lnK[reaction]);
+}
+
+/** ln K at T (1 bar standard state) of coefficients nu over components: -sum nu_i g_i(T) / (R T). Data must be present. */
+export function lnKAt(components: readonly ComponentData[], nu: ArrayLike<number>, T: number): number {
+  let g = 0;
+  for (let i = 0; i < components.length; i++) if (nu[i] !== 0) g += nu[i] * gIG(components[i], T);
+  return -g / (R * T);
+}
+
+/** Ideal-gas heat of reaction at T, J per mole of extent: sum nu_i h_i(T) on the formation basis. Data must be present. */
+export function reactionHeat(components: readonly ComponentData[], nu: ArrayLike<number>, T: number): number {
+  let h = 0;
+  for (let i = 0; i < components.length; i++) if (nu[i] !== 0) h += nu[i] * hIG(components[i], T);
+  return h;
+}
+
+/** Fraction of the distance to the boundary that a step may go. */
+const TO_BOUNDARY = 0.99;
+/** Fraction of its scarcest reactant that a reaction takes in the built-in start. */
+const START_FRACTION = 0.1;
+/** Armijo constant of the line search. */
+const ARMIJO = 1e-4;
+/** Halvings of a step before the line search gives up. */
+const MAX_HALVINGS = 40;
+
+/**
+ * Checks the reactions (data, approach, independence) and prepares a solver for them.
+ * One problem per reaction and fault; nothing is thrown for a user's mistake.
+ */
+export function prepareEquilibrium(eos: Eos, reactions: readonly EquilibriumReaction[], options: EquilibriumOptions = {}): PreparedEquilibrium {
+  const comps = eos.components;
+  const n = eos.n;
+  const problems: EquilibriumProblem[] = [];
+  const label = (r: number) => reactions[r].label ?? `reaction ${r + 1}`;
+  const names: Record<string, string> = { cp: 'ideal-gas heat capacity (cp)', hf: 'enthalpy of formation (hf)', gf: 'Gibbs energy of formation (gf)' };
+  if (reactions.length === 0) problems.push({ reaction: -1, message: 'no reaction is held at equilibrium', help: 'give at least one reaction with `equilibrium: true`' });
+  reactions.forEach((rx, r) => {
+    if (rx.nu.length !== n) {
+      problems.push({ reaction: r, message: `${label(r)} has ${rx.nu.length} coefficients for ${n} components` });
+      return;
+    }
+    let any = false;
+    for (let i = 0; i < n; i++) {
+      if (!Number.isFinite(rx.nu[i])) {
+        problems.push({ reaction: r, message: `${label(r)}: the coefficient of ${comps[i].id} is not a finite number` });
+        return;
+      }
+      if (rx.nu[i] !== 0) any = true;
+    }
+    if (!any) problems.push({ reaction: r, message: `${label(r)} changes nothing (every coefficient is zero)` });
+    const a = rx.approach ?? 0;
+    if (!(a >= 0) || !Number.isFinite(a)) {
+      problems.push({ reaction: r, message: `the approach of ${label(r)} is ${a} K; it must be zero or a positive temperature difference`, help: 'for example `approach: 20 K` (held at the equilibrium of T + 20 K when exothermic, T - 20 K when endothermic)' });
+    }
+    if (rx.key !== undefined && !(Number.isInteger(rx.key) && rx.key >= 0 && rx.key < n)) {
+      problems.push({ reaction: r, message: `${label(r)}: key ${rx.key} is not a component index` });
+    }
+    const lacking: number[] = [];
+    const what: string[] = [];
+    for (let i = 0; i < n; i++) {
+      if (rx.nu[i] === 0) continue;
+      const c = comps[i];
+      const fields: string[] = [];
+      if (c.cp === undefined || c.cp.pieces.length === 0) fields.push('cp');
+      if (c.hf === undefined || !Number.isFinite(c.hf)) fields.push('hf');
+      if (c.gf === undefined || !Number.isFinite(c.gf)) fields.push('gf');
+      if (fields.length > 0) {
+        lacking.push(i);
+        what.push(`${c.id} has no ${fields.map((f) => names[f]).join(', no ')}`);
+      }
+    }
+    if (lacking.length > 0) {
+      problems.push({
+        reaction: r,
+        components: lacking,
+        message: `${label(r)} cannot be held at equilibrium: ${what.join('; ')} (K(T) needs cp, hf and gf of every species of the reaction)`,
+        help: 'use built-in components (every built-in row carries these data), or give this reaction a fixed `conversion` or `extent` instead',
+      });
+    }
+  });
+  if (problems.length === 0) {
+    // Independence: modified Gram-Schmidt over the rows in order; a row that reduces to nothing
+    // is a combination of the rows before it.
+    const basis: Float64Array[] = [];
+    const which: number[] = [];
+    reactions.forEach((rx, r) => {
+      const v = Float64Array.from(rx.nu);
+      let norm0 = 0;
+      for (let i = 0; i < n; i++) norm0 += v[i] * v[i];
+      for (const q of basis) {
+        let d = 0;
+        for (let i = 0; i < n; i++) d += v[i] * q[i];
+        for (let i = 0; i < n; i++) v[i] -= d * q[i];
+      }
+      let norm = 0;
+      for (let i = 0; i < n; i++) norm += v[i] * v[i];
+      if (norm <= 1e-20 * norm0) {
+        problems.push({
+          reaction: r,
+          message: `${label(r)} is a combination of ${which.map((k) => label(k)).join(', ')}: at equilibrium it adds nothing and its extent is not defined`,
+          help: 'remove it: the equilibrium of the others already holds it',
+        });
+        return;
+      }
+      const s = 1 / Math.sqrt(norm);
+      for (let i = 0; i < n; i++) v[i] *= s;
+      basis.push(v);
+      which.push(r);
+    });
+  }
+  if (problems.length > 0) return { status: 'invalid', problems };
+  return { status: 'ok', solver: new EquilibriumSolver(eos, reactions, options) };
+}
+
+/**
+ * Equilibrium of a fixed set of reactions over one equation of state's components. Owns its
+ * scratch arrays: one solver per reactor, used by one caller at a time.
+ */
+export class EquilibriumSolver {
+  readonly n: number;
+  /** Number of reactions. */
+  readonly m: number;
+  readonly eos: Eos;
+  readonly labels: readonly string[];
+  private readonly comps: readonly ComponentData[];
+  private readonly tol: number;
+  private readonly maxIt: number;
+  private readonly stability: boolean;
+  private readonly jacobianMode: 'chord' | 'lagged' | 'full';
+  /** nu, row-major m x n; per reaction its sum; its species flat: sp[spStart[r] .. spStart[r+1]) with their coefficients spNu. */
+  private readonly nu: Float64Array;
+  private readonly dnu: Float64Array;
+  private readonly sp: Int32Array;
+  private readonly spNu: Float64Array;
+  private readonly spStart: Int32Array;
+  private readonly approach: Float64Array;
+  private readonly keys: Int32Array;
+  // lnK and heat caches per reaction (last temperatures)
+  private readonly kT: Float64Array;
+  private readonly kVal: Float64Array;
+  private readonly hT: Float64Array;
+  private readonly hVal: Float64Array;
+  /** lnK of each reaction at its equilibrium temperature in the current solve. */
+  private readonly lnK: Float64Array;
+  // per-call scratch
+  private readonly b: Float64Array;
+  private readonly avail: Uint8Array;
+  private readonly live: Uint8Array;
+  private readonly order: Int32Array;
+  private nLive = 0;
+  private readonly group: Int32Array;
+  private readonly groupT: Float64Array;
+  private nGroups = 0;
+  private readonly x: Float64Array;
+  private readonly xt: Float64Array;
+  private readonly dx: Float64Array;
+  private readonly nm: Float64Array;
+  private readonly nt: Float64Array;
+  private readonly y: Float64Array;
+  private readonly F: Float64Array;
+  private readonly Ft: Float64Array;
+  private readonly J: Float64Array;
+  /** The held fugacity part of the Jacobian (m x m). */
+  private readonly Jphi: Float64Array;
+  /** ln phi per group: the current iterate's, a trial's, a differenced one's (views of one row each, made once). */
+  private readonly lnPhi: Float64Array[];
+  private readonly lnPhiT: Float64Array[];
+  private readonly lnPhiD: Float64Array[];
+  private readonly phiScratch: Float64Array;
+  private lnP = 0;
+  /** Largest |F| found by the last merit() call. */
+  private maxAbs = 0;
+  /** Why the last evaluate failed: 0 ok, 1 not a gas, 2 a species not positive. */
+  private evalFault = 0;
+  private faultT = 0;
+  private faultRoot: 'liquid-like' | 'three-roots' = 'liquid-like';
+  private blockedText = '';
+  private blockedKey = '';
+
+  constructor(eos: Eos, reactions: readonly EquilibriumReaction[], options: EquilibriumOptions = {}) {
+    const n = eos.n;
+    const m = reactions.length;
+    this.n = n;
+    this.m = m;
+    this.eos = eos;
+    this.comps = eos.components;
+    this.labels = reactions.map((rx, r) => rx.label ?? `reaction ${r + 1}`);
+    this.tol = options.tol ?? 1e-11;
+    this.maxIt = options.maxIterations ?? 100;
+    this.stability = options.phaseCheck === 'stability';
+    this.jacobianMode = eos.name === 'ideal' ? 'lagged' : options.jacobian ?? 'chord';
+    this.nu = new Float64Array(m * n);
+    this.dnu = new Float64Array(m);
+    this.approach = new Float64Array(m);
+    this.keys = new Int32Array(m).fill(-1);
+    this.spStart = new Int32Array(m + 1);
+    const sp: number[] = [];
+    const spNu: number[] = [];
+    for (let r = 0; r < m; r++) {
+      const rx = reactions[r];
+      this.spStart[r] = sp.length;
+      for (let i = 0; i < n; i++) {
+        const v = rx.nu[i];
+        this.nu[r * n + i] = v;
+        this.dnu[r] += v;
+        if (v !== 0) {
+          sp.push(i);
+          spNu.push(v);
+        }
+      }
+      this.approach[r] = rx.approach ?? 0;
+      if (rx.key !== undefined) this.keys[r] = rx.key;
+    }
+    this.spStart[m] = sp.length;
+    this.sp = Int32Array.from(sp);
+    this.spNu = Float64Array.from(spNu);
+    this.kT = new Float64Array(m).fill(Number.NaN);
+    this.kVal = new Float64Array(m);
+    this.hT = new Float64Array(m).fill(Number.NaN);
+    this.hVal = new Float64Array(m);
+    this.lnK = new Float64Array(m);
+    this.b = new Float64Array(n);
+    this.avail = new Uint8Array(n);
+    this.live = new Uint8Array(m);
+    this.order = new Int32Array(m);
+    this.group = new Int32Array(m);
+    this.groupT = new Float64Array(m);
+    this.x = new Float64Array(m);
+    this.xt = new Float64Array(m);
+    this.dx = new Float64Array(m);
+    this.nm = new Float64Array(n);
+    this.nt = new Float64Array(n);
+    this.y = new Float64Array(n);
+    this.F = new Float64Array(m);
+    this.Ft = new Float64Array(m);
+    this.J = new Float64Array(m * m);
+    this.Jphi = new Float64Array(m * m);
+    const rows = () => {
+      const buf = new Float64Array(m * n);
+      return Array.from({ length: m }, (_, g) => buf.subarray(g * n, g * n + n));
+    };
+    this.lnPhi = rows();
+    this.lnPhiT = rows();
+    this.lnPhiD = rows();
+    this.phiScratch = new Float64Array(n);
+  }
+
+  /** A result object sized for this solver, to pass to solve() again and again. */
+  newResult(): EquilibriumResult {
+    const m = this.m;
+    return {
+      status: 'invalid', reason: null, message: '', T: Number.NaN, P: Number.NaN,
+      extents: new Float64Array(m), flows: new Float64Array(this.n), lnK: new Float64Array(m), Teq: new Float64Array(m),
+      approach: Float64Array.from(this.approach), heat: new Float64Array(m), conversion: new Float64Array(m), blocked: new Uint8Array(m),
+      residual: Number.NaN, iterations: 0, evaluations: 0, jacobians: 0,
+      history: new Float64Array(this.maxIt + 1), historyLength: 0, phase: 'unchecked', warm: false,
+    };
+  }
+
+  /** ln K of reaction r at T (1 bar standard state), cached for the last T of that reaction. */
+  lnKAt(r: number, T: number): number {
+    if (this.kT[r] !== T) {
+      let g = 0;
+      for (let q = this.spStart[r]; q < this.spStart[r + 1]; q++) g += this.spNu[q] * gIG(this.comps[this.sp[q]], T);
+      this.kVal[r] = -g / (R * T);
+      this.kT[r] = T;
+    }
+    return this.kVal[r];
+  }
+
+  /** Ideal-gas heat of reaction r at T, J per mole of extent, cached for the last T. */
+  heatAt(r: number, T: number): number {
+    if (this.hT[r] !== T) {
+      let h = 0;
+      for (let q = this.spStart[r]; q < this.spStart[r + 1]; q++) h += this.spNu[q] * hIG(this.comps[this.sp[q]], T);
+      this.hVal[r] = h;
+      this.hT[r] = T;
+    }
+    return this.hVal[r];
+  }
+
+  /** Solves the equilibrium of `state` into `out` (a newResult() object) and returns it. */
+  solve(state: EquilibriumState, out: EquilibriumResult = this.newResult()): EquilibriumResult {
+    const n = this.n;
+    const m = this.m;
+    const { T, P } = state;
+    out.T = T;
+    out.P = P;
+    out.status = 'converged';
+    out.reason = null;
+    out.message = '';
+    out.residual = 0;
+    out.iterations = 0;
+    out.evaluations = 0;
+    out.jacobians = 0;
+    out.historyLength = 0;
+    out.phase = 'unchecked';
+    out.warm = false;
+    out.extents.fill(0);
+    out.conversion.fill(0);
+    out.blocked.fill(0);
+    out.approach.set(this.approach);
+    out.flows.fill(0);
+
+    // Inputs.
+    if (!(T > 0) || !Number.isFinite(T) || !(P > 0) || !Number.isFinite(P)) {
+      return this.fail(out, 'invalid', 'bad-input', `equilibrium needs a finite positive temperature and pressure, got T = ${T} K, P = ${P} Pa`);
+    }
+    const flows = state.flows;
+    const gen = state.generation;
+    if (flows.length !== n || (gen !== undefined && gen.length !== n)) {
+      return this.fail(out, 'invalid', 'bad-input', `equilibrium: flows (and generation) must have ${n} entries`);
+    }
+    const b = this.b;
+    let scale = 0;
+    for (let i = 0; i < n; i++) {
+      const f = flows[i];
+      if (!(f >= 0) || f === Infinity) return this.fail(out, 'invalid', 'bad-input', `equilibrium: the inlet flow of ${this.comps[i].id} is ${f} mol/s; flows must be finite and not negative`);
+      const g = gen === undefined ? 0 : gen[i];
+      if (!Number.isFinite(g)) return this.fail(out, 'invalid', 'bad-input', `equilibrium: the fixed generation of ${this.comps[i].id} is ${g} mol/s`);
+      b[i] = f + g;
+      scale += f;
+    }
+    for (let i = 0; i < n; i++) {
+      if (b[i] < 0) {
+        if (b[i] >= -1e-12 * scale) {
+          b[i] = 0;
+          continue;
+        }
+        out.flows.set(b);
+        return this.fail(out, 'infeasible', 'shortfall',
+          `the reactions at fixed conversion take ${fmt(-(gen![i]))} mol/s of ${this.comps[i].id}, but only ${fmt(flows[i])} mol/s reaches the reactor`);
+      }
+    }
+    out.flows.set(b);
+
+    // K at each reaction's equilibrium temperature.
+    for (let r = 0; r < m; r++) {
+      const h = this.heatAt(r, T);
+      out.heat[r] = h;
+      const a = this.approach[r];
+      const Te = a === 0 ? T : h < 0 ? T + a : T - a;
+      out.Teq[r] = Te;
+      if (!(Te > 0)) {
+        return this.fail(out, 'invalid', 'no-temperature',
+          `${this.labels[r]} is endothermic at ${fmt(T)} K, so its approach of ${fmt(a)} K would hold it at the equilibrium of ${fmt(Te)} K, which is not a temperature`);
+      }
+      this.lnK[r] = this.lnKAt(r, Te);
+      out.lnK[r] = this.lnK[r];
+    }
+
+    // Which reactions can proceed.
+    this.findLive();
+    this.describeBlocked(out);
+    let total = 0;
+    for (let i = 0; i < n; i++) total += b[i];
+    if (!(total > 0)) {
+      out.message = joinNotes('no flow reaches the reactor: every extent is zero', out.message);
+      return out;
+    }
+    if (this.nLive === 0) return out;
+    this.lnP = Math.log(P / P_STD);
+    this.setGroups(out.Teq);
+
+    // Start.
+    const x = this.x;
+    x.fill(0);
+    if (state.start !== undefined && state.start.length === m && this.warmStart(state.start)) {
+      out.warm = true;
+    } else {
+      this.coldStart();
+    }
+
+    if (this.newton(out, P)) return out;
+
+    // Outlet and figures.
+    for (let r = 0; r < m; r++) out.extents[r] = this.live[r] ? x[r] : 0;
+    out.flows.set(this.nm);
+    for (let r = 0; r < m; r++) {
+      const k = this.keys[r];
+      if (k >= 0 && flows[k] > 0) out.conversion[r] = (out.extents[r] * -this.nu[r * n + k]) / flows[k];
+    }
+    // Phase at the reactor's own T (the iterates were checked at the equilibrium temperatures).
+    let atT = false;
+    for (let g = 0; g < this.nGroups; g++) if (this.groupT[g] === T) atT = true;
+    if (!atT && !this.isGas(T, P, this.y, this.phiScratch)) {
+      return this.fail(out, 'infeasible', 'not-gas', this.notGasText(T, P, 'the equilibrium mixture'));
+    }
+    out.phase = 'vapor';
+    if (this.stability) {
+      const s = stabilityTest(this.eos, T, P, this.y);
+      if (!s.stable) {
+        out.phase = 'two-phase';
+        return this.fail(out, 'infeasible', 'two-phase',
+          `at ${fmt(T)} K and ${fmt(P / 1e5)} bar the equilibrium mixture would condense (the tangent-plane test finds a second phase, tpd = ${s.tpd.toPrecision(3)}); the converter model is gas-phase`,
+          'raise the temperature or lower the pressure of the converter');
+      }
+    }
+    // Heat-capacity correlations extrapolated.
+    for (let r = 0; r < m; r++) {
+      for (let q = this.spStart[r]; q < this.spStart[r + 1]; q++) {
+        const c = this.comps[this.sp[q]];
+        if (outsideRange(c, out.Teq[r])) {
+          out.message = joinNotes(out.message, `${fmt(out.Teq[r])} K is outside the heat-capacity range of ${c.id}: K of ${this.labels[r]} is extrapolated`);
+        }
+      }
+    }
+    return out;
+  }
+
+  /** Marks the reactions that can proceed (live) and the components that can be present (avail), in the order found. */
+  private findLive(): void {
+    const { n, m, b, avail, live, order, sp, spNu, spStart } = this;
+    for (let i = 0; i < n; i++) avail[i] = b[i] > 0 ? 1 : 0;
+    live.fill(0);
+    this.nLive = 0;
+    let changed = true;
+    while (changed) {
+      changed = false;
+      for (let r = 0; r < m; r++) {
+        if (live[r]) continue;
+        let fwd = true;
+        let back = true;
+        for (let q = spStart[r]; q < spStart[r + 1]; q++) {
+          if (!avail[sp[q]]) {
+            if (spNu[q] < 0) fwd = false;
+            else back = false;
+          }
+        }
+        if (fwd || back) {
+          live[r] = 1;
+          order[this.nLive++] = r;
+          for (let q = spStart[r]; q < spStart[r + 1]; q++) avail[sp[q]] = 1;
+          changed = true;
+        }
+      }
+    }
+  }
+
+  /** The message about reactions that cannot proceed (built again only when the blocked set changes). */
+  private describeBlocked(out: EquilibriumResult): void {
+    const { m, live, avail, sp, spNu, spStart } = this;
+    let any = false;
+    for (let r = 0; r < m; r++) {
+      out.blocked[r] = live[r] ? 0 : 1;
+      if (!live[r]) any = true;
+    }
+    if (!any) return;
+    let key = '';
+    for (let r = 0; r < m; r++) if (!live[r]) key += `${r},`;
+    if (key !== this.blockedKey) {
+      const parts: string[] = [];
+      for (let r = 0; r < m; r++) {
+        if (live[r]) continue;
+        const re: string[] = [];
+        const pr: string[] = [];
+        for (let q = spStart[r]; q < spStart[r + 1]; q++) if (!avail[sp[q]]) (spNu[q] < 0 ? re : pr).push(this.comps[sp[q]].id);
+        parts.push(`${this.labels[r]} cannot proceed: its reactant${re.length > 1 ? 's' : ''} ${re.join(', ')} and its product${pr.length > 1 ? 's' : ''} ${pr.join(', ')} reach the reactor from no inlet and no other reaction, so its extent is zero`);
+      }
+      this.blockedText = parts.join('; ');
+      this.blockedKey = key;
+    }
+    out.message = this.blockedText;
+  }
+
+  /** Groups the live reactions by equilibrium temperature (one equation-of-state call per group). */
+  private setGroups(Teq: Float64Array): void {
+    this.nGroups = 0;
+    for (let k = 0; k < this.nLive; k++) {
+      const r = this.order[k];
+      let g = 0;
+      while (g < this.nGroups && this.groupT[g] !== Teq[r]) g++;
+      if (g === this.nGroups) this.groupT[this.nGroups++] = Teq[r];
+      this.group[r] = g;
+    }
+  }
+
+  /** n = b + sum over the live reactions of nu xi. */
+  private composition(x: Float64Array, nOut: Float64Array): void {
+    const { sp, spNu, spStart } = this;
+    nOut.set(this.b);
+    for (let k = 0; k < this.nLive; k++) {
+      const r = this.order[k];
+      const xr = x[r];
+      if (xr === 0) continue;
+      for (let q = spStart[r]; q < spStart[r + 1]; q++) nOut[sp[q]] += spNu[q] * xr;
+    }
+  }
+
+  /** Whether every species of a live reaction is strictly positive. */
+  private feasible(nv: Float64Array): boolean {
+    const { sp, spStart } = this;
+    for (let k = 0; k < this.nLive; k++) {
+      const r = this.order[k];
+      for (let q = spStart[r]; q < spStart[r + 1]; q++) if (!(nv[sp[q]] > 0)) return false;
+    }
+    return true;
+  }
+
+  private warmStart(start: ArrayLike<number>): boolean {
+    const x = this.x;
+    for (let r = 0; r < this.m; r++) {
+      const v = start[r];
+      if (!Number.isFinite(v)) {
+        x.fill(0);
+        return false;
+      }
+      x[r] = this.live[r] ? v : 0;
+    }
+    this.composition(x, this.nm);
+    if (this.feasible(this.nm)) return true;
+    x.fill(0);
+    return false;
+  }
+
+  /** Each live reaction that must create a species advances by a tenth of what its scarcest consumed species allows. */
+  private coldStart(): void {
+    const { x, nm, sp, spNu, spStart } = this;
+    nm.set(this.b);
+    for (let k = 0; k < this.nLive; k++) {
+      const r = this.order[k];
+      let needs = false;
+      let fwd = true;
+      for (let q = spStart[r]; q < spStart[r + 1]; q++) {
+        if (!(nm[sp[q]] > 0)) {
+          needs = true;
+          if (spNu[q] < 0) fwd = false;
+        }
+      }
+      if (!needs) continue;
+      const d = fwd ? 1 : -1;
+      let lim = Infinity;
+      for (let q = spStart[r]; q < spStart[r + 1]; q++) {
+        const c = spNu[q] * d;
+        if (c < 0) lim = Math.min(lim, nm[sp[q]] / -c);
+      }
+      if (!Number.isFinite(lim)) continue;
+      const step = d * START_FRACTION * lim;
+      x[r] += step;
+      for (let q = spStart[r]; q < spStart[r + 1]; q++) nm[sp[q]] += spNu[q] * step;
+    }
+  }
+
+  /** Mole fractions of nv into this.y; returns the total. */
+  private fractions(nv: Float64Array): number {
+    const { n, y } = this;
+    let N = 0;
+    for (let i = 0; i < n; i++) N += nv[i] > 0 ? nv[i] : 0;
+    const inv = 1 / N;
+    for (let i = 0; i < n; i++) y[i] = nv[i] > 0 ? nv[i] * inv : 0;
+    return N;
+  }
+
+  /**
+   * Residuals F at extents x (composition into nv, ln phi per group into lp). Returns false, with
+   * evalFault set, when a species is not positive or the mixture is not a gas.
+   */
+  private evaluate(x: Float64Array, nv: Float64Array, lp: Float64Array[], F: Float64Array, P: number): boolean {
+    const { sp, spNu, spStart, y } = this;
+    this.composition(x, nv);
+    if (!this.feasible(nv)) {
+      this.evalFault = 2;
+      return false;
+    }
+    const N = this.fractions(nv);
+    for (let g = 0; g < this.nGroups; g++) if (!this.isGas(this.groupT[g], P, y, lp[g])) return false;
+    const lnN = Math.log(N);
+    for (let k = 0; k < this.nLive; k++) {
+      const r = this.order[k];
+      const phi = lp[this.group[r]];
+      let s = 0;
+      for (let q = spStart[r]; q < spStart[r + 1]; q++) {
+        const i = sp[q];
+        s += spNu[q] * (Math.log(nv[i]) + phi[i]);
+      }
+      F[r] = s + this.dnu[r] * (this.lnP - lnN) - this.lnK[r];
+    }
+    this.evalFault = 0;
+    return true;
+  }
+
+  /** ln phi of y at T, P on the vapor root into out; false (with the fault noted) when the mixture is not a gas. */
+  private isGas(T: number, P: number, y: Float64Array, out: Float64Array): boolean {
+    let liquid: 'liquid-like' | 'three-roots' | null = null;
+    try {
+      const root = this.eos.lnPhi(T, P, y, 'vapor', out);
+      if (root.root === 'liquid') liquid = 'liquid-like';
+      else if (root.nRoots === 3 && this.eos.z(T, P, y, 'stable').root === 'liquid') liquid = 'three-roots';
+    } catch (e) {
+      if (!(e instanceof RangeError)) throw e;
+      liquid = 'liquid-like';
+    }
+    if (liquid === null) return true;
+    this.evalFault = 1;
+    this.faultT = T;
+    this.faultRoot = liquid;
+    return false;
+  }
+
+  private notGasText(T: number, P: number, what: string): string {
+    const why = this.faultRoot === 'three-roots'
+      ? 'the equation of state finds a liquid root of lower Gibbs energy than the vapor one'
+      : 'the equation of state finds it liquid-like, denser than its pseudo-critical volume below its pseudo-critical temperature';
+    return `${what} at ${fmt(T)} K and ${fmt(P / 1e5)} bar is not a gas (${why}); the converter model is gas-phase, so there is no equilibrium to report`;
+  }
+
+  /** Half the sum of squares of F over the live reactions; its largest |entry| into this.maxAbs. */
+  private merit(F: Float64Array): number {
+    let s = 0;
+    let big = 0;
+    for (let k = 0; k < this.nLive; k++) {
+      const v = F[this.order[k]];
+      s += v * v;
+      const a = Math.abs(v);
+      if (!(a <= big)) big = a;
+    }
+    this.maxAbs = big;
+    return 0.5 * s;
+  }
+
+  /** Newton iterations from this.x. Returns true when out now holds a failure. */
+  private newton(out: EquilibriumResult, P: number): boolean {
+    const { m, n, x, xt, dx, nm, nt, F, Ft, J, Jphi, live, sp, spStart } = this;
+    out.evaluations++;
+    if (!this.evaluate(x, nm, this.lnPhi, F, P)) {
+      this.writeExtents(out);
+      if (this.evalFault === 1) {
+        this.fail(out, 'infeasible', 'not-gas', this.notGasText(this.faultT, P, out.warm ? 'the mixture at the last extents' : 'the reactor inlet'));
+      } else {
+        this.fail(out, 'not-converged', 'underflow', 'a species of a reaction has no positive amount at the start');
+      }
+      return true;
+    }
+    let f = this.merit(F);
+    const mode = this.jacobianMode;
+    let phiPart = false;
+    let freshPhiPart = false;
+    for (let it = 0; ; it++) {
+      out.history[out.historyLength++] = this.maxAbs;
+      out.residual = this.maxAbs;
+      if (this.maxAbs <= this.tol) return false;
+      if (it >= this.maxIt) {
+        this.writeExtents(out);
+        this.fail(out, 'not-converged', 'iterations', `equilibrium did not converge in ${this.maxIt} Newton iterations (largest |ln(Q/K)| ${this.maxAbs.toPrecision(3)})`);
+        return true;
+      }
+      if (mode === 'full' || (mode === 'chord' && !phiPart)) {
+        this.fugacityJacobian(P, out);
+        phiPart = true;
+        freshPhiPart = true;
+      }
+      this.idealJacobian();
+      if (phiPart) for (let k = 0; k < m * m; k++) J[k] += Jphi[k];
+      for (let r = 0; r < m; r++) dx[r] = live[r] ? -F[r] : 0;
+      if (!this.luSolve(J, dx)) {
+        this.writeExtents(out);
+        this.fail(out, 'not-converged', 'singular', 'the equilibrium Jacobian is singular at the current extents');
+        return true;
+      }
+      // Fraction to the boundary, over the species of the live reactions.
+      let amax = 1;
+      for (let k = 0; k < this.nLive; k++) {
+        const r = this.order[k];
+        for (let q = spStart[r]; q < spStart[r + 1]; q++) {
+          const i = sp[q];
+          let dn = 0;
+          for (let k2 = 0; k2 < this.nLive; k2++) {
+            const r2 = this.order[k2];
+            const c = this.nu[r2 * n + i];
+            if (c !== 0) dn += c * dx[r2];
+          }
+          if (dn < 0) amax = Math.min(amax, (TO_BOUNDARY * nm[i]) / -dn);
+        }
+      }
+      let alpha = amax;
+      let accepted = false;
+      let sawNotGas = false;
+      for (let h = 0; h < MAX_HALVINGS; h++) {
+        for (let r = 0; r < m; r++) xt[r] = x[r] + alpha * dx[r];
+        out.evaluations++;
+        if (this.evaluate(xt, nt, this.lnPhiT, Ft, P)) {
+          const ft = this.merit(Ft);
+          if (ft <= (1 - 2 * ARMIJO * alpha) * f) {
+            accepted = true;
+            f = ft;
+            break;
+          }
+        } else if (this.evalFault === 1) {
+          sawNotGas = true;
+        }
+        alpha *= 0.5;
+      }
+      if (!accepted) {
+        this.merit(F);
+        this.fractions(nm);
+        if (mode !== 'full' && !freshPhiPart) {
+          // Difference the fugacity part afresh here (or for the first time, when lagged) and try again.
+          this.fugacityJacobian(P, out);
+          phiPart = true;
+          freshPhiPart = true;
+          continue;
+        }
+        this.writeExtents(out);
+        if (sawNotGas) this.fail(out, 'infeasible', 'not-gas', this.notGasText(this.faultT, P, 'the mixture on the way to equilibrium'));
+        else this.fail(out, 'not-converged', 'line-search', `no step along Newton's direction lowers the equilibrium residual (largest |ln(Q/K)| ${this.maxAbs.toPrecision(3)})`);
+        return true;
+      }
+      out.iterations++;
+      freshPhiPart = false;
+      x.set(xt);
+      nm.set(nt);
+      F.set(Ft);
+      for (let g = 0; g < this.nGroups; g++) this.lnPhi[g].set(this.lnPhiT[g]);
+    }
+  }
+
+  private writeExtents(out: EquilibriumResult): void {
+    for (let r = 0; r < this.m; r++) out.extents[r] = this.live[r] ? this.x[r] : 0;
+    this.composition(this.x, out.flows);
+  }
+
+  /** J (m x m; identity on the rows of blocked reactions): the ideal-gas part at the current composition nm. */
+  private idealJacobian(): void {
+    const { m, n, nu, J, nm, live, dnu, sp, spNu, spStart } = this;
+    J.fill(0);
+    let N = 0;
+    for (let i = 0; i < n; i++) N += nm[i] > 0 ? nm[i] : 0;
+    const invN = 1 / N;
+    for (let r = 0; r < m; r++) {
+      if (!live[r]) {
+        J[r * m + r] = 1;
+        continue;
+      }
+      for (let s = r; s < m; s++) {
+        if (!live[s]) continue;
+        let v = 0;
+        for (let q = spStart[r]; q < spStart[r + 1]; q++) {
+          const i = sp[q];
+          const c = nu[s * n + i];
+          if (c !== 0) v += (spNu[q] * c) / nm[i];
+        }
+        v -= dnu[r] * dnu[s] * invN;
+        J[r * m + s] = v;
+        J[s * m + r] = v;
+      }
+    }
+  }
+
+  /**
+   * Jphi[r][s] = d(sum_i nu_ri ln phi_i)/d xi_s at the current composition nm, by forward differences
+   * (one equation-of-state call per group and live reaction). this.lnPhi must hold the values at nm.
+   */
+  private fugacityJacobian(P: number, out: EquilibriumResult): void {
+    const { m, n, Jphi, nm, nt, y, x, live, sp, spNu, spStart } = this;
+    Jphi.fill(0);
+    out.jacobians++;
+    let N0 = 0;
+    for (let i = 0; i < n; i++) N0 += nm[i] > 0 ? nm[i] : 0;
+    for (let s = 0; s < m; s++) {
+      if (!live[s]) continue;
+      // Step relative to the extent, with a floor from the total flow; capped so that no species of the reaction halves.
+      let h = 1.5e-8 * Math.max(Math.abs(x[s]), 1e-6 * N0);
+      for (let q = spStart[s]; q < spStart[s + 1]; q++) h = Math.min(h, (0.5 * nm[sp[q]]) / Math.abs(spNu[q]));
+      nt.set(nm);
+      for (let q = spStart[s]; q < spStart[s + 1]; q++) nt[sp[q]] += spNu[q] * h;
+      this.fractions(nt);
+      let ok = true;
+      for (let g = 0; g < this.nGroups; g++) {
+        try {
+          this.eos.lnPhi(this.groupT[g], P, y, 'vapor', this.lnPhiD[g]);
+        } catch (e) {
+          if (!(e instanceof RangeError)) throw e;
+          ok = false;
+        }
+      }
+      if (!ok) continue;
+      for (let k = 0; k < this.nLive; k++) {
+        const r = this.order[k];
+        const g = this.group[r];
+        const d1 = this.lnPhiD[g];
+        const d0 = this.lnPhi[g];
+        let d = 0;
+        for (let q = spStart[r]; q < spStart[r + 1]; q++) {
+          const i = sp[q];
+          d += spNu[q] * (d1[i] - d0[i]);
+        }
+        Jphi[r * m + s] = d / h;
+      }
+    }
+    // y back to the current composition (the phase check and the caller read it).
+    this.fractions(nm);
+  }
+
+  /** Solves A d = rhs in place (LU with partial pivoting, A overwritten). False when singular. */
+  private luSolve(A: Float64Array, rhs: Float64Array): boolean {
+    const m = this.m;
+    let big = 0;
+    for (let k = 0; k < m * m; k++) big = Math.max(big, Math.abs(A[k]));
+    if (!(big > 0) || !Number.isFinite(big)) return false;
+    for (let k = 0; k < m; k++) {
+      let piv = k;
+      let pv = Math.abs(A[k * m + k]);
+      for (let i = k + 1; i < m; i++) {
+        const v = Math.abs(A[i * m + k]);
+        if (v > pv) {
+          pv = v;
+          piv = i;
+        }
+      }
+      if (pv <= 1e-14 * big) return false;
+      if (piv !== k) {
+        for (let j = 0; j < m; j++) {
+          const t = A[k * m + j];
+          A[k * m + j] = A[piv * m + j];
+          A[piv * m + j] = t;
+        }
+        const t = rhs[k];
+        rhs[k] = rhs[piv];
+        rhs[piv] = t;
+      }
+      const d = A[k * m + k];
+      for (let i = k + 1; i < m; i++) {
+        const f = A[i * m + k] / d;
+        if (f === 0) continue;
+        for (let j = k + 1; j < m; j++) A[i * m + j] -= f * A[k * m + j];
+        rhs[i] -= f * rhs[k];
+      }
+    }
+    for (let k = m - 1; k >= 0; k--) {
+      let s = rhs[k];
+      for (let j = k + 1; j < m; j++) s -= A[k * m + j] * rhs[j];
+      rhs[k] = s / A[k * m + k];
+    }
+    return true;
+  }
+
+  private fail(out: EquilibriumResult, status: EquilibriumStatus, reason: EquilibriumReason, message: string, help?: string): EquilibriumResult {
+    out.status = status;
+    out.reason = reason;
+    out.message = joinNotes(message + (help ? ` (to fix: ${help})` : ''), out.message);
+    return out;
+  }
+}
+
+function joinNotes(a: string, b: string): string {
+  return a === '' ? b : b === '' ? a : `${a}; ${b}`;
+}
+
+function fmt(v: number): string {
+  return Number(v.toPrecision(6)).toString();
+}
