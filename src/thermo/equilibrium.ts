@@ -38,12 +38,18 @@
  * are feasible; otherwise each reaction that must create a species it needs advances by a tenth
  * of what its scarcest reactant allows, in the order in which the species become available.
  *
- * What can proceed. A reaction can run forward when all its reactants reach it (from the inlet or
- * from another reaction that can run) and backward when all its products do. One that can do
- * neither (a reactant and a product absent, e.g. N2 + 3 H2 -> 2 NH3 with no N2 and no NH3) is
- * held at zero extent, and the result says so. The ones left are solved together. Reactions that
- * are linear combinations of others are refused when the solver is prepared (their extents are
- * not unique, and their equilibrium holds already).
+ * What can proceed. A component that reaches the reactor can be present at equilibrium; one that
+ * does not can be present when some combination of the reactions forms it without taking any
+ * other absent component below zero. Those that no combination forms are held at exactly zero,
+ * and the extents move only in the directions that leave them at zero (equilibrium-space.ts: one
+ * small linear programme, made again only when the set of absent components changes). A reaction
+ * that no such direction moves (N2 + 3 H2 -> 2 NH3 with neither N2 nor NH3 in the inlet) keeps a
+ * zero extent, and the result says so; two reactions that can run only together (CO2 + 3 H2 ->
+ * CH3OH + H2O and CO2 + H2 -> CO + H2O on an inlet of CO and H2, as CO + 2 H2 -> CH3OH) run
+ * together. Newton then works on the coordinates eta of the extents in an orthonormal basis B of
+ * those directions: xi = B eta, residual B^T F, Jacobian B^T J B (B is the identity when every
+ * component is present). Reactions that are linear combinations of others are refused when the
+ * solver is prepared (their extents are not unique, and their equilibrium holds already).
  *
  * Approach to equilibrium. A reaction with an approach dT (K) is held at the equilibrium of
  * T + dT when it is exothermic and of T - dT when it is endothermic, judged by the sign of its
@@ -87,6 +93,7 @@
  */
 import { R } from './constants.js';
 import { gIG, hIG, outsideRange, P_STD } from './ideal-gas.js';
+import { reactionSpace, type ReactionSpace } from './equilibrium-space.js';
 import { stabilityTest } from './stability.js';
 import type { ComponentData, Eos } from './types.js';
 
@@ -181,8 +188,10 @@ export interface EquilibriumResult {
   heat: Float64Array;
   /** Conversion of each reaction's key by that reaction: extent |nu_key| / inlet flow of the key (0 without key or inlet). */
   conversion: Float64Array;
-  /** 1 where a reaction cannot proceed (a reactant and a product absent): extent 0. */
+  /** 1 where a reaction cannot proceed at all (it needs a component that reaches the reactor from no inlet and that no reaction forms): extent 0. */
   blocked: Uint8Array;
+  /** 1 for each component held at zero: absent from the inlet and formed by no feasible combination of the reactions. */
+  zero: Uint8Array;
   /** Largest |ln(Q_r/K_r)| at the extents returned. */
   residual: number;
   /** Newton iterations, residual evaluations (each one equation-of-state call per equilibrium temperature), Jacobians with differenced fugacity coefficients. */
@@ -338,6 +347,8 @@ export class EquilibriumSolver {
   private readonly spStart: Int32Array;
   private readonly approach: Float64Array;
   private readonly keys: Int32Array;
+  /** Components that some reaction involves. */
+  private readonly involved: Uint8Array;
   // lnK and heat caches per reaction (last temperatures)
   private readonly kT: Float64Array;
   private readonly kVal: Float64Array;
@@ -345,40 +356,49 @@ export class EquilibriumSolver {
   private readonly hVal: Float64Array;
   /** lnK of each reaction at its equilibrium temperature in the current solve. */
   private readonly lnK: Float64Array;
+  // The feasible space, kept while the set of absent species stays the same.
+  private readonly absent: Uint8Array;
+  private space: ReactionSpace;
+  private spaceKnown = false;
+  /** Per reaction: 1 when it moves in the feasible space (its row of the basis is not zero). */
+  private readonly active: Uint8Array;
+  private identity = true;
+  private blockedText = '';
   // per-call scratch
   private readonly b: Float64Array;
-  private readonly avail: Uint8Array;
-  private readonly live: Uint8Array;
-  private readonly order: Int32Array;
-  private nLive = 0;
   private readonly group: Int32Array;
   private readonly groupT: Float64Array;
   private nGroups = 0;
   private readonly x: Float64Array;
   private readonly xt: Float64Array;
-  private readonly dx: Float64Array;
+  private readonly dxi: Float64Array;
+  private readonly eta: Float64Array;
+  private readonly deta: Float64Array;
   private readonly nm: Float64Array;
   private readonly nt: Float64Array;
   private readonly y: Float64Array;
   private readonly F: Float64Array;
   private readonly Ft: Float64Array;
+  private readonly G: Float64Array;
+  private readonly Gt: Float64Array;
+  private readonly trialEta: Float64Array;
   private readonly J: Float64Array;
-  /** The held fugacity part of the Jacobian (m x m). */
+  private readonly JB: Float64Array;
+  private readonly Jr: Float64Array;
+  /** The held fugacity part of the reduced Jacobian (d x d). */
   private readonly Jphi: Float64Array;
-  /** ln phi per group: the current iterate's, a trial's, a differenced one's (views of one row each, made once). */
+  /** ln phi per group: the current iterate's, a trial's, a differenced one's (one view per group, made once). */
   private readonly lnPhi: Float64Array[];
   private readonly lnPhiT: Float64Array[];
   private readonly lnPhiD: Float64Array[];
   private readonly phiScratch: Float64Array;
   private lnP = 0;
-  /** Largest |F| found by the last merit() call. */
+  /** Largest |G| found by the last merit() call. */
   private maxAbs = 0;
   /** Why the last evaluate failed: 0 ok, 1 not a gas, 2 a species not positive. */
   private evalFault = 0;
   private faultT = 0;
   private faultRoot: 'liquid-like' | 'three-roots' = 'liquid-like';
-  private blockedText = '';
-  private blockedKey = '';
 
   constructor(eos: Eos, reactions: readonly EquilibriumReaction[], options: EquilibriumOptions = {}) {
     const n = eos.n;
@@ -396,6 +416,7 @@ export class EquilibriumSolver {
     this.dnu = new Float64Array(m);
     this.approach = new Float64Array(m);
     this.keys = new Int32Array(m).fill(-1);
+    this.involved = new Uint8Array(n);
     this.spStart = new Int32Array(m + 1);
     const sp: number[] = [];
     const spNu: number[] = [];
@@ -409,6 +430,7 @@ export class EquilibriumSolver {
         if (v !== 0) {
           sp.push(i);
           spNu.push(v);
+          this.involved[i] = 1;
         }
       }
       this.approach[r] = rx.approach ?? 0;
@@ -422,21 +444,28 @@ export class EquilibriumSolver {
     this.hT = new Float64Array(m).fill(Number.NaN);
     this.hVal = new Float64Array(m);
     this.lnK = new Float64Array(m);
+    this.absent = new Uint8Array(n);
+    this.space = { zero: new Uint8Array(n), basis: new Float64Array(0), d: 0, direction: new Float64Array(m) };
+    this.active = new Uint8Array(m);
     this.b = new Float64Array(n);
-    this.avail = new Uint8Array(n);
-    this.live = new Uint8Array(m);
-    this.order = new Int32Array(m);
     this.group = new Int32Array(m);
     this.groupT = new Float64Array(m);
     this.x = new Float64Array(m);
     this.xt = new Float64Array(m);
-    this.dx = new Float64Array(m);
+    this.dxi = new Float64Array(m);
+    this.eta = new Float64Array(m);
+    this.deta = new Float64Array(m);
     this.nm = new Float64Array(n);
     this.nt = new Float64Array(n);
     this.y = new Float64Array(n);
     this.F = new Float64Array(m);
     this.Ft = new Float64Array(m);
+    this.G = new Float64Array(m);
+    this.Gt = new Float64Array(m);
+    this.trialEta = new Float64Array(m);
     this.J = new Float64Array(m * m);
+    this.JB = new Float64Array(m * m);
+    this.Jr = new Float64Array(m * m);
     this.Jphi = new Float64Array(m * m);
     const rows = () => {
       const buf = new Float64Array(m * n);
@@ -455,7 +484,7 @@ export class EquilibriumSolver {
       status: 'invalid', reason: null, message: '', T: Number.NaN, P: Number.NaN,
       extents: new Float64Array(m), flows: new Float64Array(this.n), lnK: new Float64Array(m), Teq: new Float64Array(m),
       approach: Float64Array.from(this.approach), heat: new Float64Array(m), conversion: new Float64Array(m), blocked: new Uint8Array(m),
-      residual: Number.NaN, iterations: 0, evaluations: 0, jacobians: 0,
+      zero: new Uint8Array(this.n), residual: Number.NaN, iterations: 0, evaluations: 0, jacobians: 0,
       history: new Float64Array(this.maxIt + 1), historyLength: 0, phase: 'unchecked', warm: false,
     };
   }
@@ -502,6 +531,7 @@ export class EquilibriumSolver {
     out.extents.fill(0);
     out.conversion.fill(0);
     out.blocked.fill(0);
+    out.zero.fill(0);
     out.approach.set(this.approach);
     out.flows.fill(0);
 
@@ -552,22 +582,23 @@ export class EquilibriumSolver {
       out.lnK[r] = this.lnK[r];
     }
 
-    // Which reactions can proceed.
-    this.findLive();
-    this.describeBlocked(out);
     let total = 0;
     for (let i = 0; i < n; i++) total += b[i];
     if (!(total > 0)) {
-      out.message = joinNotes('no flow reaches the reactor: every extent is zero', out.message);
+      out.message = 'no flow reaches the reactor: every extent is zero';
       return out;
     }
-    if (this.nLive === 0) return out;
+    // Which species can be present, and the extents that move.
+    this.analyse();
+    const sp = this.space;
+    out.zero.set(sp.zero);
+    for (let r = 0; r < m; r++) out.blocked[r] = this.active[r] ? 0 : 1;
+    out.message = this.blockedText;
+    if (sp.d === 0) return out;
     this.lnP = Math.log(P / P_STD);
     this.setGroups(out.Teq);
 
     // Start.
-    const x = this.x;
-    x.fill(0);
     if (state.start !== undefined && state.start.length === m && this.warmStart(state.start)) {
       out.warm = true;
     } else {
@@ -577,8 +608,7 @@ export class EquilibriumSolver {
     if (this.newton(out, P)) return out;
 
     // Outlet and figures.
-    for (let r = 0; r < m; r++) out.extents[r] = this.live[r] ? x[r] : 0;
-    out.flows.set(this.nm);
+    this.writeExtents(out);
     for (let r = 0; r < m; r++) {
       const k = this.keys[r];
       if (k >= 0 && flows[k] > 0) out.conversion[r] = (out.extents[r] * -this.nu[r * n + k]) / flows[k];
@@ -611,66 +641,52 @@ export class EquilibriumSolver {
     return out;
   }
 
-  /** Marks the reactions that can proceed (live) and the components that can be present (avail), in the order found. */
-  private findLive(): void {
-    const { n, m, b, avail, live, order, sp, spNu, spStart } = this;
-    for (let i = 0; i < n; i++) avail[i] = b[i] > 0 ? 1 : 0;
-    live.fill(0);
-    this.nLive = 0;
-    let changed = true;
-    while (changed) {
-      changed = false;
-      for (let r = 0; r < m; r++) {
-        if (live[r]) continue;
-        let fwd = true;
-        let back = true;
-        for (let q = spStart[r]; q < spStart[r + 1]; q++) {
-          if (!avail[sp[q]]) {
-            if (spNu[q] < 0) fwd = false;
-            else back = false;
-          }
-        }
-        if (fwd || back) {
-          live[r] = 1;
-          order[this.nLive++] = r;
-          for (let q = spStart[r]; q < spStart[r + 1]; q++) avail[sp[q]] = 1;
-          changed = true;
-        }
-      }
+  /** The feasible space for the absent species of this call; computed again only when they change. */
+  private analyse(): void {
+    const { n, m, b, involved, absent } = this;
+    let same = this.spaceKnown;
+    for (let i = 0; i < n; i++) {
+      const a = involved[i] && !(b[i] > 0) ? 1 : 0;
+      if (a !== absent[i]) same = false;
+      absent[i] = a;
     }
-  }
-
-  /** The message about reactions that cannot proceed (built again only when the blocked set changes). */
-  private describeBlocked(out: EquilibriumResult): void {
-    const { m, live, avail, sp, spNu, spStart } = this;
-    let any = false;
+    if (same) return;
+    const s = reactionSpace(this.nu, m, n, absent);
+    this.space = s;
+    this.spaceKnown = true;
+    this.identity = s.d === m;
     for (let r = 0; r < m; r++) {
-      out.blocked[r] = live[r] ? 0 : 1;
-      if (!live[r]) any = true;
+      let any = false;
+      for (let k = 0; k < s.d; k++) if (s.basis[r * s.d + k] !== 0) any = true;
+      this.active[r] = any ? 1 : 0;
     }
-    if (!any) return;
-    let key = '';
-    for (let r = 0; r < m; r++) if (!live[r]) key += `${r},`;
-    if (key !== this.blockedKey) {
-      const parts: string[] = [];
-      for (let r = 0; r < m; r++) {
-        if (live[r]) continue;
-        const re: string[] = [];
-        const pr: string[] = [];
-        for (let q = spStart[r]; q < spStart[r + 1]; q++) if (!avail[sp[q]]) (spNu[q] < 0 ? re : pr).push(this.comps[sp[q]].id);
-        parts.push(`${this.labels[r]} cannot proceed: its reactant${re.length > 1 ? 's' : ''} ${re.join(', ')} and its product${pr.length > 1 ? 's' : ''} ${pr.join(', ')} reach the reactor from no inlet and no other reaction, so its extent is zero`);
-      }
-      this.blockedText = parts.join('; ');
-      this.blockedKey = key;
+    // The message, made here once for this set of absent species.
+    const parts: string[] = [];
+    const ids = (list: number[]) => list.map((i) => this.comps[i].id).join(', ');
+    for (let r = 0; r < m; r++) {
+      if (this.active[r]) continue;
+      const held: number[] = [];
+      for (let q = this.spStart[r]; q < this.spStart[r + 1]; q++) if (s.zero[this.sp[q]]) held.push(this.sp[q]);
+      parts.push(`${this.labels[r]} cannot proceed: ${ids(held)} ${held.length > 1 ? 'reach' : 'reaches'} the reactor from no inlet and no reaction can form ${held.length > 1 ? 'them' : 'it'}, so its extent is zero`);
     }
-    out.message = this.blockedText;
+    const heldOnly: number[] = [];
+    for (let i = 0; i < n; i++) {
+      if (!s.zero[i]) continue;
+      let inActive = false;
+      for (let r = 0; r < m; r++) if (this.active[r] && this.nu[r * n + i] !== 0) inActive = true;
+      if (inActive) heldOnly.push(i);
+    }
+    if (heldOnly.length > 0) {
+      parts.push(`${ids(heldOnly)} ${heldOnly.length > 1 ? 'reach' : 'reaches'} the reactor from no inlet, and no combination of the reactions forms ${heldOnly.length > 1 ? 'them' : 'it'} without using ${heldOnly.length > 1 ? 'them' : 'it'} up again: ${heldOnly.length > 1 ? 'they stay' : 'it stays'} at zero, and the reactions proceed only in combinations that leave ${heldOnly.length > 1 ? 'them' : 'it'} out`);
+    }
+    this.blockedText = parts.join('; ');
   }
 
-  /** Groups the live reactions by equilibrium temperature (one equation-of-state call per group). */
+  /** Groups the active reactions by equilibrium temperature (one equation-of-state call per group). */
   private setGroups(Teq: Float64Array): void {
     this.nGroups = 0;
-    for (let k = 0; k < this.nLive; k++) {
-      const r = this.order[k];
+    for (let r = 0; r < this.m; r++) {
+      if (!this.active[r]) continue;
       let g = 0;
       while (g < this.nGroups && this.groupT[g] !== Teq[r]) g++;
       if (g === this.nGroups) this.groupT[this.nGroups++] = Teq[r];
@@ -678,70 +694,98 @@ export class EquilibriumSolver {
     }
   }
 
-  /** n = b + sum over the live reactions of nu xi. */
-  private composition(x: Float64Array, nOut: Float64Array): void {
-    const { sp, spNu, spStart } = this;
-    nOut.set(this.b);
-    for (let k = 0; k < this.nLive; k++) {
-      const r = this.order[k];
-      const xr = x[r];
-      if (xr === 0) continue;
-      for (let q = spStart[r]; q < spStart[r + 1]; q++) nOut[sp[q]] += spNu[q] * xr;
+  /** xi = B eta (exactly zero for reactions that do not move). */
+  private extentsOf(eta: Float64Array, xi: Float64Array): void {
+    const { m } = this;
+    if (this.identity) {
+      for (let r = 0; r < m; r++) xi[r] = eta[r];
+      return;
+    }
+    const { basis, d } = this.space;
+    for (let r = 0; r < m; r++) {
+      let s = 0;
+      for (let k = 0; k < d; k++) s += basis[r * d + k] * eta[k];
+      xi[r] = s;
     }
   }
 
-  /** Whether every species of a live reaction is strictly positive. */
+  /** n = b + sum_r nu_r xi_r; components held at zero are set to exactly zero. */
+  private composition(xi: Float64Array, nOut: Float64Array): void {
+    const { sp, spNu, spStart } = this;
+    nOut.set(this.b);
+    for (let r = 0; r < this.m; r++) {
+      const xr = xi[r];
+      if (xr === 0) continue;
+      for (let q = spStart[r]; q < spStart[r + 1]; q++) nOut[sp[q]] += spNu[q] * xr;
+    }
+    if (!this.identity) {
+      const z = this.space.zero;
+      for (let i = 0; i < this.n; i++) if (z[i]) nOut[i] = 0;
+    }
+  }
+
+  /** Whether every species of an active reaction that is not held at zero is strictly positive. */
   private feasible(nv: Float64Array): boolean {
-    const { sp, spStart } = this;
-    for (let k = 0; k < this.nLive; k++) {
-      const r = this.order[k];
-      for (let q = spStart[r]; q < spStart[r + 1]; q++) if (!(nv[sp[q]] > 0)) return false;
+    const { sp, spStart, active } = this;
+    const z = this.space.zero;
+    for (let r = 0; r < this.m; r++) {
+      if (!active[r]) continue;
+      for (let q = spStart[r]; q < spStart[r + 1]; q++) {
+        const i = sp[q];
+        if (!(nv[i] > 0) && !z[i]) return false;
+      }
     }
     return true;
   }
 
+  /** eta = B^T start; accepted when B eta keeps every species positive. */
   private warmStart(start: ArrayLike<number>): boolean {
-    const x = this.x;
-    for (let r = 0; r < this.m; r++) {
-      const v = start[r];
-      if (!Number.isFinite(v)) {
-        x.fill(0);
-        return false;
-      }
-      x[r] = this.live[r] ? v : 0;
+    const { m, eta, x } = this;
+    const { basis, d } = this.space;
+    for (let r = 0; r < m; r++) if (!Number.isFinite(start[r])) return false;
+    for (let k = 0; k < d; k++) {
+      let s = 0;
+      for (let r = 0; r < m; r++) s += (this.identity ? (r === k ? 1 : 0) : basis[r * d + k]) * start[r];
+      eta[k] = s;
     }
+    this.extentsOf(eta, x);
     this.composition(x, this.nm);
-    if (this.feasible(this.nm)) return true;
-    x.fill(0);
-    return false;
+    return this.feasible(this.nm);
   }
 
-  /** Each live reaction that must create a species advances by a tenth of what its scarcest consumed species allows. */
+  /**
+   * Start: a step along the programme's direction (which forms every absent species that can be
+   * present) to a tenth of what its scarcest consumed species allows; no step when none is absent.
+   */
   private coldStart(): void {
-    const { x, nm, sp, spNu, spStart } = this;
-    nm.set(this.b);
-    for (let k = 0; k < this.nLive; k++) {
-      const r = this.order[k];
-      let needs = false;
-      let fwd = true;
-      for (let q = spStart[r]; q < spStart[r + 1]; q++) {
-        if (!(nm[sp[q]] > 0)) {
-          needs = true;
-          if (spNu[q] < 0) fwd = false;
-        }
-      }
-      if (!needs) continue;
-      const d = fwd ? 1 : -1;
+    const { m, n, eta, x, nm, b } = this;
+    const { basis, d, direction } = this.space;
+    let any = false;
+    for (let r = 0; r < m; r++) if (direction[r] !== 0) any = true;
+    let eps = 0;
+    if (any) {
       let lim = Infinity;
-      for (let q = spStart[r]; q < spStart[r + 1]; q++) {
-        const c = spNu[q] * d;
-        if (c < 0) lim = Math.min(lim, nm[sp[q]] / -c);
+      let big = 0;
+      let total = 0;
+      const z = this.space.zero;
+      for (let i = 0; i < n; i++) {
+        if (z[i]) continue;
+        let dn = 0;
+        for (let r = 0; r < m; r++) dn += this.nu[r * n + i] * direction[r];
+        if (dn < 0) lim = Math.min(lim, b[i] / -dn);
+        big = Math.max(big, Math.abs(dn));
+        total += b[i];
       }
-      if (!Number.isFinite(lim)) continue;
-      const step = d * START_FRACTION * lim;
-      x[r] += step;
-      for (let q = spStart[r]; q < spStart[r + 1]; q++) nm[sp[q]] += spNu[q] * step;
+      eps = START_FRACTION * (Number.isFinite(lim) ? lim : total / big);
     }
+    for (let r = 0; r < m; r++) x[r] = eps * direction[r];
+    for (let k = 0; k < d; k++) {
+      let s = 0;
+      for (let r = 0; r < m; r++) s += (this.identity ? (r === k ? 1 : 0) : basis[r * d + k]) * x[r];
+      eta[k] = s;
+    }
+    this.extentsOf(eta, x);
+    this.composition(x, nm);
   }
 
   /** Mole fractions of nv into this.y; returns the total. */
@@ -755,12 +799,15 @@ export class EquilibriumSolver {
   }
 
   /**
-   * Residuals F at extents x (composition into nv, ln phi per group into lp). Returns false, with
-   * evalFault set, when a species is not positive or the mixture is not a gas.
+   * Residuals F (per reaction; species held at zero left out, their terms cancel in B^T F) and the
+   * reduced residual G = B^T F at eta. Composition into nv, ln phi per group into lp. Returns false,
+   * with evalFault set, when a species is not positive or the mixture is not a gas.
    */
-  private evaluate(x: Float64Array, nv: Float64Array, lp: Float64Array[], F: Float64Array, P: number): boolean {
-    const { sp, spNu, spStart, y } = this;
-    this.composition(x, nv);
+  private evaluate(eta: Float64Array, xi: Float64Array, nv: Float64Array, lp: Float64Array[], F: Float64Array, G: Float64Array, P: number): boolean {
+    const { sp, spNu, spStart, y, m, active } = this;
+    const z = this.space.zero;
+    this.extentsOf(eta, xi);
+    this.composition(xi, nv);
     if (!this.feasible(nv)) {
       this.evalFault = 2;
       return false;
@@ -768,18 +815,40 @@ export class EquilibriumSolver {
     const N = this.fractions(nv);
     for (let g = 0; g < this.nGroups; g++) if (!this.isGas(this.groupT[g], P, y, lp[g])) return false;
     const lnN = Math.log(N);
-    for (let k = 0; k < this.nLive; k++) {
-      const r = this.order[k];
+    for (let r = 0; r < m; r++) {
+      if (!active[r]) {
+        F[r] = 0;
+        continue;
+      }
       const phi = lp[this.group[r]];
       let s = 0;
+      let dn = 0;
       for (let q = spStart[r]; q < spStart[r + 1]; q++) {
         const i = sp[q];
+        if (z[i]) continue;
         s += spNu[q] * (Math.log(nv[i]) + phi[i]);
+        dn += spNu[q];
       }
-      F[r] = s + this.dnu[r] * (this.lnP - lnN) - this.lnK[r];
+      F[r] = s + dn * (this.lnP - lnN) - this.lnK[r];
     }
+    this.reduce(F, G);
     this.evalFault = 0;
     return true;
+  }
+
+  /** G = B^T F. */
+  private reduce(F: Float64Array, G: Float64Array): void {
+    const { m } = this;
+    if (this.identity) {
+      for (let r = 0; r < m; r++) G[r] = F[r];
+      return;
+    }
+    const { basis, d } = this.space;
+    for (let k = 0; k < d; k++) {
+      let s = 0;
+      for (let r = 0; r < m; r++) s += basis[r * d + k] * F[r];
+      G[k] = s;
+    }
   }
 
   /** ln phi of y at T, P on the vapor root into out; false (with the fault noted) when the mixture is not a gas. */
@@ -807,12 +876,12 @@ export class EquilibriumSolver {
     return `${what} at ${fmt(T)} K and ${fmt(P / 1e5)} bar is not a gas (${why}); the converter model is gas-phase, so there is no equilibrium to report`;
   }
 
-  /** Half the sum of squares of F over the live reactions; its largest |entry| into this.maxAbs. */
-  private merit(F: Float64Array): number {
+  /** Half the sum of squares of G; its largest |entry| into this.maxAbs. */
+  private merit(G: Float64Array): number {
     let s = 0;
     let big = 0;
-    for (let k = 0; k < this.nLive; k++) {
-      const v = F[this.order[k]];
+    for (let k = 0; k < this.space.d; k++) {
+      const v = G[k];
       s += v * v;
       const a = Math.abs(v);
       if (!(a <= big)) big = a;
@@ -821,11 +890,13 @@ export class EquilibriumSolver {
     return 0.5 * s;
   }
 
-  /** Newton iterations from this.x. Returns true when out now holds a failure. */
+  /** Newton iterations on eta from this.eta. Returns true when out now holds a failure. */
   private newton(out: EquilibriumResult, P: number): boolean {
-    const { m, n, x, xt, dx, nm, nt, F, Ft, J, Jphi, live, sp, spStart } = this;
+    const { m, n, eta, deta, x, xt, dxi, nm, nt, F, Ft, G, Jr, Jphi, sp, spStart, active } = this;
+    const d = this.space.d;
+    const z = this.space.zero;
     out.evaluations++;
-    if (!this.evaluate(x, nm, this.lnPhi, F, P)) {
+    if (!this.evaluate(eta, x, nm, this.lnPhi, F, G, P)) {
       this.writeExtents(out);
       if (this.evalFault === 1) {
         this.fail(out, 'infeasible', 'not-gas', this.notGasText(this.faultT, P, out.warm ? 'the mixture at the last extents' : 'the reactor inlet'));
@@ -834,10 +905,11 @@ export class EquilibriumSolver {
       }
       return true;
     }
-    let f = this.merit(F);
+    let f = this.merit(G);
     const mode = this.jacobianMode;
     let phiPart = false;
     let freshPhiPart = false;
+    const trialEta = this.trialEta;
     for (let it = 0; ; it++) {
       out.history[out.historyLength++] = this.maxAbs;
       out.residual = this.maxAbs;
@@ -852,25 +924,26 @@ export class EquilibriumSolver {
         phiPart = true;
         freshPhiPart = true;
       }
-      this.idealJacobian();
-      if (phiPart) for (let k = 0; k < m * m; k++) J[k] += Jphi[k];
-      for (let r = 0; r < m; r++) dx[r] = live[r] ? -F[r] : 0;
-      if (!this.luSolve(J, dx)) {
+      this.reducedJacobian();
+      if (phiPart) for (let k = 0; k < d * d; k++) Jr[k] += Jphi[k];
+      for (let k = 0; k < d; k++) deta[k] = -G[k];
+      if (!luSolve(Jr, deta, d)) {
         this.writeExtents(out);
         this.fail(out, 'not-converged', 'singular', 'the equilibrium Jacobian is singular at the current extents');
         return true;
       }
-      // Fraction to the boundary, over the species of the live reactions.
+      this.extentsOf(deta, dxi);
+      // Fraction to the boundary, over the species of the active reactions.
       let amax = 1;
-      for (let k = 0; k < this.nLive; k++) {
-        const r = this.order[k];
+      for (let r = 0; r < m; r++) {
+        if (!active[r]) continue;
         for (let q = spStart[r]; q < spStart[r + 1]; q++) {
           const i = sp[q];
+          if (z[i]) continue;
           let dn = 0;
-          for (let k2 = 0; k2 < this.nLive; k2++) {
-            const r2 = this.order[k2];
+          for (let r2 = 0; r2 < m; r2++) {
             const c = this.nu[r2 * n + i];
-            if (c !== 0) dn += c * dx[r2];
+            if (c !== 0) dn += c * dxi[r2];
           }
           if (dn < 0) amax = Math.min(amax, (TO_BOUNDARY * nm[i]) / -dn);
         }
@@ -879,10 +952,10 @@ export class EquilibriumSolver {
       let accepted = false;
       let sawNotGas = false;
       for (let h = 0; h < MAX_HALVINGS; h++) {
-        for (let r = 0; r < m; r++) xt[r] = x[r] + alpha * dx[r];
+        for (let k = 0; k < d; k++) trialEta[k] = eta[k] + alpha * deta[k];
         out.evaluations++;
-        if (this.evaluate(xt, nt, this.lnPhiT, Ft, P)) {
-          const ft = this.merit(Ft);
+        if (this.evaluate(trialEta, xt, nt, this.lnPhiT, Ft, this.Gt, P)) {
+          const ft = this.merit(this.Gt);
           if (ft <= (1 - 2 * ARMIJO * alpha) * f) {
             accepted = true;
             f = ft;
@@ -894,7 +967,7 @@ export class EquilibriumSolver {
         alpha *= 0.5;
       }
       if (!accepted) {
-        this.merit(F);
+        this.merit(G);
         this.fractions(nm);
         if (mode !== 'full' && !freshPhiPart) {
           // Difference the fugacity part afresh here (or for the first time, when lagged) and try again.
@@ -910,62 +983,105 @@ export class EquilibriumSolver {
       }
       out.iterations++;
       freshPhiPart = false;
+      eta.set(trialEta);
       x.set(xt);
       nm.set(nt);
       F.set(Ft);
+      G.set(this.Gt);
       for (let g = 0; g < this.nGroups; g++) this.lnPhi[g].set(this.lnPhiT[g]);
     }
   }
 
+  /** Extents and flows of the current iterate into out. */
   private writeExtents(out: EquilibriumResult): void {
-    for (let r = 0; r < this.m; r++) out.extents[r] = this.live[r] ? this.x[r] : 0;
+    this.extentsOf(this.eta, this.x);
+    for (let r = 0; r < this.m; r++) out.extents[r] = this.active[r] ? this.x[r] : 0;
     this.composition(this.x, out.flows);
   }
 
-  /** J (m x m; identity on the rows of blocked reactions): the ideal-gas part at the current composition nm. */
-  private idealJacobian(): void {
-    const { m, n, nu, J, nm, live, dnu, sp, spNu, spStart } = this;
+  /** Jr = B^T J B (d x d), with J the ideal-gas Jacobian at the current composition nm (species held at zero left out). */
+  private reducedJacobian(): void {
+    const { m, n, nu, J, JB, Jr, nm, active, sp, spNu, spStart } = this;
+    const z = this.space.zero;
     J.fill(0);
     let N = 0;
     for (let i = 0; i < n; i++) N += nm[i] > 0 ? nm[i] : 0;
     const invN = 1 / N;
     for (let r = 0; r < m; r++) {
-      if (!live[r]) {
-        J[r * m + r] = 1;
-        continue;
-      }
+      if (!active[r]) continue;
       for (let s = r; s < m; s++) {
-        if (!live[s]) continue;
+        if (!active[s]) continue;
         let v = 0;
+        let dr = 0;
+        let ds = 0;
         for (let q = spStart[r]; q < spStart[r + 1]; q++) {
           const i = sp[q];
+          if (z[i]) continue;
           const c = nu[s * n + i];
           if (c !== 0) v += (spNu[q] * c) / nm[i];
+          dr += spNu[q];
         }
-        v -= dnu[r] * dnu[s] * invN;
+        for (let q = spStart[s]; q < spStart[s + 1]; q++) if (!z[sp[q]]) ds += spNu[q];
+        v -= dr * ds * invN;
         J[r * m + s] = v;
         J[s * m + r] = v;
+      }
+    }
+    if (this.identity) {
+      Jr.set(J);
+      return;
+    }
+    const { basis, d } = this.space;
+    // JB = J B (m x d), Jr = B^T JB.
+    for (let r = 0; r < m; r++) {
+      for (let k = 0; k < d; k++) {
+        let s = 0;
+        for (let q = 0; q < m; q++) s += J[r * m + q] * basis[q * d + k];
+        JB[r * d + k] = s;
+      }
+    }
+    for (let k = 0; k < d; k++) {
+      for (let l = 0; l < d; l++) {
+        let s = 0;
+        for (let r = 0; r < m; r++) s += basis[r * d + k] * JB[r * d + l];
+        Jr[k * d + l] = s;
       }
     }
   }
 
   /**
-   * Jphi[r][s] = d(sum_i nu_ri ln phi_i)/d xi_s at the current composition nm, by forward differences
-   * (one equation-of-state call per group and live reaction). this.lnPhi must hold the values at nm.
+   * Jphi[k][l] = d(B^T Fphi)_k / d eta_l at the current iterate, with Fphi_r = sum_i nu_ri ln phi_i,
+   * by forward differences (one equation-of-state call per group and direction). this.lnPhi must
+   * hold the values at the current composition nm.
    */
   private fugacityJacobian(P: number, out: EquilibriumResult): void {
-    const { m, n, Jphi, nm, nt, y, x, live, sp, spNu, spStart } = this;
+    const { m, n, Jphi, nm, nt, y, x, sp, spNu, spStart, active, dxi } = this;
+    const { basis, d } = this.space;
+    const z = this.space.zero;
     Jphi.fill(0);
     out.jacobians++;
     let N0 = 0;
     for (let i = 0; i < n; i++) N0 += nm[i] > 0 ? nm[i] : 0;
-    for (let s = 0; s < m; s++) {
-      if (!live[s]) continue;
-      // Step relative to the extent, with a floor from the total flow; capped so that no species of the reaction halves.
-      let h = 1.5e-8 * Math.max(Math.abs(x[s]), 1e-6 * N0);
-      for (let q = spStart[s]; q < spStart[s + 1]; q++) h = Math.min(h, (0.5 * nm[sp[q]]) / Math.abs(spNu[q]));
+    const col = this.Ft; // scratch: the differenced Fphi, per reaction
+    for (let l = 0; l < d; l++) {
+      // Direction B_l in extents; step relative to the extents along it, capped so that no species halves.
+      let size = 0;
+      for (let r = 0; r < m; r++) {
+        dxi[r] = this.identity ? (r === l ? 1 : 0) : basis[r * d + l];
+        size = Math.max(size, Math.abs(x[r]));
+      }
+      let h = 1.5e-8 * Math.max(size, 1e-6 * N0);
       nt.set(nm);
-      for (let q = spStart[s]; q < spStart[s + 1]; q++) nt[sp[q]] += spNu[q] * h;
+      for (let r = 0; r < m; r++) {
+        if (dxi[r] === 0) continue;
+        for (let q = spStart[r]; q < spStart[r + 1]; q++) nt[sp[q]] += spNu[q] * dxi[r];
+      }
+      // nt - nm is the change per unit step: cap h so that no species falls by half.
+      for (let i = 0; i < n; i++) {
+        const dn = nt[i] - nm[i];
+        if (dn < 0 && !z[i]) h = Math.min(h, (0.5 * nm[i]) / -dn);
+      }
+      for (let i = 0; i < n; i++) nt[i] = z[i] ? 0 : nm[i] + h * (nt[i] - nm[i]);
       this.fractions(nt);
       let ok = true;
       for (let g = 0; g < this.nGroups; g++) {
@@ -977,64 +1093,29 @@ export class EquilibriumSolver {
         }
       }
       if (!ok) continue;
-      for (let k = 0; k < this.nLive; k++) {
-        const r = this.order[k];
+      for (let r = 0; r < m; r++) {
+        if (!active[r]) {
+          col[r] = 0;
+          continue;
+        }
         const g = this.group[r];
         const d1 = this.lnPhiD[g];
         const d0 = this.lnPhi[g];
-        let d = 0;
+        let s = 0;
         for (let q = spStart[r]; q < spStart[r + 1]; q++) {
           const i = sp[q];
-          d += spNu[q] * (d1[i] - d0[i]);
+          if (!z[i]) s += spNu[q] * (d1[i] - d0[i]);
         }
-        Jphi[r * m + s] = d / h;
+        col[r] = s / h;
+      }
+      for (let k = 0; k < d; k++) {
+        let s = 0;
+        for (let r = 0; r < m; r++) s += (this.identity ? (r === k ? 1 : 0) : basis[r * d + k]) * col[r];
+        Jphi[k * d + l] = s;
       }
     }
-    // y back to the current composition (the phase check and the caller read it).
+    // y back to the current composition (the phase check reads it).
     this.fractions(nm);
-  }
-
-  /** Solves A d = rhs in place (LU with partial pivoting, A overwritten). False when singular. */
-  private luSolve(A: Float64Array, rhs: Float64Array): boolean {
-    const m = this.m;
-    let big = 0;
-    for (let k = 0; k < m * m; k++) big = Math.max(big, Math.abs(A[k]));
-    if (!(big > 0) || !Number.isFinite(big)) return false;
-    for (let k = 0; k < m; k++) {
-      let piv = k;
-      let pv = Math.abs(A[k * m + k]);
-      for (let i = k + 1; i < m; i++) {
-        const v = Math.abs(A[i * m + k]);
-        if (v > pv) {
-          pv = v;
-          piv = i;
-        }
-      }
-      if (pv <= 1e-14 * big) return false;
-      if (piv !== k) {
-        for (let j = 0; j < m; j++) {
-          const t = A[k * m + j];
-          A[k * m + j] = A[piv * m + j];
-          A[piv * m + j] = t;
-        }
-        const t = rhs[k];
-        rhs[k] = rhs[piv];
-        rhs[piv] = t;
-      }
-      const d = A[k * m + k];
-      for (let i = k + 1; i < m; i++) {
-        const f = A[i * m + k] / d;
-        if (f === 0) continue;
-        for (let j = k + 1; j < m; j++) A[i * m + j] -= f * A[k * m + j];
-        rhs[i] -= f * rhs[k];
-      }
-    }
-    for (let k = m - 1; k >= 0; k--) {
-      let s = rhs[k];
-      for (let j = k + 1; j < m; j++) s -= A[k * m + j] * rhs[j];
-      rhs[k] = s / A[k * m + k];
-    }
-    return true;
   }
 
   private fail(out: EquilibriumResult, status: EquilibriumStatus, reason: EquilibriumReason, message: string, help?: string): EquilibriumResult {
@@ -1043,6 +1124,48 @@ export class EquilibriumSolver {
     out.message = joinNotes(message + (help ? ` (to fix: ${help})` : ''), out.message);
     return out;
   }
+}
+
+/** Solves A d = rhs in place for A of size k x k (LU with partial pivoting, A overwritten). False when singular. */
+function luSolve(A: Float64Array, rhs: Float64Array, k: number): boolean {
+  let big = 0;
+  for (let q = 0; q < k * k; q++) big = Math.max(big, Math.abs(A[q]));
+  if (!(big > 0) || !Number.isFinite(big)) return false;
+  for (let c = 0; c < k; c++) {
+    let piv = c;
+    let pv = Math.abs(A[c * k + c]);
+    for (let i = c + 1; i < k; i++) {
+      const v = Math.abs(A[i * k + c]);
+      if (v > pv) {
+        pv = v;
+        piv = i;
+      }
+    }
+    if (pv <= 1e-14 * big) return false;
+    if (piv !== c) {
+      for (let j = 0; j < k; j++) {
+        const t = A[c * k + j];
+        A[c * k + j] = A[piv * k + j];
+        A[piv * k + j] = t;
+      }
+      const t = rhs[c];
+      rhs[c] = rhs[piv];
+      rhs[piv] = t;
+    }
+    const dd = A[c * k + c];
+    for (let i = c + 1; i < k; i++) {
+      const f = A[i * k + c] / dd;
+      if (f === 0) continue;
+      for (let j = c + 1; j < k; j++) A[i * k + j] -= f * A[c * k + j];
+      rhs[i] -= f * rhs[c];
+    }
+  }
+  for (let c = k - 1; c >= 0; c--) {
+    let s = rhs[c];
+    for (let j = c + 1; j < k; j++) s -= A[c * k + j] * rhs[j];
+    rhs[c] = s / A[c * k + c];
+  }
+  return true;
 }
 
 function joinNotes(a: string, b: string): string {
