@@ -15,7 +15,8 @@
  * (steps up to 100 K, doubling) until g changes sign within [Tmin, Tmax], then secant steps kept
  * inside the bracket, with bisection whenever a secant step leaves it or shrinks it by less than
  * half (Dekker's safeguard). Converged when two successive temperatures differ by no more than
- * tolT (default 1e-6 K); the equilibrium returned is the one of the last temperature tried.
+ * tolT (default 1e-6 K), also while the secant still approaches from one side; the equilibrium
+ * returned is the one of the last temperature tried.
  * A trial temperature at which the equilibrium fails (e.g. the mixture is not a gas there) ends
  * the solve with that failure, located at that temperature.
  *
@@ -156,6 +157,11 @@ export function solveAdiabaticEquilibrium(
     const slope = (gb - ga) / (b - a);
     let next = slope > 0 ? b - gb / slope : b + (gb > 0 ? -step : step);
     const up = Number.isNaN(hi); // every point so far has g < 0: go up
+    if (slope > 0 && Math.abs(next - b) <= tolT && next >= Tmin && next <= Tmax) {
+      // Converged from one side before the sign changed.
+      g(next);
+      return res;
+    }
     if (up ? !(next > b) : !(next < b)) next = b + (up ? step : -step);
     next = Math.min(Math.max(next, b - step, Tmin), b + step, Tmax);
     if (next === b) {
