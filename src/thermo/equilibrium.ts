@@ -84,12 +84,19 @@
  *   result says so in its message.
  *
  * API (allocation-free in its hot path: arrays live in the solver, and `solve` writes into a
- * result object the caller keeps):
- *   const p = prepareEquilibrium(eos, [{ nu, approach, key, label }, ...]);
- *   if (p.status === 'invalid') ... p.problems (one per problem, with the reaction index)
+ * result object the caller keeps; a message string is built only when something is to be said):
+ *   const p = prepareEquilibrium(eos, [{ nu, approach, key, label }, ...]);   // once per reactor
+ *   if (p.status === 'invalid') ... p.problems: one per problem, with the reaction's index
  *   const out = p.solver.newResult();
- *   p.solver.solve({ T, P, flows, generation?, start? }, out);   // out.status, out.extents, ...
- * Adiabatic converters: see equilibrium-adiabatic.ts.
+ *   p.solver.solve({ T, P, flows, generation?, start? }, out);   // every pass
+ *   out.status, out.reason, out.message, out.extents, out.flows, out.lnK, out.Teq, out.heat, ...
+ * Reactions at a fixed conversion or extent in the same reactor: the caller computes their extents
+ * on the inlet as it does now and passes their net generation (sum of nu times extent) as
+ * `generation`; the equilibrium reactions then take inlet + generation to equilibrium, so the
+ * outlet is inlet + generation + equilibrium, and the equilibrium holds at the outlet.
+ * Warm start: pass the last call's `out.extents` as `start` (a start that is not feasible for the
+ * new inlet is dropped for the built-in one). p.solver.phaseProblem(T, P, flows) runs the
+ * stability test on demand. Adiabatic converters: equilibrium-adiabatic.ts.
  */
 import { R } from './constants.js';
 import { gIG, hIG, outsideRange, P_STD } from './ideal-gas.js';
@@ -641,6 +648,29 @@ export class EquilibriumSolver {
     return out;
   }
 
+  /**
+   * Whether a mixture leaving the converter at T (K), P (Pa) with these flows (mol/s) is one gas
+   * phase: null when it is, else what is wrong. The root labels and the tangent-plane stability
+   * test (some tens of equation-of-state calls), for a caller that solves with phaseCheck 'root'
+   * on every pass to run once on the converged state. Allocates.
+   */
+  phaseProblem(T: number, P: number, flows: ArrayLike<number>): string | null {
+    const n = this.n;
+    const nv = new Float64Array(n);
+    for (let i = 0; i < n; i++) nv[i] = flows[i] > 0 ? flows[i] : 0;
+    const y = new Float64Array(n);
+    let N = 0;
+    for (let i = 0; i < n; i++) N += nv[i];
+    if (!(N > 0)) return null;
+    for (let i = 0; i < n; i++) y[i] = nv[i] / N;
+    if (!this.isGas(T, P, y, new Float64Array(n))) return this.notGasText(T, P, 'the converter outlet');
+    const s = stabilityTest(this.eos, T, P, y);
+    if (!s.stable) {
+      return `at ${fmt(T)} K and ${fmt(P / 1e5)} bar the converter outlet would condense (the tangent-plane test finds a second phase, tpd = ${s.tpd.toPrecision(3)}); the converter model is gas-phase`;
+    }
+    return null;
+  }
+
   /** The feasible space for the absent species of this call; computed again only when they change. */
   private analyse(): void {
     const { n, m, b, involved, absent } = this;
@@ -901,7 +931,7 @@ export class EquilibriumSolver {
       if (this.evalFault === 1) {
         this.fail(out, 'infeasible', 'not-gas', this.notGasText(this.faultT, P, out.warm ? 'the mixture at the last extents' : 'the reactor inlet'));
       } else {
-        this.fail(out, 'not-converged', 'underflow', 'a species of a reaction has no positive amount at the start');
+        this.fail(out, 'not-converged', 'underflow', 'no start inside the feasible region was found (a species of a reaction has no positive amount there)');
       }
       return true;
     }

@@ -372,6 +372,22 @@ describe('what cannot proceed, and what is not a gas', () => {
     expect(Math.abs(out.flows[4] - direct.flows[4])).toBeLessThan(1e-11);
   });
 
+  it('a chain through a species absent from the inlet: CO + 2 H2 -> CH3OH, then 2 CH3OH -> CH3OCH3 + H2O', () => {
+    const ids = ['H2', 'CO', 'CH3OH', 'CH3OCH3', 'H2O'] as const;
+    const a = { nu: nu(ids, { CO: -1, H2: -2, CH3OH: 1 }) };
+    const b = { nu: nu(ids, { CH3OH: -2, CH3OCH3: 1, H2O: 1 }) };
+    const { eos, solver } = prepared('SRK', ids, [a, b]);
+    const inlet = [2, 1, 0, 0, 0];
+    const out = solver.solve({ T: 523.15, P: 50 * BAR, flows: inlet });
+    expect(out.status, out.message).toBe('converged');
+    expect(Array.from(out.zero)).toEqual([0, 0, 0, 0, 0]);
+    expect(Array.from(out.blocked)).toEqual([0, 0]);
+    for (const v of out.flows) expect(v).toBeGreaterThan(0);
+    expect(Math.abs(conditionResidual(eos, 523.15, 50 * BAR, a.nu, out.flows))).toBeLessThan(1e-10);
+    expect(Math.abs(conditionResidual(eos, 523.15, 50 * BAR, b.nu, out.flows))).toBeLessThan(1e-10);
+    expectElementsConserved(eos.components, inlet, out.flows);
+  });
+
   it('a liquid-like mixture is no gas-phase equilibrium: infeasible, said', () => {
     const ids = ['H2', 'CO2', 'H2O', 'CH3OH'] as const;
     const { solver } = prepared('SRK', ids, [{ nu: nu(ids, { CO2: -1, H2: -3, CH3OH: 1, H2O: 1 }), label: 'synthesis' }]);
@@ -396,6 +412,10 @@ describe('what cannot proceed, and what is not a gas', () => {
     const hot = prepared('SRK', ids, [rx], { phaseCheck: 'stability' }).solver.solve({ T: 600, P: 50 * BAR, flows });
     expect(hot.status).toBe('converged');
     expect(hot.phase).toBe('vapor');
+    // The same check on demand, for a caller that solves with the root labels only.
+    const solver = prepared('SRK', ids, [rx]).solver;
+    expect(solver.phaseProblem(330, 50 * BAR, plain.flows)).toMatch(/would condense/);
+    expect(solver.phaseProblem(600, 50 * BAR, hot.flows)).toBeNull();
   });
 
   it('a reaction that combines others is refused, naming it; bad inputs are invalid results', () => {
