@@ -33,7 +33,12 @@
  * nested in Newton; `'full'` differences it at every iterate.) Every step stays inside the
  * feasible region: it is cut so that no species that a reaction uses falls by more than 99 % of
  * what is left (fraction to the boundary), then halved until the sum of squared residuals falls
- * (Armijo). Converged when every |F_r| <= tol (default 1e-11, i.e. Q_r/K_r = 1 within 1e-11).
+ * (Armijo). Converged when every |F_r| <= tol (default 1e-11, i.e. Q_r/K_r = 1 within 1e-11), or
+ * when every residual lies within its own rounding noise, 8 machine epsilons times the sum of the
+ * magnitudes that make it, where ln n_i counts (b_i + sum_r |nu_ri xi_r|) / n_i: a reactant that
+ * is nearly used up (benzene hydrogenated to 2e-8 of its feed) is the difference of two nearly
+ * equal numbers, and its logarithm cannot be resolved further; the result then says so in its
+ * message, and its flows are exact to the rounding of the flows.
  * The start is the extents of the last call when the caller passes them (warm start) and they
  * are feasible; otherwise each reaction that must create a species it needs advances by a tenth
  * of what its scarcest reactant allows, in the order in which the species become available.
@@ -233,6 +238,16 @@ export function reactionHeat(components: readonly ComponentData[], nu: ArrayLike
   return h;
 }
 
+/**
+ * Said when a solve stops at the resolution of the flows before |ln(Q/K)| reaches tol: a species
+ * nearly used up is the difference of two nearly equal sums, so its logarithm carries rounding
+ * that no step can remove (e.g. benzene left at 2e-8 of its feed).
+ */
+const RESOLVED_NOTE =
+  'a species is nearly used up: its amount is resolved only to the rounding of the flows, so ln(Q/K) is left above the tolerance (see `residual`); the flows are exact to that rounding';
+
+/** Machine epsilons per term in the rounding noise of a residual. */
+const ROUNDING = 8 * Number.EPSILON;
 /** Fraction of the distance to the boundary that a step may go. */
 const TO_BOUNDARY = 0.99;
 /** Fraction of its scarcest reactant that a reaction takes in the built-in start. */
@@ -389,6 +404,12 @@ export class EquilibriumSolver {
   private readonly G: Float64Array;
   private readonly Gt: Float64Array;
   private readonly trialEta: Float64Array;
+  /** Rounding noise of F (per reaction) and of G at the current iterate and at a trial; size of the sum giving each amount. */
+  private readonly noiseF: Float64Array;
+  private readonly noiseG: Float64Array;
+  private readonly noiseGt: Float64Array;
+  private readonly size: Float64Array;
+  private readonly scale: Float64Array;
   private readonly J: Float64Array;
   private readonly JB: Float64Array;
   private readonly Jr: Float64Array;
@@ -470,6 +491,11 @@ export class EquilibriumSolver {
     this.G = new Float64Array(m);
     this.Gt = new Float64Array(m);
     this.trialEta = new Float64Array(m);
+    this.noiseF = new Float64Array(m);
+    this.noiseG = new Float64Array(m);
+    this.noiseGt = new Float64Array(m);
+    this.size = new Float64Array(n);
+    this.scale = new Float64Array(m);
     this.J = new Float64Array(m * m);
     this.JB = new Float64Array(m * m);
     this.Jr = new Float64Array(m * m);
@@ -833,8 +859,8 @@ export class EquilibriumSolver {
    * reduced residual G = B^T F at eta. Composition into nv, ln phi per group into lp. Returns false,
    * with evalFault set, when a species is not positive or the mixture is not a gas.
    */
-  private evaluate(eta: Float64Array, xi: Float64Array, nv: Float64Array, lp: Float64Array[], F: Float64Array, G: Float64Array, P: number): boolean {
-    const { sp, spNu, spStart, y, m, active } = this;
+  private evaluate(eta: Float64Array, xi: Float64Array, nv: Float64Array, lp: Float64Array[], F: Float64Array, G: Float64Array, noiseG: Float64Array, P: number): boolean {
+    const { sp, spNu, spStart, y, m, n, active, noiseF, size } = this;
     const z = this.space.zero;
     this.extentsOf(eta, xi);
     this.composition(xi, nv);
@@ -845,23 +871,40 @@ export class EquilibriumSolver {
     const N = this.fractions(nv);
     for (let g = 0; g < this.nGroups; g++) if (!this.isGas(this.groupT[g], P, y, lp[g])) return false;
     const lnN = Math.log(N);
+    // Size of the sum that gives each amount (for the rounding in its logarithm).
+    let sizeN = 0;
+    for (let i = 0; i < n; i++) {
+      let v = this.b[i];
+      for (let r = 0; r < m; r++) {
+        const c = this.nu[r * n + i];
+        if (c !== 0) v += Math.abs(c * xi[r]);
+      }
+      size[i] = v;
+      sizeN += v;
+    }
     for (let r = 0; r < m; r++) {
       if (!active[r]) {
         F[r] = 0;
+        noiseF[r] = 0;
         continue;
       }
       const phi = lp[this.group[r]];
       let s = 0;
       let dn = 0;
+      let noise = Math.abs(this.lnK[r]);
       for (let q = spStart[r]; q < spStart[r + 1]; q++) {
         const i = sp[q];
         if (z[i]) continue;
-        s += spNu[q] * (Math.log(nv[i]) + phi[i]);
+        const ln = Math.log(nv[i]);
+        s += spNu[q] * (ln + phi[i]);
         dn += spNu[q];
+        noise += Math.abs(spNu[q]) * (size[i] / nv[i] + Math.abs(ln) + Math.abs(phi[i]));
       }
       F[r] = s + dn * (this.lnP - lnN) - this.lnK[r];
+      noiseF[r] = ROUNDING * (noise + Math.abs(dn) * (Math.abs(this.lnP) + Math.abs(lnN) + sizeN / N));
     }
     this.reduce(F, G);
+    this.reduceNoise(noiseF, noiseG);
     this.evalFault = 0;
     return true;
   }
@@ -879,6 +922,27 @@ export class EquilibriumSolver {
       for (let r = 0; r < m; r++) s += basis[r * d + k] * F[r];
       G[k] = s;
     }
+  }
+
+  /** noiseG = |B|^T noiseF. */
+  private reduceNoise(noiseF: Float64Array, noiseG: Float64Array): void {
+    const { m } = this;
+    if (this.identity) {
+      for (let r = 0; r < m; r++) noiseG[r] = noiseF[r];
+      return;
+    }
+    const { basis, d } = this.space;
+    for (let k = 0; k < d; k++) {
+      let s = 0;
+      for (let r = 0; r < m; r++) s += Math.abs(basis[r * d + k]) * noiseF[r];
+      noiseG[k] = s;
+    }
+  }
+
+  /** Whether every |G_k| lies within its rounding noise. */
+  private withinNoise(G: Float64Array, noiseG: Float64Array): boolean {
+    for (let k = 0; k < this.space.d; k++) if (!(Math.abs(G[k]) <= noiseG[k])) return false;
+    return true;
   }
 
   /** ln phi of y at T, P on the vapor root into out; false (with the fault noted) when the mixture is not a gas. */
@@ -906,14 +970,19 @@ export class EquilibriumSolver {
     return `${what} at ${fmt(T)} K and ${fmt(P / 1e5)} bar is not a gas (${why}); the converter model is gas-phase, so there is no equilibrium to report`;
   }
 
-  /** Half the sum of squares of G; its largest |entry| into this.maxAbs. */
-  private merit(G: Float64Array): number {
+  /**
+   * Half the sum of squares of G beyond its rounding noise (|G_k| - noise_k where positive), so that
+   * a residual already at its rounding does not hide the progress of the others; the largest |G_k|
+   * into this.maxAbs.
+   */
+  private merit(G: Float64Array, noiseG: Float64Array): number {
     let s = 0;
     let big = 0;
     for (let k = 0; k < this.space.d; k++) {
-      const v = G[k];
-      s += v * v;
-      const a = Math.abs(v);
+      const a = Math.abs(G[k]);
+      const e = a - noiseG[k];
+      if (e > 0) s += e * e;
+      else if (Number.isNaN(e)) s = Number.NaN;
       if (!(a <= big)) big = a;
     }
     this.maxAbs = big;
@@ -926,7 +995,7 @@ export class EquilibriumSolver {
     const d = this.space.d;
     const z = this.space.zero;
     out.evaluations++;
-    if (!this.evaluate(eta, x, nm, this.lnPhi, F, G, P)) {
+    if (!this.evaluate(eta, x, nm, this.lnPhi, F, G, this.noiseG, P)) {
       this.writeExtents(out);
       if (this.evalFault === 1) {
         this.fail(out, 'infeasible', 'not-gas', this.notGasText(this.faultT, P, out.warm ? 'the mixture at the last extents' : 'the reactor inlet'));
@@ -935,7 +1004,7 @@ export class EquilibriumSolver {
       }
       return true;
     }
-    let f = this.merit(G);
+    let f = this.merit(G, this.noiseG);
     const mode = this.jacobianMode;
     let phiPart = false;
     let freshPhiPart = false;
@@ -944,9 +1013,14 @@ export class EquilibriumSolver {
       out.history[out.historyLength++] = this.maxAbs;
       out.residual = this.maxAbs;
       if (this.maxAbs <= this.tol) return false;
+      if (this.withinNoise(G, this.noiseG)) {
+        // At the resolution of the flows: what is left of |ln(Q/K)| is rounding.
+        out.message = joinNotes(out.message, RESOLVED_NOTE);
+        return false;
+      }
       if (it >= this.maxIt) {
         this.writeExtents(out);
-        this.fail(out, 'not-converged', 'iterations', `equilibrium did not converge in ${this.maxIt} Newton iterations (largest |ln(Q/K)| ${this.maxAbs.toPrecision(3)})`);
+        if (!this.condenses(out, P)) this.fail(out, 'not-converged', 'iterations', `equilibrium did not converge in ${this.maxIt} Newton iterations (largest |ln(Q/K)| ${this.maxAbs.toPrecision(3)})`);
         return true;
       }
       if (mode === 'full' || (mode === 'chord' && !phiPart)) {
@@ -957,9 +1031,9 @@ export class EquilibriumSolver {
       this.reducedJacobian();
       if (phiPart) for (let k = 0; k < d * d; k++) Jr[k] += Jphi[k];
       for (let k = 0; k < d; k++) deta[k] = -G[k];
-      if (!luSolve(Jr, deta, d)) {
+      if (!luSolve(Jr, deta, d, this.scale)) {
         this.writeExtents(out);
-        this.fail(out, 'not-converged', 'singular', 'the equilibrium Jacobian is singular at the current extents');
+        if (!this.condenses(out, P)) this.fail(out, 'not-converged', 'singular', 'the equilibrium Jacobian is singular at the current extents');
         return true;
       }
       this.extentsOf(deta, dxi);
@@ -984,8 +1058,8 @@ export class EquilibriumSolver {
       for (let h = 0; h < MAX_HALVINGS; h++) {
         for (let k = 0; k < d; k++) trialEta[k] = eta[k] + alpha * deta[k];
         out.evaluations++;
-        if (this.evaluate(trialEta, xt, nt, this.lnPhiT, Ft, this.Gt, P)) {
-          const ft = this.merit(this.Gt);
+        if (this.evaluate(trialEta, xt, nt, this.lnPhiT, Ft, this.Gt, this.noiseGt, P)) {
+          const ft = this.merit(this.Gt, this.noiseGt);
           if (ft <= (1 - 2 * ARMIJO * alpha) * f) {
             accepted = true;
             f = ft;
@@ -997,7 +1071,7 @@ export class EquilibriumSolver {
         alpha *= 0.5;
       }
       if (!accepted) {
-        this.merit(G);
+        this.merit(G, this.noiseG);
         this.fractions(nm);
         if (mode !== 'full' && !freshPhiPart) {
           // Difference the fugacity part afresh here (or for the first time, when lagged) and try again.
@@ -1008,18 +1082,47 @@ export class EquilibriumSolver {
         }
         this.writeExtents(out);
         if (sawNotGas) this.fail(out, 'infeasible', 'not-gas', this.notGasText(this.faultT, P, 'the mixture on the way to equilibrium'));
-        else this.fail(out, 'not-converged', 'line-search', `no step along Newton's direction lowers the equilibrium residual (largest |ln(Q/K)| ${this.maxAbs.toPrecision(3)})`);
+        else if (!this.condenses(out, P)) this.fail(out, 'not-converged', 'line-search', `no step along Newton's direction lowers the equilibrium residual (largest |ln(Q/K)| ${this.maxAbs.toPrecision(3)})`);
         return true;
       }
       out.iterations++;
+      // A held fugacity part that no longer gives fast convergence is differenced again.
+      if (mode === 'chord' && this.maxAbs > 0.25 * out.history[out.historyLength - 1]) phiPart = false;
       freshPhiPart = false;
       eta.set(trialEta);
       x.set(xt);
       nm.set(nt);
       F.set(Ft);
       G.set(this.Gt);
+      this.noiseG.set(this.noiseGt);
       for (let g = 0; g < this.nGroups; g++) this.lnPhi[g].set(this.lnPhiT[g]);
     }
+  }
+
+  /**
+   * After a failed solve: whether the last iterate would condense at one of the equilibrium
+   * temperatures (tangent-plane test). If so, out says that no gas-phase equilibrium was found
+   * there (a dense, water- or methanol-rich state on which the vapor root gives no usable answer).
+   */
+  private condenses(out: EquilibriumResult, P: number): boolean {
+    this.fractions(this.nm);
+    for (let g = 0; g < this.nGroups; g++) {
+      const T = this.groupT[g];
+      let stable = true;
+      try {
+        stable = stabilityTest(this.eos, T, P, this.y).stable;
+      } catch (e) {
+        if (!(e instanceof RangeError)) throw e;
+      }
+      if (!stable) {
+        out.phase = 'two-phase';
+        this.fail(out, 'infeasible', 'two-phase',
+          `on the way to equilibrium the mixture at ${fmt(T)} K and ${fmt(P / 1e5)} bar would condense (the tangent-plane test finds a second phase): no gas-phase equilibrium was found there, and the converter model is gas-phase`,
+          'raise the temperature or lower the pressure of the converter');
+        return true;
+      }
+    }
+    return false;
   }
 
   /** Extents and flows of the current iterate into out. */
@@ -1156,8 +1259,20 @@ export class EquilibriumSolver {
   }
 }
 
-/** Solves A d = rhs in place for A of size k x k (LU with partial pivoting, A overwritten). False when singular. */
-function luSolve(A: Float64Array, rhs: Float64Array, k: number): boolean {
+/**
+ * Solves A d = rhs in place for A of size k x k: scaled symmetrically by the square roots of its
+ * diagonal (the ideal-gas part is positive definite, and its diagonal spans the range of 1/n_i),
+ * then LU with partial pivoting; A is overwritten and sc is scratch (length k). False when singular.
+ */
+function luSolve(A: Float64Array, rhs: Float64Array, k: number, sc: Float64Array): boolean {
+  for (let c = 0; c < k; c++) {
+    const dgl = Math.abs(A[c * k + c]);
+    sc[c] = dgl > 0 && Number.isFinite(dgl) ? 1 / Math.sqrt(dgl) : 1;
+  }
+  for (let i = 0; i < k; i++) {
+    rhs[i] *= sc[i];
+    for (let j = 0; j < k; j++) A[i * k + j] *= sc[i] * sc[j];
+  }
   let big = 0;
   for (let q = 0; q < k * k; q++) big = Math.max(big, Math.abs(A[q]));
   if (!(big > 0) || !Number.isFinite(big)) return false;
@@ -1171,7 +1286,7 @@ function luSolve(A: Float64Array, rhs: Float64Array, k: number): boolean {
         piv = i;
       }
     }
-    if (pv <= 1e-14 * big) return false;
+    if (pv <= 1e-13 * big) return false;
     if (piv !== c) {
       for (let j = 0; j < k; j++) {
         const t = A[c * k + j];
@@ -1195,6 +1310,7 @@ function luSolve(A: Float64Array, rhs: Float64Array, k: number): boolean {
     for (let j = c + 1; j < k; j++) s -= A[c * k + j] * rhs[j];
     rhs[c] = s / A[c * k + c];
   }
+  for (let c = 0; c < k; c++) rhs[c] *= sc[c];
   return true;
 }
 
