@@ -27,21 +27,23 @@
  * of each solve (one equation-of-state call per reaction and equilibrium temperature) and held
  * through the solve: a chord for that part only. The fugacity coefficients themselves are
  * evaluated afresh at every iterate, so the residual is exact; the held part changes little over
- * a solve (it is about 3 % of the ideal part for ammonia at 300 atm). If a step fails to lower
- * the residual, that part is differenced again at the current iterate. (Option `jacobian:
+ * a solve (it is about 5 % of the ideal part for ammonia at 300 atm). If a step fails to lower
+ * the residual, or lowers it by less than a factor of 4, that part is differenced again at the
+ * current iterate. (Option `jacobian:
  * 'lagged'` leaves the part out, i.e. the coefficients are lagged, as successive substitution
  * nested in Newton; `'full'` differences it at every iterate.) Every step stays inside the
  * feasible region: it is cut so that no species that a reaction uses falls by more than 99 % of
- * what is left (fraction to the boundary), then halved until the sum of squared residuals falls
- * (Armijo). Converged when every |F_r| <= tol (default 1e-11, i.e. Q_r/K_r = 1 within 1e-11), or
+ * what is left (fraction to the boundary), then halved until the sum of squared residuals
+ * (each beyond its rounding noise, below) falls (Armijo). Converged when every |F_r| <= tol (default 1e-11, i.e. Q_r/K_r = 1 within 1e-11), or
  * when every residual lies within its own rounding noise, 8 machine epsilons times the sum of the
  * magnitudes that make it, where ln n_i counts (b_i + sum_r |nu_ri xi_r|) / n_i: a reactant that
  * is nearly used up (benzene hydrogenated to 2e-8 of its feed) is the difference of two nearly
  * equal numbers, and its logarithm cannot be resolved further; the result then says so in its
  * message, and its flows are exact to the rounding of the flows.
  * The start is the extents of the last call when the caller passes them (warm start) and they
- * are feasible; otherwise each reaction that must create a species it needs advances by a tenth
- * of what its scarcest reactant allows, in the order in which the species become available.
+ * keep every species positive; otherwise, when some species is absent, a step along the direction
+ * found below (which forms every absent species that can be present) to a tenth of what its
+ * scarcest consumed species allows, and no step when every species is present.
  *
  * What can proceed. A component that reaches the reactor can be present at equilibrium; one that
  * does not can be present when some combination of the reactions forms it without taking any
@@ -70,18 +72,21 @@
  * such a state is shortened instead). With `phaseCheck: 'stability'` the converged mixture also
  * goes through the tangent-plane stability test at the reactor's T and P (stability.ts), which
  * finds a dew point that the root labels miss; a second phase is then 'infeasible' with reason
- * 'two-phase'. The test costs some tens of equation-of-state evaluations, so the default
- * ('root') leaves it to the caller to run once on a converged flowsheet.
+ * 'two-phase'. The test costs some tens of equation-of-state evaluations (about as much again as a
+ * warm solve), so the default ('root') leaves it to the caller to run once on a converged
+ * flowsheet (phaseProblem). A solve that fails, and whose last mixture the test finds would
+ * condense at an equilibrium temperature, is reported as 'infeasible', 'two-phase' too: a dense
+ * water- or methanol-rich state on which the vapor root gives no usable answer.
  *
  * What is assumed, and where it is weak.
  * - Ideal-gas standard state at 1 bar; the formation data of thermochem.ts (their sources there).
- *   An error of 1 kJ/mol in Delta g moves K by 15 % at 700 K.
+ *   An error of 1 kJ/mol in Delta g moves K by about 19 % at 700 K.
  * - The mixture's non-ideality is that of the cubic equation of state with its van der Waals
  *   mixing rules (and the file's k_ij, if any): good for light reaction gases away from their
  *   critical region, weaker for polar products (methanol, water, ammonia) at high pressure, where
  *   it carries the error of the one-fluid mixing rule. Against the measured ammonia equilibria of
  *   Larson and Dodge (1923-24) SRK is within 1.5 mole percent up to 300 atm (see
- *   test/thermo/equilibrium.test.ts), the ideal gas 1 to 10 points low above 100 atm.
+ *   test/thermo/equilibrium.test.ts); the ideal gas is about 4 points low at 300 atm.
  * - No liquid phase, no solid (no carbon deposition), no condensation in the converter.
  * - The heat of reaction that decides the sign of an approach is the ideal-gas one from the
  *   formation-basis enthalpies at the reactor's T (the residual enthalpy is left out).
@@ -361,9 +366,8 @@ export class EquilibriumSolver {
   private readonly maxIt: number;
   private readonly stability: boolean;
   private readonly jacobianMode: 'chord' | 'lagged' | 'full';
-  /** nu, row-major m x n; per reaction its sum; its species flat: sp[spStart[r] .. spStart[r+1]) with their coefficients spNu. */
+  /** nu, row-major m x n; per reaction its species flat: sp[spStart[r] .. spStart[r+1]) with their coefficients spNu. */
   private readonly nu: Float64Array;
-  private readonly dnu: Float64Array;
   private readonly sp: Int32Array;
   private readonly spNu: Float64Array;
   private readonly spStart: Int32Array;
@@ -441,7 +445,6 @@ export class EquilibriumSolver {
     this.stability = options.phaseCheck === 'stability';
     this.jacobianMode = eos.name === 'ideal' ? 'lagged' : options.jacobian ?? 'chord';
     this.nu = new Float64Array(m * n);
-    this.dnu = new Float64Array(m);
     this.approach = new Float64Array(m);
     this.keys = new Int32Array(m).fill(-1);
     this.involved = new Uint8Array(n);
@@ -454,7 +457,6 @@ export class EquilibriumSolver {
       for (let i = 0; i < n; i++) {
         const v = rx.nu[i];
         this.nu[r * n + i] = v;
-        this.dnu[r] += v;
         if (v !== 0) {
           sp.push(i);
           spNu.push(v);
