@@ -45,7 +45,7 @@ import { InputError, type Diagnostic } from '../diagnostics.js';
 import type { FlowsheetResult } from '../flowsheet/result.js';
 import type { Model } from '../flowsheet/model.js';
 import type { InstrumentDecl } from './declarations.js';
-import type { PlantConstraints, PlantVariable } from './types.js';
+import type { ConstraintPattern, PlantConstraints, PlantVariable } from './types.js';
 
 export interface StreamVars {
   name: string;
@@ -153,6 +153,25 @@ export class BilinearConstraints implements PlantConstraints {
       }
       out[i] = s;
     }
+  }
+  pattern(): ConstraintPattern {
+    const { j, l, start } = this;
+    const rowStart = new Int32Array(this.count + 1);
+    const index: number[] = [];
+    const linear = new Uint8Array(this.count);
+    for (let i = 0; i < this.count; i++) {
+      rowStart[i] = index.length;
+      const seen = new Set<number>();
+      let lin = 1;
+      for (let t = start[i]; t < start[i + 1]; t++) {
+        if (j[t] >= 0 && l[t] >= 0) lin = 0;
+        for (const v of [j[t], l[t]]) if (v >= 0 && !seen.has(v)) seen.add(v);
+      }
+      index.push(...[...seen].sort((a, b) => a - b));
+      linear[i] = lin;
+    }
+    rowStart[this.count] = index.length;
+    return { start: rowStart, index: Int32Array.from(index), linear };
   }
   jacobian(x: Float64Array, out: Float64Array): void {
     const { c, j, l, start, n } = this;

@@ -65,12 +65,14 @@
  * status not-converged with its history, never a solution.
  */
 import { applyQ, applyQt, newQrWork, qrPivoted, solveUpper, solveUpperTransposed, type QrWork } from './dense.js';
+import { StructuredSteps, type StructuredState } from './structured.js';
 import { chiSquareCritical, chiSquarePValue, normalCritical, sidakLevel } from './statistics.js';
 import type {
   GlobalTest,
   MeasurementTestInfo,
   ReconcileHistoryEntry,
   ReconcileOptions,
+  ConstraintPattern,
   ReconcileResult,
   ReconciliationProblem,
   Snapshot,
@@ -84,6 +86,7 @@ export const RECONCILE_DEFAULTS: Required<ReconcileOptions> = {
   rankTolerance: 1e-10,
   zeroTolerance: 1e-8,
   confidence: 0.95,
+  structured: true,
 };
 
 const SQRT_EPS = Math.sqrt(Number.EPSILON);
@@ -171,6 +174,13 @@ export class PreparedReconciliation {
   private readonly qrG: QrWork;
   private evaluations = 0;
   private jacobians = 0;
+  /** Which variables each balance involves, when the constraints say (and the Jacobian is analytic). */
+  private readonly pattern: ConstraintPattern | undefined;
+  /** The problem's structure (structured.ts), when it has one to use. */
+  private readonly structure: StructuredSteps | undefined;
+  private readonly structuredState: StructuredState;
+  /** Whether the factorisation in the buffers is the structured one (else the whole one). */
+  private lastStructured = false;
 
   constructor(problem: ReconciliationProblem, options: ReconcileOptions = {}) {
     this.problem = problem;
@@ -184,7 +194,7 @@ export class PreparedReconciliation {
     this.names = vars.map((v) => v.name);
     this.constraintNames = cons.names;
     this.options = { ...RECONCILE_DEFAULTS };
-    for (const [k, v] of Object.entries(options)) if (v !== undefined) (this.options as Record<string, number>)[k] = v as number;
+    for (const [k, v] of Object.entries(options)) if (v !== undefined) (this.options as unknown as Record<string, number | boolean>)[k] = v as number | boolean;
     this.issues = checkShape(problem, this.options);
 
     const M = m + n;
@@ -221,6 +231,25 @@ export class PreparedReconciliation {
       this.lower[j] = vars[j].lower ?? -Infinity;
       this.upper[j] = vars[j].upper ?? Infinity;
     }
+    this.structure = this.issues.length === 0 && this.options.structured !== false ? StructuredSteps.build(problem, this.options.rankTolerance) : undefined;
+    const pat = this.issues.length === 0 && cons.jacobian && cons.pattern ? cons.pattern() : undefined;
+    this.pattern = pat && pat.start.length === m + 1 && pat.index.every((j) => j >= 0 && j < n) ? pat : undefined;
+    const self = this;
+    this.structuredState = {
+      get p() {
+        return self.p;
+      },
+      get q() {
+        return self.q;
+      },
+      J: this.J, c: this.c, x: this.x, y: this.y, sigma: this.sigma, typical: this.typical,
+      meas: this.meas, unmeas: this.unmeas, isMeasured: this.isMeasured, position: this.position, dx: this.dx,
+    };
+  }
+
+  /** Linear balances eliminated once per problem by the structured steps (0 without them). */
+  get eliminatedRows(): number {
+    return this.structure?.linearRows ?? 0;
   }
 
   /** Reconciles one snapshot (default: the readings, sigmas and starts in the problem). */
@@ -450,6 +479,19 @@ export class PreparedReconciliation {
    * the unmeasured columns, A holds Q' times the measured columns, Gt the pivoted QR of G'.
    */
   private linearStep(): StepInfo {
+    if (this.structure && this.p > 0 && !this.anyActive()) {
+      const s = this.structure.step(this.structuredState, this.options.rankTolerance);
+      if (s) {
+        this.lastStructured = true;
+        return { rows: this.m, ...s };
+      }
+    }
+    this.lastStructured = false;
+    return this.wholeStep();
+  }
+
+  /** The step from a factorisation of the whole linearised system (see the file header). */
+  private wholeStep(): StepInfo {
     const { n, m, p, q, x, J, c, active, meas, unmeas, sigma, typical, rowScale, cs, B, A } = this;
     const R = this.maxRows;
     const tol = this.options.rankTolerance;
@@ -620,21 +662,23 @@ export class PreparedReconciliation {
 
   /** Copies of what linearStep leaves behind, so that trial steps can be undone without
    *  factorising again. */
-  private saved?: { buffers: Float64Array[]; perms: Int32Array[]; copies: Float64Array[]; permCopies: Int32Array[] };
+  private saved?: { buffers: Float64Array[]; perms: Int32Array[]; copies: Float64Array[]; permCopies: Int32Array[]; structured: boolean };
 
   private saveStep(): void {
     if (!this.saved) {
       const buffers = [this.rowScale, this.cs, this.B, this.A, this.Gt, this.g, this.z, this.dx, this.qrB.beta, this.qrG.beta];
       const perms = [this.qrB.perm, this.qrG.perm];
-      this.saved = { buffers, perms, copies: buffers.map((b) => new Float64Array(b.length)), permCopies: perms.map((b) => new Int32Array(b.length)) };
+      this.saved = { buffers, perms, copies: buffers.map((b) => new Float64Array(b.length)), permCopies: perms.map((b) => new Int32Array(b.length)), structured: false };
     }
     const sv = this.saved;
+    sv.structured = this.lastStructured;
     sv.buffers.forEach((b, i) => sv.copies[i].set(b));
     sv.perms.forEach((b, i) => sv.permCopies[i].set(b));
   }
 
   private restoreStep(): void {
     const sv = this.saved!;
+    this.lastStructured = sv.structured;
     sv.buffers.forEach((b, i) => b.set(sv.copies[i]));
     sv.perms.forEach((b, i) => b.set(sv.permCopies[i]));
   }
@@ -664,12 +708,15 @@ export class PreparedReconciliation {
   /** Largest |c_i| and largest |c_i| / (sum_j |J_ij| max(|x_j|, typical_j)), with J at hand. */
   private residualNorms(): { abs: number; scaled: number; worst: number } {
     const { n, m, c, J, x, typical } = this;
+    const pattern = this.pattern;
     let abs = 0;
     let scaled = 0;
     let worst = -1;
     for (let i = 0; i < m; i++) {
       let size = 0;
-      for (let j = 0; j < n; j++) size += Math.abs(J[i * n + j]) * Math.max(Math.abs(x[j]), typical[j]);
+      // Only the pattern's entries can be non-zero (the same sum: the others add exact zeros).
+      if (pattern) for (let t = pattern.start[i]; t < pattern.start[i + 1]; t++) size += Math.abs(J[i * n + pattern.index[t]]) * Math.max(Math.abs(x[pattern.index[t]]), typical[pattern.index[t]]);
+      else for (let j = 0; j < n; j++) size += Math.abs(J[i * n + j]) * Math.max(Math.abs(x[j]), typical[j]);
       const a = Math.abs(c[i]);
       const s = size > 0 ? a / size : a;
       abs = Math.max(abs, a);
@@ -737,13 +784,62 @@ export class PreparedReconciliation {
     const zeroTol = options.zeroTolerance;
     const x = Float64Array.from(this.x);
 
-    // Q_G explicitly (p x rho), leverages of the measured variables.
-    for (let l = 0; l < rho; l++) {
-      const col = this.vec;
-      col.fill(0, 0, p);
-      col[l] = 1;
-      applyQ(Gt, p, ldG, this.qrG.beta, rho, col);
-      for (let k = 0; k < p; k++) QG[l * ldG + k] = col[k];
+    // Q_G explicitly (p x rho), observability, and how the observable unmeasured variables follow
+    // the measured ones (L below), from whichever factorisation made the last step.
+    let observable: Uint8Array;
+    let followRow: (j: number, L: Float64Array, offset: number) => void;
+    let complement: { Q1: Float64Array; r: number } | undefined;
+    if (this.lastStructured) {
+      const st = this.structure!.summary(this.structuredState, zeroTol, QG, ldG);
+      observable = st.observable;
+      complement = st;
+      followRow = (j, L, offset) => {
+        for (let l = 0; l < p; l++) L[offset + l] = st.dv[j * p + l];
+      };
+    } else {
+      for (let l = 0; l < rho; l++) {
+        const col = this.vec;
+        col.fill(0, 0, p);
+        col[l] = 1;
+        applyQ(Gt, p, ldG, this.qrG.beta, rho, col);
+        for (let k = 0; k < p; k++) QG[l * ldG + k] = col[k];
+      }
+      // K = R11^-1 (Q1'A): how the basic unmeasured variables follow the measured ones.
+      const permB = this.qrB.perm;
+      for (let l = 0; l < p; l++) solveUpper(B, R, r, A, l * R);
+      // Observability: basic columns with a zero row of R11^-1 R12 (on the balances alone, so that a
+      // bound held on an unmeasured variable does not make it look determined by the data).
+      observable = new Uint8Array(q);
+      let anyUnmeasuredBound = false;
+      for (let k = 0; k < q; k++) if (active[unmeas[k]] !== 0) anyUnmeasuredBound = true;
+      const basicPos = new Int32Array(q).fill(-1);
+      for (let k = 0; k < r; k++) basicPos[permB[k]] = k;
+      if (q > 0) {
+        if (anyUnmeasuredBound) {
+          // Factorise B of the balances alone in T's space (A is not needed again).
+          this.factorBalancesOnly();
+        }
+        const Bf = anyUnmeasuredBound ? T : B;
+        const rf = anyUnmeasuredBound ? this.rankBalancesOnly : r;
+        const permF = anyUnmeasuredBound ? this.permBalancesOnly : permB;
+        // Row k of R11^-1 R12 for each basic k: solve column by column into vec.
+        const free = q - rf;
+        const maxRow = new Float64Array(rf);
+        const col = this.vec;
+        for (let f = 0; f < free; f++) {
+          for (let k = 0; k < rf; k++) col[k] = Bf[(rf + f) * R + k];
+          solveUpper(Bf, R, rf, col);
+          for (let k = 0; k < rf; k++) maxRow[k] = Math.max(maxRow[k], Math.abs(col[k]));
+        }
+        for (let k = 0; k < rf; k++) if (maxRow[k] <= zeroTol) observable[permF[k]] = 1;
+        // An observable variable must also be basic in the system with the bounds (it always is;
+        // the guard keeps a numerical tie from giving a number without a covariance row).
+        for (let k = 0; k < q; k++) if (observable[k] && basicPos[k] < 0) observable[k] = 0;
+      }
+      followRow = (j, L, offset) => {
+        const b = basicPos[this.position[j]];
+        for (let l = 0; l < p; l++) L[offset + l] = -A[l * R + b];
+      };
     }
     const leverage = new Float64Array(p);
     for (let k = 0; k < p; k++) {
@@ -753,39 +849,6 @@ export class PreparedReconciliation {
     }
     const redundant = new Uint8Array(p);
     for (let k = 0; k < p; k++) redundant[k] = Math.sqrt(leverage[k]) > zeroTol ? 1 : 0;
-
-    // K = R11^-1 (Q1'A): how the basic unmeasured variables follow the measured ones.
-    const permB = this.qrB.perm;
-    for (let l = 0; l < p; l++) solveUpper(B, R, r, A, l * R);
-    // Observability: basic columns with a zero row of R11^-1 R12 (on the balances alone, so that a
-    // bound held on an unmeasured variable does not make it look determined by the data).
-    const observable = new Uint8Array(q);
-    let anyUnmeasuredBound = false;
-    for (let k = 0; k < q; k++) if (active[unmeas[k]] !== 0) anyUnmeasuredBound = true;
-    const basicPos = new Int32Array(q).fill(-1);
-    for (let k = 0; k < r; k++) basicPos[permB[k]] = k;
-    if (q > 0) {
-      if (anyUnmeasuredBound) {
-        // Factorise B of the balances alone in T's space (A is not needed again).
-        this.factorBalancesOnly();
-      }
-      const Bf = anyUnmeasuredBound ? T : B;
-      const rf = anyUnmeasuredBound ? this.rankBalancesOnly : r;
-      const permF = anyUnmeasuredBound ? this.permBalancesOnly : permB;
-      // Row k of R11^-1 R12 for each basic k: solve column by column into vec.
-      const free = q - rf;
-      const maxRow = new Float64Array(rf);
-      const col = this.vec;
-      for (let f = 0; f < free; f++) {
-        for (let k = 0; k < rf; k++) col[k] = Bf[(rf + f) * R + k];
-        solveUpper(Bf, R, rf, col);
-        for (let k = 0; k < rf; k++) maxRow[k] = Math.max(maxRow[k], Math.abs(col[k]));
-      }
-      for (let k = 0; k < rf; k++) if (maxRow[k] <= zeroTol) observable[permF[k]] = 1;
-      // An observable variable must also be basic in the system with the bounds (it always is;
-      // the guard keeps a numerical tie from giving a number without a covariance row).
-      for (let k = 0; k < q; k++) if (observable[k] && basicPos[k] < 0) observable[k] = 0;
-    }
 
     // Covariance over measured + observable unmeasured, scaled: L C L' with C = I - Q_G Q_G',
     // L = [I; -K], then unscaled by sigma and typical magnitudes.
@@ -801,11 +864,10 @@ export class PreparedReconciliation {
     }
     for (let a = p; a < N; a++) {
       const j = indices[a];
-      const b = basicPos[this.position[j]];
       scale[a] = typical[j];
-      for (let l = 0; l < p; l++) L[a * p + l] = -A[l * R + b];
+      followRow(j, L, a * p);
     }
-    const cov = projectedCovariance(L, N, p, QG, ldG, rho, scale);
+    const cov = complement ? factorCovariance(L, N, p, complement.Q1, complement.r, scale) : projectedCovariance(L, N, p, QG, ldG, rho, scale);
     const covIndex = new Map<number, number>();
     indices.forEach((j, a) => covIndex.set(j, a));
 
@@ -975,6 +1037,31 @@ function projectedCovariance(L: Float64Array, N: number, p: number, Q: Float64Ar
       for (let k = 0; k < p; k++) s += L[a * p + k] * L[b * p + k];
       for (let l = 0; l < rho; l++) s -= LQ[a * rho + l] * LQ[b * rho + l];
       s *= scale[a] * scale[b];
+      cov[a * N + b] = s;
+      cov[b * N + a] = s;
+    }
+  }
+  return cov;
+}
+
+/**
+ * The same covariance as projectedCovariance when I - Q Q' = Q1 Q1' is at hand (Q1: p x r,
+ * orthonormal columns at i * p; the structured steps have it): (L Q1)(L Q1)', scaled.
+ */
+function factorCovariance(L: Float64Array, N: number, p: number, Q1: Float64Array, r: number, scale: Float64Array): Float64Array {
+  const W = new Float64Array(N * r);
+  for (let a = 0; a < N; a++) {
+    for (let i = 0; i < r; i++) {
+      let s = 0;
+      for (let k = 0; k < p; k++) s += L[a * p + k] * Q1[i * p + k];
+      W[a * r + i] = s * scale[a];
+    }
+  }
+  const cov = new Float64Array(N * N);
+  for (let a = 0; a < N; a++) {
+    for (let b = a; b < N; b++) {
+      let s = 0;
+      for (let i = 0; i < r; i++) s += W[a * r + i] * W[b * r + i];
       cov[a * N + b] = s;
       cov[b * N + a] = s;
     }
