@@ -83,6 +83,8 @@ export interface NetworkFigure {
   path: string;
   unit: string;
   value(x: Float64Array): number;
+  /** Every variable value(x) can read: its unit's inlet and outlet streams and extents. */
+  reads: Int32Array;
 }
 
 export interface Network {
@@ -105,6 +107,12 @@ export function flowOf(s: StreamVars, i: number, x: ArrayLike<number>): number {
   if (s.total !== undefined) return s.z![i] * x[s.total];
   const j = s.flows![i];
   return j >= 0 ? x[j] : 0;
+}
+
+/** The variables of a stream: its total, or its component flows. */
+export function streamVariables(s: StreamVars): number[] {
+  if (s.total !== undefined) return [s.total];
+  return Array.from(s.flows!).filter((j) => j >= 0);
 }
 
 export function totalOf(s: StreamVars, x: ArrayLike<number>): number {
@@ -446,9 +454,11 @@ export function buildNetwork(model: Model, design?: FlowsheetResult): Network {
     for (const fig of uv.decl.figures ?? []) {
       const ins = uv.inlets.map((s) => streams.get(s)!);
       const outs = uv.outlets.map((s) => streams.get(s)!);
+      const reads = Int32Array.from(new Set([...[...ins, ...outs].flatMap(streamVariables), ...uv.extents, ...uv.others]));
       figures.push({
         path: fig.path,
         unit: fig.path.includes('.extent') ? 'mol/s' : '',
+        reads,
         value(x) {
           const view: BalanceView = {
             inlet: (i) => ins.reduce((t, s) => t + (i === undefined ? totalOf(s, x) : flowOf(s, i, x)), 0),
