@@ -34,8 +34,16 @@ export function derivedEstimate(result: ReconcileResult, f: (x: Float64Array) =>
   if (!Number.isFinite(value)) {
     return { value: null, uncertainty: null, sensitivities: [], note: 'not determined: it depends on an unobservable variable (or is not finite at the solution)' };
   }
-  const { indices, matrix } = result.covariance;
+  const { indices, factor } = result.covariance;
   const N = indices.length;
+  // The covariance's entries: from its factor W (C = W W') when the result holds one.
+  const varianceAt = factor
+    ? (a: number) => {
+        let s = 0;
+        for (let i = 0; i < factor.rank; i++) s += factor.W[a * factor.rank + i] ** 2;
+        return s;
+      }
+    : (a: number) => result.covariance.matrix[a * N + a];
   const grad = new Float64Array(N);
   const h0 = Math.cbrt(Number.EPSILON);
   // Covariance positions to difference (every one, or those f can read, in the same order).
@@ -51,7 +59,7 @@ export function derivedEstimate(result: ReconcileResult, f: (x: Float64Array) =>
     const a = reads ? positions[t] : t;
     const j = indices[a];
     const xj = x[j];
-    const sd = Math.sqrt(Math.max(0, matrix[a * N + a]));
+    const sd = Math.sqrt(Math.max(0, varianceAt(a)));
     const h = h0 * Math.max(Math.abs(xj), sd, 1e-300);
     x[j] = xj + h;
     const fp = f(x);
@@ -64,10 +72,21 @@ export function derivedEstimate(result: ReconcileResult, f: (x: Float64Array) =>
   const nz: number[] = [];
   for (let a = 0; a < N; a++) if (grad[a] !== 0) nz.push(a);
   let variance = 0;
-  for (const a of nz) {
-    let s = 0;
-    for (const b of nz) s += matrix[a * N + b] * grad[b];
-    variance += grad[a] * s;
+  if (factor) {
+    // g' W W' g = |W' g|^2.
+    const r = factor.rank;
+    for (let i = 0; i < r; i++) {
+      let s = 0;
+      for (const a of nz) s += grad[a] * factor.W[a * r + i];
+      variance += s * s;
+    }
+  } else {
+    const matrix = result.covariance.matrix;
+    for (const a of nz) {
+      let s = 0;
+      for (const b of nz) s += matrix[a * N + b] * grad[b];
+      variance += grad[a] * s;
+    }
   }
   const out: DerivedEstimate = { value, uncertainty: Math.sqrt(Math.max(0, variance)), sensitivities: [] };
   // Made when read: most callers want the value and its uncertainty only.

@@ -65,7 +65,7 @@
  * status not-converged with its history, never a solution.
  */
 import { applyQ, applyQt, newQrWork, qrPivoted, solveUpper, solveUpperTransposed, type QrWork } from './dense.js';
-import { StructuredSteps, type StructuredState } from './structured.js';
+import { StructuredSteps, type StructuredState, type StructuredSummary } from './structured.js';
 import { chiSquareCritical, chiSquarePValue, normalCritical, sidakLevel } from './statistics.js';
 import type {
   GlobalTest,
@@ -788,14 +788,11 @@ export class PreparedReconciliation {
     // the measured ones (L below), from whichever factorisation made the last step.
     let observable: Uint8Array;
     let followRow: (j: number, L: Float64Array, offset: number) => void;
-    let complement: { Q1: Float64Array; r: number } | undefined;
+    let structured: StructuredSummary | undefined;
     if (this.lastStructured) {
-      const st = this.structure!.summary(this.structuredState, zeroTol, QG, ldG);
-      observable = st.observable;
-      complement = st;
-      followRow = (j, L, offset) => {
-        for (let l = 0; l < p; l++) L[offset + l] = st.dv[j * p + l];
-      };
+      structured = this.structure!.summary(this.structuredState, zeroTol, QG, ldG);
+      observable = structured.observable;
+      followRow = () => undefined;
     } else {
       for (let l = 0; l < rho; l++) {
         const col = this.vec;
@@ -856,18 +853,34 @@ export class PreparedReconciliation {
     for (let k = 0; k < p; k++) indices.push(meas[k]);
     for (let k = 0; k < q; k++) if (observable[k]) indices.push(unmeas[k]);
     const N = indices.length;
-    const L = new Float64Array(N * p);
     const scale = new Float64Array(N);
-    for (let k = 0; k < p; k++) {
-      L[k * p + k] = 1;
-      scale[k] = sigma[meas[k]];
+    for (let k = 0; k < p; k++) scale[k] = sigma[meas[k]];
+    for (let a = p; a < N; a++) scale[a] = typical[indices[a]];
+    let covariance: ReconcileResult['covariance'];
+    let variance: (a: number) => number;
+    if (structured) {
+      // The factor W = L Q_C1 (N x r), scaled; the matrix W W' is formed only if read.
+      const { Q1, r, follow } = structured;
+      const W = new Float64Array(N * r);
+      for (let k = 0; k < p; k++) for (let i = 0; i < r; i++) W[k * r + i] = Q1[i * p + k] * scale[k];
+      for (let a = p; a < N; a++) {
+        const o = indices[a] * r;
+        for (let i = 0; i < r; i++) W[a * r + i] = follow[o + i] * scale[a];
+      }
+      covariance = factoredCovariance(indices, W, r);
+      variance = (a) => {
+        let s = 0;
+        for (let i = 0; i < r; i++) s += W[a * r + i] * W[a * r + i];
+        return s;
+      };
+    } else {
+      const L = new Float64Array(N * p);
+      for (let k = 0; k < p; k++) L[k * p + k] = 1;
+      for (let a = p; a < N; a++) followRow(indices[a], L, a * p);
+      const cov = projectedCovariance(L, N, p, QG, ldG, rho, scale);
+      covariance = { indices, matrix: cov };
+      variance = (a) => cov[a * N + a];
     }
-    for (let a = p; a < N; a++) {
-      const j = indices[a];
-      scale[a] = typical[j];
-      followRow(j, L, a * p);
-    }
-    const cov = complement ? factorCovariance(L, N, p, complement.Q1, complement.r, scale) : projectedCovariance(L, N, p, QG, ldG, rho, scale);
     const covIndex = new Map<number, number>();
     indices.forEach((j, a) => covIndex.set(j, a));
 
@@ -917,7 +930,7 @@ export class PreparedReconciliation {
           reading: this.y[j],
           sigma: sigma[j],
           value: x[j],
-          uncertainty: Math.sqrt(Math.max(0, cov[a * N + a])),
+          uncertainty: Math.sqrt(Math.max(0, variance(a))),
           adjustment,
           adjustmentSigma: isRedundant ? adjustmentSigma : 0,
         };
@@ -944,7 +957,7 @@ export class PreparedReconciliation {
             role: 'unmeasured',
             classification: 'observable',
             value: x[j],
-            uncertainty: Math.sqrt(Math.max(0, cov[a * N + a])),
+            uncertainty: Math.sqrt(Math.max(0, variance(a))),
           };
           if (atBound) {
             e.atBound = atBound;
@@ -972,7 +985,7 @@ export class PreparedReconciliation {
       issues: [],
       x,
       estimates,
-      covariance: { indices, matrix: cov },
+      covariance,
       redundancy: rho,
       globalTest,
       measurementTest,
@@ -1045,28 +1058,31 @@ function projectedCovariance(L: Float64Array, N: number, p: number, Q: Float64Ar
 }
 
 /**
- * The same covariance as projectedCovariance when I - Q Q' = Q1 Q1' is at hand (Q1: p x r,
- * orthonormal columns at i * p; the structured steps have it): (L Q1)(L Q1)', scaled.
+ * A covariance held as its factor W (N x r, row-major): matrix = W W', formed on first read; the
+ * factor itself is there for callers that can use it (derived.ts).
  */
-function factorCovariance(L: Float64Array, N: number, p: number, Q1: Float64Array, r: number, scale: Float64Array): Float64Array {
-  const W = new Float64Array(N * r);
-  for (let a = 0; a < N; a++) {
-    for (let i = 0; i < r; i++) {
-      let s = 0;
-      for (let k = 0; k < p; k++) s += L[a * p + k] * Q1[i * p + k];
-      W[a * r + i] = s * scale[a];
-    }
-  }
-  const cov = new Float64Array(N * N);
-  for (let a = 0; a < N; a++) {
-    for (let b = a; b < N; b++) {
-      let s = 0;
-      for (let i = 0; i < r; i++) s += W[a * r + i] * W[b * r + i];
-      cov[a * N + b] = s;
-      cov[b * N + a] = s;
-    }
-  }
-  return cov;
+function factoredCovariance(indices: number[], W: Float64Array, r: number): ReconcileResult['covariance'] {
+  const N = indices.length;
+  let matrix: Float64Array | undefined;
+  const out = { indices, factor: { W, rank: r } } as ReconcileResult['covariance'];
+  Object.defineProperty(out, 'matrix', {
+    enumerable: true,
+    get: () => {
+      if (!matrix) {
+        matrix = new Float64Array(N * N);
+        for (let a = 0; a < N; a++) {
+          for (let b = a; b < N; b++) {
+            let s = 0;
+            for (let i = 0; i < r; i++) s += W[a * r + i] * W[b * r + i];
+            matrix[a * N + b] = s;
+            matrix[b * N + a] = s;
+          }
+        }
+      }
+      return matrix;
+    },
+  });
+  return out;
 }
 
 /** Problems with the problem's shape and constant data (one message per problem). */

@@ -31,7 +31,9 @@
  * Statistics: leverages are the squared row norms of Q_C2; an unmeasured variable is observable
  * when it is zero in every null vector of the whole system (each free column of C~ carried back
  * through K_S and K_L); d v / d zeta = -R11^-1 Q_C1' for the basic columns of C~, carried back the
- * same way, is the L matrix of the covariance (reconcile.ts, projectedCovariance).
+ * same way, is the L matrix of the covariance (reconcile.ts); since I - Q_G Q_G' = Q_C1 Q_C1', the
+ * covariance is W W' with W = L Q_C1, and on the basic columns L Q_C1 = -R11^-1 (the inverse of a
+ * small triangle), so W is carried back directly.
  * A step falls back to the whole factorisation when a bound is held (its row would hold a
  * measured variable a second time) or when an instrument's row has a zero coefficient on its own
  * variable at this x.
@@ -69,15 +71,16 @@ export interface StructuredStepInfo {
 
 /** The statistics of the last step (summarise in reconcile.ts). */
 export interface StructuredSummary {
-  /** Q_G (p x rho, column l at l * ld). */
-  QG: Float64Array;
   /** Observable, by unmeasured position. */
   observable: Uint8Array;
-  /** d v_u / d zeta (length p) of unmeasured variable u, at u * p. */
-  dv: Float64Array;
   /** Q_C1 (p x r, column i at i * p): I - Q_G Q_G' = Q_C1 Q_C1'. */
   Q1: Float64Array;
   r: number;
+  /**
+   * (d v_u / d zeta) Q_C1 (length r) of each unmeasured variable u, at u * r: its row of the
+   * covariance factor (the covariance of the scaled estimates is W W', W = L Q_C1).
+   */
+  follow: Float64Array;
 }
 
 export class StructuredSteps {
@@ -404,8 +407,8 @@ export class StructuredSteps {
   }
 
   /**
-   * Q_G, observability and d v / d zeta from the last step (see the file header). QG has room for
-   * p x (p - r) entries at leading dimension ldQ; dv for n x p.
+   * Q_G (into QG, p x (p - r) at leading dimension ldQ), observability and the covariance factor
+   * from the last step (see the file header).
    */
   summary(st: StructuredState, zeroTolerance: number, QG: Float64Array, ldQ: number): StructuredSummary {
     const { n, rL, nLN, KL, lnVar, lbVar, F, Ct, KS } = this;
@@ -429,33 +432,33 @@ export class StructuredSteps {
       applyQ(Ct, p, n, beta, rC, col);
       for (let k = 0; k < p; k++) Q1[i * p + k] = col[k];
     }
-    // d v / d zeta: -R11^-1 Q_C1' on the basic columns of C~, then back through K_S and K_L.
-    const dv = new Float64Array(n * p);
-    for (let l = 0; l < p; l++) {
-      col.fill(0, 0, p);
+    // (d v / d zeta) Q_C1: on the basic columns of C~, -R11^-1 Q_C1' Q_C1 = -R11^-1 (row i of
+    // the inverse for basic column i); then back through K_S and K_L.
+    const r = rC;
+    const follow = new Float64Array(n * r);
+    for (let l = 0; l < r; l++) {
+      // Column l of R11^-1: solve R11 y = e_l.
+      col.fill(0, 0, r);
       col[l] = 1;
-      applyQt(Ct, p, n, beta, rC, col);
-      solveUpper(Ct, n, rC, col);
-      for (let k = 0; k < rC; k++) dv[F[permS[rS + permC[k]]] * p + l] = -col[k];
+      solveUpper(Ct, n, r, col);
+      for (let i = 0; i <= l; i++) follow[F[permS[rS + permC[i]]] * r + l] = -col[i];
     }
     for (let b = 0; b < rS; b++) {
-      const o = F[permS[b]] * p;
-      for (let l = 0; l < p; l++) dv[o + l] = 0;
+      const o = F[permS[b]] * r;
       for (let cc = 0; cc < kN; cc++) {
         const ks = KS[cc * n + b];
         if (ks === 0) continue;
-        const src = F[permS[rS + cc]] * p;
-        for (let l = 0; l < p; l++) dv[o + l] -= ks * dv[src + l];
+        const src = F[permS[rS + cc]] * r;
+        for (let l = 0; l < r; l++) follow[o + l] -= ks * follow[src + l];
       }
     }
     for (let b = 0; b < rL; b++) {
-      const o = lbVar[b] * p;
-      for (let l = 0; l < p; l++) dv[o + l] = 0;
+      const o = lbVar[b] * r;
       for (let cc = 0; cc < nLN; cc++) {
         const kv = KL[b * nLN + cc];
         if (kv === 0) continue;
-        const src = lnVar[cc] * p;
-        for (let l = 0; l < p; l++) dv[o + l] -= kv * dv[src + l];
+        const src = lnVar[cc] * r;
+        for (let l = 0; l < r; l++) follow[o + l] -= kv * follow[src + l];
       }
     }
     // Observability: every null vector of the whole system, one per free column of C~.
@@ -484,6 +487,6 @@ export class StructuredSteps {
     }
     const observable = new Uint8Array(q);
     for (let k = 0; k < q; k++) observable[k] = size[unmeas[k]] <= zeroTolerance ? 1 : 0;
-    return { QG, observable, dv, Q1, r: rC };
+    return { observable, Q1, r: rC, follow };
   }
 }

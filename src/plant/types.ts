@@ -190,7 +190,12 @@ export interface ReconcileResult {
    * (first-order, at the solution's linearisation), over `indices` (variable indices), as a
    * row-major matrix of indices.length squared. Empty unless reconciled or not-redundant.
    */
-  covariance: { indices: number[]; matrix: Float64Array };
+  covariance: {
+    indices: number[];
+    matrix: Float64Array;
+    /** When the engine has it: matrix = W W', W (indices.length x rank, row-major). */
+    factor?: { W: Float64Array; rank: number };
+  };
   /** Rank of the projected constraint matrix (degrees of freedom of the global test). */
   redundancy: number;
   globalTest?: GlobalTest;
