@@ -455,16 +455,19 @@ export function buildNetwork(model: Model, design?: FlowsheetResult): Network {
       const ins = uv.inlets.map((s) => streams.get(s)!);
       const outs = uv.outlets.map((s) => streams.get(s)!);
       const reads = Int32Array.from(new Set([...[...ins, ...outs].flatMap(streamVariables), ...uv.extents, ...uv.others]));
+      // One view per figure, reading the x of the call (derived estimates call value() many times).
+      let at: Float64Array = new Float64Array(0);
+      const view: BalanceView = {
+        inlet: (i) => ins.reduce((t, s) => t + (i === undefined ? totalOf(s, at) : flowOf(s, i, at)), 0),
+        outlet: (k, i) => (i === undefined ? totalOf(outs[k], at) : flowOf(outs[k], i, at)),
+        extent: (r) => at[uv.extents[r]],
+      };
       figures.push({
         path: fig.path,
         unit: fig.path.includes('.extent') ? 'mol/s' : '',
         reads,
         value(x) {
-          const view: BalanceView = {
-            inlet: (i) => ins.reduce((t, s) => t + (i === undefined ? totalOf(s, x) : flowOf(s, i, x)), 0),
-            outlet: (k, i) => (i === undefined ? totalOf(outs[k], x) : flowOf(outs[k], i, x)),
-            extent: (r) => x[uv.extents[r]],
-          };
+          at = x;
           return fig.value(view);
         },
       });
