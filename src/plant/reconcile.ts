@@ -63,6 +63,10 @@
  * unmeasured variables) and every balance residual at most constraintTolerance times the size
  * of its terms. A problem that does not converge, or whose balances cannot all be met, returns
  * status not-converged with its history, never a solution.
+ * Structure: when the balances say which variables each row holds (PlantConstraints.pattern) and
+ * the Jacobian is analytic, the same step and statistics are computed on smaller matrices
+ * (structured.ts: the linear unit balances factorised once per problem, each instrument's own
+ * equation solved for its reading); a step with a bound held takes the whole factorisation.
  */
 import { applyQ, applyQt, newQrWork, qrPivoted, solveUpper, solveUpperTransposed, type QrWork } from './dense.js';
 import { StructuredSteps, type StructuredState, type StructuredSummary } from './structured.js';
