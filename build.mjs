@@ -26,4 +26,6 @@ await build({
 await build({ ...common, entryPoints: ['src/index.ts'], outfile: 'dist/index.mjs' });
 // The worker thread of `loopclose sweep --jobs N`, loaded from next to dist/cli.mjs.
 await build({ ...common, entryPoints: ['src/study/worker.ts'], outfile: 'dist/worker.mjs' });
+// The worker thread of `loopclose reconcile --readings F.csv --jobs N`, loaded from next to dist/cli.mjs.
+await build({ ...common, entryPoints: ['src/plant/worker.ts'], outfile: 'dist/plant-worker.mjs' });
 

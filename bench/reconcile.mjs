@@ -10,10 +10,13 @@
 //   serial          serialElimination on a snapshot with one meter reading 6 % high
 //   8760 rows       one prepared problem over a year of hourly snapshots (total), started cold
 //                   and started from the previous row's solution
+//   demo row        the ammonia demo (DIR/flowsheets/ammonia-loop.yaml) through the plant layer:
+//                   one row of its year of data (conversions, reconciliation, serial elimination,
+//                   figures), rows in blocks of 100 with warm starts, per row
 // The engine is bundled from DIR/src/plant (default: this checkout) with esbuild, so the figure
 // does not depend on what the library entry exports.
 import { build } from 'esbuild';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { cpus, loadavg, tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
@@ -37,9 +40,9 @@ const banner = { js: "import { createRequire as __r } from 'node:module'; const 
 // One bundle of the engine and the problem generator (bench/reconcile-problem.ts, also used by
 // the tests); the engine comes from DIR/src/plant, the generator from this checkout.
 const entry = join(dir, 'entry.ts');
-writeFileSync(entry, `export * as plant from ${JSON.stringify(join(root, 'src/plant/index.ts'))};\nexport * from ${JSON.stringify(join(here, 'reconcile-problem.ts'))};\n`);
+writeFileSync(entry, `export * as plant from ${JSON.stringify(join(root, 'src/plant/index.ts'))};\nexport { prepareRows, rowsOfBlock } from ${JSON.stringify(join(root, 'src/plant/rows.ts'))};\nexport * from ${JSON.stringify(join(here, 'reconcile-problem.ts'))};\n`);
 await build({ entryPoints: [entry], bundle: true, platform: 'node', format: 'esm', target: 'node20', outfile, banner, logLevel: 'warning', nodePaths: [join(here, '..', 'node_modules')] });
-const { plant, F, problem, steadyState } = await import(pathToFileURL(outfile).href);
+const { plant, F, problem, steadyState, prepareRows, rowsOfBlock } = await import(pathToFileURL(outfile).href);
 rmSync(dir, { recursive: true, force: true });
 
 // ------------------------------------------------------------------ measurements
@@ -97,6 +100,24 @@ const warmMs = performance.now() - t1;
 const warmCpu = process.cpuUsage(c1);
 const warmCpuMs = (warmCpu.user + warmCpu.system) / 1000;
 
+// The ammonia demo's rows through the plant layer (blocks of 100, warm starts), per row.
+const demoFile = join(root, 'flowsheets', 'ammonia-loop.yaml');
+const yearFile = join(root, 'flowsheets', 'data', 'ammonia-loop-year.csv');
+let demo;
+if (existsSync(demoFile) && existsSync(yearFile)) {
+  const spec = { file: demoFile, text: readFileSync(demoFile, 'utf8'), readingsFile: yearFile, readingsText: readFileSync(yearFile, 'utf8'), block: 100, frozen: 6, format: 'csv' };
+  const ctx = prepareRows(spec);
+  let b = 0;
+  const block = () => {
+    let n = 0;
+    for (const _ of rowsOfBlock(ctx, b)) n++;
+    b = (b + 1) % ctx.blocks.length;
+    return n;
+  };
+  const m = measure(block, { ...reps, batchMs: 0 });
+  demo = { variables: ctx.plant.network.variables.length, rowMs: m.ms / 100, rowCpuMs: cpuPerCall(block, quick ? 300 : 2000) / 100 };
+}
+
 const out = {
   problem: { variables: p.variables.length, balances: p.constraints.count, readings: p.variables.filter((v) => v.measured).length },
   check: { status: check.status, redundancy: check.redundancy, iterations: check.iterations, globalTest: check.globalTest?.status },
@@ -116,6 +137,7 @@ const out = {
   rowsWarmCpuMs: warmCpuMs,
   loadAverage: loadavg()[0],
   rowStatuses: statuses,
+  ...(demo ? { demoVariables: demo.variables, demoRowMs: demo.rowMs, demoRowCpuMs: demo.rowCpuMs } : {}),
 };
 if (json) {
   process.stdout.write(JSON.stringify(out, null, 2) + '\n');
@@ -132,6 +154,7 @@ if (json) {
         [`serial elimination, makeup 6 % high (found: ${out.serialFound.join(', ') || 'none'})`, fmt(serial.ms, 3), fmt(serial.cpu, 3)],
         [`${rows} hourly rows, prepared (total)`, fmt(yearMs, 4), fmt(yearCpuMs, 4)],
         [`${rows} hourly rows, each started from the previous (total)`, fmt(warmMs, 4), fmt(warmCpuMs, 4)],
+        ...(demo ? [[`ammonia demo through the plant layer (${demo.variables} variables), per row of its year`, fmt(demo.rowMs, 3), fmt(demo.rowCpuMs, 3)]] : []),
       ],
     ) + '\n',
   );

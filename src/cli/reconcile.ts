@@ -14,7 +14,8 @@ import { DEFAULT_FROZEN } from '../plant/historian.js';
 import { csvLine } from '../report/format.js';
 import { plantJson, plantText, rowColumns, rowCsv } from '../plant/output.js';
 import { preparePlant, type PlantReport, type RowReading } from '../plant/plant.js';
-import { DEFAULT_ROW_BLOCK, prepareRows, rowsHeader, rowsOfBlock, type RowsSpec } from '../plant/rows.js';
+import { DEFAULT_ROW_BLOCK, plantWorkerFile, prepareRows, rowBlocks, rowsHeader, type RowOut, type RowsSpec } from '../plant/rows.js';
+import { runBlocksParallel, runBlocksSerial, WorkerFailure, type Task } from '../study/runner.js';
 import { EXIT } from './exit.js';
 import { writeErr } from './io.js';
 
@@ -29,6 +30,7 @@ export interface ReconcileCliOptions {
   block?: string;
   frozen?: string;
   flowUnit?: string;
+  jobs?: string;
 }
 
 /** Exit code of a snapshot's status: answered (0), not converged (3), invalid (2). */
@@ -49,6 +51,7 @@ export function registerReconcile(program: Command, setCode: (code: number) => v
     .option('--resume', 'continue an interrupted run in --out: only the missing rows are reconciled')
     .option('--overwrite', 'start again when --out exists')
     .option('--block <n>', `rows solved in a row from one cold start (default ${DEFAULT_ROW_BLOCK})`)
+    .option('--jobs <n>', 'threads reconciling blocks of rows (with --readings; the output is the same as with one)')
     .option('--frozen <n>', `a reading equal to itself for n rows running is left out as frozen (default ${DEFAULT_FROZEN}; 0: never)`)
     .option('--flow-unit <unit>', 'display unit of molar flows in the text report, e.g. kmol/h')
     .action(async (file: string, o: ReconcileCliOptions) => {
@@ -57,7 +60,7 @@ export function registerReconcile(program: Command, setCode: (code: number) => v
       if (formats > 1) problems.push('give one of --json, --csv and --jsonl');
       if (o.jsonl && !o.readings) problems.push('--jsonl writes one object per row of --readings; for one snapshot use --json');
       if (o.json && o.readings) problems.push('--json prints one snapshot; with --readings use --jsonl (or --csv)');
-      if ((o.resume || o.block) && !o.readings) problems.push('--resume and --block go with --readings');
+      if ((o.resume || o.block || o.jobs) && !o.readings) problems.push('--resume, --block and --jobs go with --readings');
       if (o.resume && !o.out) problems.push('--resume needs --out FILE (the output to continue)');
       if (o.resume && o.overwrite) problems.push('give --resume or --overwrite, not both');
       const whole = (name: string, v: string | undefined, dflt: number, min: number) => {
@@ -70,6 +73,7 @@ export function registerReconcile(program: Command, setCode: (code: number) => v
       };
       const block = whole('--block', o.block, DEFAULT_ROW_BLOCK, 1);
       const frozen = whole('--frozen', o.frozen, DEFAULT_FROZEN, 0);
+      const jobs = whole('--jobs', o.jobs, 1, 1);
       if (problems.length) throw new InputError(problems.map((message) => ({ severity: 'error' as const, message })));
       if (!o.readings) {
         const { model } = loadFlowsheet(file);
@@ -89,11 +93,11 @@ export function registerReconcile(program: Command, setCode: (code: number) => v
         setCode(reconcileExit(report.status));
         return;
       }
-      setCode(await runRows(file, o, block, frozen));
+      setCode(await runRows(file, o, block, frozen, jobs));
     });
 }
 
-async function runRows(file: string, o: ReconcileCliOptions, block: number, frozen: number): Promise<number> {
+async function runRows(file: string, o: ReconcileCliOptions, block: number, frozen: number, jobs: number): Promise<number> {
   let readingsText: string;
   try {
     readingsText = readFileSync(o.readings!, 'utf8');
@@ -120,32 +124,33 @@ async function runRows(file: string, o: ReconcileCliOptions, block: number, froz
   process.on('SIGINT', onSignal);
   process.on('SIGTERM', onSignal);
   let written = existing.length;
-  let complete = true;
-  try {
-    let left = existing.length;
-    let slice = Date.now();
-    outer: for (let b = 0; b < ctx.blocks.length; b++) {
-      const len = ctx.blocks[b].length;
-      if (left >= len) {
-        left -= len;
-        continue;
-      }
-      for (const row of rowsOfBlock(ctx, b, left)) {
-        sink.write(row.line);
-        written++;
-        tally.set(row.status, (tally.get(row.status) ?? 0) + 1);
-        progress.tick();
-        if (Date.now() - slice >= 50) {
-          await new Promise<void>((r) => setImmediate(r));
-          slice = Date.now();
-        }
-        if (signal || !sink.open) {
-          complete = false;
-          break outer;
-        }
-      }
+  // The blocks left: whole ones after the rows already written, the first of them cut short.
+  const tasks: Task[] = [];
+  let left = existing.length;
+  for (let b = 0; b < ctx.blocks.length; b++) {
+    const len = ctx.blocks[b].length;
+    if (left >= len) left -= len;
+    else {
+      tasks.push({ block: b, skip: left });
       left = 0;
     }
+  }
+  const hooks = {
+    onRow(row: RowOut) {
+      sink.write(row.line);
+      written++;
+      tally.set(row.status, (tally.get(row.status) ?? 0) + 1);
+      progress.tick();
+    },
+    stopped: () => signal !== undefined || !sink.open,
+  };
+  let complete: boolean;
+  try {
+    const blocks = rowBlocks(ctx);
+    complete = jobs > 1 && tasks.length > 1 ? await runBlocksParallel(blocks, tasks, jobs, hooks, plantWorkerFile()) : await runBlocksSerial(blocks, tasks, hooks);
+  } catch (e) {
+    if (e instanceof WorkerFailure && e.workerStack) e.stack = e.workerStack;
+    throw e;
   } finally {
     progress.finish();
     sink.close();

@@ -108,7 +108,8 @@ export function meterFlowBudget(meter: MeterEos): FlowBudget {
     if (kind === 'standard') {
       const ref = input.reference!;
       const realGas = input.realGas ?? true;
-      const v = realGas ? meter.state(ref.T, ref.P, x).v : (R * ref.T) / ref.P;
+      // The molar volume alone (no phase test: the same v as state(), which also classifies the phase).
+      const v = realGas ? meter.molarVolume(ref.T, ref.P, x) : (R * ref.T) / ref.P;
       const F = reading / v;
       const terms: BudgetTerm[] = [{ source: 'instrument', sigma: reading > 0 ? (F / reading) * instrument : instrument / v }];
       if (realGas) {

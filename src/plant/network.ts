@@ -45,7 +45,7 @@ import { InputError, type Diagnostic } from '../diagnostics.js';
 import type { FlowsheetResult } from '../flowsheet/result.js';
 import type { Model } from '../flowsheet/model.js';
 import type { InstrumentDecl } from './declarations.js';
-import type { PlantConstraints, PlantVariable } from './types.js';
+import type { ConstraintPattern, PlantConstraints, PlantVariable } from './types.js';
 
 export interface StreamVars {
   name: string;
@@ -83,6 +83,8 @@ export interface NetworkFigure {
   path: string;
   unit: string;
   value(x: Float64Array): number;
+  /** Every variable value(x) can read: its unit's inlet and outlet streams and extents. */
+  reads: Int32Array;
 }
 
 export interface Network {
@@ -105,6 +107,12 @@ export function flowOf(s: StreamVars, i: number, x: ArrayLike<number>): number {
   if (s.total !== undefined) return s.z![i] * x[s.total];
   const j = s.flows![i];
   return j >= 0 ? x[j] : 0;
+}
+
+/** The variables of a stream: its total, or its component flows. */
+export function streamVariables(s: StreamVars): number[] {
+  if (s.total !== undefined) return [s.total];
+  return Array.from(s.flows!).filter((j) => j >= 0);
 }
 
 export function totalOf(s: StreamVars, x: ArrayLike<number>): number {
@@ -153,6 +161,25 @@ export class BilinearConstraints implements PlantConstraints {
       }
       out[i] = s;
     }
+  }
+  pattern(): ConstraintPattern {
+    const { j, l, start } = this;
+    const rowStart = new Int32Array(this.count + 1);
+    const index: number[] = [];
+    const linear = new Uint8Array(this.count);
+    for (let i = 0; i < this.count; i++) {
+      rowStart[i] = index.length;
+      const seen = new Set<number>();
+      let lin = 1;
+      for (let t = start[i]; t < start[i + 1]; t++) {
+        if (j[t] >= 0 && l[t] >= 0) lin = 0;
+        for (const v of [j[t], l[t]]) if (v >= 0 && !seen.has(v)) seen.add(v);
+      }
+      index.push(...[...seen].sort((a, b) => a - b));
+      linear[i] = lin;
+    }
+    rowStart[this.count] = index.length;
+    return { start: rowStart, index: Int32Array.from(index), linear };
   }
   jacobian(x: Float64Array, out: Float64Array): void {
     const { c, j, l, start, n } = this;
@@ -427,15 +454,20 @@ export function buildNetwork(model: Model, design?: FlowsheetResult): Network {
     for (const fig of uv.decl.figures ?? []) {
       const ins = uv.inlets.map((s) => streams.get(s)!);
       const outs = uv.outlets.map((s) => streams.get(s)!);
+      const reads = Int32Array.from(new Set([...[...ins, ...outs].flatMap(streamVariables), ...uv.extents, ...uv.others]));
+      // One view per figure, reading the x of the call (derived estimates call value() many times).
+      let at: Float64Array = new Float64Array(0);
+      const view: BalanceView = {
+        inlet: (i) => ins.reduce((t, s) => t + (i === undefined ? totalOf(s, at) : flowOf(s, i, at)), 0),
+        outlet: (k, i) => (i === undefined ? totalOf(outs[k], at) : flowOf(outs[k], i, at)),
+        extent: (r) => at[uv.extents[r]],
+      };
       figures.push({
         path: fig.path,
         unit: fig.path.includes('.extent') ? 'mol/s' : '',
+        reads,
         value(x) {
-          const view: BalanceView = {
-            inlet: (i) => ins.reduce((t, s) => t + (i === undefined ? totalOf(s, x) : flowOf(s, i, x)), 0),
-            outlet: (k, i) => (i === undefined ? totalOf(outs[k], x) : flowOf(outs[k], i, x)),
-            extent: (r) => x[uv.extents[r]],
-          };
+          at = x;
           return fig.value(view);
         },
       });

@@ -4,7 +4,7 @@
  * timestamp, with a header like a sweep's so that the output can be resumed and plotted).
  */
 import type { Model } from '../flowsheet/model.js';
-import { CAUTION, csvLine, num, table, toJson } from '../report/format.js';
+import { CAUTION, csvField, csvLine, num, table, toJson } from '../report/format.js';
 import { toUnit } from '../units/index.js';
 import type { PlantReconciliation, PlantReport } from './plant.js';
 
@@ -174,7 +174,13 @@ export function rowCsv(cols: RowColumns, point: number, timestamp: string, repor
     f.push(v(u?.value), v(u?.sigma));
   }
   f.push(report.suspects.map((s) => `${s.tag}${s.component ? `.${s.component}` : ''}:${s.bias}`).join(' '), rowSaid(report, said), message ?? (report.status === 'reconciled' ? '' : report.message));
-  return csvLine(f);
+  // csvLine's fields: a number's text never needs quoting, so only the words go through csvField.
+  let line = '';
+  for (let k = 0; k < f.length; k++) {
+    const x = f[k];
+    line += (k > 0 ? ',' : '') + (typeof x === 'number' ? (Number.isFinite(x) ? String(x) : '') : csvField(x));
+  }
+  return line;
 }
 
 /** One JSON Lines row: the snapshot contract without the budgets. */

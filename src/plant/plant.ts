@@ -31,7 +31,7 @@ import { meterEosFor } from '../thermo/meter-eos.js';
 import { closure as rawClosure, type ClosureTerm } from './closure.js';
 import { standardUncertainty, type InstrumentDecl } from './declarations.js';
 import { derivedEstimate } from './derived.js';
-import { buildNetwork, flowOf, totalOf, type Network, type StreamVars } from './network.js';
+import { buildNetwork, flowOf, streamVariables, totalOf, type Network, type StreamVars } from './network.js';
 import { prepareReconciliation, type PreparedReconciliation } from './reconcile.js';
 import { serialElimination } from './serial.js';
 import type { ReconcileOptions, ReconcileResult } from './types.js';
@@ -260,9 +260,17 @@ export class PlantReconciliation {
       });
     }
     const flowTags = [...usable.keys()].filter((t) => network.instruments.get(t)!.variable !== undefined);
-    const convert = (x: Float64Array | undefined): number => {
+    // Converted again with the reconciled composition: only the instruments whose conversion reads
+    // it (a meter or a standard volume on a stream of unknown composition); the others would give
+    // the same figures again.
+    const readsComposition = (tag: string) => {
+      const d = network.instruments.get(tag)!.decl;
+      return (d.kind === 'meter' || d.kind === 'standard') && !network.streams.get(d.stream)!.z;
+    };
+    const convert = (x: Float64Array | undefined, again = false): number => {
       let moved = 0;
       for (const tag of flowTags) {
+        if (again && !readsComposition(tag)) continue;
         const iv = network.instruments.get(tag)!;
         const d = iv.decl;
         const r = usable.get(tag)!;
@@ -294,12 +302,9 @@ export class PlantReconciliation {
     convert(warm);
     let initial: ReconcileResult = this.prepared.solve({ values, sigmas, start });
     // A meter on a stream of unknown composition: convert again with the reconciled composition.
-    const compositionDependent = flowTags.some((t) => {
-      const d = network.instruments.get(t)!.decl;
-      return (d.kind === 'meter' || d.kind === 'standard') && !network.streams.get(d.stream)!.z;
-    });
+    const compositionDependent = flowTags.some(readsComposition);
     for (let pass = 0; compositionDependent && pass < 3 && (initial.status === 'reconciled' || initial.status === 'not-redundant'); pass++) {
-      if (convert(initial.x) <= CONVERSION_SETTLED) break;
+      if (convert(initial.x, true) <= CONVERSION_SETTLED) break;
       for (let j = 0; j < n; j++) if (Number.isFinite(initial.x[j])) start[j] = initial.x[j];
       initial = this.prepared.solve({ values, sigmas, start });
     }
@@ -395,7 +400,7 @@ export class PlantReconciliation {
           const comp = this.composition(s, x && Number.isFinite(totalOf(s, x)) ? x : undefined);
           let MW = 0;
           for (let i = 0; i < comp.length; i++) MW += comp[i] * this.model.components[i].MW;
-          const tot = ok ? derivedEstimate(res, (xx) => totalOf(s, xx)) : { value: null, uncertainty: null };
+          const tot = ok ? derivedEstimate(res, (xx) => totalOf(s, xx), streamVariables(s)) : { value: null, uncertainty: null };
           rep.molarFlow = { measured: measured === null ? null : measured / MW, reconciled: tot.value, sigma: sigma === null ? null : sigma / MW, reconciledSigma: tot.uncertainty };
         } else {
           rep.molarFlow = { measured, reconciled: recon, sigma, reconciledSigma: rsig };
@@ -448,7 +453,7 @@ export class PlantReconciliation {
       const file = fp?.value;
       const isParameter = fp !== undefined;
       const unit = fp ? fp.unit : fig.unit;
-      const d = ok ? derivedEstimate(res, (x) => fig.value(x)) : { value: null, uncertainty: null };
+      const d = ok ? derivedEstimate(res, (x) => fig.value(x), fig.reads) : { value: null, uncertainty: null };
       // A figure of a component that is not there at all (0 / 0) is left out.
       if (d.value === null && !isParameter && ok && !Number.isFinite(fig.value(Float64Array.from(this.network.start)))) continue;
       report.parameters[fig.path] = { value: d.value, sigma: d.uncertainty, unit, ...(file !== undefined ? { file } : {}), parameter: isParameter, observable: d.value !== null };
@@ -457,7 +462,7 @@ export class PlantReconciliation {
     const metered = new Set(this.model.instruments.filter((d) => this.network.instruments.get(d.tag)!.variable !== undefined && usable.has(d.tag) && !report.instruments[d.tag].suspect).map((d) => d.stream));
     for (const [name, s] of this.network.streams) {
       if (metered.has(name)) continue;
-      const d = ok ? derivedEstimate(res, (x) => totalOf(s, x)) : { value: null, uncertainty: null };
+      const d = ok ? derivedEstimate(res, (x) => totalOf(s, x), streamVariables(s)) : { value: null, uncertainty: null };
       report.unmeasured[`streams.${name}.total`] = {
         value: d.value, sigma: d.uncertainty, observable: d.value !== null,
         ...(d.value === null ? { reason: ok ? 'not observable: the readings and balances do not determine it' : `no reconciliation (${res.status})` } : {}),

@@ -63,14 +63,20 @@
  * unmeasured variables) and every balance residual at most constraintTolerance times the size
  * of its terms. A problem that does not converge, or whose balances cannot all be met, returns
  * status not-converged with its history, never a solution.
+ * Structure: when the balances say which variables each row holds (PlantConstraints.pattern) and
+ * the Jacobian is analytic, the same step and statistics are computed on smaller matrices
+ * (structured.ts: the linear unit balances factorised once per problem, each instrument's own
+ * equation solved for its reading); a step with a bound held takes the whole factorisation.
  */
 import { applyQ, applyQt, newQrWork, qrPivoted, solveUpper, solveUpperTransposed, type QrWork } from './dense.js';
+import { StructuredSteps, type StructuredState, type StructuredSummary } from './structured.js';
 import { chiSquareCritical, chiSquarePValue, normalCritical, sidakLevel } from './statistics.js';
 import type {
   GlobalTest,
   MeasurementTestInfo,
   ReconcileHistoryEntry,
   ReconcileOptions,
+  ConstraintPattern,
   ReconcileResult,
   ReconciliationProblem,
   Snapshot,
@@ -84,6 +90,7 @@ export const RECONCILE_DEFAULTS: Required<ReconcileOptions> = {
   rankTolerance: 1e-10,
   zeroTolerance: 1e-8,
   confidence: 0.95,
+  structured: true,
 };
 
 const SQRT_EPS = Math.sqrt(Number.EPSILON);
@@ -171,6 +178,13 @@ export class PreparedReconciliation {
   private readonly qrG: QrWork;
   private evaluations = 0;
   private jacobians = 0;
+  /** Which variables each balance involves, when the constraints say (and the Jacobian is analytic). */
+  private readonly pattern: ConstraintPattern | undefined;
+  /** The problem's structure (structured.ts), when it has one to use. */
+  private readonly structure: StructuredSteps | undefined;
+  private readonly structuredState: StructuredState;
+  /** Whether the factorisation in the buffers is the structured one (else the whole one). */
+  private lastStructured = false;
 
   constructor(problem: ReconciliationProblem, options: ReconcileOptions = {}) {
     this.problem = problem;
@@ -184,7 +198,7 @@ export class PreparedReconciliation {
     this.names = vars.map((v) => v.name);
     this.constraintNames = cons.names;
     this.options = { ...RECONCILE_DEFAULTS };
-    for (const [k, v] of Object.entries(options)) if (v !== undefined) (this.options as Record<string, number>)[k] = v as number;
+    for (const [k, v] of Object.entries(options)) if (v !== undefined) (this.options as unknown as Record<string, number | boolean>)[k] = v as number | boolean;
     this.issues = checkShape(problem, this.options);
 
     const M = m + n;
@@ -221,6 +235,25 @@ export class PreparedReconciliation {
       this.lower[j] = vars[j].lower ?? -Infinity;
       this.upper[j] = vars[j].upper ?? Infinity;
     }
+    this.structure = this.issues.length === 0 && this.options.structured !== false ? StructuredSteps.build(problem, this.options.rankTolerance) : undefined;
+    const pat = this.issues.length === 0 && cons.jacobian && cons.pattern ? cons.pattern() : undefined;
+    this.pattern = pat && pat.start.length === m + 1 && pat.index.every((j) => j >= 0 && j < n) ? pat : undefined;
+    const self = this;
+    this.structuredState = {
+      get p() {
+        return self.p;
+      },
+      get q() {
+        return self.q;
+      },
+      J: this.J, c: this.c, x: this.x, y: this.y, sigma: this.sigma, typical: this.typical,
+      meas: this.meas, unmeas: this.unmeas, isMeasured: this.isMeasured, position: this.position, dx: this.dx,
+    };
+  }
+
+  /** Linear balances eliminated once per problem by the structured steps (0 without them). */
+  get eliminatedRows(): number {
+    return this.structure?.linearRows ?? 0;
   }
 
   /** Reconciles one snapshot (default: the readings, sigmas and starts in the problem). */
@@ -450,6 +483,19 @@ export class PreparedReconciliation {
    * the unmeasured columns, A holds Q' times the measured columns, Gt the pivoted QR of G'.
    */
   private linearStep(): StepInfo {
+    if (this.structure && this.p > 0 && !this.anyActive()) {
+      const s = this.structure.step(this.structuredState, this.options.rankTolerance);
+      if (s) {
+        this.lastStructured = true;
+        return { rows: this.m, ...s };
+      }
+    }
+    this.lastStructured = false;
+    return this.wholeStep();
+  }
+
+  /** The step from a factorisation of the whole linearised system (see the file header). */
+  private wholeStep(): StepInfo {
     const { n, m, p, q, x, J, c, active, meas, unmeas, sigma, typical, rowScale, cs, B, A } = this;
     const R = this.maxRows;
     const tol = this.options.rankTolerance;
@@ -620,21 +666,23 @@ export class PreparedReconciliation {
 
   /** Copies of what linearStep leaves behind, so that trial steps can be undone without
    *  factorising again. */
-  private saved?: { buffers: Float64Array[]; perms: Int32Array[]; copies: Float64Array[]; permCopies: Int32Array[] };
+  private saved?: { buffers: Float64Array[]; perms: Int32Array[]; copies: Float64Array[]; permCopies: Int32Array[]; structured: boolean };
 
   private saveStep(): void {
     if (!this.saved) {
       const buffers = [this.rowScale, this.cs, this.B, this.A, this.Gt, this.g, this.z, this.dx, this.qrB.beta, this.qrG.beta];
       const perms = [this.qrB.perm, this.qrG.perm];
-      this.saved = { buffers, perms, copies: buffers.map((b) => new Float64Array(b.length)), permCopies: perms.map((b) => new Int32Array(b.length)) };
+      this.saved = { buffers, perms, copies: buffers.map((b) => new Float64Array(b.length)), permCopies: perms.map((b) => new Int32Array(b.length)), structured: false };
     }
     const sv = this.saved;
+    sv.structured = this.lastStructured;
     sv.buffers.forEach((b, i) => sv.copies[i].set(b));
     sv.perms.forEach((b, i) => sv.permCopies[i].set(b));
   }
 
   private restoreStep(): void {
     const sv = this.saved!;
+    this.lastStructured = sv.structured;
     sv.buffers.forEach((b, i) => b.set(sv.copies[i]));
     sv.perms.forEach((b, i) => b.set(sv.permCopies[i]));
   }
@@ -664,12 +712,15 @@ export class PreparedReconciliation {
   /** Largest |c_i| and largest |c_i| / (sum_j |J_ij| max(|x_j|, typical_j)), with J at hand. */
   private residualNorms(): { abs: number; scaled: number; worst: number } {
     const { n, m, c, J, x, typical } = this;
+    const pattern = this.pattern;
     let abs = 0;
     let scaled = 0;
     let worst = -1;
     for (let i = 0; i < m; i++) {
       let size = 0;
-      for (let j = 0; j < n; j++) size += Math.abs(J[i * n + j]) * Math.max(Math.abs(x[j]), typical[j]);
+      // Only the pattern's entries can be non-zero (the same sum: the others add exact zeros).
+      if (pattern) for (let t = pattern.start[i]; t < pattern.start[i + 1]; t++) size += Math.abs(J[i * n + pattern.index[t]]) * Math.max(Math.abs(x[pattern.index[t]]), typical[pattern.index[t]]);
+      else for (let j = 0; j < n; j++) size += Math.abs(J[i * n + j]) * Math.max(Math.abs(x[j]), typical[j]);
       const a = Math.abs(c[i]);
       const s = size > 0 ? a / size : a;
       abs = Math.max(abs, a);
@@ -737,13 +788,59 @@ export class PreparedReconciliation {
     const zeroTol = options.zeroTolerance;
     const x = Float64Array.from(this.x);
 
-    // Q_G explicitly (p x rho), leverages of the measured variables.
-    for (let l = 0; l < rho; l++) {
-      const col = this.vec;
-      col.fill(0, 0, p);
-      col[l] = 1;
-      applyQ(Gt, p, ldG, this.qrG.beta, rho, col);
-      for (let k = 0; k < p; k++) QG[l * ldG + k] = col[k];
+    // Q_G explicitly (p x rho), observability, and how the observable unmeasured variables follow
+    // the measured ones (L below), from whichever factorisation made the last step.
+    let observable: Uint8Array;
+    let followRow: (j: number, L: Float64Array, offset: number) => void;
+    let structured: StructuredSummary | undefined;
+    if (this.lastStructured) {
+      structured = this.structure!.summary(this.structuredState, zeroTol, QG, ldG);
+      observable = structured.observable;
+      followRow = () => undefined;
+    } else {
+      for (let l = 0; l < rho; l++) {
+        const col = this.vec;
+        col.fill(0, 0, p);
+        col[l] = 1;
+        applyQ(Gt, p, ldG, this.qrG.beta, rho, col);
+        for (let k = 0; k < p; k++) QG[l * ldG + k] = col[k];
+      }
+      // K = R11^-1 (Q1'A): how the basic unmeasured variables follow the measured ones.
+      const permB = this.qrB.perm;
+      for (let l = 0; l < p; l++) solveUpper(B, R, r, A, l * R);
+      // Observability: basic columns with a zero row of R11^-1 R12 (on the balances alone, so that a
+      // bound held on an unmeasured variable does not make it look determined by the data).
+      observable = new Uint8Array(q);
+      let anyUnmeasuredBound = false;
+      for (let k = 0; k < q; k++) if (active[unmeas[k]] !== 0) anyUnmeasuredBound = true;
+      const basicPos = new Int32Array(q).fill(-1);
+      for (let k = 0; k < r; k++) basicPos[permB[k]] = k;
+      if (q > 0) {
+        if (anyUnmeasuredBound) {
+          // Factorise B of the balances alone in T's space (A is not needed again).
+          this.factorBalancesOnly();
+        }
+        const Bf = anyUnmeasuredBound ? T : B;
+        const rf = anyUnmeasuredBound ? this.rankBalancesOnly : r;
+        const permF = anyUnmeasuredBound ? this.permBalancesOnly : permB;
+        // Row k of R11^-1 R12 for each basic k: solve column by column into vec.
+        const free = q - rf;
+        const maxRow = new Float64Array(rf);
+        const col = this.vec;
+        for (let f = 0; f < free; f++) {
+          for (let k = 0; k < rf; k++) col[k] = Bf[(rf + f) * R + k];
+          solveUpper(Bf, R, rf, col);
+          for (let k = 0; k < rf; k++) maxRow[k] = Math.max(maxRow[k], Math.abs(col[k]));
+        }
+        for (let k = 0; k < rf; k++) if (maxRow[k] <= zeroTol) observable[permF[k]] = 1;
+        // An observable variable must also be basic in the system with the bounds (it always is;
+        // the guard keeps a numerical tie from giving a number without a covariance row).
+        for (let k = 0; k < q; k++) if (observable[k] && basicPos[k] < 0) observable[k] = 0;
+      }
+      followRow = (j, L, offset) => {
+        const b = basicPos[this.position[j]];
+        for (let l = 0; l < p; l++) L[offset + l] = -A[l * R + b];
+      };
     }
     const leverage = new Float64Array(p);
     for (let k = 0; k < p; k++) {
@@ -754,58 +851,40 @@ export class PreparedReconciliation {
     const redundant = new Uint8Array(p);
     for (let k = 0; k < p; k++) redundant[k] = Math.sqrt(leverage[k]) > zeroTol ? 1 : 0;
 
-    // K = R11^-1 (Q1'A): how the basic unmeasured variables follow the measured ones.
-    const permB = this.qrB.perm;
-    for (let l = 0; l < p; l++) solveUpper(B, R, r, A, l * R);
-    // Observability: basic columns with a zero row of R11^-1 R12 (on the balances alone, so that a
-    // bound held on an unmeasured variable does not make it look determined by the data).
-    const observable = new Uint8Array(q);
-    let anyUnmeasuredBound = false;
-    for (let k = 0; k < q; k++) if (active[unmeas[k]] !== 0) anyUnmeasuredBound = true;
-    const basicPos = new Int32Array(q).fill(-1);
-    for (let k = 0; k < r; k++) basicPos[permB[k]] = k;
-    if (q > 0) {
-      if (anyUnmeasuredBound) {
-        // Factorise B of the balances alone in T's space (A is not needed again).
-        this.factorBalancesOnly();
-      }
-      const Bf = anyUnmeasuredBound ? T : B;
-      const rf = anyUnmeasuredBound ? this.rankBalancesOnly : r;
-      const permF = anyUnmeasuredBound ? this.permBalancesOnly : permB;
-      // Row k of R11^-1 R12 for each basic k: solve column by column into vec.
-      const free = q - rf;
-      const maxRow = new Float64Array(rf);
-      const col = this.vec;
-      for (let f = 0; f < free; f++) {
-        for (let k = 0; k < rf; k++) col[k] = Bf[(rf + f) * R + k];
-        solveUpper(Bf, R, rf, col);
-        for (let k = 0; k < rf; k++) maxRow[k] = Math.max(maxRow[k], Math.abs(col[k]));
-      }
-      for (let k = 0; k < rf; k++) if (maxRow[k] <= zeroTol) observable[permF[k]] = 1;
-      // An observable variable must also be basic in the system with the bounds (it always is;
-      // the guard keeps a numerical tie from giving a number without a covariance row).
-      for (let k = 0; k < q; k++) if (observable[k] && basicPos[k] < 0) observable[k] = 0;
-    }
-
     // Covariance over measured + observable unmeasured, scaled: L C L' with C = I - Q_G Q_G',
     // L = [I; -K], then unscaled by sigma and typical magnitudes.
     const indices: number[] = [];
     for (let k = 0; k < p; k++) indices.push(meas[k]);
     for (let k = 0; k < q; k++) if (observable[k]) indices.push(unmeas[k]);
     const N = indices.length;
-    const L = new Float64Array(N * p);
     const scale = new Float64Array(N);
-    for (let k = 0; k < p; k++) {
-      L[k * p + k] = 1;
-      scale[k] = sigma[meas[k]];
+    for (let k = 0; k < p; k++) scale[k] = sigma[meas[k]];
+    for (let a = p; a < N; a++) scale[a] = typical[indices[a]];
+    let covariance: ReconcileResult['covariance'];
+    let variance: (a: number) => number;
+    if (structured) {
+      // The factor W = L Q_C1 (N x r), scaled; the matrix W W' is formed only if read.
+      const { Q1, r, follow } = structured;
+      const W = new Float64Array(N * r);
+      for (let k = 0; k < p; k++) for (let i = 0; i < r; i++) W[k * r + i] = Q1[i * p + k] * scale[k];
+      for (let a = p; a < N; a++) {
+        const o = indices[a] * r;
+        for (let i = 0; i < r; i++) W[a * r + i] = follow[o + i] * scale[a];
+      }
+      covariance = factoredCovariance(indices, W, r);
+      variance = (a) => {
+        let s = 0;
+        for (let i = 0; i < r; i++) s += W[a * r + i] * W[a * r + i];
+        return s;
+      };
+    } else {
+      const L = new Float64Array(N * p);
+      for (let k = 0; k < p; k++) L[k * p + k] = 1;
+      for (let a = p; a < N; a++) followRow(indices[a], L, a * p);
+      const cov = projectedCovariance(L, N, p, QG, ldG, rho, scale);
+      covariance = { indices, matrix: cov };
+      variance = (a) => cov[a * N + a];
     }
-    for (let a = p; a < N; a++) {
-      const j = indices[a];
-      const b = basicPos[this.position[j]];
-      scale[a] = typical[j];
-      for (let l = 0; l < p; l++) L[a * p + l] = -A[l * R + b];
-    }
-    const cov = projectedCovariance(L, N, p, QG, ldG, rho, scale);
     const covIndex = new Map<number, number>();
     indices.forEach((j, a) => covIndex.set(j, a));
 
@@ -855,7 +934,7 @@ export class PreparedReconciliation {
           reading: this.y[j],
           sigma: sigma[j],
           value: x[j],
-          uncertainty: Math.sqrt(Math.max(0, cov[a * N + a])),
+          uncertainty: Math.sqrt(Math.max(0, variance(a))),
           adjustment,
           adjustmentSigma: isRedundant ? adjustmentSigma : 0,
         };
@@ -882,7 +961,7 @@ export class PreparedReconciliation {
             role: 'unmeasured',
             classification: 'observable',
             value: x[j],
-            uncertainty: Math.sqrt(Math.max(0, cov[a * N + a])),
+            uncertainty: Math.sqrt(Math.max(0, variance(a))),
           };
           if (atBound) {
             e.atBound = atBound;
@@ -910,7 +989,7 @@ export class PreparedReconciliation {
       issues: [],
       x,
       estimates,
-      covariance: { indices, matrix: cov },
+      covariance,
       redundancy: rho,
       globalTest,
       measurementTest,
@@ -980,6 +1059,34 @@ function projectedCovariance(L: Float64Array, N: number, p: number, Q: Float64Ar
     }
   }
   return cov;
+}
+
+/**
+ * A covariance held as its factor W (N x r, row-major): matrix = W W', formed on first read; the
+ * factor itself is there for callers that can use it (derived.ts).
+ */
+function factoredCovariance(indices: number[], W: Float64Array, r: number): ReconcileResult['covariance'] {
+  const N = indices.length;
+  let matrix: Float64Array | undefined;
+  const out = { indices, factor: { W, rank: r } } as ReconcileResult['covariance'];
+  Object.defineProperty(out, 'matrix', {
+    enumerable: true,
+    get: () => {
+      if (!matrix) {
+        matrix = new Float64Array(N * N);
+        for (let a = 0; a < N; a++) {
+          for (let b = a; b < N; b++) {
+            let s = 0;
+            for (let i = 0; i < r; i++) s += W[a * r + i] * W[b * r + i];
+            matrix[a * N + b] = s;
+            matrix[b * N + a] = s;
+          }
+        }
+      }
+      return matrix;
+    },
+  });
+  return out;
 }
 
 /** Problems with the problem's shape and constant data (one message per problem). */

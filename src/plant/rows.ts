@@ -15,6 +15,7 @@ import { rowInput } from './historian.js';
 import { csvLine } from '../report/format.js';
 import { rowColumns, rowCsv, rowJson, PLANT_CAUTION, type RowColumns } from './output.js';
 import { preparePlant, type PlantOptions, type PlantReconciliation } from './plant.js';
+import type { Blocks } from '../study/runner.js';
 
 export const DEFAULT_ROW_BLOCK = 500;
 
@@ -80,6 +81,16 @@ export function* rowsOfBlock(ctx: RowsContext, b: number, skip = 0): Generator<R
     }
     if (w >= skip) yield { point, status, line };
   }
+}
+
+/** Blocks of rows for the runner (src/study/runner.ts): here, or in a worker prepared from the same spec. */
+export function rowBlocks(ctx: RowsContext): Blocks<RowOut> {
+  return { rows: (block, skip) => rowsOfBlock(ctx, block, skip), workerData: { spec: ctx.spec } };
+}
+
+/** The worker script next to the bundled CLI (dist/plant-worker.mjs). */
+export function plantWorkerFile(): URL {
+  return new URL('./plant-worker.mjs', import.meta.url);
 }
 
 function sha256(text: string): string {

@@ -44,6 +44,21 @@ export interface PlantConstraints {
   jacobian?(x: Float64Array, out: Float64Array): void;
   /** True when every constraint is linear in x: the Jacobian is built once and kept. */
   linear?: boolean;
+  /**
+   * Optional structure: which variables each constraint can involve (row i holds the indices
+   * index[start[i]] .. index[start[i + 1] - 1], each once), and whether the row is linear (its
+   * Jacobian row is the same at every x). With it and an analytic Jacobian the engine eliminates
+   * the linear balances once per problem and each instrument's own equation analytically
+   * (reconcile.ts, structured.ts); without it every step is factorised whole.
+   */
+  pattern?(): ConstraintPattern;
+}
+
+export interface ConstraintPattern {
+  start: Int32Array;
+  index: Int32Array;
+  /** 1 where the row is linear. */
+  linear: Uint8Array;
 }
 
 export interface ReconciliationProblem {
@@ -84,6 +99,12 @@ export interface ReconcileOptions {
   zeroTolerance?: number;
   /** Confidence of the global test and of the measurement test as a family (default 0.95). */
   confidence?: number;
+  /**
+   * Use the problem's structure (PlantConstraints.pattern) where it allows (default true):
+   * the same steps and results to rounding, computed on smaller matrices. false factorises every
+   * step whole (the reference the structured steps are tested against).
+   */
+  structured?: boolean;
 }
 
 export type ReconcileStatus = 'reconciled' | 'not-redundant' | 'not-converged' | 'invalid';
@@ -169,7 +190,12 @@ export interface ReconcileResult {
    * (first-order, at the solution's linearisation), over `indices` (variable indices), as a
    * row-major matrix of indices.length squared. Empty unless reconciled or not-redundant.
    */
-  covariance: { indices: number[]; matrix: Float64Array };
+  covariance: {
+    indices: number[];
+    matrix: Float64Array;
+    /** When the engine has it: matrix = W W', W (indices.length x rank, row-major). */
+    factor?: { W: Float64Array; rank: number };
+  };
   /** Rank of the projected constraint matrix (degrees of freedom of the global test). */
   redundancy: number;
   globalTest?: GlobalTest;
