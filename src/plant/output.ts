@@ -121,7 +121,9 @@ export function rowColumns(plant: PlantReconciliation): RowColumns {
   const names = ['point', 'timestamp', 'status', 'redundancy', 'global.statistic', 'global.dof', 'global.critical', 'global.p-value'];
   for (const el of elements) names.push(`closure.${el}.relative`, `closure.${el}.uncertainty`);
   names.push('closure.mass.relative', 'closure.mass.uncertainty');
-  for (const t of flowTags) names.push(`${t}.measured[mol/s]`, `${t}.reconciled[mol/s]`, `${t}.test`);
+  // Per flow instrument: the adjustment (reconciled - measured) and, for a suspect, its estimated
+  // bias as a fraction of its reading (what a plot of a meter against time wants).
+  for (const t of flowTags) names.push(`${t}.measured[mol/s]`, `${t}.reconciled[mol/s]`, `${t}.adjustment[mol/s]`, `${t}.test`, `${t}.bias`);
   for (const a of analyzers) {
     for (const id of a.ids) names.push(`${a.tag}.${id}.measured`, `${a.tag}.${id}.reconciled`);
     names.push(`${a.tag}.test`);
@@ -161,7 +163,10 @@ export function rowCsv(cols: RowColumns, point: number, timestamp: string, repor
   f.push(v(report.closure.mass?.relative), v(report.closure.mass?.uncertainty));
   for (const t of cols.flowTags) {
     const r = report.instruments[t];
-    f.push(v(r?.molarFlow?.measured), v(r?.molarFlow?.reconciled), v(r?.test));
+    const m = r?.molarFlow?.measured;
+    const rc = r?.molarFlow?.reconciled;
+    const suspect = report.suspects.find((x) => x.tag === t && !x.component);
+    f.push(v(m), v(rc), m !== null && m !== undefined && rc !== null && rc !== undefined ? v(rc - m) : '', v(r?.test), v(suspect?.bias));
   }
   for (const a of cols.analyzers) {
     const r = report.instruments[a.tag];

@@ -5,7 +5,8 @@
  */
 import { readFileSync, writeFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { cli, tempFile } from '../helpers/cli.js';
+import { cli, ROOT, tempFile } from '../helpers/cli.js';
+import { dirname, join } from 'node:path';
 
 const DEMO = 'flowsheets/ammonia-loop.yaml';
 
@@ -153,5 +154,25 @@ describe('loopclose reconcile --readings: one row per timestamp', () => {
     const again = cli(['reconcile', DEMO, '--readings', csv, '--out', part, '--resume', '--block', '5']);
     expect(again.code).toBe(2);
     expect(again.stderr).toMatch(/the command differs/);
+  });
+});
+
+describe('a reconciliation over time, plotted', () => {
+  it('closure per element and a meter\'s adjustment against time, from the rows of a historian export', () => {
+    const year = readFileSync(join(ROOT, 'flowsheets', 'data', 'ammonia-loop-year.csv'), 'utf8').split('\n');
+    const readings = tempFile('day.csv', `${year.slice(0, 27).join('\n')}\n`);
+    const out = join(dirname(readings), 'day-out.csv');
+    const r = cli(['reconcile', DEMO, '--readings', readings, '--out', out]);
+    expect(r.code, r.stderr).toBe(0);
+    const header = readFileSync(out, 'utf8').split('\n')[3];
+    expect(header).toContain('FI-101.adjustment[mol/s]');
+    expect(header).toContain('FI-101.bias');
+    const svg = join(dirname(readings), 'day.svg');
+    const p = cli(['plot', out, '--x', 'timestamp', '--y', 'closure.N.relative,FI-101.adjustment', '--out', svg]);
+    expect(p.code, p.stderr).toBe(0);
+    const text = readFileSync(svg, 'utf8');
+    expect(text).toContain('timestamp (UTC)');
+    expect(text).toContain('FI-101.adjustment [mol/s]');
+    expect(text).toContain('closure.N.relative');
   });
 });
