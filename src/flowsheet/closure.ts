@@ -1,7 +1,8 @@
 /**
  * Balance closure as a second convergence criterion. The tear test allows a component
  * imbalance of about rtol times that component's recycle-to-feed ratio (large for an inert);
- * a converged loop must also close its balances. This continues from the solution with a
+ * a converged loop must also close its balances: material, elements, mass and (when the file
+ * has thermal data) energy, overall and per unit, to the same relative tolerance. This continues from the solution with a
  * tighter tear tolerance until the balance closes too (at most three times), then leaves every
  * stream at the final iterate with one last pass.
  */
@@ -83,6 +84,19 @@ function describeOpen(b: Balance): string {
       worst = `the balance of element ${el} closes only to ${Math.abs(c.closure).toExponential(2)}`;
     }
   }
-  if (Math.abs(b.mass.closure) > v) worst = `the mass balance closes only to ${Math.abs(b.mass.closure).toExponential(2)}`;
+  if (Math.abs(b.mass.closure) > v) {
+    v = Math.abs(b.mass.closure);
+    worst = `the mass balance closes only to ${Math.abs(b.mass.closure).toExponential(2)}`;
+  }
+  if (b.energy && !(Math.abs(b.energy.closure) <= v)) {
+    v = Math.abs(b.energy.closure);
+    worst = `the energy balance closes only to ${Math.abs(b.energy.closure).toExponential(2)} (in ${b.energy.in.toExponential(4)} W, out ${b.energy.out.toExponential(4)} W, duties ${b.energy.duty.toExponential(4)} W, power ${b.energy.power.toExponential(4)} W)`;
+  }
+  for (const [u, e] of Object.entries(b.unitEnergy ?? {})) {
+    if (!(Math.abs(e.closure) <= v)) {
+      v = Math.abs(e.closure);
+      worst = `the energy balance of \`${u}\` closes only to ${Math.abs(e.closure).toExponential(2)}`;
+    }
+  }
   return `${worst} (a trace component far below the others, or a split close to 0 or 1, can do this: try --method newton, a tighter --tolerance, or set such a trace to zero)`;
 }

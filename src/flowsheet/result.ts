@@ -4,6 +4,7 @@
  * edits a result afterwards.
  */
 import type { FeedResult } from '../blocks/feed.js';
+import { describeMissing, missingEnergyKeys, outsideRangeIds } from '../blocks/energy.js';
 import type { Stream, UnitSummary } from '../blocks/types.js';
 import type { EvaluationFailure, HistoryEntry, SolveResult, Status } from '../solve/types.js';
 import type { Balance } from './balance.js';
@@ -20,6 +21,10 @@ export interface StreamResult {
   vaporFraction: number;
   /** kg/s */
   massFlow: number;
+  /** Molar enthalpy, J/mol (formation basis); NaN when the energy balance is off. */
+  h: number;
+  /** Enthalpy flow, W (total times h); NaN when the energy balance is off. */
+  enthalpy: number;
 }
 
 export interface TargetReport {
@@ -90,6 +95,7 @@ export function assembleResult(
   for (const b of rt.blocks) if (!done.has(b.spec.name)) units.set(b.spec.name, { type: b.spec.type, figures: [], notes: [] });
   let feedTotal = 0;
   for (const f of rt.feeds) feedTotal += f.molarFlow;
+  warnings = [...warnings, ...energyWarnings(rt)];
   return {
     status: verdict.status, method: verdict.method, passes: verdict.passes, iterations: verdict.iterations, jacobians: verdict.jacobians,
     residual: verdict.residual, scaledResidual: verdict.scaledResidual, history: verdict.history,
@@ -115,5 +121,42 @@ function streamResult(rt: Runtime, s: Stream): StreamResult {
   }
   const fractions = new Float64Array(rt.n);
   if (total > 0) for (let i = 0; i < rt.n; i++) fractions[i] = s.flows[i] / total;
-  return { flows: Float64Array.from(s.flows), total, fractions, T: s.T, P: s.P, vaporFraction: s.vf, massFlow: mass };
+  const h = rt.energy ? s.h : Number.NaN;
+  return { flows: Float64Array.from(s.flows), total, fractions, T: s.T, P: s.P, vaporFraction: s.vf, massFlow: mass, h, enthalpy: total > 0 ? total * h : rt.energy ? 0 : Number.NaN };
+}
+
+/**
+ * What the energy side has to say about the state: the energy balance off (once, naming the
+ * components and the keys to add), streams at temperatures outside a present component's
+ * heat-capacity range, and pressures that rise through a unit that cannot raise them.
+ */
+function energyWarnings(rt: Runtime): string[] {
+  const out: string[] = [];
+  for (const { block, ins, outs } of rt.sequence) {
+    if (block.raisesPressure) continue;
+    let pMax = -Infinity;
+    for (const s of ins) if (s.P > pMax) pMax = s.P;
+    for (let k = 0; k < outs.length; k++) {
+      if (outs[k].P > pMax * (1 + 1e-9)) {
+        out.push(`the pressure rises through \`${block.spec.name}\` (${block.spec.type}) from ${Number((pMax / 1e5).toPrecision(6))} bar to ${Number((outs[k].P / 1e5).toPrecision(6))} bar at \`${block.spec.outlets[k]}\`, and only a compressor raises pressure: check the pressures, or add a compressor`);
+        break;
+      }
+    }
+  }
+  if (!rt.energy) {
+    const miss = missingEnergyKeys(rt.model.components);
+    out.push(`no energy balance: ${describeMissing(miss)} ${miss.length > 1 ? 'have' : 'has'} no thermal data; add the keys to ${miss.length > 1 ? 'those components' : 'that component'} under \`components:\` to get enthalpies, duties and the energy balance`);
+    return out;
+  }
+  const z = new Float64Array(rt.n);
+  for (const name of rt.streamOrder) {
+    const s = rt.streams.get(name)!;
+    let F = 0;
+    for (let i = 0; i < rt.n; i++) F += s.flows[i];
+    if (!(F > 0) || !Number.isFinite(s.T)) continue;
+    for (let i = 0; i < rt.n; i++) z[i] = s.flows[i] / F;
+    const ids = outsideRangeIds(rt.model.components, s.T, z);
+    if (ids.length) out.push(`stream \`${name}\` at ${Number(s.T.toPrecision(5))} K is outside the range of the heat-capacity correlation of ${ids.join(', ')}: its enthalpy is extrapolated`);
+  }
+  return out;
 }

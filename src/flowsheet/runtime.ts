@@ -10,6 +10,7 @@
 import { feed as FEED, type FeedResult } from '../blocks/feed.js';
 import { BLOCKS } from '../blocks/registry.js';
 import { newStream, type BlockRuntime, type Stream } from '../blocks/types.js';
+import { equilibriumEnthalpy, hasEnergyData } from '../blocks/energy.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import { makeEos } from '../thermo/eos.js';
 import type { Eos } from '../thermo/types.js';
@@ -52,8 +53,10 @@ export interface Runtime {
   readonly tearStreams: Stream[];
   /** Tear streams as their makers compute them in a pass (read by readTears; the streams reported). */
   readonly tearOutputs: Stream[];
-  /** Unknowns per tear stream: n flows, then T and P. */
+  /** Unknowns per tear stream: n flows, then T and P, then (energy on) the molar enthalpy h. */
   readonly perTear: number;
+  /** Whether the energy balance is on: every component has cp and hf. */
+  readonly energy: boolean;
   /** Runs all blocks in order with the tear streams as they are; returns the conditions met (a reused array). */
   pass(): readonly Condition[];
   /** Switches to another model, rebuilding only what differs. */
@@ -76,6 +79,7 @@ class FlowsheetRuntime implements Runtime {
   tearStreams: Stream[] = [];
   tearOutputs: Stream[] = [];
   perTear = 2;
+  energy = false;
   private readonly conditions: Condition[] = [];
   private fixedEos: Eos | undefined;
 
@@ -105,7 +109,7 @@ class FlowsheetRuntime implements Runtime {
       return;
     }
     this.model = model;
-    const ctx = { model, eos: this.eos };
+    const ctx = { model, eos: this.eos, energy: this.energy };
     model.feeds.forEach((f, k) => {
       if (f === cur.feeds[k]) return;
       this.feeds[k] = this.feedResult(f);
@@ -122,7 +126,7 @@ class FlowsheetRuntime implements Runtime {
   }
 
   private feedResult(f: FeedSpec): FeedResult {
-    return FEED.result(FEED.build(f, { model: this.model, eos: this.eos }));
+    return FEED.result(FEED.build(f, { model: this.model, eos: this.eos, energy: this.energy }));
   }
 
   private setFeedStream(f: FeedResult): void {
@@ -131,13 +135,21 @@ class FlowsheetRuntime implements Runtime {
     s.T = f.T;
     s.P = f.P;
     s.vf = f.phase === 'vapor' ? 1 : f.phase === 'liquid' ? 0 : Number.NaN;
+    s.h = Number.NaN;
+    if (this.energy) {
+      // The feed's enthalpy at its own T and P, in its equilibrium state (the taker's inlet).
+      const e = equilibriumEnthalpy(this.eos, f.T, f.P, f.flows);
+      s.h = Number.isFinite(e.h) ? e.h : 0;
+      if (f.phase === 'two-phase') s.vf = e.vf;
+    }
   }
 
   private rebuild(model: Model): void {
     this.model = model;
     const n = model.ids.length;
     this.n = n;
-    this.perTear = n + 2;
+    this.energy = hasEnergyData(model.components);
+    this.perTear = n + 2 + (this.energy ? 1 : 0);
     this.eos = this.fixedEos ?? makeEos(model.thermo.eos, model.components, model.thermo.kij);
     this.streams = new Map();
     this.streamOrder = [];
@@ -151,7 +163,7 @@ class FlowsheetRuntime implements Runtime {
     }
     this.blocks = [];
     this.byName = new Map();
-    const ctx = { model, eos: this.eos };
+    const ctx = { model, eos: this.eos, energy: this.energy };
     for (const u of model.units) {
       const b = BLOCKS[u.type].build(u, ctx);
       this.blocks.push(b);

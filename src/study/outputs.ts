@@ -1,6 +1,7 @@
 /**
  * Outputs addressed by path, read from a solved flowsheet:
- *   streams.NAME.flows.ID | streams.NAME.fractions.ID | streams.NAME.{total,T,P,vapor-fraction,mass-flow}
+ *   streams.NAME.flows.ID | streams.NAME.fractions.ID |
+ *   streams.NAME.{total,T,P,vapor-fraction,mass-flow,enthalpy,molar-enthalpy} (enthalpy: W)
  *   loop.recycle-ratio | loop.fresh-feed | loop.conversion.ID (overall; ID a key component)
  *   feeds.NAME.PATH and UNIT.PATH: what the block declares (BlockDef.outputs), e.g.
  *   UNIT.conversion.ID, UNIT.extent.K, UNIT.vapor-fraction, feeds.NAME.{molar-flow,Z,ideal-error}
@@ -25,12 +26,14 @@ export interface OutputRef {
   read(r: FlowsheetResult): number;
 }
 
-const STREAM_FIELDS: Record<string, [Dimension | 'dimensionless', (s: { total: number; T: number; P: number; vaporFraction: number; massFlow: number }) => number]> = {
+const STREAM_FIELDS: Record<string, [Dimension | 'dimensionless', (s: { total: number; T: number; P: number; vaporFraction: number; massFlow: number; h: number; enthalpy: number }) => number]> = {
   total: ['molarFlow', (s) => s.total],
   T: ['temperature', (s) => s.T],
   P: ['pressure', (s) => s.P],
   'vapor-fraction': ['dimensionless', (s) => s.vaporFraction],
   'mass-flow': ['massFlow', (s) => s.massFlow],
+  enthalpy: ['power', (s) => s.enthalpy],
+  'molar-enthalpy': ['molarEnergy', (s) => s.h],
 };
 
 /** The paths a unit or feed offers, as full paths. */
@@ -80,7 +83,7 @@ export function parseOutput(text: string, model: Model): OutputRef {
       dimension = d;
       read = (r) => f(r.streams.get(name)!);
     } else {
-      throw err(`output \`${path}\`: a stream offers flows.ID, fractions.ID, total, T, P, vapor-fraction and mass-flow`, `for example \`streams.${name}.flows.${model.ids[0]}\``);
+      throw err(`output \`${path}\`: a stream offers flows.ID, fractions.ID, total, T, P, vapor-fraction, mass-flow, enthalpy (W) and molar-enthalpy (J/mol)`, `for example \`streams.${name}.flows.${model.ids[0]}\``);
     }
   } else if (p[0] === 'loop') {
     const keys = loopKeys(model);

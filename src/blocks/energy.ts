@@ -1,0 +1,288 @@
+/**
+ * The energy side of the blocks: the state of an outlet at a set T and P (isothermal flash and
+ * molar enthalpy) or at a set P and molar enthalpy (PH flash), and the enthalpy flow of inlets.
+ * One `OutletState` per outlet (or per unit) keeps the warm start of its flashes: the last
+ * K-values and temperature, which is what keeps a PH flash inside a loop near the cost of one
+ * isothermal flash (src/thermo/flash-ph.ts).
+ *
+ * Molar enthalpies are on the formation basis of src/thermo/enthalpy.ts (elements at 298.15 K
+ * and 1 bar), so a reactor's heat of reaction is in the enthalpies themselves and a duty is
+ * simply (enthalpy flow out) - (enthalpy flow in).
+ *
+ * A stream's enthalpy is set by the block that makes it, from its own state: the isothermal
+ * flash of an outlet at a set T, or the enthalpy balance (then T comes from a PH flash). Where a
+ * PH flash leaves a residual (below its tolerance, 1e-10 R T here), the outlet keeps the
+ * balance's enthalpy, not the flash's, so that the energy balance closes to rounding and the
+ * temperature carries the flash's tolerance.
+ */
+import type { EvaluationFailure } from '../solve/types.js';
+import { newPhaseProperties, phasePropertiesInto, type PhaseProperties } from '../thermo/enthalpy.js';
+import { flashTP } from '../thermo/flash.js';
+import { flashPH, flashPS } from '../thermo/flash-ph.js';
+import { outsideRange } from '../thermo/ideal-gas.js';
+import type { ComponentData, Eos, RootChoice } from '../thermo/types.js';
+import type { Stream } from './types.js';
+
+/** Tolerance of the PH and PS flashes run by blocks, on |H - H_spec| / (R T). */
+export const STATE_TOL = 1e-10;
+
+/** Whether every component has cp and hf (the energy balance can be on). */
+export function hasEnergyData(components: readonly ComponentData[]): boolean {
+  return components.every((c) => c.cp !== undefined && c.cp.pieces.length > 0 && c.hf !== undefined && Number.isFinite(c.hf));
+}
+
+/** Components that lack cp or hf (or gf when entropy is asked), with the keys to add. */
+export function missingEnergyKeys(components: readonly ComponentData[], entropy = false): { id: string; keys: string[] }[] {
+  const out: { id: string; keys: string[] }[] = [];
+  for (const c of components) {
+    const keys: string[] = [];
+    if (c.cp === undefined || c.cp.pieces.length === 0) keys.push('cp');
+    if (c.hf === undefined || !Number.isFinite(c.hf)) keys.push('hf');
+    if (entropy && (c.gf === undefined || !Number.isFinite(c.gf))) keys.push('gf');
+    if (keys.length) out.push({ id: c.id, keys });
+  }
+  return out;
+}
+
+/** "X1 (cp, hf), X2 (hf)" for messages. */
+export function describeMissing(m: { id: string; keys: string[] }[]): string {
+  return m.map((x) => `\`${x.id}\` (${x.keys.map((k) => `\`${k}:\``).join(', ')})`).join(', ');
+}
+
+/** Total molar flow of a stream, mol/s. */
+export function totalFlow(s: Stream): number {
+  let t = 0;
+  const f = s.flows;
+  for (let i = 0; i < f.length; i++) t += f[i];
+  return t;
+}
+
+/** Enthalpy flow of the inlets, W (streams with no flow count zero, whatever their h). */
+export function enthalpyIn(ins: readonly Stream[]): number {
+  let H = 0;
+  for (const s of ins) {
+    const F = totalFlow(s);
+    if (F > 0) H += F * s.h;
+  }
+  return H;
+}
+
+const phaseScratch = new WeakMap<Eos, PhaseProperties>();
+
+/** Molar enthalpy of one phase of composition x at T, P (data present: the caller checked). */
+export function phaseH(eos: Eos, T: number, P: number, x: ArrayLike<number>, root: RootChoice = 'stable'): number {
+  let p = phaseScratch.get(eos);
+  if (!p) {
+    p = newPhaseProperties();
+    phaseScratch.set(eos, p);
+  }
+  return phasePropertiesInto(eos, T, P, x, root, false, p).H;
+}
+
+/** Molar entropy of one phase of composition x at T, P (cp, hf and gf present). */
+export function phaseS(eos: Eos, T: number, P: number, x: ArrayLike<number>, root: RootChoice = 'stable'): number {
+  let p = phaseScratch.get(eos);
+  if (!p) {
+    p = newPhaseProperties();
+    phaseScratch.set(eos, p);
+  }
+  return phasePropertiesInto(eos, T, P, x, root, true, p).S;
+}
+
+/** The state an OutletState found: the split and the molar enthalpies. */
+export interface StateFound {
+  T: number;
+  P: number;
+  phase: 'two-phase' | 'vapor' | 'liquid';
+  /** Vapour mole fraction. */
+  beta: number;
+  /** Liquid and vapour compositions (the feed when single phase). */
+  x: Float64Array;
+  y: Float64Array;
+  /** Molar enthalpy of the whole stream, J/mol. */
+  h: number;
+  /** Of the vapour and liquid parts (NaN where the part is absent). */
+  hV: number;
+  hL: number;
+  /** Isothermal flashes the last call ran. */
+  flashes: number;
+  /** Two liquids and no vapour (the flash's liquid-liquid split). */
+  liquidLiquid: boolean;
+}
+
+/**
+ * The state of one outlet (or one unit's mixed contents), with its warm start. `z` is filled by
+ * the caller or by `setFlows`.
+ */
+export class OutletState {
+  readonly z: Float64Array;
+  private K0: Float64Array | undefined;
+  private lastT = Number.NaN;
+  readonly found: StateFound;
+
+  constructor(private readonly eos: Eos, private readonly unit: string) {
+    const n = eos.n;
+    this.z = new Float64Array(n);
+    this.found = { T: NaN, P: NaN, phase: 'vapor', beta: 1, x: new Float64Array(n), y: new Float64Array(n), h: NaN, hV: NaN, hL: NaN, flashes: 0, liquidLiquid: false };
+  }
+
+  reset(): void {
+    this.K0 = undefined;
+    this.lastT = Number.NaN;
+  }
+
+  /** Sets z from component flows; returns the total (0: z is left as it was). */
+  setFlows(flows: ArrayLike<number>): number {
+    let F = 0;
+    for (let i = 0; i < flows.length; i++) F += flows[i];
+    if (F > 0) for (let i = 0; i < flows.length; i++) this.z[i] = flows[i] / F;
+    return F;
+  }
+
+  /** Last temperature found (NaN before the first). */
+  get T(): number {
+    return this.lastT;
+  }
+
+  /**
+   * Equilibrium state at T, P (isothermal flash, warm-started) and its enthalpies. Returns a
+   * not-converged condition when the flash does not converge (the state is then the last
+   * iterate's).
+   */
+  atTP(T: number, P: number, withH: boolean): EvaluationFailure | null {
+    const r = flashTP(this.eos, T, P, this.z, { K0: this.K0 });
+    const f = this.found;
+    f.T = T;
+    f.P = P;
+    f.phase = r.phase;
+    f.beta = r.beta;
+    f.x.set(r.x);
+    f.y.set(r.y);
+    f.flashes = 1;
+    f.liquidLiquid = r.liquidLiquid === true;
+    if (r.phase === 'two-phase') this.K0 = Float64Array.from(r.K);
+    this.lastT = T;
+    if (withH) this.enthalpies();
+    else f.h = f.hV = f.hL = NaN;
+    if (r.status !== 'converged') {
+      return {
+        kind: 'not-converged',
+        unit: this.unit,
+        message: `the isothermal flash in \`${this.unit}\` did not converge (${r.iterations} iterations, fugacity residual ${r.residual.toExponential(2)})`,
+        help: 'check T and P against the mixture; a point near the mixture critical point is hard',
+      };
+    }
+    return null;
+  }
+
+  /**
+   * State at P with molar enthalpy h (PH flash from the last T, or T0). The enthalpy kept is h
+   * itself (see the module comment). Returns a not-converged condition naming the unit when no
+   * state is found.
+   */
+  atPH(P: number, h: number, T0: number): EvaluationFailure | null {
+    if (!Number.isFinite(h) || !(P > 0) || P === Infinity) {
+      return { kind: 'not-converged', unit: this.unit, message: `\`${this.unit}\`: no state can be found from an enthalpy of ${h} J/mol at ${P} Pa`, help: 'the iteration left the physical range: try --method direct' };
+    }
+    const start = Number.isFinite(this.lastT) ? this.lastT : Number.isFinite(T0) && T0 > 0 ? T0 : undefined;
+    const r = flashPH(this.eos, P, h, this.z, { T0: start, K0: this.K0, tol: STATE_TOL });
+    const f = this.found;
+    if (r.status === 'invalid') {
+      return { kind: 'invalid', unit: this.unit, message: `\`${this.unit}\`: ${r.message}`, help: 'add `cp:` and `hf:` to those components under `components:`' };
+    }
+    f.T = r.T;
+    f.P = P;
+    f.phase = r.phase;
+    f.beta = r.beta;
+    f.x.set(r.x);
+    f.y.set(r.y);
+    f.flashes = r.flashes;
+    f.liquidLiquid = false;
+    if (r.phase === 'two-phase') this.K0 = Float64Array.from(r.K);
+    this.enthalpies();
+    // keep the balance's enthalpy: spread the flash's residual over the phases
+    const d = h - f.h;
+    f.h = h;
+    if (Number.isFinite(f.hV)) f.hV += d;
+    if (Number.isFinite(f.hL)) f.hL += d;
+    if (r.status !== 'converged') {
+      return {
+        kind: 'not-converged',
+        unit: this.unit,
+        message: `\`${this.unit}\`: no state at ${fmt(P / 1e5)} bar has the enthalpy the energy balance asks for (${fmt(h / 1000)} kJ/mol): ${r.message ?? 'the PH flash did not converge'}`,
+        help: 'check the duty (or the adiabatic option) against the inlet: a duty that would heat or cool the stream beyond the range of the heat-capacity data has no state',
+      };
+    }
+    this.lastT = r.T;
+    return null;
+  }
+
+  /** Molar entropy of the state last found (both phases), J/(mol K). */
+  entropy(): number {
+    const f = this.found;
+    if (f.phase !== 'two-phase') return phaseS(this.eos, f.T, f.P, this.z);
+    return f.beta * phaseS(this.eos, f.T, f.P, f.y) + (1 - f.beta) * phaseS(this.eos, f.T, f.P, f.x);
+  }
+
+  /** State at P with molar entropy s (PS flash). */
+  atPS(P: number, s: number, T0: number): { failure: EvaluationFailure | null; T: number; h: number } {
+    const r = flashPS(this.eos, P, s, this.z, { T0, tol: STATE_TOL });
+    if (r.status === 'invalid') {
+      return { failure: { kind: 'invalid', unit: this.unit, message: `\`${this.unit}\`: ${r.message}`, help: 'add `cp:`, `hf:` and `gf:` to those components under `components:`' }, T: NaN, h: NaN };
+    }
+    if (r.status !== 'converged') {
+      return {
+        failure: { kind: 'not-converged', unit: this.unit, message: `\`${this.unit}\`: no state at ${fmt(P / 1e5)} bar has the inlet's entropy: ${r.message ?? 'the PS flash did not converge'}`, help: 'check the outlet pressure' },
+        T: r.T, h: r.H,
+      };
+    }
+    return { failure: null, T: r.T, h: r.H };
+  }
+
+  private enthalpies(): void {
+    const f = this.found;
+    const eos = this.eos;
+    if (f.phase === 'two-phase') {
+      f.hV = phaseH(eos, f.T, f.P, f.y);
+      f.hL = phaseH(eos, f.T, f.P, f.x);
+      f.h = f.beta * f.hV + (1 - f.beta) * f.hL;
+    } else {
+      f.h = phaseH(eos, f.T, f.P, this.z);
+      f.hV = f.phase === 'vapor' ? f.h : NaN;
+      f.hL = f.phase === 'liquid' ? f.h : NaN;
+    }
+  }
+}
+
+/** Components present in z whose heat-capacity correlation does not cover T. */
+export function outsideRangeIds(components: readonly ComponentData[], T: number, z: ArrayLike<number>): string[] {
+  const out: string[] = [];
+  for (let i = 0; i < components.length; i++) if (z[i] > 0 && components[i].cp && outsideRange(components[i], T)) out.push(components[i].id);
+  return out;
+}
+
+/** Fills an outlet from a state found for the whole stream (one outlet: vf and h of the mixture). */
+export function setFromState(o: Stream, s: StateFound, energy: boolean): void {
+  o.T = s.T;
+  o.P = s.P;
+  o.vf = s.phase === 'two-phase' ? s.beta : s.phase === 'vapor' ? 1 : 0;
+  o.h = energy ? s.h : Number.NaN;
+}
+
+/** A duty or power figure for a unit's summary. */
+export function powerFigure(key: 'duty' | 'power', label: string, value: number): { label: string; value: number; kind: 'power'; key: string } {
+  return { label, value, kind: 'power', key };
+}
+
+function fmt(v: number): string {
+  return Number(v.toPrecision(6)).toString();
+}
+
+/** Molar enthalpy of a stream at T, P in its equilibrium state (a feed), J/mol; NaN with no flow. */
+export function equilibriumEnthalpy(eos: Eos, T: number, P: number, flows: ArrayLike<number>): { h: number; vf: number; converged: boolean } {
+  const st = new OutletState(eos, 'feed');
+  if (!(st.setFlows(flows) > 0)) return { h: Number.NaN, vf: Number.NaN, converged: true };
+  const fail = st.atTP(T, P, true);
+  const f = st.found;
+  return { h: f.h, vf: f.phase === 'two-phase' ? f.beta : f.phase === 'vapor' ? 1 : 0, converged: fail === null };
+}
