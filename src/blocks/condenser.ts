@@ -131,6 +131,8 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
       }
       v.vf = 1;
       l.vf = 0;
+      v.hRule = spec.model === 'split' ? 'vapor' : 'stable';
+      l.hRule = spec.model === 'split' ? 'liquid' : 'stable';
       if (!(F > 0)) {
         v.flows.fill(0);
         l.flows.fill(0);

@@ -12,8 +12,10 @@
  * A stream's enthalpy is set by the block that makes it, from its own state: the isothermal
  * flash of an outlet at a set T, or the enthalpy balance (then T comes from a PH flash). Where a
  * PH flash leaves a residual (below its tolerance, 1e-10 R T here), the outlet keeps the
- * balance's enthalpy, not the flash's, so that the energy balance closes to rounding and the
- * temperature carries the flash's tolerance.
+ * balance's enthalpy, not the flash's, so that the unit's balance closes to rounding and the
+ * temperature carries the flash's tolerance. The maker also says how h follows from T, P and
+ * the flows (Stream.hRule); the taker of a tear stream, which iterates on flows, T and P only,
+ * gets h back by that rule (`enthalpyByRule`).
  */
 import type { EvaluationFailure } from '../solve/types.js';
 import { newPhaseProperties, phasePropertiesInto, type PhaseProperties } from '../thermo/enthalpy.js';
@@ -21,20 +23,30 @@ import { flashTP } from '../thermo/flash.js';
 import { flashPH, flashPS } from '../thermo/flash-ph.js';
 import { outsideRange } from '../thermo/ideal-gas.js';
 import type { ComponentData, Eos, RootChoice } from '../thermo/types.js';
-import type { Stream } from './types.js';
+import type { EnthalpyRule, Stream } from './types.js';
 
 /** Tolerance of the PH and PS flashes run by blocks, on |H - H_spec| / (R T). */
 export const STATE_TOL = 1e-10;
 
+/**
+ * A component whose definition failed stays in the file's list as a placeholder (molar mass
+ * NaN; its problem is reported already): the energy checks pass over it rather than report it
+ * twice.
+ */
+function placeholder(c: ComponentData): boolean {
+  return !Number.isFinite(c.MW);
+}
+
 /** Whether every component has cp and hf (the energy balance can be on). */
 export function hasEnergyData(components: readonly ComponentData[]): boolean {
-  return components.every((c) => c.cp !== undefined && c.cp.pieces.length > 0 && c.hf !== undefined && Number.isFinite(c.hf));
+  return components.every((c) => placeholder(c) || (c.cp !== undefined && c.cp.pieces.length > 0 && c.hf !== undefined && Number.isFinite(c.hf)));
 }
 
 /** Components that lack cp or hf (or gf when entropy is asked), with the keys to add. */
 export function missingEnergyKeys(components: readonly ComponentData[], entropy = false): { id: string; keys: string[] }[] {
   const out: { id: string; keys: string[] }[] = [];
   for (const c of components) {
+    if (placeholder(c)) continue;
     const keys: string[] = [];
     if (c.cp === undefined || c.cp.pieces.length === 0) keys.push('cp');
     if (c.hf === undefined || !Number.isFinite(c.hf)) keys.push('hf');
@@ -77,6 +89,17 @@ export function phaseH(eos: Eos, T: number, P: number, x: ArrayLike<number>, roo
     phaseScratch.set(eos, p);
   }
   return phasePropertiesInto(eos, T, P, x, root, false, p).H;
+}
+
+/** Molar enthalpy and the root taken, of one phase of composition x at T, P (data present). */
+export function phaseRoot(eos: Eos, T: number, P: number, x: ArrayLike<number>, root: RootChoice): { H: number; root: 'vapor' | 'liquid' } {
+  let p = phaseScratch.get(eos);
+  if (!p) {
+    p = newPhaseProperties();
+    phaseScratch.set(eos, p);
+  }
+  phasePropertiesInto(eos, T, P, x, root, false, p);
+  return { H: p.H, root: p.root };
 }
 
 /** Molar entropy of one phase of composition x at T, P (cp, hf and gf present). */
@@ -267,6 +290,19 @@ export function setFromState(o: Stream, s: StateFound, energy: boolean): void {
   o.P = s.P;
   o.vf = s.phase === 'two-phase' ? s.beta : s.phase === 'vapor' ? 1 : 0;
   o.h = energy ? s.h : Number.NaN;
+  o.hRule = 'flash';
+}
+
+/**
+ * The molar enthalpy of a stream from its flows, T and P by a maker's rule (a tear guess): the
+ * equilibrium state (isothermal flash, warm-started by `state`) or one phase on a root. NaN
+ * with no flow.
+ */
+export function enthalpyByRule(eos: Eos, s: Stream, rule: EnthalpyRule, state: OutletState): number {
+  if (!(state.setFlows(s.flows) > 0) || !(s.T > 0) || !(s.P > 0) || !Number.isFinite(s.T) || !Number.isFinite(s.P)) return Number.NaN;
+  if (rule !== 'flash') return phaseH(eos, s.T, s.P, state.z, rule);
+  state.atTP(s.T, s.P, true);
+  return state.found.h;
 }
 
 /** A duty or power figure for a unit's summary. */

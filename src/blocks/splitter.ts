@@ -68,6 +68,7 @@ export const splitter: BlockDef<SplitterSpec> = {
           o.P = s.P;
           o.vf = s.vf;
           o.h = s.h;
+          o.hRule = s.hRule;
         }
         return null;
       },

@@ -26,10 +26,19 @@ export interface Stream {
    * file's components lack the data (the energy balance is then off for the whole file).
    */
   h: number;
+  /**
+   * How h follows from T, P and the flows, so that a tear guess (which carries flows, T and P
+   * only) gets its enthalpy back exactly as the maker made it: 'flash' (the equilibrium state
+   * at T and P), or one phase on the named root with no flash (a condenser's outlets, whose
+   * phases the split decides).
+   */
+  hRule: EnthalpyRule;
 }
 
+export type EnthalpyRule = 'flash' | 'stable' | 'vapor' | 'liquid';
+
 export function newStream(n: number): Stream {
-  return { flows: new Float64Array(n), T: Number.NaN, P: Number.NaN, vf: Number.NaN, h: Number.NaN };
+  return { flows: new Float64Array(n), T: Number.NaN, P: Number.NaN, vf: Number.NaN, h: Number.NaN, hRule: 'flash' };
 }
 
 export interface BuildContext {

@@ -4,13 +4,19 @@
  * component has thermal data, the energy balance overall and per unit:
  *
  *   closure = (H_in + duty + power - H_out) / scale,
- *   scale = max(sum |H| of the streams in, sum |H| of the streams out, sum |duty| + |power|)
+ *   scale = max(sum |H| of the streams in, sum |H| of the streams out, sum |duty| + |power|,
+ *               sum F R T of the streams in)
  *
+ * The last term is the size to which an enthalpy is known: the flashes that find a temperature
+ * from an enthalpy stop at a fraction of R T (src/thermo/flash-ph.ts), and on the formation
+ * basis a stream of hydrogen near 298 K has an enthalpy near zero, which alone would make the
+ * relative closure of such a loop a test of rounding.
  * with H the enthalpy flows (W, formation basis) of the feeds and products (overall) or of the
  * unit's inlets and outlets (per unit). A unit's inlets are read as their makers left them, not
  * as the tear guesses the unit read, so that the per-unit closures also show what is left of
  * the tear iteration.
  */
+import { R } from '../thermo/constants.js';
 import type { Runtime } from './runtime.js';
 
 export interface ComponentBalance {
@@ -55,10 +61,16 @@ function flowOf(s: { flows: Float64Array }): number {
   return t;
 }
 
-function energyClosure(hin: number, hinAbs: number, hout: number, houtAbs: number, duty: number, power: number): EnergyBalance {
-  const scale = Math.max(hinAbs, houtAbs, Math.abs(duty) + Math.abs(power), TINY);
+function energyClosure(hin: number, hinAbs: number, hout: number, houtAbs: number, duty: number, power: number, thermal: number): EnergyBalance {
+  const scale = Math.max(hinAbs, houtAbs, Math.abs(duty) + Math.abs(power), thermal, TINY);
   const c = hin + duty + power - hout;
   return { in: hin, out: hout, duty, power, closure: hin === 0 && hout === 0 && duty === 0 && power === 0 ? 0 : c / scale };
+}
+
+/** F R T of a stream, W (0 for no flow or no temperature). */
+function thermalScale(s: { flows: Float64Array; T: number }): number {
+  const F = flowOf(s);
+  return F > 0 && Number.isFinite(s.T) ? F * R * s.T : 0;
 }
 
 /** Enthalpy flow of a stream, W (0 for no flow). */
@@ -72,10 +84,13 @@ function computeEnergy(rt: Runtime): { overall: EnergyBalance; units: Record<str
   let hinAbs = 0;
   let hout = 0;
   let houtAbs = 0;
+  let thermal = 0;
   for (const f of rt.feeds) {
-    const H = enthalpyFlow(rt.streams.get(f.name)!);
+    const s = rt.streams.get(f.name)!;
+    const H = enthalpyFlow(s);
     hin += H;
     hinAbs += Math.abs(H);
+    thermal += thermalScale(s);
   }
   for (const p of rt.products) {
     const H = enthalpyFlow(rt.streams.get(p)!);
@@ -93,19 +108,22 @@ function computeEnergy(rt: Runtime): { overall: EnergyBalance; units: Record<str
     let aa = 0;
     let o = 0;
     let oa = 0;
+    let th = 0;
     for (const s of b.spec.inlets) {
-      const H = enthalpyFlow(rt.streams.get(s)!);
+      const st = rt.streams.get(s)!;
+      const H = enthalpyFlow(st);
       a += H;
       aa += Math.abs(H);
+      th += thermalScale(st);
     }
     for (const s of b.spec.outlets) {
       const H = enthalpyFlow(rt.streams.get(s)!);
       o += H;
       oa += Math.abs(H);
     }
-    units[b.spec.name] = energyClosure(a, aa, o, oa, e.duty, e.power);
+    units[b.spec.name] = energyClosure(a, aa, o, oa, e.duty, e.power, th);
   }
-  return { overall: energyClosure(hin, hinAbs, hout, houtAbs, duty, power), units };
+  return { overall: energyClosure(hin, hinAbs, hout, houtAbs, duty, power, thermal), units };
 }
 
 const TINY = 1e-300;

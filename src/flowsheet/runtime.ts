@@ -10,7 +10,7 @@
 import { feed as FEED, type FeedResult } from '../blocks/feed.js';
 import { BLOCKS } from '../blocks/registry.js';
 import { newStream, type BlockRuntime, type Stream } from '../blocks/types.js';
-import { equilibriumEnthalpy, hasEnergyData } from '../blocks/energy.js';
+import { enthalpyByRule, equilibriumEnthalpy, hasEnergyData, OutletState } from '../blocks/energy.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import { makeEos } from '../thermo/eos.js';
 import type { Eos } from '../thermo/types.js';
@@ -53,10 +53,17 @@ export interface Runtime {
   readonly tearStreams: Stream[];
   /** Tear streams as their makers compute them in a pass (read by readTears; the streams reported). */
   readonly tearOutputs: Stream[];
-  /** Unknowns per tear stream: n flows, then T and P, then (energy on) the molar enthalpy h. */
+  /** Unknowns per tear stream: n flows, then T and P. */
   readonly perTear: number;
   /** Whether the energy balance is on: every component has cp and hf. */
   readonly energy: boolean;
+  /**
+   * Sets the molar enthalpy of tear guess t from its flows, T and P, by the rule its maker
+   * last used (the taker's recomputation: h is no tear variable). No-op with the energy off.
+   */
+  tearEnthalpy(t: number): void;
+  /** Clears warm starts kept between passes (so that a solve does not depend on the previous one). */
+  resetWarmStarts(): void;
   /** Runs all blocks in order with the tear streams as they are; returns the conditions met (a reused array). */
   pass(): readonly Condition[];
   /** Switches to another model, rebuilding only what differs. */
@@ -80,6 +87,7 @@ class FlowsheetRuntime implements Runtime {
   tearOutputs: Stream[] = [];
   perTear = 2;
   energy = false;
+  private tearStates: OutletState[] = [];
   private readonly conditions: Condition[] = [];
   private fixedEos: Eos | undefined;
 
@@ -98,6 +106,21 @@ class FlowsheetRuntime implements Runtime {
       if (f !== null) c.push({ unit: s.block.spec.name, failure: f });
     }
     return c;
+  }
+
+  tearEnthalpy(t: number): void {
+    if (!this.energy) return;
+    const g = this.tearStreams[t];
+    const rule = this.tearOutputs[t].hRule;
+    g.hRule = rule;
+    const h = enthalpyByRule(this.eos, g, rule, this.tearStates[t]);
+    // no flow: the guess carries no enthalpy (0 keeps it finite)
+    g.h = Number.isFinite(h) ? h : 0;
+  }
+
+  resetWarmStarts(): void {
+    for (const s of this.tearStates) s.reset();
+    for (const b of this.blocks) b.reset?.();
   }
 
   load(model: Model): void {
@@ -149,7 +172,7 @@ class FlowsheetRuntime implements Runtime {
     const n = model.ids.length;
     this.n = n;
     this.energy = hasEnergyData(model.components);
-    this.perTear = n + 2 + (this.energy ? 1 : 0);
+    this.perTear = n + 2;
     this.eos = this.fixedEos ?? makeEos(model.thermo.eos, model.components, model.thermo.kij);
     this.streams = new Map();
     this.streamOrder = [];
@@ -187,6 +210,7 @@ class FlowsheetRuntime implements Runtime {
     this.recycles = findRecycles(model.units, this.plan);
     this.tearStreams = this.plan.tears.map((t) => guesses.get(t)!);
     this.tearOutputs = this.plan.tears.map((t) => this.streams.get(t)!);
+    this.tearStates = this.plan.tears.map((t) => new OutletState(this.eos, t));
   }
 }
 

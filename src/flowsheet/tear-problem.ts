@@ -1,10 +1,9 @@
 /**
  * The tear streams of a runtime as the unknowns of a fixed-point problem x = g(x): each tear's
- * component flows, then T and P, then (when the energy balance is on) its molar enthalpy h;
- * one pass of the calculation order per evaluation. h is a tear variable of its own, so that the
- * taker of a tear reads exactly the enthalpy its maker computed (no flash of the guess, and a
- * split-model condenser's outlets keep the phases the block gave them): at convergence the
- * energy balance closes to the tear tolerance, as the material balance does.
+ * component flows, then T and P; one pass of the calculation order per evaluation. With the
+ * energy balance on, a guess's molar enthalpy is no unknown of its own: the taker gets it back
+ * from the guess's flows, T and P by the rule the maker used (Runtime.tearEnthalpy), so that at
+ * convergence it equals what the maker computed, to the tolerance of one flash.
  */
 import type { FixedPointProblem } from '../solve/types.js';
 import { tearStructure } from './jacobian-structure.js';
@@ -18,7 +17,7 @@ export function setTears(rt: Runtime, x: Float64Array): void {
     for (let i = 0; i < n; i++) s.flows[i] = x[t * m + i];
     s.T = x[t * m + n];
     s.P = x[t * m + n + 1];
-    if (rt.energy) s.h = x[t * m + n + 2];
+    rt.tearEnthalpy(t);
   }
 }
 
@@ -30,7 +29,6 @@ export function readTears(rt: Runtime, out: Float64Array): void {
     for (let i = 0; i < n; i++) out[t * m + i] = s.flows[i];
     out[t * m + n] = s.T;
     out[t * m + n + 1] = s.P;
-    if (rt.energy) out[t * m + n + 2] = s.h;
   }
 }
 
@@ -48,10 +46,6 @@ export function coldStart(rt: Runtime): Float64Array {
   for (let t = 0; t < rt.tearStreams.length; t++) {
     x[t * m + n] = rt.feeds[0]?.T ?? 298.15;
     x[t * m + n + 1] = rt.feeds[0]?.P ?? 101325;
-    if (rt.energy) {
-      const h = rt.feeds.length ? rt.streams.get(rt.feeds[0].name)!.h : 0;
-      x[t * m + n + 2] = Number.isFinite(h) ? h : 0;
-    }
   }
   return x;
 }
@@ -76,13 +70,6 @@ export function tearProblem(rt: Runtime, x0: Float64Array, feedTotal: number): F
     atol[t * m + n] = 1e-9;
     atol[t * m + n + 1] = 1e-6;
     names.push(`${rt.plan.tears[t]}.T`, `${rt.plan.tears[t]}.P`);
-    if (rt.energy) {
-      // h may have either sign (formation basis): no bound; a floor of 1e-7 J/mol (about
-      // 3e-9 K of a gas's heat capacity), below what the energy closure needs.
-      lower[t * m + n + 2] = -Infinity;
-      atol[t * m + n + 2] = 1e-7;
-      names.push(`${rt.plan.tears[t]}.h`);
-    }
   }
   return {
     n: N,
