@@ -50,7 +50,11 @@ export const compressor: BlockDef<CompressorSpec> = {
     const inlet = f.stream('in', { required: true });
     const out = f.stream('out', { required: true });
     const P = f.quantity('P', 'pressure', { above: 0, example: '150 bar' });
-    const ratio = f.number('ratio', { min: 1, example: '1.08' });
+    let ratio = f.number('ratio', { above: 0, example: '1.08' });
+    if (ratio !== undefined && ratio < 1) {
+      f.error('ratio', `compressor \`${name}\`: \`ratio: ${ratio}\` puts the outlet pressure below the inlet's; a compressor raises the pressure`, 'give a ratio of 1 or more, or let the pressure down with a `valve`');
+      ratio = undefined;
+    }
     const isentropic = f.number('isentropic-efficiency', { above: 0, max: 1, example: '0.75' });
     const polytropic = f.number('polytropic-efficiency', { above: 0, max: 1, example: '0.78' });
     let ok = true;

@@ -11,7 +11,7 @@
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import type { BlockDef, BlockRuntime, BuildContext, Stream, UnitFigure, UnitSummary } from './types.js';
-import { enthalpyIn, hasEnergyData, OutletState, phaseH, powerFigure } from './energy.js';
+import { checkCorrelationRange, enthalpyIn, hasEnergyData, OutletState, phaseH, powerFigure } from './energy.js';
 import { pressureBelowZero, readEnergyMode } from './reactor.js';
 
 export interface CondenserSpec extends UnitSpecBase {
@@ -41,7 +41,7 @@ function makeDef(type: 'condenser' | 'flash'): BlockDef<CondenserSpec> {
       const T = f.quantity('T', 'temperature', { required: !found && !f.has('duty'), above: 0, example: '40 degC' });
       const P = f.quantity('P', 'pressure', { required: !f.has('dp'), above: 0, example: '29 barg' });
       const model = (f.string('model', { oneOf: ['equilibrium', 'split'] }) ?? 'equilibrium') as CondenserSpec['model'];
-      if (!mode) return undefined;
+      if (!mode || !checkCorrelationRange(f, 'T', T, name)) return undefined;
       if (model === 'split' && found) {
         f.errorAtKey(mode.adiabatic ? 'adiabatic' : 'duty', `\`${name}\` with \`model: split\` needs a set \`T\`: a fixed split has no equilibrium to find a temperature from`, 'give `T:` (the duty is reported), or use `model: equilibrium`');
         return undefined;

@@ -17,6 +17,7 @@
  * the flows (Stream.hRule); the taker of a tear stream, which iterates on flows, T and P only,
  * gets h back by that rule (`enthalpyByRule`).
  */
+import type { FieldReader } from '../flowsheet/fields.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import { newPhaseProperties, phasePropertiesInto, type PhaseProperties } from '../thermo/enthalpy.js';
 import { flashTP } from '../thermo/flash.js';
@@ -321,4 +322,26 @@ export function equilibriumEnthalpy(eos: Eos, T: number, P: number, flows: Array
   const fail = st.atTP(T, P, true);
   const f = st.found;
   return { h: f.h, vf: f.phase === 'two-phase' ? f.beta : f.phase === 'vapor' ? 1 : 0, converged: fail === null };
+}
+
+/**
+ * Reports a set temperature far outside the heat-capacity correlation of a component of the
+ * file: below half its lowest or above 1.5 times its highest temperature of validity (the range
+ * the state flashes search, src/thermo/flash-ph.ts). Inside that band but outside the range
+ * itself, the result says so per stream instead (result.ts). Returns whether T is usable.
+ */
+export function checkCorrelationRange(f: FieldReader, key: string, T: number | undefined, unit: string): boolean {
+  if (T === undefined) return true;
+  for (const c of f.components) {
+    const p = c.cp?.pieces;
+    if (!p || p.length === 0 || !Number.isFinite(c.MW)) continue;
+    const lo = p[0].Tmin;
+    const hi = p[p.length - 1].Tmax;
+    if (T < 0.5 * lo || T > 1.5 * hi) {
+      f.error(key, `\`${key}\` of \`${unit}\` is ${Number(T.toPrecision(6))} K, far outside the range of the heat-capacity correlation of \`${c.id}\` (${lo} K to ${hi} K)`,
+        `an enthalpy is extrapolated at most to half the lowest and 1.5 times the highest temperature of a correlation; set a temperature inside that band, or give \`${c.id}\` a \`cp:\` that covers it`);
+      return false;
+    }
+  }
+  return true;
 }

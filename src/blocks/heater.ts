@@ -9,7 +9,7 @@ import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import type { BlockDef, Stream, UnitFigure, UnitSummary } from './types.js';
 import { combineInlets } from './combine.js';
-import { enthalpyIn, hasEnergyData, OutletState, powerFigure, setFromState } from './energy.js';
+import { checkCorrelationRange, enthalpyIn, hasEnergyData, OutletState, powerFigure, setFromState } from './energy.js';
 import { pressureBelowZero, readEnergyMode } from './reactor.js';
 
 export interface HeaterSpec extends UnitSpecBase {
@@ -33,7 +33,7 @@ function makeDef(type: 'heater' | 'cooler'): BlockDef<HeaterSpec> {
       const mode = readEnergyMode(name, f, type);
       const T = f.quantity('T', 'temperature', { above: 0, example: type === 'heater' ? '250 degC' : '40 degC' });
       const P = f.quantity('P', 'pressure', { above: 0, example: '29 barg' });
-      if (!mode) return undefined;
+      if (!mode || !checkCorrelationRange(f, 'T', T, name)) return undefined;
       if (!f.has('T') && !f.has('duty')) {
         f.error(null, `${type} \`${name}\` needs an outlet temperature \`T\` or a duty \`duty\``, `for example \`T: ${type === 'heater' ? '250 degC' : '40 degC'}\` (the duty is reported), or \`duty: ${type === 'heater' ? '' : '-'}1.5 MW\` (the temperature is found)`);
         return undefined;

@@ -21,7 +21,7 @@ import type { EvaluationFailure } from '../solve/types.js';
 import { hIG } from '../thermo/ideal-gas.js';
 import type { BlockDef, Stream, UnitFigure, UnitSummary } from './types.js';
 import { combineInlets } from './combine.js';
-import { describeMissing, enthalpyIn, hasEnergyData, missingEnergyKeys, OutletState, powerFigure, setFromState } from './energy.js';
+import { checkCorrelationRange, describeMissing, enthalpyIn, hasEnergyData, missingEnergyKeys, OutletState, powerFigure, setFromState } from './energy.js';
 
 export interface ReactionSpec {
   equation: string;
@@ -57,7 +57,7 @@ export const reactor: BlockDef<ReactorSpec> = {
     const T = f.quantity('T', 'temperature', { above: 0, example: '250 degC' });
     const P = f.quantity('P', 'pressure', { above: 0, example: '29 barg' });
     const energyOk = readEnergyMode(name, f, 'reactor');
-    if (!energyOk) return undefined;
+    if (!energyOk || !checkCorrelationRange(f, 'T', T, name)) return undefined;
     const { adiabatic, duty, dp } = energyOk;
     const sequence = f.boolean('sequence') ?? false;
     const items = f.items('reactions', { required: true });
