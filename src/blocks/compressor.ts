@@ -98,16 +98,22 @@ export const compressor: BlockDef<CompressorSpec> = {
       compute(ins: readonly Stream[], outs: Stream[]) {
         const s = ins[0];
         const o = outs[0];
+        // Until the outlet is found it is the inlet as it is (so that a unit that cannot run
+        // leaves a consistent state behind its condition).
         o.flows.set(s.flows);
         const P1 = s.P;
         const P2 = spec.P ?? P1 * spec.ratio!;
-        o.P = P2;
+        o.P = P1;
         o.T = s.T;
-        o.vf = 1;
+        o.vf = s.vf;
         o.h = s.h;
+        o.hRule = s.hRule;
         power = 0;
         const F = inState.setFlows(s.flows);
-        if (!(F > 0)) return null;
+        if (!(F > 0)) {
+          o.P = P2;
+          return null;
+        }
         if (P2 < P1 * (1 - 1e-12)) {
           return {
             kind: 'invalid', unit: spec.name,
