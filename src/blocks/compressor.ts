@@ -26,7 +26,7 @@
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import type { BlockDef, Stream, UnitFigure, UnitSummary } from './types.js';
-import { describeMissing, missingEnergyKeys, OutletState, powerFigure, setFromState } from './energy.js';
+import { describeMissing, missingEnergyKeys, OutletState, phaseH, phaseS, powerFigure, setFromState } from './energy.js';
 
 export interface CompressorSpec extends UnitSpecBase {
   type: 'compressor';
@@ -37,6 +37,9 @@ export interface CompressorSpec extends UnitSpecBase {
   isentropic?: number;
   polytropic?: number;
 }
+
+/** Liquid fraction up to which an inlet counts as a vapour at its dew point (flash rounding). */
+const DEW_POINT_LIQUID = 1e-6;
 
 /** Relative change of the outlet temperature that ends the polytropic iteration. */
 const POLY_TOL = 1e-9;
@@ -126,15 +129,19 @@ export const compressor: BlockDef<CompressorSpec> = {
         let fail = inState.atTP(s.T, P1, true);
         if (fail) return fail;
         const st = inState.found;
-        if (st.phase !== 'vapor') {
+        const beta = st.phase === 'vapor' ? 1 : st.phase === 'liquid' ? 0 : st.beta;
+        if (beta < 1 - DEW_POINT_LIQUID) {
           return {
             kind: 'invalid', unit: spec.name,
-            message: `the inlet of compressor \`${spec.name}\` is not all vapour: vapour fraction ${fmt(st.phase === 'liquid' ? 0 : st.beta)} at ${fmt(s.T - 273.15)} degC and ${fmt(P1 / 1e5)} bar; a compressor takes gas only`,
+            message: `the inlet of compressor \`${spec.name}\` is not all vapour: vapour fraction ${beta > 0.999 ? beta.toPrecision(9) : fmt(beta)} at ${fmt(s.T - 273.15)} degC and ${fmt(P1 / 1e5)} bar; a compressor takes gas only`,
             help: 'knock the liquid out upstream (a flash drum or condenser), or heat the inlet above its dew point',
           };
         }
-        const h1 = st.h;
-        const s1 = inState.entropy();
+        // A vapour at its dew point (the vapour of a condenser or drum) may flash to a trace of
+        // liquid at its own T and P: it is taken as the vapour it is.
+        const atDew = st.phase !== 'vapor';
+        const h1 = atDew ? phaseH(eos, s.T, P1, inState.z, 'vapor') : st.h;
+        const s1 = atDew ? phaseS(eos, s.T, P1, inState.z, 'vapor') : inState.entropy();
         let M = 0;
         for (let i = 0; i < n; i++) M += inState.z[i] * comps[i].MW;
         const iso = isState.atPS(P2, s1, s.T * Math.pow(P2 / P1, 0.25));

@@ -3,17 +3,17 @@
  * named outlet. One outlet may take the rest; a component not named for an outlet sends it
  * nothing (or, for the `rest` outlet, the remainder).
  *
- * Outlets at `T` and `P` when set, else at the inlet's. A separator with fixed recoveries is a
- * black box: no equilibrium decides its outlets' phases, so, with the energy balance on, each
- * outlet is taken as one phase on the stable root of the equation of state at its T and P (its
- * vapour fraction is 1 or 0 by that root), and the duty that the separation takes (the outlets'
- * enthalpy less the inlet's) is reported.
+ * Outlets at `T` and `P` when set, else at the inlet's. With the energy balance on, each outlet
+ * is flashed at its T and P (its own composition decides its phases; the separation itself is
+ * a black box), and the duty that the separation takes (the outlets' enthalpy less the
+ * inlet's) is reported. (Taking each outlet as one phase on the stable root would save the
+ * flashes, but its enthalpy jumps where the root changes, and a loop through it stalls.)
  */
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import type { BlockDef, Stream } from './types.js';
 import { editOutletFraction } from './outlet-edit.js';
-import { enthalpyIn, hasEnergyData, phaseRoot, powerFigure } from './energy.js';
+import { enthalpyIn, hasEnergyData, OutletState, powerFigure, setFromState } from './energy.js';
 
 export interface SeparatorSpec extends UnitSpecBase {
   type: 'separator';
@@ -73,14 +73,17 @@ export const separator: BlockDef<SeparatorSpec> = {
   },
   build(spec, ctx) {
     const energy = ctx.energy;
-    const z = new Float64Array(ctx.model.ids.length);
+    const states = spec.outlets.map(() => new OutletState(ctx.eos, spec.name));
     let duty = 0;
     return {
       spec,
+      reset() {
+        for (const st of states) st.reset();
+      },
       compute(ins: readonly Stream[], outs: Stream[]) {
         const s = ins[0];
         const n = s.flows.length;
-        const problem: EvaluationFailure | null = null;
+        let problem: EvaluationFailure | null = null;
         let Hout = 0;
         for (let k = 0; k < outs.length; k++) {
           const o = outs[k];
@@ -90,18 +93,15 @@ export const separator: BlockDef<SeparatorSpec> = {
           o.P = spec.P ?? s.P;
           o.vf = Number.NaN;
           o.h = Number.NaN;
-          o.hRule = 'stable';
+          o.hRule = 'flash';
           if (!energy) continue;
-          let F = 0;
-          for (let i = 0; i < n; i++) F += o.flows[i];
+          const F = states[k].setFlows(o.flows);
           if (!(F > 0)) {
             o.h = Number.isFinite(s.h) ? s.h : 0;
             continue;
           }
-          for (let i = 0; i < n; i++) z[i] = o.flows[i] / F;
-          const p = phaseRoot(ctx.eos, o.T, o.P, z, 'stable');
-          o.h = p.H;
-          o.vf = p.root === 'vapor' ? 1 : 0;
+          problem ??= states[k].atTP(o.T, o.P, true);
+          setFromState(o, states[k].found, true);
           Hout += F * o.h;
         }
         duty = energy ? Hout - enthalpyIn(ins) : 0;

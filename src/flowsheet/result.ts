@@ -148,15 +148,29 @@ function energyWarnings(rt: Runtime): string[] {
     out.push(`no energy balance: ${describeMissing(miss)} ${miss.length > 1 ? 'have' : 'has'} no thermal data; add the keys to ${miss.length > 1 ? 'those components' : 'that component'} under \`components:\` to get enthalpies, duties and the energy balance`);
     return out;
   }
+  // one line per component: the streams whose temperature its heat-capacity correlation does not cover
   const z = new Float64Array(rt.n);
+  const byComponent = new Map<string, { streams: string[]; lo: number; hi: number }>();
   for (const name of rt.streamOrder) {
     const s = rt.streams.get(name)!;
     let F = 0;
     for (let i = 0; i < rt.n; i++) F += s.flows[i];
     if (!(F > 0) || !Number.isFinite(s.T)) continue;
     for (let i = 0; i < rt.n; i++) z[i] = s.flows[i] / F;
-    const ids = outsideRangeIds(rt.model.components, s.T, z);
-    if (ids.length) out.push(`stream \`${name}\` at ${Number(s.T.toPrecision(5))} K is outside the range of the heat-capacity correlation of ${ids.join(', ')}: its enthalpy is extrapolated`);
+    for (const id of outsideRangeIds(rt.model.components, s.T, z)) {
+      const e = byComponent.get(id) ?? { streams: [], lo: Infinity, hi: -Infinity };
+      e.streams.push(name);
+      e.lo = Math.min(e.lo, s.T);
+      e.hi = Math.max(e.hi, s.T);
+      byComponent.set(id, e);
+    }
+  }
+  for (const [id, e] of byComponent) {
+    const c = rt.model.components[rt.model.index.get(id)!];
+    const p = c.cp!.pieces;
+    const range = `${p[0].Tmin} K to ${p[p.length - 1].Tmax} K`;
+    const at = e.lo === e.hi ? `${Number(e.lo.toPrecision(5))} K` : `${Number(e.lo.toPrecision(5))} K to ${Number(e.hi.toPrecision(5))} K`;
+    out.push(`the heat-capacity correlation of ${id} covers ${range}; ${e.streams.length > 1 ? 'streams' : 'stream'} ${e.streams.map((x) => `\`${x}\``).join(', ')} at ${at} use${e.streams.length > 1 ? '' : 's'} it extrapolated`);
   }
   return out;
 }
