@@ -20,6 +20,8 @@ export type { FeedResult } from './blocks/feed.js';
 export type { BlockDef, BlockRuntime, UnitSummary, OutputDecl, StructureRules } from './blocks/types.js';
 export { makeEos } from './thermo/eos.js';
 export { flashTP } from './thermo/flash.js';
+export { flashPH, flashPS } from './thermo/flash-ph.js';
+export { streamState } from './thermo/enthalpy.js';
 export { COMPONENTS, findComponent } from './thermo/components.js';
 export { parseQuantity, toUnit, fromUnit } from './units/index.js';
 export { solveFixedPoint, solveRoot } from './solve/index.js';

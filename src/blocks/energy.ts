@@ -23,11 +23,16 @@ import { newPhaseProperties, phasePropertiesInto, type PhaseProperties } from '.
 import { flashTP } from '../thermo/flash.js';
 import { flashPH, flashPS } from '../thermo/flash-ph.js';
 import { outsideRange } from '../thermo/ideal-gas.js';
+import { R as R_GAS } from '../thermo/constants.js';
 import type { ComponentData, Eos, RootChoice } from '../thermo/types.js';
 import type { EnthalpyRule, Stream } from './types.js';
 
 /** Tolerance of the PH and PS flashes run by blocks, on |H - H_spec| / (R T). */
 export const STATE_TOL = 1e-10;
+/** Flashes the warm two-phase PH iteration may take before flashPH takes over. */
+const NESTED_MAX = 6;
+/** Largest temperature step of that iteration, K. */
+const NESTED_STEP = 10;
 
 /**
  * A component whose definition failed stays in the file's list as a placeholder (molar mass
@@ -142,6 +147,8 @@ export class OutletState {
   readonly z: Float64Array;
   private K0: Float64Array | undefined;
   private lastT = Number.NaN;
+  /** dH/dT of the two-phase state last found (the secant), J/(mol K); NaN before one is known. */
+  private slope = Number.NaN;
   readonly found: StateFound;
 
   constructor(private readonly eos: Eos, private readonly unit: string) {
@@ -153,6 +160,7 @@ export class OutletState {
   reset(): void {
     this.K0 = undefined;
     this.lastT = Number.NaN;
+    this.slope = Number.NaN;
   }
 
   /** Sets z from component flows; returns the total (0: z is left as it was). */
@@ -208,6 +216,17 @@ export class OutletState {
     if (!Number.isFinite(h) || !(P > 0) || P === Infinity) {
       return { kind: 'not-converged', unit: this.unit, message: `\`${this.unit}\`: no state can be found from an enthalpy of ${h} J/mol at ${P} Pa`, help: 'the iteration left the physical range: try --method direct' };
     }
+    if (this.K0 && Number.isFinite(this.lastT) && this.found.phase === 'two-phase') {
+      if (this.nested(P, h, this.lastT)) return null;
+    } else if (this.K0 === undefined && !Number.isFinite(this.lastT) && Number.isFinite(T0) && T0 > 0) {
+      // a first call: one isothermal flash at the starting temperature says whether the state
+      // is two-phase there (then the warm iteration goes on from its K-values)
+      const r0 = flashTP(this.eos, T0, P, this.z);
+      if (r0.status === 'converged' && r0.phase === 'two-phase' && !r0.liquidLiquid) {
+        this.K0 = Float64Array.from(r0.K);
+        if (this.nested(P, h, T0)) return null;
+      }
+    }
     const start = Number.isFinite(this.lastT) ? this.lastT : Number.isFinite(T0) && T0 > 0 ? T0 : undefined;
     const r = flashPH(this.eos, P, h, this.z, { T0: start, K0: this.K0, tol: STATE_TOL });
     const f = this.found;
@@ -239,6 +258,61 @@ export class OutletState {
     }
     this.lastT = r.T;
     return null;
+  }
+
+  /**
+   * The warm start of a two-phase outlet in a loop: the previous pass left a two-phase state
+   * and its K-values, and the new target is close. A secant iteration on T with isothermal
+   * flashes from the last K-values (each a few Newton steps, no stability test: flashTP's fast
+   * path) finds the state in two to four flashes; Michelsen's simultaneous iteration in
+   * flashPH, robust from any start, takes far more near a dew point (a trace of liquid). The
+   * slope starts from the last call's secant. Returns false, having changed nothing that
+   * matters, when the state leaves the two-phase region or the iteration does not settle in
+   * NESTED_MAX flashes: flashPH then solves it from scratch.
+   */
+  private nested(P: number, h: number, Tstart: number): boolean {
+    const f = this.found;
+    let T = Tstart;
+    let slope = this.slope;
+    let Tp = Number.NaN;
+    let rp = Number.NaN;
+    for (let k = 0; k < NESTED_MAX; k++) {
+      const r0 = flashTP(this.eos, T, P, this.z, { K0: this.K0 });
+      if (r0.status !== 'converged' || r0.phase !== 'two-phase' || r0.liquidLiquid) return false;
+      this.K0 = Float64Array.from(r0.K);
+      const hV = phaseH(this.eos, T, P, r0.y);
+      const hL = phaseH(this.eos, T, P, r0.x);
+      const H = r0.beta * hV + (1 - r0.beta) * hL;
+      const r = H - h;
+      if (Math.abs(r) <= STATE_TOL * R_GAS * T) {
+        f.T = T;
+        f.P = P;
+        f.phase = 'two-phase';
+        f.beta = r0.beta;
+        f.x.set(r0.x);
+        f.y.set(r0.y);
+        f.flashes = k + 1;
+        f.liquidLiquid = false;
+        // keep the balance's enthalpy (the residual is far below the tolerance of the tears)
+        f.hV = hV + (h - H);
+        f.hL = hL + (h - H);
+        f.h = h;
+        this.lastT = T;
+        return true;
+      }
+      if (Number.isFinite(rp) && T !== Tp) {
+        const s2 = (r - rp) / (T - Tp);
+        if (s2 > 0) slope = s2;
+      }
+      Tp = T;
+      rp = r;
+      // no slope known yet: a probe of 0.01 K towards the target gives the first secant
+      let dT = slope > 0 ? -r / slope : -Math.sign(r) * 0.01;
+      if (Math.abs(dT) > NESTED_STEP) dT = Math.sign(dT) * NESTED_STEP;
+      T += dT;
+      this.slope = slope;
+    }
+    return false;
   }
 
   /** Molar entropy of the state last found (both phases), J/(mol K). */
