@@ -26,6 +26,8 @@
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import type { BlockDef, Stream, UnitFigure, UnitSummary } from './types.js';
+import type { Eos } from '../thermo/types.js';
+import { newPhaseProperties, phasePropertiesInto } from '../thermo/enthalpy.js';
 import { describeMissing, missingEnergyKeys, OutletState, phaseH, phaseS, powerFigure, setFromState } from './energy.js';
 
 export interface CompressorSpec extends UnitSpecBase {
@@ -144,8 +146,14 @@ export const compressor: BlockDef<CompressorSpec> = {
         const s1 = atDew ? phaseS(eos, s.T, P1, inState.z, 'vapor') : inState.entropy();
         let M = 0;
         for (let i = 0; i < n; i++) M += inState.z[i] * comps[i].MW;
-        const iso = isState.atPS(P2, s1, s.T * Math.pow(P2 / P1, 0.25));
-        if (iso.failure) return iso.failure;
+        // The isentropic outlet: Newton on S(T) along the vapour root at P2 (a compressed gas
+        // is superheated); flashPS from scratch when that does not settle.
+        let iso = vaporAtEntropy(eos, P2, s1, s.T * Math.pow(P2 / P1, 0.25), inState.z);
+        if (!iso) {
+          const ps = isState.atPS(P2, s1, s.T * Math.pow(P2 / P1, 0.25));
+          if (ps.failure) return ps.failure;
+          iso = { T: ps.T, h: ps.h };
+        }
         T2s = iso.T;
         const dhs = iso.h - h1;
         let dh: number;
@@ -213,6 +221,28 @@ export const compressor: BlockDef<CompressorSpec> = {
     { name: 'outlet-T', dimension: 'temperature', read: (u: UnitSummary) => u.figures.find((x) => x.key === 'outletT')?.value ?? Number.NaN },
   ],
 };
+
+const isoScratch = newPhaseProperties();
+
+/**
+ * The vapour-root state at P with molar entropy s: Newton on S(T) with dS/dT = Cp/T (the
+ * analytic heat capacity of the root), from T0. Undefined when the root is not a vapour or the
+ * iteration does not settle in 30 steps to |S - s| <= 1e-10 R.
+ */
+function vaporAtEntropy(eos: Eos, P: number, s: number, T0: number, z: Float64Array): { T: number; h: number } | undefined {
+  let T = T0;
+  for (let k = 0; k < 30; k++) {
+    const p = phasePropertiesInto(eos, T, P, z, 'vapor', true, isoScratch);
+    if (p.root !== 'vapor' || !(p.Cp > 0)) return undefined;
+    const r = p.S - s;
+    if (Math.abs(r) <= 1e-10 * 8.314462618) return { T, h: p.H };
+    let Tn = T - (r * T) / p.Cp;
+    if (!(Tn > 0.5 * T)) Tn = 0.5 * T;
+    if (Tn > 2 * T) Tn = 2 * T;
+    T = Tn;
+  }
+  return undefined;
+}
 
 function fmt(v: number): string {
   return Number(v.toPrecision(6)).toString();

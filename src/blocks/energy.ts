@@ -365,7 +365,9 @@ export function setFromState(o: Stream, s: StateFound, energy: boolean): void {
   o.P = s.P;
   o.vf = s.phase === 'two-phase' ? s.beta : s.phase === 'vapor' ? 1 : 0;
   o.h = energy ? s.h : Number.NaN;
-  o.hRule = 'flash';
+  // A single phase found stable is the stable root of its composition: a tear guess gets its
+  // enthalpy back from that root with no flash (the same value at the same T, P and flows).
+  o.hRule = s.phase === 'two-phase' ? 'flash' : 'stable';
 }
 
 /**
