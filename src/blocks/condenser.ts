@@ -84,7 +84,7 @@ function makeDef(type: 'condenser' | 'flash'): BlockDef<CondenserSpec> {
 function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
   const n = ctx.model.ids.length;
   const energy = ctx.energy;
-  const state = new OutletState(ctx.eos, spec.name);
+  const state = new OutletState(ctx.eos, spec.name, ctx.checks);
   const feed = new Float64Array(n);
   const zv = new Float64Array(n);
   const zl = new Float64Array(n);

@@ -25,10 +25,19 @@ import { flashPH, flashPS } from '../thermo/flash-ph.js';
 import { outsideRange } from '../thermo/ideal-gas.js';
 import { R as R_GAS } from '../thermo/constants.js';
 import type { ComponentData, Eos, RootChoice } from '../thermo/types.js';
-import type { EnthalpyRule, Stream } from './types.js';
+import type { EnthalpyRule, PhaseChecks, Stream } from './types.js';
 
 /** Tolerance of the PH and PS flashes run by blocks, on |H - H_spec| / (R T). */
 export const STATE_TOL = 1e-10;
+/**
+ * How near a verified single phase a state must be for an iteration pass to skip its stability
+ * test: 2 K, 0.1 % in pressure, 1e-4 in every mole fraction. Early passes move further and are
+ * checked in full; the final pass of a solve checks every state in full.
+ */
+const NEAR_T = 2;
+const NEAR_P = 1e-3;
+const NEAR_Z = 1e-4;
+
 /** Flashes the warm two-phase PH iteration may take before flashPH takes over. */
 const NESTED_MAX = 6;
 /** Largest temperature step of that iteration, K. */
@@ -86,6 +95,22 @@ export function enthalpyIn(ins: readonly Stream[]): number {
 }
 
 const phaseScratch = new WeakMap<Eos, PhaseProperties>();
+const nearScratches = new WeakMap<Eos, PhaseProperties>();
+
+function nearScratch(eos: Eos): PhaseProperties {
+  let p = nearScratches.get(eos);
+  if (!p) {
+    p = newPhaseProperties();
+    nearScratches.set(eos, p);
+  }
+  return p;
+}
+
+/** Molar enthalpy and root of the stable root of x at T, P. */
+function phaseRootState(eos: Eos, T: number, P: number, x: ArrayLike<number>): { H: number; root: 'vapor' | 'liquid' } {
+  const p = phasePropertiesInto(eos, T, P, x, 'stable', false, nearScratch(eos));
+  return { H: p.H, root: p.root };
+}
 
 /** Molar enthalpy of one phase of composition x at T, P (data present: the caller checked). */
 export function phaseH(eos: Eos, T: number, P: number, x: ArrayLike<number>, root: RootChoice = 'stable'): number {
@@ -151,9 +176,16 @@ export class OutletState {
   private slope = Number.NaN;
   readonly found: StateFound;
 
-  constructor(private readonly eos: Eos, private readonly unit: string) {
+  /** The last single phase verified by a full flash: its T, P, composition and root. */
+  private verified = false;
+  private vT = Number.NaN;
+  private vP = Number.NaN;
+  private readonly vZ: Float64Array;
+
+  constructor(private readonly eos: Eos, private readonly unit: string, private readonly checks?: PhaseChecks) {
     const n = eos.n;
     this.z = new Float64Array(n);
+    this.vZ = new Float64Array(n);
     this.found = { T: NaN, P: NaN, phase: 'vapor', beta: 1, x: new Float64Array(n), y: new Float64Array(n), h: NaN, hV: NaN, hL: NaN, flashes: 0, liquidLiquid: false };
   }
 
@@ -161,6 +193,46 @@ export class OutletState {
     this.K0 = undefined;
     this.lastT = Number.NaN;
     this.slope = Number.NaN;
+    this.verified = false;
+  }
+
+  /** Whether a pass of an iteration may take the verified single phase at T, P and z as still single. */
+  private nearVerified(T: number, P: number): boolean {
+    if (!this.verified || this.checks === undefined || this.checks.thorough) return false;
+    if (!(Math.abs(T - this.vT) <= NEAR_T) || !(Math.abs(P - this.vP) <= NEAR_P * this.vP)) return false;
+    const z = this.z;
+    for (let i = 0; i < z.length; i++) if (!(Math.abs(z[i] - this.vZ[i]) <= NEAR_Z)) return false;
+    return true;
+  }
+
+  private remember(): void {
+    const f = this.found;
+    if (f.phase === 'two-phase') {
+      this.verified = false;
+      return;
+    }
+    this.verified = true;
+    this.vT = f.T;
+    this.vP = f.P;
+    this.vZ.set(this.z);
+  }
+
+  /** The single phase on the stable root at T, P (no stability test), as the state found. */
+  private single(T: number, P: number): void {
+    const f = this.found;
+    const p = phaseRootState(this.eos, T, P, this.z);
+    f.T = T;
+    f.P = P;
+    f.phase = p.root;
+    f.beta = p.root === 'vapor' ? 1 : 0;
+    f.x.set(this.z);
+    f.y.set(this.z);
+    f.flashes = 0;
+    f.liquidLiquid = false;
+    f.h = p.H;
+    f.hV = p.root === 'vapor' ? p.H : NaN;
+    f.hL = p.root === 'liquid' ? p.H : NaN;
+    this.lastT = T;
   }
 
   /** Sets z from component flows; returns the total (0: z is left as it was). */
@@ -182,6 +254,10 @@ export class OutletState {
    * iterate's).
    */
   atTP(T: number, P: number, withH: boolean): EvaluationFailure | null {
+    if (withH && this.nearVerified(T, P)) {
+      this.single(T, P);
+      return null;
+    }
     const r = flashTP(this.eos, T, P, this.z, { K0: this.K0 });
     const f = this.found;
     f.T = T;
@@ -196,6 +272,8 @@ export class OutletState {
     this.lastT = T;
     if (withH) this.enthalpies();
     else f.h = f.hV = f.hL = NaN;
+    if (r.status === 'converged' && !f.liquidLiquid) this.remember();
+    else this.verified = false;
     if (r.status !== 'converged') {
       return {
         kind: 'not-converged',
@@ -215,6 +293,18 @@ export class OutletState {
   atPH(P: number, h: number, T0: number): EvaluationFailure | null {
     if (!Number.isFinite(h) || !(P > 0) || P === Infinity) {
       return { kind: 'not-converged', unit: this.unit, message: `\`${this.unit}\`: no state can be found from an enthalpy of ${h} J/mol at ${P} Pa`, help: 'the iteration left the physical range: try --method direct' };
+    }
+    if (this.verified && Number.isFinite(this.lastT) && this.found.phase !== 'two-phase' && this.checks !== undefined && !this.checks.thorough) {
+      const T = this.singleAtEnthalpy(P, h, this.lastT);
+      if (T !== undefined && this.nearVerified(T, P)) {
+        this.single(T, P);
+        const f = this.found;
+        const d = h - f.h;
+        f.h = h;
+        if (Number.isFinite(f.hV)) f.hV += d;
+        if (Number.isFinite(f.hL)) f.hL += d;
+        return null;
+      }
     }
     if (this.K0 && Number.isFinite(this.lastT) && this.found.phase === 'two-phase') {
       if (this.nested(P, h, this.lastT)) return null;
@@ -243,6 +333,8 @@ export class OutletState {
     f.liquidLiquid = false;
     if (r.phase === 'two-phase') this.K0 = Float64Array.from(r.K);
     this.enthalpies();
+    if (r.status === 'converged') this.remember();
+    else this.verified = false;
     // keep the balance's enthalpy: spread the flash's residual over the phases
     const d = h - f.h;
     f.h = h;
@@ -313,6 +405,21 @@ export class OutletState {
       this.slope = slope;
     }
     return false;
+  }
+
+  /** Newton on H(T) along the stable root at P from T0; undefined when it does not settle. */
+  private singleAtEnthalpy(P: number, h: number, T0: number): number | undefined {
+    let T = T0;
+    for (let k = 0; k < 20; k++) {
+      const p = phasePropertiesInto(this.eos, T, P, this.z, 'stable', false, nearScratch(this.eos));
+      if (!(p.Cp > 0)) return undefined;
+      const r = p.H - h;
+      if (Math.abs(r) <= STATE_TOL * R_GAS * T) return T;
+      const dT = -r / p.Cp;
+      if (!(Math.abs(dT) <= NEAR_T)) return undefined;
+      T += dT;
+    }
+    return undefined;
   }
 
   /** Molar entropy of the state last found (both phases), J/(mol K). */

@@ -43,7 +43,7 @@ function makeDef(type: 'heater' | 'cooler'): BlockDef<HeaterSpec> {
     },
     build(spec, ctx) {
       const energy = ctx.energy;
-      const state = new OutletState(ctx.eos, spec.name);
+      const state = new OutletState(ctx.eos, spec.name, ctx.checks);
       let duty = 0;
       return {
         spec,

@@ -41,7 +41,7 @@ export const mixer: BlockDef<MixerSpec> = {
   },
   build(spec, ctx) {
     const energy = ctx.energy;
-    const state = new OutletState(ctx.eos, spec.name);
+    const state = new OutletState(ctx.eos, spec.name, ctx.checks);
     let duty = 0;
     return {
       spec,

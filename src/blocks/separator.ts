@@ -73,7 +73,7 @@ export const separator: BlockDef<SeparatorSpec> = {
   },
   build(spec, ctx) {
     const energy = ctx.energy;
-    const states = spec.outlets.map(() => new OutletState(ctx.eos, spec.name));
+    const states = spec.outlets.map(() => new OutletState(ctx.eos, spec.name, ctx.checks));
     let duty = 0;
     return {
       spec,

@@ -49,6 +49,18 @@ export interface BuildContext {
    * energy balance is on for the whole file, or off for the whole file.
    */
   energy: boolean;
+  /** How thoroughly the blocks check phases in the current pass (owned by the runtime). */
+  checks?: PhaseChecks;
+}
+
+/**
+ * `thorough: false` lets a block take a single phase it verified (flash with stability test) at
+ * a nearby state as still single, without a new stability test: the passes of an iteration. The
+ * runtime keeps it `true` for every other pass (the final pass of a solve above all), where each
+ * state is checked in full.
+ */
+export interface PhaseChecks {
+  thorough: boolean;
 }
 
 /** A figure a unit reports after the solve (extent, conversion, vapour fraction...). */

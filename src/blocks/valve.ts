@@ -39,7 +39,7 @@ export const valve: BlockDef<ValveSpec> = {
     return { name, type: 'valve', inlets: inlet, outlets: [out], P, dp };
   },
   build(spec, ctx) {
-    const state = new OutletState(ctx.eos, spec.name);
+    const state = new OutletState(ctx.eos, spec.name, ctx.checks);
     let dT = Number.NaN;
     return {
       spec,

@@ -9,7 +9,7 @@
  */
 import { feed as FEED, type FeedResult } from '../blocks/feed.js';
 import { BLOCKS } from '../blocks/registry.js';
-import { newStream, type BlockRuntime, type Stream } from '../blocks/types.js';
+import { newStream, type BlockRuntime, type PhaseChecks, type Stream } from '../blocks/types.js';
 import { enthalpyByRule, equilibriumEnthalpy, hasEnergyData, OutletState } from '../blocks/energy.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import { makeEos } from '../thermo/eos.js';
@@ -64,6 +64,8 @@ export interface Runtime {
   tearEnthalpy(t: number): void;
   /** Clears warm starts kept between passes (so that a solve does not depend on the previous one). */
   resetWarmStarts(): void;
+  /** How thoroughly the blocks check phases: the tear problem's passes set `thorough` false while they run. */
+  readonly checks: PhaseChecks;
   /** Runs all blocks in order with the tear streams as they are; returns the conditions met (a reused array). */
   pass(): readonly Condition[];
   /** Switches to another model, rebuilding only what differs. */
@@ -88,6 +90,7 @@ class FlowsheetRuntime implements Runtime {
   perTear = 2;
   energy = false;
   private tearStates: OutletState[] = [];
+  readonly checks: PhaseChecks = { thorough: true };
   private readonly conditions: Condition[] = [];
   private fixedEos: Eos | undefined;
 
@@ -132,7 +135,7 @@ class FlowsheetRuntime implements Runtime {
       return;
     }
     this.model = model;
-    const ctx = { model, eos: this.eos, energy: this.energy };
+    const ctx = { model, eos: this.eos, energy: this.energy, checks: this.checks };
     model.feeds.forEach((f, k) => {
       if (f === cur.feeds[k]) return;
       this.feeds[k] = this.feedResult(f);
@@ -186,7 +189,7 @@ class FlowsheetRuntime implements Runtime {
     }
     this.blocks = [];
     this.byName = new Map();
-    const ctx = { model, eos: this.eos, energy: this.energy };
+    const ctx = { model, eos: this.eos, energy: this.energy, checks: this.checks };
     for (const u of model.units) {
       const b = BLOCKS[u.type].build(u, ctx);
       this.blocks.push(b);
