@@ -81,6 +81,14 @@ describe('PH then TP: a valve and a heater agree with the isothermal flash', () 
     expect(Math.abs(r.streams.get('check-out')!.vaporFraction - warm.vaporFraction)).toBeLessThan(1e-8);
   });
 
+  it('a duty that no state can take (beyond the heat-capacity data) is a not-converged result naming the unit, never a guess', () => {
+    const r = solve(TWO_PHASE.replace('duty: 80 kW', 'duty: 5000 MW').replace(/ {2}check:.*\n/, ''));
+    expect(r.status).toBe('not-converged');
+    expect(r.failure?.unit).toBe('warm');
+    expect(r.message).toMatch(/`warm`: no state at 2 bar has the enthalpy the energy balance asks for/);
+    expect(solveText(r)).not.toMatch(/^Streams/m);
+  });
+
   it('a valve whose outlet pressure is above its inlet is no letdown: invalid, naming the unit', () => {
     const r = solve(TWO_PHASE.replace('P: 2 bar', 'P: 160 bar').replace(/ {2}(warm|check):.*\n/g, ''));
     expect(r.status).toBe('invalid');
