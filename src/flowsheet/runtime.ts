@@ -213,7 +213,7 @@ class FlowsheetRuntime implements Runtime {
     this.recycles = findRecycles(model.units, this.plan);
     this.tearStreams = this.plan.tears.map((t) => guesses.get(t)!);
     this.tearOutputs = this.plan.tears.map((t) => this.streams.get(t)!);
-    this.tearStates = this.plan.tears.map((t) => new OutletState(this.eos, t));
+    this.tearStates = this.plan.tears.map((t) => new OutletState(this.eos, t, this.checks));
   }
 }
 
