@@ -235,12 +235,20 @@ export class OutletState {
     this.lastT = T;
   }
 
-  /** Sets z from component flows; returns the total (0: z is left as it was). */
+  /**
+   * Sets z from component flows; returns the total. With no flow, or a flow that is negative
+   * or not finite (an iterate gone wrong, which the solve reports on its own), z is left as it
+   * was and the return is 0 or NaN: callers treat both as no flow.
+   */
   setFlows(flows: ArrayLike<number>): number {
     let F = 0;
-    for (let i = 0; i < flows.length; i++) F += flows[i];
-    if (F > 0) for (let i = 0; i < flows.length; i++) this.z[i] = flows[i] / F;
-    return F;
+    for (let i = 0; i < flows.length; i++) {
+      const v = flows[i];
+      if (!(v >= 0) || v === Infinity) return Number.NaN;
+      F += v;
+    }
+    if (F > 0 && F < Infinity) for (let i = 0; i < flows.length; i++) this.z[i] = flows[i] / F;
+    return F < Infinity ? F : Number.NaN;
   }
 
   /** Last temperature found (NaN before the first). */
