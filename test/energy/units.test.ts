@@ -233,3 +233,39 @@ describe('duties, powers and enthalpies as study paths', () => {
     expect(figure(r.result!, 'preheat', 'duty')).toBeGreaterThan(0);
   });
 });
+
+describe('thermal data of the file\'s own components', () => {
+  const base = (body: string) => `
+components:
+  H2: {}
+  X: ${body}
+feeds:
+  f: { flows: { H2: 1 mol/s, X: 1 mol/s }, T: 300 K, P: 5 bar }
+units:
+  h: { type: heater, in: f, out: g, T: 400 K }
+`;
+  it('a body that overrides a built-in row keeps the row\'s heat capacity and formation data', () => {
+    const { model } = validateText('o.yaml', base('{ Tc: 190.6 K }').replace('  X: { Tc: 190.6 K }', '  CH4: { Tc: 190.6 K }').replace('X: 1 mol/s', 'CH4: 1 mol/s'));
+    const c = model.components[1];
+    expect(c.id).toBe('CH4');
+    expect(c.cp).toBeDefined();
+    // methane: -74.5 kJ/mol (Active Thermochemical Tables) to -74.9 kJ/mol (NIST-JANAF), from memory
+    expect(Math.abs(c.hf! + 74.7e3)).toBeLessThan(500);
+    expect(c.source).toMatch(/overridden in o\.yaml/);
+  });
+
+  it('a Cp/R polynomial gives the heater the duty the integral gives', () => {
+    const r = solve(base('{ Tc: 305 K, Pc: 49 bar, omega: 0.1, formula: C2H6, cp: { over-R: [2.0, 0.01], Tmin: 200 K, Tmax: 1000 K }, hf: -84 kJ/mol }').replace('heater, in: f, out: g, T: 400 K', 'heater, in: f, out: g, T: 400 K').replace('P: 5 bar', 'P: 0.01 bar'));
+    expect(r.status, r.message).toBe('converged');
+    // at 0.01 bar the gas is ideal to about 1e-4: duty = integral of Cp over 300..400 K for both
+    const R = 8.314462618;
+    const x = R * (2.0 * 100 + 0.005 * (400 ** 2 - 300 ** 2));
+    const h2 = r.streams.get('g')!.h * 2 - r.streams.get('f')!.h * 2 - x; // what H2 took
+    expect(h2).toBeGreaterThan(2.8e3); // H2's Cp near 29 J/(mol K) over 100 K
+    expect(h2).toBeLessThan(3.0e3);
+  });
+
+  it('a polynomial that turns negative inside its range is refused at its coefficients', () => {
+    expect(() => validateText('n.yaml', base('{ Tc: 305 K, Pc: 49 bar, omega: 0.1, formula: C2H6, cp: { over-R: [1.0, -0.01], Tmin: 200 K, Tmax: 1000 K }, hf: -84 kJ/mol }'))).toThrow(/the polynomial gives Cp\/R = -1 at 200 K, inside its range; a heat capacity is positive/);
+  });
+});
