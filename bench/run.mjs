@@ -3,7 +3,7 @@
 // runs after a warm-up; comparisons are ratios measured in the same run (absolute times on a
 // shared machine drift from run to run).
 //
-//   node bench/run.mjs [--json] [--quick] [--root DIR] [--only meter,gerg,demos,scaling,sweep,cold,plant]
+//   node bench/run.mjs [--json] [--quick] [--root DIR] [--only meter,gerg,demos,flash,scaling,sweep,cold,plant]
 //
 // --root DIR benchmarks another build of the project (DIR/dist/index.mjs, DIR/bin/loopclose.js,
 // DIR/flowsheets), e.g. a copy of an earlier commit, so before and after come from one machine.
@@ -27,7 +27,7 @@ const value = (f, d) => {
 const json = flag('--json');
 const quick = flag('--quick');
 const root = resolve(value('--root', join(here, '..')));
-const only = new Set((value('--only', 'meter,gerg,demos,scaling,sweep,cold,plant')).split(','));
+const only = new Set((value('--only', 'meter,gerg,demos,flash,scaling,sweep,cold,plant')).split(','));
 const libPath = join(root, 'dist', 'index.mjs');
 const cliPath = join(root, 'bin', 'loopclose.js');
 if (!existsSync(libPath)) {
@@ -118,7 +118,7 @@ if (only.has('gerg')) {
 // 2. Demo flowsheets by method.
 // ---------------------------------------------------------------------------------------------
 if (only.has('demos')) {
-  const demos = ['methanol-pilot.yaml', 'methanol-pilot-split.yaml', 'ammonia-loop.yaml', 'benzene-hydrogenation.yaml'];
+  const demos = ['methanol-pilot.yaml', 'methanol-pilot-split.yaml', 'ammonia-loop.yaml', 'ammonia-loop-adiabatic.yaml', 'benzene-hydrogenation.yaml'];
   const methods = ['direct', 'wegstein', 'newton', 'auto'];
   const rows = [];
   out.demos = [];
@@ -152,6 +152,42 @@ if (only.has('demos')) {
     out.demos.map((d) => [d.flowsheet.replace('.yaml', ''), fmt(d.ratios.passesDirectOverWegstein), fmt(d.ratios.timeDirectOverWegstein), fmt(d.ratios.timeWegsteinOverNewton)]),
   ));
   say('aims (methanol demo): Wegstein <= 20 passes, Newton <= 4 Jacobians; <= 0.05 ms/solve (split), <= 1 ms (equilibrium)');
+}
+
+// ---------------------------------------------------------------------------------------------
+// 2b. PH flash against TP flash on the same states, warm-started as a block in a loop starts
+//     them (the last K-values and a temperature 0.1 K off), so that the ratio is what an
+//     adiabatic unit pays over an isothermal one per pass.
+// ---------------------------------------------------------------------------------------------
+if (only.has('flash') && lib.flashPH) {
+  const ids = ['H2', 'N2', 'Ar', 'CH4', 'NH3'];
+  const eos = lib.makeEos('SRK', ids.map((id) => ({ ...lib.findComponent(id), id })));
+  const cases = [
+    { label: 'loop gas, one phase (276 K, 150 bar)', T: 275.9, P: 150e5, z: [0.678, 0.2185, 0.0193, 0.0521, 0.0321] },
+    { label: 'converter effluent, two phases (263 K, 145 bar)', T: 263.15, P: 145e5, z: [0.5906, 0.1885, 0.0214, 0.0576, 0.1419] },
+  ];
+  const rows = [];
+  out.flash = [];
+  for (const c of cases) {
+    const z = Float64Array.from(c.z);
+    const st = lib.streamState(eos, c.T, c.P, z);
+    const K0 = st.phase === 'two-phase' ? Float64Array.from(st.K) : undefined;
+    let k = 0;
+    const tp = measure(() => {
+      k = (k + 1) & 1023;
+      return lib.flashTP(eos, c.T + k * 1e-6, c.P, z, { K0 });
+    }, reps);
+    const ph = measure(() => {
+      k = (k + 1) & 1023;
+      return lib.flashPH(eos, c.P, st.H + k * 1e-6, z, { T0: c.T + 0.1, K0, tol: 1e-10 });
+    }, reps);
+    const r = ph.last;
+    out.flash.push({ label: c.label, tpMs: tp.ms, phMs: ph.ms, ratio: ph.ms / tp.ms, flashes: r.flashes, iterations: r.iterations });
+    rows.push([c.label, fmt(tp.ms * 1000), fmt(ph.ms * 1000), fmt(ph.ms / tp.ms), r.flashes, r.iterations, Math.abs(r.T - c.T) < 1e-3 ? 'same T' : `T off by ${fmt(r.T - c.T)} K`]);
+  }
+  say('\n2b. PH flash against TP flash (µs per call; warm-started as in a loop)');
+  say(table(['state', 'TP µs', 'PH µs', 'PH/TP', 'PH flashes', 'PH T-steps', 'check'], rows));
+  say('aim: PH <= 3 x TP');
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -25,6 +25,8 @@ export type { MeterEosName, MeterPhase, MeterState, ModelUncertainty } from './t
 export { meterBudget, standardUncertainty } from './thermo/meter-budget.js';
 export type { BudgetReading, InstrumentUncertainty, BudgetLine, BudgetInput, MeterBudget } from './thermo/meter-budget.js';
 export { flashTP } from './thermo/flash.js';
+export { flashPH, flashPS } from './thermo/flash-ph.js';
+export { streamState } from './thermo/enthalpy.js';
 export { COMPONENTS, findComponent } from './thermo/components.js';
 export { parseQuantity, toUnit, fromUnit } from './units/index.js';
 export { solveFixedPoint, solveRoot } from './solve/index.js';

@@ -1,7 +1,9 @@
 /**
  * Inlets combined into one stream: component flows added, pressure the lowest of the inlets,
- * temperature the molar-flow-weighted mean (a stand-in until the energy balance lands: exact
- * only for equal molar heat capacities). Shared by the blocks that take several inlets.
+ * temperature the molar-flow-weighted mean. The mean is no answer: it is where the blocks
+ * start their PH flash from (the enthalpy balance decides the temperature), and the outlet
+ * temperature of a file without thermal data whose unit keeps its inlet's. Shared by the blocks
+ * that take several inlets.
  */
 import type { Stream } from './types.js';
 

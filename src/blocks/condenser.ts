@@ -1,19 +1,27 @@
 /**
- * Condenser and flash drum: vapor and liquid outlets at a set T and P.
- * - `model: equilibrium` (default): isothermal flash with the file's equation of state
- *   (fugacity K-values; see src/thermo/flash.ts). The last K-values start the next pass.
- * - `model: split`: a fixed fraction of each component goes to the liquid.
- * `flash` is the same block under its drum name.
+ * Condenser and flash drum: vapor and liquid outlets at one T and P.
+ * - `model: equilibrium` (default): flash with the file's equation of state (fugacity K-values;
+ *   see src/thermo/flash.ts). The last K-values start the next pass. At a set `T:` the flash is
+ *   isothermal and the duty is reported; with `duty:` (W, heat into the material; negative when
+ *   removed) or `adiabatic: true` the temperature comes from the enthalpy balance (PH flash).
+ * - `model: split`: a fixed fraction of each component goes to the liquid, at a set T (the
+ *   vapor outlet's enthalpy on the vapor root, the liquid's on the liquid root).
+ * Outlet pressure: `P:`, or the inlet's less `dp:`. `flash` is the same block under its drum name.
  */
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { EvaluationFailure } from '../solve/types.js';
-import { flashTP } from '../thermo/flash.js';
-import type { BlockDef, BlockRuntime, BuildContext, Stream, UnitSummary } from './types.js';
+import type { BlockDef, BlockRuntime, BuildContext, Stream, UnitFigure, UnitSummary } from './types.js';
+import { checkCorrelationRange, enthalpyIn, hasEnergyData, OutletState, phaseH, powerFigure } from './energy.js';
+import { pressureBelowZero, readEnergyMode } from './reactor.js';
 
 export interface CondenserSpec extends UnitSpecBase {
   type: 'condenser' | 'flash';
-  T: number;
-  P: number;
+  /** Set temperature, K (absent: found from `duty` or `adiabatic`). */
+  T?: number;
+  P?: number;
+  dp?: number;
+  adiabatic: boolean;
+  duty?: number;
   model: 'equilibrium' | 'split';
   /** Fraction of each component to the liquid (split model). */
   split?: Float64Array;
@@ -25,12 +33,19 @@ function makeDef(type: 'condenser' | 'flash'): BlockDef<CondenserSpec> {
     description: type === 'condenser'
       ? 'cools to a set T and P and parts vapor from liquid (equilibrium flash or fixed split)'
       : 'isothermal flash drum at a set T and P (equilibrium or fixed split)',
-    keys: ['in', 'T', 'P', 'model', 'split', 'vapor', 'liquid'],
+    keys: ['in', 'T', 'P', 'dp', 'duty', 'adiabatic', 'model', 'split', 'vapor', 'liquid'],
     read(name, f) {
       const inlet = f.streams('in', { required: true });
-      const T = f.quantity('T', 'temperature', { required: true, above: 0, example: '40 degC' });
-      const P = f.quantity('P', 'pressure', { required: true, above: 0, example: '29 barg' });
+      const mode = readEnergyMode(name, f, type);
+      const found = mode && (mode.adiabatic || mode.duty !== undefined);
+      const T = f.quantity('T', 'temperature', { required: !found && !f.has('duty'), above: 0, example: '40 degC' });
+      const P = f.quantity('P', 'pressure', { required: !f.has('dp'), above: 0, example: '29 barg' });
       const model = (f.string('model', { oneOf: ['equilibrium', 'split'] }) ?? 'equilibrium') as CondenserSpec['model'];
+      if (!mode || !checkCorrelationRange(f, 'T', T, name)) return undefined;
+      if (model === 'split' && found) {
+        f.errorAtKey(mode.adiabatic ? 'adiabatic' : 'duty', `\`${name}\` with \`model: split\` needs a set \`T\`: a fixed split has no equilibrium to find a temperature from`, 'give `T:` (the duty is reported), or use `model: equilibrium`');
+        return undefined;
+      }
       const vapor = f.stream('vapor', { required: true });
       const liquid = f.stream('liquid', { required: true });
       let split: Float64Array | undefined;
@@ -41,15 +56,20 @@ function makeDef(type: 'condenser' | 'flash'): BlockDef<CondenserSpec> {
         f.error('split', `\`split\` is only used with \`model: split\``, 'add `model: split`, or remove `split` to use the equilibrium flash');
         return undefined;
       }
-      if (!inlet || T === undefined || P === undefined || !vapor || !liquid) return undefined;
+      if (!inlet || (T === undefined && !found) || (P === undefined && mode.dp === undefined) || !vapor || !liquid) return undefined;
       if (vapor === liquid) {
         f.error('liquid', `the vapor and liquid outlets of \`${name}\` are the same stream`, 'give them different names');
         return undefined;
       }
-      return { name, type, inlets: inlet, outlets: [vapor, liquid], T, P, model, split };
+      return { name, type, inlets: inlet, outlets: [vapor, liquid], T, P, dp: mode.dp, adiabatic: mode.adiabatic, duty: mode.duty, model, split };
     },
     build: buildCondenser,
-    outputs: () => [{ name: 'vapor-fraction', dimension: 'dimensionless', read: (u: UnitSummary) => u.figures.find((x) => x.key === 'vaporFraction')?.value ?? Number.NaN }],
+    outputs: (_spec, model) => [
+      { name: 'vapor-fraction', dimension: 'dimensionless', read: (u: UnitSummary) => u.figures.find((x) => x.key === 'vaporFraction')?.value ?? Number.NaN },
+      ...(hasEnergyData(model.components) ? [
+        { name: 'duty', dimension: 'power' as const, read: (u: UnitSummary) => u.figures.find((x) => x.key === 'duty')?.value ?? Number.NaN },
+      ] : []),
+    ],
     structure(spec, model) {
       return {
         // outlets: [vapor, liquid]. Under an equilibrium flash any component dissolves a little
@@ -68,35 +88,63 @@ function makeDef(type: 'condenser' | 'flash'): BlockDef<CondenserSpec> {
 
 function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
   const n = ctx.model.ids.length;
-  const z = new Float64Array(n);
+  const energy = ctx.energy;
+  const state = new OutletState(ctx.eos, spec.name, ctx.checks);
   const feed = new Float64Array(n);
-  let K0: Float64Array | undefined;
+  const zv = new Float64Array(n);
+  const zl = new Float64Array(n);
   let note = '';
   let lastIterations = 0;
   let lastBeta = Number.NaN;
+  let lastT = Number.NaN;
+  let duty = 0;
+  const findsT = spec.T === undefined;
   return {
     spec,
     reset() {
-      K0 = undefined;
+      state.reset();
     },
     compute(ins: readonly Stream[], outs: Stream[]) {
       const [v, l] = outs;
       feed.fill(0);
-      for (const s of ins) for (let i = 0; i < n; i++) feed[i] += s.flows[i];
+      let pIn = Infinity;
+      let tSum = 0;
       let F = 0;
-      for (let i = 0; i < n; i++) F += feed[i];
+      for (const s of ins) {
+        let t = 0;
+        for (let i = 0; i < n; i++) {
+          feed[i] += s.flows[i];
+          t += s.flows[i];
+        }
+        if (s.P < pIn) pIn = s.P;
+        if (t > 0 && Number.isFinite(s.T)) tSum += t * s.T;
+        F += t;
+      }
+      const inletT = F > 0 ? tSum / F : ins[0]?.T ?? Number.NaN;
       let problem: EvaluationFailure | null = null;
       note = '';
-      for (const o of outs) {
-        o.T = spec.T;
-        o.P = spec.P;
+      duty = 0;
+      let P = spec.P ?? pIn - (spec.dp ?? 0);
+      if (!(P > 0)) {
+        problem = pressureBelowZero(spec.name, pIn, spec.dp ?? 0);
+        P = pIn;
       }
+      const Hin = energy ? enthalpyIn(ins) : 0;
+      for (const o of outs) {
+        o.T = spec.T ?? inletT;
+        o.P = P;
+      }
+      v.vf = 1;
+      l.vf = 0;
+      v.hRule = spec.model === 'split' ? 'vapor' : 'stable';
+      l.hRule = spec.model === 'split' ? 'liquid' : 'stable';
       if (!(F > 0)) {
         v.flows.fill(0);
         l.flows.fill(0);
-        v.vf = 1;
-        l.vf = 0;
-        return null;
+        const h = Number.isFinite(ins[0]?.h) ? ins[0].h : energy ? 0 : Number.NaN;
+        v.h = h;
+        l.h = h;
+        return problem;
       }
       if (spec.model === 'split') {
         const sp = spec.split!;
@@ -106,22 +154,26 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
           v.flows[i] = feed[i] - l.flows[i];
           V += v.flows[i];
         }
-        v.vf = 1;
-        l.vf = 0;
         lastBeta = V / F;
-        return null;
+        lastT = spec.T!;
+        v.h = l.h = Number.NaN;
+        if (energy) {
+          // each outlet on its own root at the set T: the split says which phase it is
+          const L = F - V;
+          if (V > 0) for (let i = 0; i < n; i++) zv[i] = v.flows[i] / V;
+          if (L > 0) for (let i = 0; i < n; i++) zl[i] = l.flows[i] / L;
+          v.h = phaseH(ctx.eos, spec.T!, P, V > 0 ? zv : feed, 'vapor');
+          l.h = phaseH(ctx.eos, spec.T!, P, L > 0 ? zl : feed, 'liquid');
+          duty = V * v.h + L * l.h - Hin;
+        }
+        return problem;
       }
-      for (let i = 0; i < n; i++) z[i] = feed[i] / F;
-      const r = flashTP(ctx.eos, spec.T, spec.P, z, { K0 });
-      lastIterations = r.iterations;
-      if (r.status !== 'converged') {
-        problem = {
-          kind: 'not-converged',
-          unit: spec.name,
-          message: `the flash in \`${spec.name}\` did not converge (${r.iterations} iterations, fugacity residual ${r.residual.toExponential(2)})`,
-          help: 'check T and P against the mixture; a point near the mixture critical point is hard',
-        };
-      }
+      for (let i = 0; i < n; i++) state.z[i] = feed[i] / F;
+      const fail = findsT ? state.atPH(P, (Hin + (spec.duty ?? 0)) / F, inletT) : state.atTP(spec.T!, P, energy);
+      const r = state.found;
+      lastIterations = r.flashes;
+      lastT = r.T;
+      problem ??= fail;
       if (r.liquidLiquid) {
         // Two liquids, no vapor: a vapor outlet fed a liquid would be no solution.
         problem = {
@@ -131,8 +183,8 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
           help: 'set binary interaction parameters for the polar pairs under `thermo.kij` (from a fit to phase-equilibrium data), or use `model: split`',
         };
       }
+      for (const o of outs) o.T = r.T;
       if (r.phase === 'two-phase') {
-        K0 = Float64Array.from(r.K);
         for (let i = 0; i < n; i++) {
           v.flows[i] = F * r.beta * r.y[i];
           l.flows[i] = feed[i] - v.flows[i];
@@ -142,29 +194,47 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
           }
         }
         lastBeta = r.beta;
+        v.h = r.hV;
+        l.h = r.hL;
       } else if (r.phase === 'vapor') {
         v.flows.set(feed);
         l.flows.fill(0);
         lastBeta = 1;
-        note = r.note ?? 'all vapor at the set T and P: no liquid';
+        note = `all vapor at ${findsT ? 'the T found' : 'the set T'} and P: no liquid`;
+        v.h = l.h = r.h;
       } else {
         l.flows.set(feed);
         v.flows.fill(0);
         lastBeta = 0;
-        note = r.note ?? 'all liquid at the set T and P: no vapor';
+        note = `all liquid at ${findsT ? 'the T found' : 'the set T'} and P: no vapor`;
+        v.h = l.h = r.h;
       }
-      v.vf = 1;
-      l.vf = 0;
+      if (energy) {
+        let V = 0;
+        let L = 0;
+        for (let i = 0; i < n; i++) {
+          V += v.flows[i];
+          L += l.flows[i];
+        }
+        duty = findsT ? spec.duty ?? 0 : V * v.h + L * l.h - Hin;
+        if (findsT) {
+          // the outlets carry the balance's enthalpy exactly (the flash's residual spread)
+          const d = (Hin + duty - V * v.h - L * l.h) / F;
+          v.h += d;
+          l.h += d;
+        }
+      } else {
+        v.h = l.h = Number.NaN;
+      }
       return problem;
     },
+    energy: () => ({ duty, power: 0 }),
     summary() {
-      return {
-        figures: [
-          { label: 'vapor fraction', value: lastBeta, kind: 'fraction', key: 'vaporFraction' },
-          ...(spec.model === 'equilibrium' ? [{ label: 'flash iterations in the last pass (from the previous K-values)', value: lastIterations, kind: 'count' as const, key: 'flashIterations' }] : []),
-        ],
-        notes: note ? [note] : [],
-      };
+      const figures: UnitFigure[] = [{ label: 'vapor fraction', value: lastBeta, kind: 'fraction', key: 'vaporFraction' }];
+      if (spec.model === 'equilibrium') figures.push({ label: 'flash iterations in the last pass (from the previous K-values)', value: lastIterations, kind: 'count', key: 'flashIterations' });
+      if (energy) figures.push(powerFigure('duty', spec.adiabatic ? 'duty (adiabatic)' : 'duty', duty));
+      if (findsT) figures.push({ label: 'temperature found', value: lastT, kind: 'temperature', key: 'T' });
+      return { figures, notes: note ? [note] : [] };
     },
   };
 }

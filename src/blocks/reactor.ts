@@ -6,12 +6,22 @@
  * A fixed conversion that would take more of a reactant than reaches the reactor is no
  * steady state: the extents are scaled down to what is available (so the solvers see a
  * continuous map), and the block reports the shortfall as an infeasibility.
+ *
+ * Energy: `T:` holds the outlet at T (isothermal; the duty that takes is reported), and so does
+ * a reactor with none of `T`, `adiabatic` and `duty`, at its inlet temperature; `adiabatic: true`
+ * or `duty:` (W, heat into the reactor's material) finds the outlet T from the enthalpy
+ * balance with a PH flash. Enthalpies are on the formation basis (src/thermo/enthalpy.ts), so
+ * the heat of reaction is in them; each reaction's heat at the outlet temperature is reported
+ * as the ideal-gas sum_i nu_i h_i(T) per mole of extent. Outlet pressure: `P:`, or the inlet's
+ * less `dp:`.
  */
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import { parseEquation, elementImbalance, EquationError } from '../thermo/reaction.js';
 import type { EvaluationFailure } from '../solve/types.js';
-import type { BlockDef, Stream, UnitSummary } from './types.js';
+import { hIG } from '../thermo/ideal-gas.js';
+import type { BlockDef, Stream, UnitFigure, UnitSummary } from './types.js';
 import { combineInlets } from './combine.js';
+import { checkCorrelationRange, describeMissing, enthalpyIn, hasEnergyData, missingEnergyKeys, OutletState, powerFigure, setFromState } from './energy.js';
 
 export interface ReactionSpec {
   equation: string;
@@ -27,6 +37,11 @@ export interface ReactorSpec extends UnitSpecBase {
   sequence: boolean;
   T?: number;
   P?: number;
+  /** Pressure drop, Pa (outlet P = inlet P - dp when P is not set). */
+  dp?: number;
+  adiabatic: boolean;
+  /** Heat into the reactor's material, W (outlet T found). */
+  duty?: number;
 }
 
 /** Relative shortfall below which a reactant is taken as exactly used up (rounding). */
@@ -35,12 +50,15 @@ const SHORTFALL_TOL = 1e-12;
 export const reactor: BlockDef<ReactorSpec> = {
   type: 'reactor',
   description: 'reactions by fixed conversion of a key reactant or fixed extent',
-  keys: ['in', 'out', 'reactions', 'sequence', 'T', 'P'],
+  keys: ['in', 'out', 'reactions', 'sequence', 'T', 'P', 'dp', 'adiabatic', 'duty'],
   read(name, f) {
     const inlet = f.streams('in', { required: true });
     const out = f.stream('out', { required: true });
     const T = f.quantity('T', 'temperature', { above: 0, example: '250 degC' });
     const P = f.quantity('P', 'pressure', { above: 0, example: '29 barg' });
+    const energyOk = readEnergyMode(name, f, 'reactor');
+    if (!energyOk || !checkCorrelationRange(f, 'T', T, name)) return undefined;
+    const { adiabatic, duty, dp } = energyOk;
     const sequence = f.boolean('sequence') ?? false;
     const items = f.items('reactions', { required: true });
     if (!items) return undefined;
@@ -98,7 +116,7 @@ export const reactor: BlockDef<ReactorSpec> = {
         }
       }
     }
-    return { name, type: 'reactor', inlets: inlet, outlets: [out], reactions, sequence, T, P };
+    return { name, type: 'reactor', inlets: inlet, outlets: [out], reactions, sequence, T, P, dp, adiabatic, duty };
   },
   build(spec, ctx) {
     const ids = ctx.model.ids;
@@ -111,6 +129,11 @@ export const reactor: BlockDef<ReactorSpec> = {
     const cons = new Float64Array(n);
     const inlet = new Float64Array(n);
     const keys = keyComponents(spec);
+    const energy = ctx.energy;
+    const state = new OutletState(ctx.eos, spec.name, ctx.checks);
+    const heat = new Float64Array(R).fill(Number.NaN);
+    let duty = 0;
+    const comps = ctx.model.components;
 
     const shortfall = (i: number, need: number, have: number, rx: ReactionSpec | null): EvaluationFailure => {
       const what = rx
@@ -129,6 +152,9 @@ export const reactor: BlockDef<ReactorSpec> = {
 
     return {
       spec,
+      reset() {
+        state.reset();
+      },
       compute(ins: readonly Stream[], outs: Stream[]) {
         const o = outs[0];
         const f = o.flows;
@@ -199,25 +225,59 @@ export const reactor: BlockDef<ReactorSpec> = {
             }
           }
         }
-        o.T = spec.T ?? inletT;
-        o.P = spec.P ?? inletP;
-        o.vf = Number.NaN;
-        return problem;
+        o.P = spec.P ?? inletP - (spec.dp ?? 0);
+        duty = 0;
+        if (!(o.P > 0)) {
+          o.P = inletP;
+          problem ??= pressureBelowZero(spec.name, inletP, spec.dp ?? 0);
+        }
+        if (!energy) {
+          o.T = spec.T ?? inletT;
+          o.vf = Number.NaN;
+          o.h = Number.NaN;
+          return problem;
+        }
+        const Hin = enthalpyIn(ins);
+        const F = state.setFlows(f);
+        if (!(F > 0)) {
+          o.T = spec.T ?? inletT;
+          o.vf = Number.NaN;
+          o.h = Number.isFinite(ins[0]?.h) ? ins[0].h : 0;
+          return problem;
+        }
+        const fixedT = !spec.adiabatic && spec.duty === undefined;
+        const fail = fixedT ? state.atTP(spec.T ?? inletT, o.P, true) : state.atPH(o.P, (Hin + (spec.duty ?? 0)) / F, inletT);
+        setFromState(o, state.found, true);
+        duty = fixedT ? F * o.h - Hin : spec.duty ?? 0;
+        for (let r = 0; r < R; r++) {
+          const nu = spec.reactions[r].nu;
+          let q = 0;
+          for (let i = 0; i < n; i++) if (nu[i] !== 0) q += nu[i] * hIG(comps[i], o.T);
+          heat[r] = q;
+        }
+        return problem ?? fail;
       },
       generation: () => gen,
+      energy: () => ({ duty, power: 0 }),
       summary(_ins, outs) {
         const out = outs[0]?.flows;
         const conversions: Record<string, number> = {};
         for (const k of keys) conversions[ids[k]] = out && inlet[k] > 0 ? (inlet[k] - out[k]) / inlet[k] : 0;
+        const figures: UnitFigure[] = spec.reactions.map((rx, r) => ({ label: `extent of ${rx.equation}`, value: ext[r], kind: 'molarFlow' as const, key: `extent.${r}` }));
+        if (energy) figures.push(powerFigure('duty', spec.adiabatic ? 'duty (adiabatic)' : 'duty', duty));
+        const notes: string[] = [];
+        if (spec.T === undefined && !spec.adiabatic && spec.duty === undefined) notes.push(energy ? 'isothermal at the inlet temperature (no `T`, `duty` or `adiabatic` given)' : 'outlet T carried from the inlet; no energy balance');
+        if (spec.adiabatic) notes.push('adiabatic');
         return {
-          figures: spec.reactions.map((rx, r) => ({ label: `extent of ${rx.equation}`, value: ext[r], kind: 'molarFlow' as const, key: `extent.${r}` })),
-          notes: spec.T === undefined ? ['outlet T carried from the inlet (no energy balance yet)'] : [],
+          figures,
+          notes,
           reactions: spec.reactions.map((rx, r) => ({
             equation: rx.equation,
             key: ids[rx.key],
             extent: ext[r],
             conversion: keyIn[r] > 0 ? (ext[r] * -rx.nu[rx.key]) / keyIn[r] : 0,
             requested: rx.conversion,
+            ...(energy && Number.isFinite(heat[r]) ? { heatOfReaction: heat[r] } : {}),
           })),
           conversions,
         };
@@ -225,7 +285,14 @@ export const reactor: BlockDef<ReactorSpec> = {
     };
   },
   outputs(spec, model) {
+    const energy = hasEnergyData(model.components);
     return [
+      ...(energy ? [{ name: 'duty', dimension: 'power' as const, read: (u: UnitSummary) => u.figures.find((x) => x.key === 'duty')?.value ?? Number.NaN }] : []),
+      ...(energy ? spec.reactions.map((_, r) => ({
+        name: `heat-of-reaction.${r}`,
+        dimension: 'molarEnergy' as const,
+        read: (u: UnitSummary) => u.reactions?.[r]?.heatOfReaction ?? Number.NaN,
+      })) : []),
       ...keyComponents(spec).map((k) => ({
         name: `conversion.${model.ids[k]}`,
         dimension: 'dimensionless' as const,
@@ -284,6 +351,47 @@ export const reactor: BlockDef<ReactorSpec> = {
     };
   },
 };
+
+/**
+ * The energy keys shared by the reactor and the condenser: `adiabatic`, `duty` (W) and `dp`
+ * (Pa), checked against `T` and `P` (a duty and a T are two answers to one question). Returns
+ * undefined when a problem was reported.
+ */
+export function readEnergyMode(name: string, f: import('../flowsheet/fields.js').FieldReader, what: string): { adiabatic: boolean; duty?: number; dp?: number } | undefined {
+  const adiabatic = f.boolean('adiabatic') ?? false;
+  const duty = f.quantity('duty', 'power', { example: '-1.2 MW' });
+  const dp = f.quantity('dp', 'pressure', { min: 0, example: '0.5 bar' });
+  let ok = true;
+  if (f.has('T') && f.has('duty')) {
+    f.errorAtKey('duty', `${what} \`${name}\` has both \`T\` and \`duty\`: give one (the other follows from the energy balance)`, 'keep `T:` to hold the outlet temperature (the duty is reported), or `duty:` to find the temperature');
+    ok = false;
+  }
+  if (adiabatic && (f.has('T') || f.has('duty'))) {
+    f.errorAtKey('adiabatic', `${what} \`${name}\` is \`adiabatic\` and has \`${f.has('T') ? 'T' : 'duty'}\` too: give one`, 'an adiabatic unit has duty 0 and finds its temperature; remove `adiabatic: true` to hold T');
+    ok = false;
+  }
+  if (f.has('P') && f.has('dp')) {
+    f.errorAtKey('dp', `${what} \`${name}\` has both \`P\` and \`dp\`: give one`, 'an outlet pressure `P:`, or a pressure drop `dp:` from the inlet');
+    ok = false;
+  }
+  if ((adiabatic || f.has('duty')) && !hasEnergyData(f.components)) {
+    const miss = missingEnergyKeys(f.components);
+    f.error(adiabatic ? 'adiabatic' : 'duty', `${what} \`${name}\` needs the energy balance, but ${describeMissing(miss)} ${miss.length > 1 ? 'have' : 'has'} no data for it`, 'add the missing keys to those components under `components:` (e.g. `cp: 35 J/(mol K)`, `hf: -110.5 kJ/mol`), or set `T:` instead');
+    ok = false;
+  }
+  if (!ok || (f.has('duty') && duty === undefined) || (f.has('dp') && dp === undefined)) return undefined;
+  return { adiabatic, duty, dp };
+}
+
+/** A pressure drop larger than the inlet pressure. */
+export function pressureBelowZero(unit: string, inletP: number, dp: number) {
+  return {
+    kind: 'invalid' as const,
+    unit,
+    message: `\`${unit}\`: the pressure drop ${fmt(dp / 1e5)} bar is more than the inlet pressure ${fmt(inletP / 1e5)} bar`,
+    help: 'lower `dp`, or set the outlet pressure `P:`',
+  };
+}
 
 /** The key components of a reactor, each once, in the order of its reactions. */
 function keyComponents(spec: ReactorSpec): number[] {

@@ -6,6 +6,9 @@ import { condenser, flash } from './condenser.js';
 import { splitter } from './splitter.js';
 import { separator } from './separator.js';
 import { feed } from './feed.js';
+import { heater, cooler } from './heater.js';
+import { compressor } from './compressor.js';
+import { valve } from './valve.js';
 
 export const BLOCKS: Readonly<Record<string, BlockDef<any>>> = {
   mixer,
@@ -14,6 +17,10 @@ export const BLOCKS: Readonly<Record<string, BlockDef<any>>> = {
   flash,
   splitter,
   separator,
+  heater,
+  cooler,
+  compressor,
+  valve,
 };
 
 /** The block that reads and converts every entry of `feeds:`. */

@@ -2,10 +2,18 @@
  * Separator with fixed recoveries: the fraction of each component's inlet flow sent to each
  * named outlet. One outlet may take the rest; a component not named for an outlet sends it
  * nothing (or, for the `rest` outlet, the remainder).
+ *
+ * Outlets at `T` and `P` when set, else at the inlet's. With the energy balance on, each outlet
+ * is flashed at its T and P (its own composition decides its phases; the separation itself is
+ * a black box), and the duty that the separation takes (the outlets' enthalpy less the
+ * inlet's) is reported. (Taking each outlet as one phase on the stable root would save the
+ * flashes, but its enthalpy jumps where the root changes, and a loop through it stalls.)
  */
 import type { UnitSpecBase } from '../flowsheet/model.js';
+import type { EvaluationFailure } from '../solve/types.js';
 import type { BlockDef, Stream } from './types.js';
 import { editOutletFraction } from './outlet-edit.js';
+import { enthalpyIn, hasEnergyData, OutletState, powerFigure, setFromState } from './energy.js';
 
 export interface SeparatorSpec extends UnitSpecBase {
   type: 'separator';
@@ -63,12 +71,20 @@ export const separator: BlockDef<SeparatorSpec> = {
     }
     return { name, type: 'separator', inlets: [inlet], outlets: outs.map((o) => o.stream), recovery, T, P };
   },
-  build(spec) {
+  build(spec, ctx) {
+    const energy = ctx.energy;
+    const states = spec.outlets.map(() => new OutletState(ctx.eos, spec.name, ctx.checks));
+    let duty = 0;
     return {
       spec,
+      reset() {
+        for (const st of states) st.reset();
+      },
       compute(ins: readonly Stream[], outs: Stream[]) {
         const s = ins[0];
         const n = s.flows.length;
+        let problem: EvaluationFailure | null = null;
+        let Hout = 0;
         for (let k = 0; k < outs.length; k++) {
           const o = outs[k];
           const r = spec.recovery[k];
@@ -76,12 +92,26 @@ export const separator: BlockDef<SeparatorSpec> = {
           o.T = spec.T ?? s.T;
           o.P = spec.P ?? s.P;
           o.vf = Number.NaN;
+          o.h = Number.NaN;
+          o.hRule = 'flash';
+          if (!energy) continue;
+          const F = states[k].setFlows(o.flows);
+          if (!(F > 0)) {
+            o.h = Number.isFinite(s.h) ? s.h : 0;
+            continue;
+          }
+          problem ??= states[k].atTP(o.T, o.P, true);
+          setFromState(o, states[k].found, true);
+          Hout += F * o.h;
         }
-        return null;
+        duty = energy ? Hout - enthalpyIn(ins) : 0;
+        return problem;
       },
-      summary: () => ({ figures: [], notes: [] }),
+      energy: () => ({ duty, power: 0 }),
+      summary: () => ({ figures: energy ? [powerFigure('duty', 'duty', duty)] : [], notes: [] }),
     };
   },
+  outputs: (_spec, model) => (hasEnergyData(model.components) ? [{ name: 'duty', dimension: 'power', read: (u) => u.figures.find((x) => x.key === 'duty')?.value ?? Number.NaN }] : []),
   structure(spec) {
     return {
       passes: (k, i) => spec.recovery[k][i] > 0,

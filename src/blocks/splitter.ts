@@ -1,4 +1,4 @@
-/** Splitter: the inlet divided by fractions into outlets of the same composition. */
+/** Splitter: the inlet divided by fractions into outlets of the same composition and state (T, P, molar enthalpy). */
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { BlockDef, Stream } from './types.js';
 import { editOutletFraction } from './outlet-edit.js';
@@ -67,6 +67,8 @@ export const splitter: BlockDef<SplitterSpec> = {
           o.T = s.T;
           o.P = s.P;
           o.vf = s.vf;
+          o.h = s.h;
+          o.hRule = s.hRule;
         }
         return null;
       },

@@ -19,12 +19,27 @@ export interface Stream {
   T: number;
   /** Pa, absolute */
   P: number;
-  /** Vapor mole fraction, NaN where not computed (a mixer outlet, a feed given by mass). */
+  /** Vapor mole fraction, NaN where not computed. */
   vf: number;
+  /**
+   * Molar enthalpy, J/mol on the formation basis of src/thermo/enthalpy.ts, set by the block
+   * that makes the stream from its own state (its flash, or an enthalpy balance); NaN when the
+   * file's components lack the data (the energy balance is then off for the whole file).
+   */
+  h: number;
+  /**
+   * How h follows from T, P and the flows, so that a tear guess (which carries flows, T and P
+   * only) gets its enthalpy back exactly as the maker made it: 'flash' (the equilibrium state
+   * at T and P), or one phase on the named root with no flash (a condenser's outlets, whose
+   * phases the split decides).
+   */
+  hRule: EnthalpyRule;
 }
 
+export type EnthalpyRule = 'flash' | 'stable' | 'vapor' | 'liquid';
+
 export function newStream(n: number): Stream {
-  return { flows: new Float64Array(n), T: Number.NaN, P: Number.NaN, vf: Number.NaN };
+  return { flows: new Float64Array(n), T: Number.NaN, P: Number.NaN, vf: Number.NaN, h: Number.NaN, hRule: 'flash' };
 }
 
 export interface BuildContext {
@@ -32,6 +47,23 @@ export interface BuildContext {
   eos: Eos;
   /** The runtime's meter equation of state (feeds); a feed makes its own when it is absent. */
   meter?: MeterEos;
+  /**
+   * Whether every component of the file has the data an enthalpy needs (cp and hf): the
+   * energy balance is on for the whole file, or off for the whole file.
+   */
+  energy: boolean;
+  /** How thoroughly the blocks check phases in the current pass (owned by the runtime). */
+  checks?: PhaseChecks;
+}
+
+/**
+ * `thorough: false` lets a block take a single phase it verified (flash with stability test) at
+ * a nearby state as still single, without a new stability test: the passes of an iteration. The
+ * runtime keeps it `true` for every other pass (the final pass of a solve above all), where each
+ * state is checked in full.
+ */
+export interface PhaseChecks {
+  thorough: boolean;
 }
 
 /** A figure a unit reports after the solve (extent, conversion, vapor fraction...). */
@@ -39,7 +71,7 @@ export interface UnitFigure {
   label: string;
   /** SI value (mol/s, fraction, K, Pa) */
   value: number;
-  kind: 'molarFlow' | 'fraction' | 'temperature' | 'pressure' | 'count';
+  kind: 'molarFlow' | 'fraction' | 'temperature' | 'pressure' | 'count' | 'power' | 'number';
   /** JSON key */
   key: string;
 }
@@ -53,6 +85,11 @@ export interface ReactionFigures {
   /** Conversion of the key by this reaction, per pass (extent times the key's coefficient over the key's inlet flow). */
   conversion: number;
   requested?: number;
+  /**
+   * Heat of reaction at the reactor's outlet temperature, J per mol of extent: the ideal-gas
+   * value sum_i nu_i h_i^ig(T) (the real-gas mixing terms are in the duty, not here).
+   */
+  heatOfReaction?: number;
 }
 
 export interface UnitSummary {
@@ -76,6 +113,13 @@ export interface BlockRuntime {
   compute(ins: readonly Stream[], outs: Stream[]): EvaluationFailure | null;
   /** Net generation of each component (mol/s) in the last compute; reactors only. */
   generation?(): Float64Array;
+  /**
+   * Heat (duty) and shaft work (power) put into the unit's material in the last compute, W;
+   * negative when removed. Absent for a unit that exchanges neither (splitter).
+   */
+  energy?(): { duty: number; power: number };
+  /** The unit may raise the pressure (a compressor); any other unit whose outlet P exceeds its inlets' is warned about. */
+  readonly raisesPressure?: boolean;
   /** Figures for the unit line of the report, from the last compute. */
   summary(ins: readonly Stream[], outs: readonly Stream[]): UnitSummary;
   /** Resets any warm-start cache (so that a solve does not depend on the previous one). */

@@ -1,7 +1,8 @@
 /**
  * Balance closure as a second convergence criterion. The tear test allows a component
  * imbalance of about rtol times that component's recycle-to-feed ratio (large for an inert);
- * a converged loop must also close its balances. This continues from the solution with a
+ * a converged loop must also close its balances: material, elements, mass and (when the file
+ * has thermal data) energy, overall and per unit, to the same relative tolerance. This continues from the solution with a
  * tighter tear tolerance until the balance closes too (at most three times), then leaves every
  * stream at the final iterate with one last pass.
  */
@@ -9,7 +10,7 @@ import { solveFixedPoint } from '../solve/index.js';
 import type { FixedPointProblem, MethodName, SolveOptions, SolveResult } from '../solve/types.js';
 import { computeBalance, type Balance } from './balance.js';
 import type { Condition, Runtime } from './runtime.js';
-import { setTears } from './tear-problem.js';
+import { readTears, setTears } from './tear-problem.js';
 
 /** The balance closure (relative) a converged result must meet, for a tear tolerance rtol. */
 export function closureTolerance(rtol: number): number {
@@ -37,10 +38,15 @@ export function closeBalance(
     const conditions = rt.pass().slice();
     result = { ...result, passes: result.passes + 1 };
     const balance = computeBalance(rt);
+    // The final pass checks every phase in full (the iteration's passes may not have): if it
+    // moves a tear stream beyond its tolerance, a phase appeared or vanished since the last check.
+    const moved = tearMoved(rt, problem, result.x, opts.rtol);
     const room = opts.budget - result.passes - 1;
-    if (result.status !== 'converged' || balance.worst <= tol || k === 3 || room < 1) {
+    if (result.status !== 'converged' || (balance.worst <= tol && !moved) || k === 3 || room < 1) {
       if (result.status === 'converged' && balance.worst > tol) {
         result = { ...result, status: 'not-converged', message: `the tear streams meet their tolerance, but ${describeOpen(balance)}; this is not a solution`, worst: undefined };
+      } else if (result.status === 'converged' && moved) {
+        result = { ...result, status: 'not-converged', message: `the final pass moves tear stream ${moved} beyond its tolerance (a phase appeared or vanished between the checks of the iteration); this is not a solution`, worst: undefined };
       }
       return { result, balance, conditions };
     }
@@ -52,6 +58,17 @@ export function closeBalance(
     });
     result = mergeResults(result, more);
   }
+}
+
+/** The first tear variable the last pass left beyond its tolerance of x, by name; undefined when none. */
+function tearMoved(rt: Runtime, problem: FixedPointProblem, x: Float64Array, rtol: number): string | undefined {
+  const out = new Float64Array(x.length);
+  readTears(rt, out);
+  for (let i = 0; i < x.length; i++) {
+    const tolI = Math.max(problem.atol?.[i] ?? 0, 10 * rtol * Math.abs(x[i]));
+    if (!(Math.abs(out[i] - x[i]) <= tolI)) return problem.names?.[i] ?? `#${i}`;
+  }
+  return undefined;
 }
 
 export function mergeResults(a: SolveResult, b: SolveResult): SolveResult {
@@ -83,6 +100,19 @@ function describeOpen(b: Balance): string {
       worst = `the balance of element ${el} closes only to ${Math.abs(c.closure).toExponential(2)}`;
     }
   }
-  if (Math.abs(b.mass.closure) > v) worst = `the mass balance closes only to ${Math.abs(b.mass.closure).toExponential(2)}`;
+  if (Math.abs(b.mass.closure) > v) {
+    v = Math.abs(b.mass.closure);
+    worst = `the mass balance closes only to ${Math.abs(b.mass.closure).toExponential(2)}`;
+  }
+  if (b.energy && !(Math.abs(b.energy.closure) <= v)) {
+    v = Math.abs(b.energy.closure);
+    worst = `the energy balance closes only to ${Math.abs(b.energy.closure).toExponential(2)} (in ${b.energy.in.toExponential(4)} W, out ${b.energy.out.toExponential(4)} W, duties ${b.energy.duty.toExponential(4)} W, power ${b.energy.power.toExponential(4)} W)`;
+  }
+  for (const [u, e] of Object.entries(b.unitEnergy ?? {})) {
+    if (!(Math.abs(e.closure) <= v)) {
+      v = Math.abs(e.closure);
+      worst = `the energy balance of \`${u}\` closes only to ${Math.abs(e.closure).toExponential(2)}`;
+    }
+  }
   return `${worst} (a trace component far below the others, or a split close to 0 or 1, can do this: try --method newton, a tighter --tolerance, or set such a trace to zero)`;
 }

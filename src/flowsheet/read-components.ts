@@ -1,11 +1,20 @@
 /**
  * The `components:` section: built-in rows by id (or name), rows of the file's own, and
- * overrides of built-in constants.
+ * overrides of built-in constants. Thermal data of the file's own (energy balances):
+ *   cp: 29.1 J/(mol K)                                   a constant ideal-gas heat capacity
+ *   cp: { over-R: [3.5, 1.2e-3], Tmin: 298 K, Tmax: 1500 K }   Cp/R = sum_k a_k (T/K)^k, with
+ *                                                       its range of validity
+ *   hf: -110.53 kJ/mol     standard enthalpy of formation of the ideal gas at 298.15 K
+ *   gf: -137.17 kJ/mol     standard Gibbs energy of formation of the ideal gas (298.15 K, 1 bar)
+ * A body that overrides a built-in row keeps the row's thermal data unless it gives its own.
+ * A constant heat capacity has no range of its own: it is taken as valid from 20 K to 6000 K
+ * (the limits of the state flashes), and the user answers for it.
  */
 import { didYouMean } from '../diagnostics.js';
 import { componentIds, findComponent } from '../thermo/components.js';
 import { molarMass, parseFormula } from '../thermo/formula.js';
-import type { ComponentData } from '../thermo/types.js';
+import type { ComponentData, CpCorrelation } from '../thermo/types.js';
+import { R } from '../thermo/constants.js';
 import type { Entry, Reader } from './source.js';
 import { quantityAt } from './yaml-fields.js';
 
@@ -33,7 +42,7 @@ export function readComponent(r: Reader, e: Entry): ComponentData | undefined {
   }
   const f = r.entries(v, `component \`${e.key}\``, e.keyNode);
   if (!f) return undefined;
-  r.checkKeys(f, ['Tc', 'Pc', 'omega', 'MW', 'formula', 'name'], `component \`${e.key}\``);
+  r.checkKeys(f, ['Tc', 'Pc', 'omega', 'MW', 'formula', 'name', 'cp', 'hf', 'gf'], `component \`${e.key}\``);
   const ctx = { atmosphere: 101325 };
   // One message names every key a component of the file's own lacks.
   const missing = lib ? [] : ['Tc', 'Pc', 'omega', 'formula'].filter((k) => !r.find(f, k) && !r.strayNear(f, k));
@@ -60,10 +69,73 @@ export function readComponent(r: Reader, e: Entry): ComponentData | undefined {
   let MW = get('MW') ? quantityAt(r, get('MW')!.value, 'molarMass', `\`MW\` of \`${e.key}\``, { above: 0, example: '58.12 g/mol' }, ctx) : undefined;
   if (MW === undefined && !get('MW') && formula) MW = molarMass(formula);
   const name = get('name') ? r.string(get('name')!.value, `\`name\` of \`${e.key}\``) : lib?.name ?? e.key;
+  const cp = get('cp') ? readCp(r, get('cp')!, e.key) : lib?.cp;
+  const hf = get('hf') ? quantityAt(r, get('hf')!.value, 'molarEnergy', `\`hf\` of \`${e.key}\``, { example: '-110.53 kJ/mol' }, ctx) : lib?.hf;
+  const gf = get('gf') ? quantityAt(r, get('gf')!.value, 'molarEnergy', `\`gf\` of \`${e.key}\``, { example: '-137.17 kJ/mol' }, ctx) : lib?.gf;
   if (!ok || Tc === undefined || Pc === undefined || omega === undefined || formula === undefined || MW === undefined) return undefined;
+  if ((get('cp') && !cp) || (get('hf') && hf === undefined) || (get('gf') && gf === undefined)) return undefined;
+  const own = ['cp', 'hf', 'gf'].filter((k) => get(k));
+  const thermoSource = own.length ? `${own.join(', ')} given in ${r.src.path}${lib?.thermoSource ? `; the rest: ${lib.thermoSource}` : ''}` : lib?.thermoSource;
   return {
     id: e.key, name: name ?? e.key, formula, MW, Tc, Pc, omega,
     source: lib ? `${lib.source}; overridden in ${r.src.path}` : `given in ${r.src.path}`,
+    ...(cp ? { cp } : {}), ...(hf !== undefined ? { hf } : {}), ...(gf !== undefined ? { gf } : {}),
+    ...(thermoSource ? { thermoSource } : {}),
   };
+}
+
+/** The widest range a constant heat capacity is taken as valid over, K (the state flashes' limits). */
+const CONSTANT_CP_RANGE = [20, 6000] as const;
+
+/** `cp:` of a component of the file: a constant heat capacity, or a Cp/R polynomial with its range. */
+function readCp(r: Reader, e: Entry, id: string): CpCorrelation | undefined {
+  const what = `\`cp\` of \`${id}\``;
+  const ctx = { atmosphere: 101325 };
+  const v = e.value;
+  if (!r.isMap(v)) {
+    const c = quantityAt(r, v, 'molarHeatCapacity', what, { above: 0, example: '29.1 J/(mol K)' }, ctx);
+    if (c === undefined) return undefined;
+    return { pieces: [{ a: [c / R], Tmin: CONSTANT_CP_RANGE[0], Tmax: CONSTANT_CP_RANGE[1] }] };
+  }
+  const f = r.entries(v, what, e.keyNode);
+  if (!f) return undefined;
+  r.checkKeys(f, ['over-R', 'Tmin', 'Tmax'], what);
+  const poly = r.find(f, 'over-R');
+  const lo = r.find(f, 'Tmin');
+  const hi = r.find(f, 'Tmax');
+  if (!poly || !lo || !hi) {
+    r.bag.error(`${what} as a polynomial needs \`over-R\` (the coefficients of Cp/R in powers of T/K), \`Tmin\` and \`Tmax\``, r.at(e.keyNode), 'for example `cp: { over-R: [3.259, 1.36e-3], Tmin: 298 K, Tmax: 1500 K }`, or a constant `cp: 29.1 J/(mol K)`');
+    return undefined;
+  }
+  const items = r.list(poly.value, `\`over-R\` of ${what}`);
+  if (!items) return undefined;
+  const a: number[] = [];
+  for (const it of items) {
+    const x = r.number(it, `a coefficient of \`over-R\` of ${what}`, '3.5');
+    if (x === undefined) return undefined;
+    a.push(x);
+  }
+  if (a.length === 0 || a.length > 5) {
+    r.bag.error(`\`over-R\` of ${what} has ${a.length} coefficients; give 1 to 5 (Cp/R = a0 + a1 T + ... + a4 T^4, T in K)`, r.at(poly.value));
+    return undefined;
+  }
+  const Tmin = quantityAt(r, lo.value, 'temperature', `\`Tmin\` of ${what}`, { above: 0, example: '298 K' }, ctx);
+  const Tmax = quantityAt(r, hi.value, 'temperature', `\`Tmax\` of ${what}`, { above: 0, example: '1500 K' }, ctx);
+  if (Tmin === undefined || Tmax === undefined) return undefined;
+  if (!(Tmax > Tmin)) {
+    r.bag.error(`${what}: \`Tmax\` (${Tmax} K) must be above \`Tmin\` (${Tmin} K)`, r.at(hi.value));
+    return undefined;
+  }
+  // the heat capacity must stay positive over its range (checked at 50 points)
+  for (let k = 0; k <= 50; k++) {
+    const T = Tmin + ((Tmax - Tmin) * k) / 50;
+    let c = 0;
+    for (let j = a.length - 1; j >= 0; j--) c = c * T + a[j];
+    if (!(c > 0)) {
+      r.bag.error(`${what}: the polynomial gives Cp/R = ${Number(c.toPrecision(4))} at ${Number(T.toPrecision(5))} K, inside its range; a heat capacity is positive`, r.at(poly.value), 'check the coefficients (Cp/R, T in kelvin) and the range');
+      return undefined;
+    }
+  }
+  return { pieces: [{ a, Tmin, Tmax }] };
 }
 

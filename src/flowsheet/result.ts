@@ -4,6 +4,7 @@
  * edits a result afterwards.
  */
 import { phaseAt, type FeedResult } from '../blocks/feed.js';
+import { describeMissing, missingEnergyKeys, outsideRangeIds } from '../blocks/energy.js';
 import type { Stream, UnitSummary } from '../blocks/types.js';
 import type { EvaluationFailure, HistoryEntry, SolveResult, Status } from '../solve/types.js';
 import type { Balance } from './balance.js';
@@ -24,6 +25,10 @@ export interface StreamResult {
   molarMass: number;
   /** kg/m3 at the stream's T and P from the file's equation of state, for a single phase; NaN where two-phase or not computed. */
   density: number;
+  /** Molar enthalpy, J/mol (formation basis); NaN when the energy balance is off. */
+  h: number;
+  /** Enthalpy flow, W (total times h); NaN when the energy balance is off. */
+  enthalpy: number;
 }
 
 export interface TargetReport {
@@ -97,6 +102,7 @@ export function assembleResult(
   for (const b of rt.blocks) if (!done.has(b.spec.name)) units.set(b.spec.name, { type: b.spec.type, figures: [], notes: [] });
   let feedTotal = 0;
   for (const f of rt.feeds) feedTotal += f.molarFlow;
+  warnings = [...warnings, ...energyWarnings(rt)];
   return {
     status: verdict.status, method: verdict.method, passes: verdict.passes, iterations: verdict.iterations, jacobians: verdict.jacobians,
     residual: verdict.residual, scaledResidual: verdict.scaledResidual, history: verdict.history,
@@ -124,7 +130,12 @@ function streamResult(rt: Runtime, s: Stream, withDensity: boolean): StreamResul
   const fractions = new Float64Array(rt.n).fill(total > 0 ? 0 : Number.NaN);
   if (total > 0) for (let i = 0; i < rt.n; i++) fractions[i] = s.flows[i] / total;
   const molarMass = total > 0 ? mass / total : Number.NaN;
-  return { flows: Float64Array.from(s.flows), total, fractions, T: s.T, P: s.P, vaporFraction: s.vf, massFlow: mass, molarMass, density: withDensity ? densityOf(rt, s, fractions, molarMass) : Number.NaN };
+  const h = rt.energy ? s.h : Number.NaN;
+  return {
+    flows: Float64Array.from(s.flows), total, fractions, T: s.T, P: s.P, vaporFraction: s.vf, massFlow: mass, molarMass,
+    density: withDensity ? densityOf(rt, s, fractions, molarMass) : Number.NaN,
+    h, enthalpy: total > 0 ? total * h : rt.energy ? 0 : Number.NaN,
+  };
 }
 
 /** Density of a single-phase stream (kg/m3); NaN when it is two-phase or its state is not known. */
@@ -137,4 +148,54 @@ function densityOf(rt: Runtime, s: Stream, x: Float64Array, molarMass: number): 
   else phase = 'two-phase';
   if (phase === 'two-phase') return Number.NaN;
   return molarMass / rt.eos.molarVolume(s.T, s.P, x, phase === 'liquid' ? 'liquid' : phase === 'vapor' ? 'vapor' : 'stable');
+}
+
+/**
+ * What the energy side has to say about the state: the energy balance off (once, naming the
+ * components and the keys to add), streams at temperatures outside a present component's
+ * heat-capacity range, and pressures that rise through a unit that cannot raise them.
+ */
+function energyWarnings(rt: Runtime): string[] {
+  const out: string[] = [];
+  for (const { block, ins, outs } of rt.sequence) {
+    if (block.raisesPressure) continue;
+    let pMax = -Infinity;
+    for (const s of ins) if (s.P > pMax) pMax = s.P;
+    for (let k = 0; k < outs.length; k++) {
+      if (outs[k].P > pMax * (1 + 1e-9)) {
+        out.push(`the pressure rises through \`${block.spec.name}\` (${block.spec.type}) from ${Number((pMax / 1e5).toPrecision(6))} bar to ${Number((outs[k].P / 1e5).toPrecision(6))} bar at \`${block.spec.outlets[k]}\`, and only a compressor raises pressure: check the pressures, or add a compressor`);
+        break;
+      }
+    }
+  }
+  if (!rt.energy) {
+    const miss = missingEnergyKeys(rt.model.components);
+    out.push(`no energy balance: ${describeMissing(miss)} ${miss.length > 1 ? 'have' : 'has'} no thermal data; add the keys to ${miss.length > 1 ? 'those components' : 'that component'} under \`components:\` to get enthalpies, duties and the energy balance`);
+    return out;
+  }
+  // one line per component: the streams whose temperature its heat-capacity correlation does not cover
+  const z = new Float64Array(rt.n);
+  const byComponent = new Map<string, { streams: string[]; lo: number; hi: number }>();
+  for (const name of rt.streamOrder) {
+    const s = rt.streams.get(name)!;
+    let F = 0;
+    for (let i = 0; i < rt.n; i++) F += s.flows[i];
+    if (!(F > 0) || !Number.isFinite(s.T)) continue;
+    for (let i = 0; i < rt.n; i++) z[i] = s.flows[i] / F;
+    for (const id of outsideRangeIds(rt.model.components, s.T, z)) {
+      const e = byComponent.get(id) ?? { streams: [], lo: Infinity, hi: -Infinity };
+      e.streams.push(name);
+      e.lo = Math.min(e.lo, s.T);
+      e.hi = Math.max(e.hi, s.T);
+      byComponent.set(id, e);
+    }
+  }
+  for (const [id, e] of byComponent) {
+    const c = rt.model.components[rt.model.index.get(id)!];
+    const p = c.cp!.pieces;
+    const range = `${p[0].Tmin} K to ${p[p.length - 1].Tmax} K`;
+    const at = e.lo === e.hi ? `${Number(e.lo.toPrecision(5))} K` : `${Number(e.lo.toPrecision(5))} K to ${Number(e.hi.toPrecision(5))} K`;
+    out.push(`the heat-capacity correlation of ${id} covers ${range}; ${e.streams.length > 1 ? 'streams' : 'stream'} ${e.streams.map((x) => `\`${x}\``).join(', ')} at ${at} use${e.streams.length > 1 ? '' : 's'} it extrapolated`);
+  }
+  return out;
 }

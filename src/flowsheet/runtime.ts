@@ -9,7 +9,8 @@
  */
 import { feed as FEED, type FeedResult } from '../blocks/feed.js';
 import { BLOCKS } from '../blocks/registry.js';
-import { newStream, type BlockRuntime, type Stream } from '../blocks/types.js';
+import { newStream, type BlockRuntime, type PhaseChecks, type Stream } from '../blocks/types.js';
+import { enthalpyByRule, equilibriumEnthalpy, hasEnergyData, OutletState } from '../blocks/energy.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import { makeEos } from '../thermo/eos.js';
 import { meterEosFor, type MeterEos } from '../thermo/meter-eos.js';
@@ -55,6 +56,17 @@ export interface Runtime {
   readonly tearOutputs: Stream[];
   /** Unknowns per tear stream: n flows, then T and P. */
   readonly perTear: number;
+  /** Whether the energy balance is on: every component has cp and hf. */
+  readonly energy: boolean;
+  /**
+   * Sets the molar enthalpy of tear guess t from its flows, T and P, by the rule its maker
+   * last used (the taker's recomputation: h is no tear variable). No-op with the energy off.
+   */
+  tearEnthalpy(t: number): void;
+  /** Clears warm starts kept between passes (so that a solve does not depend on the previous one). */
+  resetWarmStarts(): void;
+  /** How thoroughly the blocks check phases: the tear problem's passes set `thorough` false while they run. */
+  readonly checks: PhaseChecks;
   /** Runs all blocks in order with the tear streams as they are; returns the conditions met (a reused array). */
   pass(): readonly Condition[];
   /** Switches to another model, rebuilding only what differs. */
@@ -79,6 +91,9 @@ class FlowsheetRuntime implements Runtime {
   tearStreams: Stream[] = [];
   tearOutputs: Stream[] = [];
   perTear = 2;
+  energy = false;
+  private tearStates: OutletState[] = [];
+  readonly checks: PhaseChecks = { thorough: true };
   private readonly conditions: Condition[] = [];
   private fixedEos: Eos | undefined;
 
@@ -99,6 +114,21 @@ class FlowsheetRuntime implements Runtime {
     return c;
   }
 
+  tearEnthalpy(t: number): void {
+    if (!this.energy) return;
+    const g = this.tearStreams[t];
+    const rule = this.tearOutputs[t].hRule;
+    g.hRule = rule;
+    const h = enthalpyByRule(this.eos, g, rule, this.tearStates[t]);
+    // no flow: the guess carries no enthalpy (0 keeps it finite)
+    g.h = Number.isFinite(h) ? h : 0;
+  }
+
+  resetWarmStarts(): void {
+    for (const s of this.tearStates) s.reset();
+    for (const b of this.blocks) b.reset?.();
+  }
+
   load(model: Model): void {
     const cur = this.model;
     if (model === cur) return;
@@ -108,7 +138,7 @@ class FlowsheetRuntime implements Runtime {
       return;
     }
     this.model = model;
-    const ctx = { model, eos: this.eos, meter: this.meter };
+    const ctx = { model, eos: this.eos, meter: this.meter, energy: this.energy, checks: this.checks };
     model.feeds.forEach((f, k) => {
       if (f === cur.feeds[k]) return;
       this.feeds[k] = this.feedResult(f);
@@ -125,7 +155,7 @@ class FlowsheetRuntime implements Runtime {
   }
 
   private feedResult(f: FeedSpec): FeedResult {
-    return FEED.result(FEED.build(f, { model: this.model, eos: this.eos, meter: this.meter }));
+    return FEED.result(FEED.build(f, { model: this.model, eos: this.eos, meter: this.meter, energy: this.energy }));
   }
 
   private setFeedStream(f: FeedResult): void {
@@ -134,12 +164,20 @@ class FlowsheetRuntime implements Runtime {
     s.T = f.T;
     s.P = f.P;
     s.vf = f.phase === 'vapor' ? 1 : f.phase === 'liquid' ? 0 : Number.NaN;
+    s.h = Number.NaN;
+    if (this.energy) {
+      // The feed's enthalpy at its own T and P, in its equilibrium state (the taker's inlet).
+      const e = equilibriumEnthalpy(this.eos, f.T, f.P, f.flows);
+      s.h = Number.isFinite(e.h) ? e.h : 0;
+      if (f.phase === 'two-phase') s.vf = e.vf;
+    }
   }
 
   private rebuild(model: Model): void {
     this.model = model;
     const n = model.ids.length;
     this.n = n;
+    this.energy = hasEnergyData(model.components);
     this.perTear = n + 2;
     this.eos = this.fixedEos ?? makeEos(model.thermo.eos, model.components, model.thermo.kij);
     this.meter = meterEosFor(model.thermo.meterEos, this.eos);
@@ -155,7 +193,7 @@ class FlowsheetRuntime implements Runtime {
     }
     this.blocks = [];
     this.byName = new Map();
-    const ctx = { model, eos: this.eos };
+    const ctx = { model, eos: this.eos, meter: this.meter, energy: this.energy, checks: this.checks };
     for (const u of model.units) {
       const b = BLOCKS[u.type].build(u, ctx);
       this.blocks.push(b);
@@ -179,6 +217,7 @@ class FlowsheetRuntime implements Runtime {
     this.recycles = findRecycles(model.units, this.plan);
     this.tearStreams = this.plan.tears.map((t) => guesses.get(t)!);
     this.tearOutputs = this.plan.tears.map((t) => this.streams.get(t)!);
+    this.tearStates = this.plan.tears.map((t) => new OutletState(this.eos, t, this.checks));
   }
 }
 

@@ -42,7 +42,7 @@ export interface SolveFlowsheetOptions {
 export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): FlowsheetResult {
   const rt = opts.runtime ?? createRuntime(model, opts.eos);
   rt.load(model);
-  for (const b of rt.blocks) b.reset?.();
+  rt.resetWarmStarts();
   const N = rt.tearStreams.length * rt.perTear;
   const rtol = opts.rtol ?? model.solver.rtol;
   const budget = opts.maxPasses ?? model.solver.maxPasses ?? DEFAULT_MAX_PASSES;

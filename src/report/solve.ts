@@ -51,7 +51,11 @@ export function resultObject(r: FlowsheetResult): Record<string, unknown> {
   if (ok) {
     base.streams = Object.fromEntries(r.streamOrder.map((name) => {
       const s = r.streams.get(name)!;
-      return [name, { flows: record(ids, s.flows), total: s.total, fractions: record(ids, s.fractions), T: orNull(s.T), P: orNull(s.P), vaporFraction: orNull(s.vaporFraction), massFlow: s.massFlow, molarMass: orNull(s.molarMass), density: orNull(s.density) }];
+      return [name, {
+        flows: record(ids, s.flows), total: s.total, fractions: record(ids, s.fractions), T: orNull(s.T), P: orNull(s.P), vaporFraction: orNull(s.vaporFraction), massFlow: s.massFlow,
+        molarMass: orNull(s.molarMass), density: orNull(s.density),
+        ...(Number.isFinite(s.h) ? { molarEnthalpy: s.h, enthalpy: s.enthalpy } : {}),
+      }];
     }));
     base.products = r.products;
     base.units = Object.fromEntries([...r.units].map(([name, u]) => [name, {
@@ -77,8 +81,8 @@ export function resultObject(r: FlowsheetResult): Record<string, unknown> {
 /** The last iterate by tear stream: component flows (mol/s), T (K), P (Pa). */
 function lastTears(r: FlowsheetResult): { stream: string; flows: Record<string, number | null>; T: number; P: number }[] {
   const ids = r.model.ids;
-  const m = ids.length + 2;
-  if (r.x.length !== r.tears.length * m) return [];
+  const m = r.tears.length ? r.x.length / r.tears.length : 0;
+  if (m !== ids.length + 2 && m !== ids.length + 3) return [];
   return r.tears.map((stream, t) => ({
     stream,
     flows: record(ids, r.x.subarray(t * m, t * m + ids.length)),
@@ -136,7 +140,9 @@ export function solveCsv(r: FlowsheetResult, opts: SolveReportOptions = {}): str
   const ctx = { atmosphere: r.model.thermo.atmosphere };
   const pu = r.model.display.pressureUnit;
   const tu = r.model.display.temperatureUnit;
-  const lines = [csvLine(['stream', ...ids.map((id) => `${id} [${fu}]`), `total [${fu}]`, ...ids.map((id) => `x ${id}`), `T [${tu}]`, `P [${pu}]`, 'vapor fraction', 'molar mass [g/mol]', 'density [kg/m3]'])];
+  const energy = [...r.streams.values()].some((s) => Number.isFinite(s.h));
+  const lines = [csvLine(['stream', ...ids.map((id) => `${id} [${fu}]`), `total [${fu}]`, ...ids.map((id) => `x ${id}`), `T [${tu}]`, `P [${pu}]`, 'vapor fraction', 'molar mass [g/mol]', 'density [kg/m3]',
+    ...(energy ? ['molar enthalpy [J/mol]', 'enthalpy flow [W]'] : [])])];
   // A state that is not a solution gives no rows; the first line says so, as a comment.
   if (r.status !== 'converged') return `# status: ${r.status}: ${(r.message ?? 'no solution').replace(/\s+/g, ' ')}\n${lines[0]}\n`;
   for (const name of r.streamOrder) {
@@ -151,6 +157,7 @@ export function solveCsv(r: FlowsheetResult, opts: SolveReportOptions = {}): str
       Number.isFinite(s.vaporFraction) ? s.vaporFraction : '',
       Number.isFinite(s.molarMass) ? s.molarMass * 1000 : '',
       Number.isFinite(s.density) ? s.density : '',
+      ...(energy ? [Number.isFinite(s.h) ? s.h : '', Number.isFinite(s.enthalpy) ? s.enthalpy : ''] : []),
     ]));
   }
   return lines.join('\n') + '\n';
@@ -217,16 +224,28 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
   rows.push(['vapor fraction', ...names.map((s) => num(r.streams.get(s)!.vaporFraction, 4))]);
   rows.push(['molar mass g/mol', ...names.map((s) => num(r.streams.get(s)!.molarMass * 1000, 5))]);
   rows.push(['density kg/m3', ...names.map((s) => num(r.streams.get(s)!.density, 5))]);
+  const energy = r.balance.energy !== undefined;
+  if (energy) {
+    rows.push(['h [kJ/mol]', ...names.map((s) => num(r.streams.get(s)!.h / 1000, 6))]);
+    rows.push(['enthalpy flow [kW]', ...names.map((s) => num(r.streams.get(s)!.enthalpy / 1000, 6))]);
+  }
   out.push(table(['', ...names], rows));
+  if (energy) out.push('  (enthalpies on the formation basis: elements at 298.15 K and 1 bar have H = 0; a cubic equation of state is a weak liquid model, so liquid enthalpies of polar components carry a few percent)');
 
   out.push('');
   out.push('Units');
   for (const [name, u] of r.units) {
     const parts: string[] = [];
-    for (const rx of u.reactions ?? []) parts.push(`${rx.equation}: extent ${F(rx.extent)} ${fu}, conversion of ${rx.key} ${num(rx.conversion, 5)}`);
+    for (const rx of u.reactions ?? []) {
+      parts.push(`${rx.equation}: extent ${F(rx.extent)} ${fu}, conversion of ${rx.key} ${num(rx.conversion, 5)}${rx.heatOfReaction !== undefined ? `, heat of reaction ${num(rx.heatOfReaction / 1000, 5)} kJ/mol at the outlet T (ideal gas)` : ''}`);
+    }
     for (const f of u.figures) {
       if (f.key.startsWith('extent.') || f.kind === 'count') continue;
-      parts.push(`${f.label} ${f.kind === 'molarFlow' ? `${F(f.value)} ${fu}` : f.kind === 'temperature' ? `${num(toUnit(f.value, 'temperature', tu, ctx), 5)} ${tu}` : f.kind === 'pressure' ? `${num(toUnit(f.value, 'pressure', pu, ctx), 5)} ${pu}` : num(f.value, 5)}`);
+      const v = f.kind === 'molarFlow' ? `${F(f.value)} ${fu}`
+        : f.kind === 'power' ? `${num(f.value / 1000, 6)} kW`
+          : f.kind === 'temperature' ? `${num(toUnit(f.value, 'temperature', tu, ctx), 5)} ${tu}`
+            : f.kind === 'pressure' ? `${num(toUnit(f.value, 'pressure', pu, ctx), 5)} ${pu}` : num(f.value, 5);
+      parts.push(`${f.label} ${v}`);
     }
     out.push(`  ${name} (${u.type}): ${parts.join('; ') || '-'}${u.notes.length ? `  [${u.notes.join('; ')}]` : ''}`);
   }
@@ -249,6 +268,14 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
   out.push('');
   out.push(table(['element', `in (${fu} of atoms)`, 'out', 'closure'], Object.entries(b.elements).map(([el, e]) => [el, F(e.in), F(e.out), num(e.closure, 2)])));
   out.push(`  total mass: in ${num(b.mass.in * 3600, 6)} kg/h, out ${num(b.mass.out * 3600, 6)} kg/h, closure ${num(b.mass.closure, 2)}`);
+  if (b.energy) {
+    const kw = (v: number) => num(v / 1000, 7);
+    out.push('');
+    out.push('Energy (kW; closure = (in + duty + power - out) / scale; duty is heat into the material, power is shaft work into the fluid)');
+    const rowsE: string[][] = [['overall', kw(b.energy.in), kw(b.energy.out), kw(b.energy.duty), kw(b.energy.power), num(b.energy.closure, 2)]];
+    for (const [name, e] of Object.entries(b.unitEnergy ?? {})) rowsE.push([name, kw(e.in), kw(e.out), kw(e.duty), kw(e.power), num(e.closure, 2)]);
+    out.push(table(['', 'enthalpy in', 'enthalpy out', 'duty', 'power', 'closure'], rowsE));
+  }
   if (r.feeds.length) {
     out.push('');
     out.push('Feeds');

@@ -1,6 +1,7 @@
 /**
  * Outputs addressed by path, read from a solved flowsheet:
- *   streams.NAME.flows.ID | streams.NAME.fractions.ID | streams.NAME.{total,T,P,vapor-fraction,mass-flow,molar-mass,density}
+ *   streams.NAME.flows.ID | streams.NAME.fractions.ID |
+ *   streams.NAME.{total,T,P,vapor-fraction,mass-flow,molar-mass,density,enthalpy,molar-enthalpy} (enthalpy: W)
  *   loop.recycle-ratio | loop.fresh-feed | loop.conversion.ID (overall; ID a key component)
  *   feeds.NAME.PATH and UNIT.PATH: what the block declares (BlockDef.outputs), e.g.
  *   UNIT.conversion.ID, UNIT.extent.K, UNIT.vapor-fraction, feeds.NAME.{molar-flow,Z,ideal-error}
@@ -25,7 +26,7 @@ export interface OutputRef {
   read(r: FlowsheetResult): number;
 }
 
-const STREAM_FIELDS: Record<string, [Dimension | 'dimensionless', (s: { total: number; T: number; P: number; vaporFraction: number; massFlow: number; molarMass: number; density: number }) => number]> = {
+const STREAM_FIELDS: Record<string, [Dimension | 'dimensionless', (s: { total: number; T: number; P: number; vaporFraction: number; massFlow: number; molarMass: number; density: number; h: number; enthalpy: number }) => number]> = {
   total: ['molarFlow', (s) => s.total],
   T: ['temperature', (s) => s.T],
   P: ['pressure', (s) => s.P],
@@ -33,6 +34,8 @@ const STREAM_FIELDS: Record<string, [Dimension | 'dimensionless', (s: { total: n
   'mass-flow': ['massFlow', (s) => s.massFlow],
   'molar-mass': ['molarMass', (s) => s.molarMass],
   density: ['density', (s) => s.density],
+  enthalpy: ['power', (s) => s.enthalpy],
+  'molar-enthalpy': ['molarEnergy', (s) => s.h],
 };
 
 /** The paths a unit or feed offers, as full paths. */
@@ -82,7 +85,7 @@ export function parseOutput(text: string, model: Model): OutputRef {
       dimension = d;
       read = (r) => f(r.streams.get(name)!);
     } else {
-      throw err(`output \`${path}\`: a stream offers flows.ID, fractions.ID, total, T, P, vapor-fraction, mass-flow, molar-mass and density`, `for example \`streams.${name}.flows.${model.ids[0]}\``);
+      throw err(`output \`${path}\`: a stream offers flows.ID, fractions.ID, total, T, P, vapor-fraction, mass-flow, molar-mass, density, enthalpy (W) and molar-enthalpy (J/mol)`, `for example \`streams.${name}.flows.${model.ids[0]}\``);
     }
   } else if (p[0] === 'loop') {
     const keys = loopKeys(model);

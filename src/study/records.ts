@@ -46,7 +46,7 @@ export interface SweepHeader {
 
 const SI: Record<Dimension, string> = {
   pressure: 'Pa', temperature: 'K', molarFlow: 'mol/s', massFlow: 'kg/s', volumeFlow: 'm3/s', standardFlow: 'mol/s',
-  molarMass: 'kg/mol', density: 'kg/m3', dimensionless: '1', time: 's', molarVolume: 'm3/mol',
+  molarMass: 'kg/mol', density: 'kg/m3', dimensionless: '1', time: 's', molarVolume: 'm3/mol', power: 'W', molarEnergy: 'J/mol', molarHeatCapacity: 'J/(mol K)',
 };
 
 export function sha256(text: string): string {

@@ -108,6 +108,9 @@ function workFor(eos: Eos): StabilityWork {
   return w;
 }
 
+/** Largest |ln W| an extrapolated trial step may reach (exp(300) is far from overflow). */
+const MAX_LN_W = 300;
+
 function runTrial(
   eos: Eos, T: number, P: number, lnz: Float64Array, d: Float64Array, present: Uint8Array,
   lnW0: Float64Array, tol: number, maxIt: number, work: TrialWork,
@@ -173,7 +176,19 @@ function runTrial(
         saved.set(lnW);
         savedTm = tm;
         const f = lambda / (1 - lambda);
-        for (let i = 0; i < n; i++) if (present[i]) lnW[i] += f * step[i];
+        let wild = false;
+        for (let i = 0; i < n; i++) {
+          if (!present[i]) continue;
+          lnW[i] += f * step[i];
+          // with lambda near 1 the extrapolation can throw ln W past what exp() holds (W would
+          // overflow and the trial's mole fractions turn NaN): keep the substitution point then
+          if (!(Math.abs(lnW[i]) < MAX_LN_W)) wild = true;
+        }
+        if (wild) {
+          lnW.set(saved);
+          prevStep.fill(0);
+          continue;
+        }
         accelPending = true;
         prevStep.fill(0);
         continue;

@@ -34,7 +34,10 @@ export type Dimension =
   | 'density'
   | 'dimensionless'
   | 'time'
-  | 'molarVolume';
+  | 'molarVolume'
+  | 'power'
+  | 'molarEnergy'
+  | 'molarHeatCapacity';
 
 export interface Quantity {
   /** SI value (standard flows: m3/s at `standard`). */
@@ -84,6 +87,9 @@ const DIMENSION_NAMES: Readonly<Record<Dimension, string>> = {
   dimensionless: 'a dimensionless number',
   time: 'a time',
   molarVolume: 'a molar volume',
+  power: 'a power (a duty or a shaft power)',
+  molarEnergy: 'a molar energy',
+  molarHeatCapacity: 'a molar heat capacity',
 };
 
 /** SI unit of each dimension (mathjs spelling), used to take factors from mathjs. */
@@ -97,6 +103,9 @@ const SI_UNIT: Readonly<Record<Exclude<Dimension, 'standardFlow' | 'dimensionles
   density: 'kg/m^3',
   time: 's',
   molarVolume: 'm^3/mol',
+  power: 'W',
+  molarEnergy: 'J/mol',
+  molarHeatCapacity: 'J/(mol K)',
 };
 
 /** Units listed in messages and by acceptedUnits. Any other mathjs unit of the right dimension is accepted too. */
@@ -115,6 +124,9 @@ const ACCEPTED: Readonly<Record<Dimension, readonly string[]>> = {
   dimensionless: ['(no unit)', '%', 'ppm'],
   time: ['s', 'min', 'h', 'd'],
   molarVolume: ['m3/mol', 'L/mol', 'cm3/mol', 'm3/kmol', 'ft3/lbmol'],
+  power: ['W', 'kW', 'MW', 'J/s', 'kJ/h', 'MJ/h', 'BTU/h'],
+  molarEnergy: ['J/mol', 'kJ/mol', 'kJ/kmol', 'cal/mol', 'kcal/mol'],
+  molarHeatCapacity: ['J/(mol K)', 'J/mol/K', 'kJ/(kmol K)', 'cal/(mol K)'],
 };
 
 /** The units written in messages for a dimension (not exhaustive: mathjs spellings of the same dimension also parse). */
@@ -135,6 +147,9 @@ function example(d: Dimension, v: string): string {
     case 'density': return `\`${v} kg/m3\``;
     case 'time': return `\`${v} s\` or \`${v} h\``;
     case 'molarVolume': return `\`${v} m3/mol\` or \`${v} L/mol\``;
+    case 'power': return `\`${v} kW\` or \`${v} MW\` (heat into the stream; negative when heat is removed)`;
+    case 'molarEnergy': return `\`${v} kJ/mol\``;
+    case 'molarHeatCapacity': return `\`${v} J/(mol K)\``;
     case 'dimensionless': return `\`${v}\``;
   }
 }
@@ -242,8 +257,10 @@ const DIM_VECTORS: ReadonlyArray<[Exclude<Dimension, 'standardFlow'> | string, r
   ['a mass', [1, 0, 0, 0, 0, 0, 0, 0, 0]],
   ['an amount of substance', [0, 0, 0, 0, 0, 0, 1, 0, 0]],
   ['a force', [1, 1, -2, 0, 0, 0, 0, 0, 0]],
-  ['an energy', [1, 2, -2, 0, 0, 0, 0, 0, 0]],
-  ['a power', [1, 2, -3, 0, 0, 0, 0, 0, 0]],
+  ['power', [1, 2, -3, 0, 0, 0, 0, 0, 0]],
+  ['molarEnergy', [1, 2, -2, 0, 0, 0, -1, 0, 0]],
+  ['molarHeatCapacity', [1, 2, -2, 0, -1, 0, -1, 0, 0]],
+  ['an energy (not a duty: add a time, e.g. kJ/h, or write W)', [1, 2, -2, 0, 0, 0, 0, 0, 0]],
   ['a velocity', [0, 1, -1, 0, 0, 0, 0, 0, 0]],
   ['an electric charge', [0, 0, 1, 1, 0, 0, 0, 0, 0]],
   ['a capacitance', [-1, -2, 4, 2, 0, 0, 0, 0, 0]],

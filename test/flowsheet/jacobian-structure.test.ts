@@ -15,7 +15,7 @@ components:
 /** One recycle loop named by suffix k, fed by `feed`, sending its product to `product-k`. */
 function loop(k: string, feed: string): string {
   return `
-  mix-${k}: { type: mixer, in: [${feed}, rec-${k}], out: rin-${k} }
+  mix-${k}: { type: mixer, in: [${feed}, rec-${k}], out: rin-${k}, T: 300 K }
   rx-${k}:
     type: reactor
     in: rin-${k}

@@ -20,7 +20,7 @@ components:
 feeds:
   fresh: { flows: { A: ${FA} mol/s, I: ${FI} mol/s }, T: 300 K, P: 20 bar }
 units:
-  mix: { type: mixer, in: [fresh, recycle], out: r-in }
+  mix: { type: mixer, in: [fresh, recycle], out: r-in, T: 300 K }   # the components have no thermal data: a set T
   reactor:
     type: reactor
     in: r-in

@@ -62,7 +62,10 @@ function run(seed: number, numRuns: number, equilibrium: boolean) {
 }
 
 describe('random valid loops', () => {
-  it('separators and fixed condenser splits: 600 loops, seed 20240611', () => {
+  // With the energy balance every pass runs flashes (adiabatic mixers), and the loops that do
+  // not converge run to their budget of passes: about 25 s here (12 s before the energy
+  // balance), more on a loaded machine, hence the time allowed.
+  it('separators and fixed condenser splits: 600 loops, seed 20240611', { timeout: 180_000 }, () => {
     const seen = run(20240611, 600, false);
     // The generator reaches every outcome the solver can give (else it tests too little).
     expect(seen.converged).toBeGreaterThan(200);
@@ -160,7 +163,10 @@ units:
     expect(r.status).toBe('converged');
     const obj = resultObject(r) as { streams: Record<string, { vaporFraction: number | null }> };
     expect(nonFinitePaths(obj)).toEqual([]);
-    expect(obj.streams['r-in'].vaporFraction).toBeNull();
+    // the adiabatic mixer flashes its outlet: the feed alone (nothing condenses back at 200 K
+    // into the vapor outlet), ammonia vapor at 250 K and 1 bar, above its normal boiling
+    // point of 239.8 K (from memory)
+    expect(obj.streams['r-in'].vaporFraction).toBe(1);
     expect(obj.streams.product.vaporFraction).toBe(0);
   });
 });

@@ -1,0 +1,271 @@
+/**
+ * The energy side of the blocks and of the solve: closure on every demo, PH and TP flashes
+ * that agree through a heater and a valve, adiabatic and duty-driven units, the compressor's
+ * checks, the pressure rules, a file without thermal data, and duties, powers and enthalpies
+ * as study paths (parameters, outputs, targets).
+ */
+import { readdirSync } from 'node:fs';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { loadFlowsheet, validateText } from '../../src/flowsheet/validate.js';
+import { solveFlowsheet, type FlowsheetResult } from '../../src/flowsheet/solve.js';
+import { resultObject, solveCsv, solveText } from '../../src/report/solve.js';
+import { parameter, withValues } from '../../src/study/parameters.js';
+import { parseOutput, outputValue } from '../../src/study/outputs.js';
+import { parseTarget, solvePoint } from '../../src/study/point.js';
+import { ROOT } from '../helpers/cli.js';
+
+function solve(text: string): FlowsheetResult {
+  return solveFlowsheet(validateText('energy.yaml', text).model);
+}
+
+function figure(r: FlowsheetResult, unit: string, key: string): number {
+  const f = r.units.get(unit)!.figures.find((x) => x.key === key);
+  expect(f, `${unit}.${key}`).toBeDefined();
+  return f!.value;
+}
+
+const DEMOS = readdirSync(join(ROOT, 'flowsheets')).filter((f) => f.endsWith('.yaml')).sort();
+
+describe('energy closure on every demo flowsheet', () => {
+  for (const f of DEMOS) {
+    it(`${f}: converged, energy closed to 1e-9 overall and per unit`, () => {
+      const r = solveFlowsheet(loadFlowsheet(join(ROOT, 'flowsheets', f)).model);
+      expect(r.status, r.message).toBe('converged');
+      const e = r.balance.energy!;
+      expect(e).toBeDefined();
+      expect(Math.abs(e.closure)).toBeLessThanOrEqual(1e-9);
+      for (const [u, b] of Object.entries(r.balance.unitEnergy!)) expect(Math.abs(b.closure), u).toBeLessThanOrEqual(1e-9);
+      // the balance adds up from what the units report
+      let duty = 0;
+      let power = 0;
+      for (const u of r.units.values()) for (const x of u.figures) {
+        if (x.key === 'duty') duty += x.value;
+        if (x.key === 'power') power += x.value;
+      }
+      expect(Math.abs(duty - e.duty)).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(e.duty)));
+      expect(Math.abs(power - e.power)).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(e.power)));
+      for (const s of r.streams.values()) expect(Number.isFinite(s.h)).toBe(true);
+    });
+  }
+});
+
+const TWO_PHASE = `
+components: { H2: {}, N2: {}, NH3: {} }
+thermo: { eos: SRK }
+feeds:
+  liquid: { flows: { NH3: 10 mol/s, H2: 0.05 mol/s, N2: 0.03 mol/s }, T: -10 degC, P: 145 bar }
+units:
+  letdown: { type: valve, in: liquid, out: flashed, P: 2 bar }
+  warm: { type: heater, in: flashed, out: warm-out, duty: 80 kW }
+  check: { type: heater, in: warm-out, out: check-out, T: WARM_T K }
+`;
+
+describe('PH then TP: a valve and a heater agree with the isothermal flash', () => {
+  it('a liquid let down flashes and cools; a heater given a duty finds T, and a heater held at that T takes no duty', () => {
+    // first find the heater's temperature, then hold a second heater at it
+    const first = solve(TWO_PHASE.replace('  check: { type: heater, in: warm-out, out: check-out, T: WARM_T K }\n', ''));
+    expect(first.status, first.message).toBe('converged');
+    const flashed = first.streams.get('flashed')!;
+    const liquid = first.streams.get('liquid')!;
+    expect(flashed.vaporFraction).toBeGreaterThan(0);
+    expect(flashed.vaporFraction).toBeLessThan(1);
+    expect(flashed.T).toBeLessThan(liquid.T);
+    expect(Math.abs(flashed.h - liquid.h)).toBeLessThan(1e-9 * Math.abs(liquid.h));
+    const warm = first.streams.get('warm-out')!;
+    expect(Math.abs(warm.enthalpy - flashed.enthalpy - 80e3)).toBeLessThan(1e-6);
+    const r = solve(TWO_PHASE.replace('WARM_T', String(warm.T)));
+    expect(r.status, r.message).toBe('converged');
+    // the TP flash at the T found by the PH flash gives back the enthalpy (to the flash tolerance)
+    expect(Math.abs(figure(r, 'check', 'duty'))).toBeLessThan(1e-3);
+    expect(Math.abs(r.streams.get('check-out')!.vaporFraction - warm.vaporFraction)).toBeLessThan(1e-8);
+  });
+
+  it('a duty that no state can take (beyond the heat-capacity data) is a not-converged result naming the unit, never a guess', () => {
+    const r = solve(TWO_PHASE.replace('duty: 80 kW', 'duty: 5000 MW').replace(/ {2}check:.*\n/, ''));
+    expect(r.status).toBe('not-converged');
+    expect(r.failure?.unit).toBe('warm');
+    expect(r.message).toMatch(/`warm`: no state at 2 bar has the enthalpy the energy balance asks for/);
+    expect(solveText(r)).not.toMatch(/^Streams/m);
+  });
+
+  it('a valve whose outlet pressure is above its inlet is no letdown: invalid, naming the unit', () => {
+    const r = solve(TWO_PHASE.replace('P: 2 bar', 'P: 160 bar').replace(/ {2}(warm|check):.*\n/g, ''));
+    expect(r.status).toBe('invalid');
+    expect(r.failure?.unit).toBe('letdown');
+    expect(r.message).toMatch(/above the inlet's/);
+  });
+});
+
+const LOOP = `
+components: { H2: {}, N2: {}, Ar: {}, NH3: {} }
+thermo: { eos: SRK }
+feeds:
+  makeup: { composition: { H2: 0.74, N2: 0.25, Ar: 0.01 }, molar-flow: 10 mol/s, T: 40 degC, P: 150 bar }
+units:
+  mix: { type: mixer, in: [makeup, recycle], out: c-in }
+  converter: { type: reactor, in: c-in, out: c-out, REACTOR, reactions: [ { equation: "N2 + 3 H2 -> 2 NH3", key: N2, conversion: 0.2 } ] }
+  chiller: { type: condenser, in: c-out, T: -10 degC, P: 145 bar, vapor: gas, liquid: product }
+  purge-split: { type: splitter, in: gas, out: { purge: 0.03, back: rest } }
+  circulator: { type: compressor, in: back, out: recycle, P: 150 bar, isentropic-efficiency: 0.75 }
+`;
+
+describe('a loop with a recycle compressor and a reactor held three ways', () => {
+  it('T held, duty found; the same duty given finds the same T; adiabatic has no duty and a hotter outlet', () => {
+    const held = solve(LOOP.replace('REACTOR', 'T: 450 degC'));
+    expect(held.status, held.message).toBe('converged');
+    const duty = figure(held, 'converter', 'duty');
+    const byDuty = solve(LOOP.replace('REACTOR', `duty: ${duty} W`));
+    expect(byDuty.status, byDuty.message).toBe('converged');
+    expect(Math.abs(byDuty.streams.get('c-out')!.T - (450 + 273.15))).toBeLessThan(1e-5);
+    const adiabatic = solve(LOOP.replace('REACTOR', 'adiabatic: true'));
+    expect(adiabatic.status, adiabatic.message).toBe('converged');
+    expect(figure(adiabatic, 'converter', 'duty')).toBe(0);
+    // an exothermic reaction from the inlet temperature heats the outlet
+    expect(adiabatic.streams.get('c-out')!.T).toBeGreaterThan(adiabatic.streams.get('c-in')!.T + 50);
+    for (const r of [held, byDuty, adiabatic]) {
+      expect(Math.abs(r.balance.energy!.closure)).toBeLessThanOrEqual(1e-9);
+      expect(figure(r, 'circulator', 'power')).toBeGreaterThan(0);
+      expect(r.balance.energy!.power).toBe(figure(r, 'circulator', 'power'));
+    }
+  });
+
+  it('the mixer reports the makeup let down to the lowest inlet pressure', () => {
+    const r = solve(LOOP.replace('REACTOR', 'T: 450 degC').replace('P: 150 bar, isentropic', 'P: 148 bar, isentropic'));
+    expect(r.status).toBe('converged');
+    expect(r.units.get('mix')!.notes.join(' ')).toMatch(/`makeup` is let down to the lowest inlet pressure, 148 bar/);
+    expect(r.streams.get('c-in')!.P).toBeCloseTo(148e5, 6);
+  });
+
+  it('a pressure that rises without a compressor is warned about', () => {
+    const r = solve(LOOP.replace('REACTOR', 'T: 450 degC, P: 140 bar'));
+    expect(r.status).toBe('converged');
+    expect(r.warnings.join('\n')).toMatch(/the pressure rises through `chiller` \(condenser\) from 140 bar to 145 bar/);
+    expect(solveText(r)).toMatch(/warning: the pressure rises through `chiller`/);
+  });
+
+  it('a compressor whose inlet holds liquid is invalid, naming the unit and its vapor fraction', () => {
+    const r = solve(LOOP.replace('REACTOR', 'T: 450 degC').replace('in: back, out: recycle', 'in: product, out: pumped').replace('purge: 0.03, back: rest', 'purge: 0.03, recycle: rest'));
+    expect(r.status).toBe('invalid');
+    expect(r.failure?.unit).toBe('circulator');
+    expect(r.message).toMatch(/the inlet of compressor `circulator` is not all vapor: vapor fraction 0 /);
+  });
+
+  it('a compressor given an outlet pressure below its inlet is invalid, naming the unit', () => {
+    const r = solve(LOOP.replace('REACTOR', 'T: 450 degC').replace('P: 150 bar, isentropic', 'P: 100 bar, isentropic'));
+    expect(r.status).toBe('invalid');
+    expect(r.failure?.unit).toBe('circulator');
+    expect(r.message).toMatch(/outlet pressure 100 bar is below the inlet's/);
+  });
+
+  it('the reports carry enthalpies, duties, powers and the energy balance', () => {
+    const r = solve(LOOP.replace('REACTOR', 'T: 450 degC'));
+    const obj = resultObject(r) as { streams: Record<string, { enthalpy: number; molarEnthalpy: number; total: number }>; units: Record<string, Record<string, unknown>>; balance: { energy: Record<string, number>; unitEnergy: Record<string, Record<string, number>> } };
+    const g = obj.streams.gas;
+    expect(Math.abs(g.enthalpy - g.total * g.molarEnthalpy)).toBeLessThan(1e-9 * Math.abs(g.enthalpy));
+    expect(typeof obj.units.chiller.duty).toBe('number');
+    expect(typeof obj.units.circulator.power).toBe('number');
+    expect(Object.keys(obj.balance.energy).sort()).toEqual(['closure', 'duty', 'in', 'out', 'power']);
+    expect(obj.balance.unitEnergy.circulator.power).toBe(obj.units.circulator.power);
+    const csv = solveCsv(r).split('\n');
+    expect(csv[0]).toMatch(/molar enthalpy \[J\/mol\],enthalpy flow \[W\]$/);
+    const text = solveText(r);
+    expect(text).toMatch(/^Energy \(kW;/m);
+    expect(text).toMatch(/circulator \(compressor\): power [0-9.]+ kW/);
+  });
+});
+
+describe('a file whose components have no thermal data', () => {
+  const text = `
+components:
+  A: { Tc: 190.6 K, Pc: 46 bar, omega: 0.011, formula: C2H4 }
+  B: { Tc: 305 K, Pc: 49 bar, omega: 0.1, formula: C4H8 }
+feeds:
+  fresh: { flows: { A: 10 mol/s }, T: 300 K, P: 20 bar }
+units:
+  mix: { type: mixer, in: [fresh, recycle], out: r-in, T: 300 K }
+  rx: { type: reactor, in: r-in, out: r-out, reactions: [ { equation: "2 A -> B", key: A, conversion: 0.3 } ] }
+  sep: { type: separator, in: r-out, out: { product: { B: 1 }, gas: rest } }
+  split: { type: splitter, in: gas, out: { purge: 0.05, recycle: rest } }
+`;
+  it('solves the material balance and says once that the energy balance is off, naming the components and keys', () => {
+    const r = solve(text);
+    expect(r.status).toBe('converged');
+    expect(r.balance.energy).toBeUndefined();
+    const notes = r.warnings.filter((w) => /no energy balance/.test(w));
+    expect(notes).toEqual(['no energy balance: `A` (`cp:`, `hf:`), `B` (`cp:`, `hf:`) have no thermal data; add the keys to those components under `components:` to get enthalpies, duties and the energy balance']);
+    expect(resultObject(r).balance).not.toHaveProperty('energy');
+  });
+
+  it('with cp and hf given in the file, the same loop has an energy balance', () => {
+    const withData = text.replace('formula: C2H4 }', 'formula: C2H4, cp: 43 J/(mol K), hf: 52.4 kJ/mol }').replace('formula: C4H8 }', 'formula: C4H8, cp: { over-R: [1.0, 0.03], Tmin: 200 K, Tmax: 1000 K }, hf: -0.1 kJ/mol }');
+    const r = solve(withData.replace(', T: 300 K }', ' }'));
+    expect(r.status, r.message).toBe('converged');
+    expect(Math.abs(r.balance.energy!.closure)).toBeLessThanOrEqual(1e-9);
+    // 2 A -> B releases 2 (52.4) + 0.1 kJ per mol of B at 298.15 K: the isothermal reactor removes heat
+    expect(figure(r, 'rx', 'duty')).toBeLessThan(0);
+  });
+});
+
+describe('duties, powers and enthalpies as study paths', () => {
+  const file = LOOP.replace('REACTOR', 'T: 450 degC');
+  it('a duty is a parameter; UNIT.duty, UNIT.power and streams.NAME.enthalpy are outputs', () => {
+    const { model } = validateText('loop.yaml', file.replace('chiller: { type: condenser, in: c-out, T: -10 degC', 'pre: { type: cooler, in: c-out, out: c-cool, duty: -200 kW }\n  chiller: { type: condenser, in: c-cool, T: -10 degC'));
+    const p = parameter(model, 'pre.duty');
+    expect(p.value).toBe(-200e3);
+    expect(p.dimension).toBe('power');
+    const m2 = withValues(model, [{ parameter: p, value: -300e3 }]);
+    const r = solveFlowsheet(m2);
+    expect(r.status, r.message).toBe('converged');
+    expect(outputValue(parseOutput('pre.duty[kW]', m2), r)).toBeCloseTo(-300, 9);
+    expect(outputValue(parseOutput('circulator.power', m2), r)).toBe(figure(r, 'circulator', 'power'));
+    const h = outputValue(parseOutput('streams.c-cool.enthalpy[kW]', m2), r);
+    const hIn = outputValue(parseOutput('streams.c-out.enthalpy[kW]', m2), r);
+    expect(Math.abs(h - hIn + 300)).toBeLessThan(1e-6);
+  });
+
+  it('a target holds an outlet temperature by a heater duty', () => {
+    const { model } = validateText('loop.yaml', file.replace('mix: { type: mixer, in: [makeup, recycle], out: c-in }', 'mix: { type: mixer, in: [makeup, recycle], out: m-out }\n  preheat: { type: heater, in: m-out, out: c-in, duty: 500 kW }'));
+    const t = parseTarget(model, 'streams.c-in.T = 250 degC', 'preheat.duty', '0:3000 kW');
+    const r = solvePoint(model, [], { targets: [t] });
+    expect(r.status, r.message).toBe('converged');
+    expect(Math.abs(r.result!.streams.get('c-in')!.T - 523.15)).toBeLessThan(1e-6);
+    expect(figure(r.result!, 'preheat', 'duty')).toBeGreaterThan(0);
+  });
+});
+
+describe('thermal data of the file\'s own components', () => {
+  const base = (body: string) => `
+components:
+  H2: {}
+  X: ${body}
+feeds:
+  f: { flows: { H2: 1 mol/s, X: 1 mol/s }, T: 300 K, P: 5 bar }
+units:
+  h: { type: heater, in: f, out: g, T: 400 K }
+`;
+  it('a body that overrides a built-in row keeps the row\'s heat capacity and formation data', () => {
+    const { model } = validateText('o.yaml', base('{ Tc: 190.6 K }').replace('  X: { Tc: 190.6 K }', '  CH4: { Tc: 190.6 K }').replace('X: 1 mol/s', 'CH4: 1 mol/s'));
+    const c = model.components[1];
+    expect(c.id).toBe('CH4');
+    expect(c.cp).toBeDefined();
+    // methane: -74.5 kJ/mol (Active Thermochemical Tables) to -74.9 kJ/mol (NIST-JANAF), from memory
+    expect(Math.abs(c.hf! + 74.7e3)).toBeLessThan(500);
+    expect(c.source).toMatch(/overridden in o\.yaml/);
+  });
+
+  it('a Cp/R polynomial gives the heater the duty the integral gives', () => {
+    const r = solve(base('{ Tc: 305 K, Pc: 49 bar, omega: 0.1, formula: C2H6, cp: { over-R: [2.0, 0.01], Tmin: 200 K, Tmax: 1000 K }, hf: -84 kJ/mol }').replace('heater, in: f, out: g, T: 400 K', 'heater, in: f, out: g, T: 400 K').replace('P: 5 bar', 'P: 0.01 bar'));
+    expect(r.status, r.message).toBe('converged');
+    // at 0.01 bar the gas is ideal to about 1e-4: duty = integral of Cp over 300..400 K for both
+    const R = 8.314462618;
+    const x = R * (2.0 * 100 + 0.005 * (400 ** 2 - 300 ** 2));
+    const h2 = r.streams.get('g')!.h * 2 - r.streams.get('f')!.h * 2 - x; // what H2 took
+    expect(h2).toBeGreaterThan(2.8e3); // H2's Cp near 29 J/(mol K) over 100 K
+    expect(h2).toBeLessThan(3.0e3);
+  });
+
+  it('a polynomial that turns negative inside its range is refused at its coefficients', () => {
+    expect(() => validateText('n.yaml', base('{ Tc: 305 K, Pc: 49 bar, omega: 0.1, formula: C2H6, cp: { over-R: [1.0, -0.01], Tmin: 200 K, Tmax: 1000 K }, hf: -84 kJ/mol }'))).toThrow(/the polynomial gives Cp\/R = -1 at 200 K, inside its range; a heat capacity is positive/);
+  });
+});
