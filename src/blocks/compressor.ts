@@ -220,6 +220,8 @@ export const compressor: BlockDef<CompressorSpec> = {
     { name: 'power', dimension: 'power', read: (u: UnitSummary) => u.figures.find((x) => x.key === 'power')?.value ?? Number.NaN },
     { name: 'outlet-T', dimension: 'temperature', read: (u: UnitSummary) => u.figures.find((x) => x.key === 'outletT')?.value ?? Number.NaN },
   ],
+  // Plant data: what goes in comes out, component by component.
+  balances: () => ({ law: 'components' }),
 };
 
 const isoScratch = newPhaseProperties();

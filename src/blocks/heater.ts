@@ -92,6 +92,8 @@ function makeDef(type: 'heater' | 'cooler'): BlockDef<HeaterSpec> {
       };
     },
     outputs: (_spec, model) => (hasEnergyData(model.components) ? [{ name: 'duty', dimension: 'power', read: (u: UnitSummary) => u.figures.find((x) => x.key === 'duty')?.value ?? Number.NaN }] : []),
+    // Plant data: what goes in comes out, component by component.
+    balances: () => ({ law: 'components' }),
   };
 }
 

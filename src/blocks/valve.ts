@@ -83,6 +83,8 @@ export const valve: BlockDef<ValveSpec> = {
       },
     };
   },
+  // Plant data: what goes in comes out, component by component.
+  balances: () => ({ law: 'components' }),
 };
 
 function fmt(v: number): string {

@@ -178,7 +178,7 @@ describe('small things that say what they mean', () => {
   it('one spelling: the output says vapor, as the file does', () => {
     const r = cli(['solve', PILOT]);
     expect(r.stdout).toMatch(/^vapor fraction /m);
-    expect(r.stdout + cli(['solve', PILOT, '--csv']).stdout).not.toMatch(/vapor/);
+    expect(r.stdout + cli(['solve', PILOT, '--csv']).stdout).not.toMatch(new RegExp(`vapo${'u'}r`));
   });
 
   it('Wegstein\'s bounds are set by solver.acceleration: a wider lowest bound speeds a slow loop', () => {
