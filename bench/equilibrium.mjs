@@ -6,16 +6,14 @@
 //
 //   node bench/equilibrium.mjs [--json] [--quick]
 //
-// The script bundles the thermodynamics from src/ with esbuild into a temporary folder and imports
-// that (the library bundle does not export the solver until the reactor block uses it). Every
-// figure is the median of repeated batches after a warm-up (bench/timing.mjs). Aim: an equilibrium
-// reactor adds at most 2x to the time per pass of the same loop at fixed conversion; compare the
-// warm figures with the demos' microseconds per pass (`node bench/run.mjs --only demos`).
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir, cpus, loadavg } from 'node:os';
+// The script uses the library build (dist/index.mjs; `node build.mjs` first). Every figure is the
+// median of repeated batches after a warm-up (bench/timing.mjs). The aim (an equilibrium reactor
+// adds at most 2x to the time per pass of the same loop at fixed conversion) is measured on whole
+// loops by `node bench/run.mjs --only equilibrium`, which also prints these figures.
+import { existsSync } from 'node:fs';
+import { cpus, loadavg } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
-import { build } from 'esbuild';
 import { fmt, measure, table } from './timing.mjs';
 
 const here = dirname(fileURLToPath(import.meta.url));
@@ -121,24 +119,12 @@ if (process.argv[1] && fileURLToPath(import.meta.url) === resolve(process.argv[1
   const args = process.argv.slice(2);
   const json = args.includes('--json');
   const quick = args.includes('--quick');
-  const dir = mkdtempSync(join(tmpdir(), 'loopclose-equilibrium-'));
-  let lib;
-  try {
-    const src = join(here, '..', 'src', 'thermo');
-    const entry = join(dir, 'entry.ts');
-    writeFileSync(entry, [
-      `export { findComponent } from ${JSON.stringify(join(src, 'components.ts'))};`,
-      `export { makeEos } from ${JSON.stringify(join(src, 'eos.ts'))};`,
-      `export { phaseEnthalpy } from ${JSON.stringify(join(src, 'enthalpy.ts'))};`,
-      `export { prepareEquilibrium } from ${JSON.stringify(join(src, 'equilibrium.ts'))};`,
-      `export { solveAdiabaticEquilibrium, newAdiabaticResult } from ${JSON.stringify(join(src, 'equilibrium-adiabatic.ts'))};`,
-    ].join('\n'));
-    const outfile = join(dir, 'equilibrium.mjs');
-    await build({ entryPoints: [entry], outfile, bundle: true, platform: 'node', format: 'esm', target: 'node20', logLevel: 'warning' });
-    lib = await import(pathToFileURL(outfile).href);
-  } finally {
-    rmSync(dir, { recursive: true, force: true });
+  const libPath = join(here, '..', 'dist', 'index.mjs');
+  if (!existsSync(libPath)) {
+    process.stderr.write(`bench: ${libPath} is missing; run \`node build.mjs\` first\n`);
+    process.exit(2);
   }
+  const lib = await import(pathToFileURL(libPath).href);
   const measured = measureEquilibrium(lib, { quick });
   const out = { machine: { node: process.version, cpus: cpus().length, cpu: cpus()[0]?.model ?? '?' }, quick, cases: measured.cases };
   if (json) {

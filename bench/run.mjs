@@ -3,7 +3,7 @@
 // runs after a warm-up; comparisons are ratios measured in the same run (absolute times on a
 // shared machine drift from run to run).
 //
-//   node bench/run.mjs [--json] [--quick] [--root DIR] [--only meter,gerg,demos,flash,scaling,sweep,cold,plant]
+//   node bench/run.mjs [--json] [--quick] [--root DIR] [--only meter,gerg,demos,flash,equilibrium,scaling,sweep,cold,plant]
 //
 // --root DIR benchmarks another build of the project (DIR/dist/index.mjs, DIR/bin/loopclose.js,
 // DIR/flowsheets), e.g. a copy of an earlier commit, so before and after come from one machine.
@@ -16,6 +16,7 @@ import { cpus, loadavg } from 'node:os';
 import { fmt, logLogSlope, measure, median, processTime, table } from './timing.mjs';
 import { generateFlowsheet } from './generate.mjs';
 import { GERG_HEADER, measureGerg } from './gerg.mjs';
+import { EQUILIBRIUM_HEADER, measureEquilibrium } from './equilibrium.mjs';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const args = process.argv.slice(2);
@@ -27,7 +28,7 @@ const value = (f, d) => {
 const json = flag('--json');
 const quick = flag('--quick');
 const root = resolve(value('--root', join(here, '..')));
-const only = new Set((value('--only', 'meter,gerg,demos,flash,scaling,sweep,cold,plant')).split(','));
+const only = new Set((value('--only', 'meter,gerg,demos,flash,equilibrium,scaling,sweep,cold,plant')).split(','));
 const libPath = join(root, 'dist', 'index.mjs');
 const cliPath = join(root, 'bin', 'loopclose.js');
 if (!existsSync(libPath)) {
@@ -152,6 +153,81 @@ if (only.has('demos')) {
     out.demos.map((d) => [d.flowsheet.replace('.yaml', ''), fmt(d.ratios.passesDirectOverWegstein), fmt(d.ratios.timeDirectOverWegstein), fmt(d.ratios.timeWegsteinOverNewton)]),
   ));
   say('aims (methanol demo): Wegstein <= 20 passes, Newton <= 4 Jacobians; <= 0.05 ms/solve (split), <= 1 ms (equilibrium)');
+}
+
+// ---------------------------------------------------------------------------------------------
+// 2c. Reactions at equilibrium: the same loop with its converter at equilibrium and at the fixed
+//     conversions that equilibrium reaches (so both loops settle on nearly the same state), time
+//     per pass; and the equilibrium solver alone (bench/equilibrium.mjs).
+// ---------------------------------------------------------------------------------------------
+if (only.has('equilibrium') && lib.prepareEquilibrium) {
+  const pairs = [
+    { label: 'ammonia-loop (450 degC)', file: 'ammonia-loop.yaml', from: '{ equation: "N2 + 3 H2 -> 2 NH3", key: N2, conversion: 0.22 }', to: '{ equation: "N2 + 3 H2 -> 2 NH3", equilibrium: true, approach: 20 K }' },
+    { label: 'ammonia-loop-adiabatic', file: 'ammonia-loop-adiabatic.yaml', from: '{ equation: "N2 + 3 H2 -> 2 NH3", key: N2, conversion: 0.22 }', to: '{ equation: "N2 + 3 H2 -> 2 NH3", equilibrium: true, approach: 20 K }' },
+    { label: 'ammonia-loop-two-beds', file: 'ammonia-loop-two-beds.yaml' },
+    { label: 'methanol-pilot-equilibrium', file: 'methanol-pilot-equilibrium.yaml' },
+  ];
+  const rows = [];
+  out.equilibrium = { loops: [] };
+  for (const pair of pairs) {
+    const path = flowsheetPath(pair.file);
+    if (!existsSync(path)) continue;
+    const original = readFileSync(path, 'utf8');
+    const eqText = pair.from ? original.replace(pair.from, pair.to) : original;
+    if (!eqText.includes('equilibrium: true')) continue;
+    const eqModel = lib.validateText(pair.file, eqText).model;
+    const first = lib.solveFlowsheet(eqModel);
+    if (first.status !== 'converged') throw new Error(`${pair.label}: ${first.status} ${first.message}`);
+    // The fixed-conversion twin: every reaction at equilibrium replaced by its converged conversion.
+    let fixedText = eqText;
+    for (const [name, u] of first.units) {
+      for (const rx of u.reactions ?? []) {
+        if (!rx.equilibrium) continue;
+        const re = new RegExp(`\\{ equation: "${rx.equation.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}", equilibrium: true[^}]*\\}`);
+        const spot = fixedText.indexOf(`${name}:`);
+        const head = fixedText.slice(0, spot);
+        const tail = fixedText.slice(spot).replace(re, `{ equation: "${rx.equation}", key: ${rx.key}, conversion: ${rx.conversion} }`);
+        fixedText = head + tail;
+      }
+    }
+    const fixedModel = lib.validateText(pair.file, fixedText).model;
+    // Interleaved batches (equilibrium, fixed, equilibrium, ...): the ratio is the median of the
+    // per-batch ratios, so that the machine's drift cancels.
+    const solveEq = () => lib.solveFlowsheet(eqModel);
+    const solveFx = () => lib.solveFlowsheet(fixedModel);
+    const warmA = measure(solveEq, { ...reps, batches: 1, warmupMs: quick ? 50 : 1000 });
+    const warmB = measure(solveFx, { ...reps, batches: 1, warmupMs: quick ? 50 : 1000 });
+    const e = warmA.last;
+    const f = warmB.last;
+    const tEq = [];
+    const tFx = [];
+    const ratios = [];
+    for (let b = 0; b < reps.batches; b++) {
+      let s = performance.now();
+      for (let k = 0; k < warmA.perBatch; k++) solveEq();
+      const a = (performance.now() - s) / warmA.perBatch;
+      s = performance.now();
+      for (let k = 0; k < warmB.perBatch; k++) solveFx();
+      const c = (performance.now() - s) / warmB.perBatch;
+      tEq.push(a);
+      tFx.push(c);
+      ratios.push(a / e.passes / (c / f.passes));
+    }
+    const msEq = median(tEq);
+    const msFx = median(tFx);
+    const ratio = median(ratios);
+    const perPassEq = (msEq * 1000) / e.passes;
+    const perPassFx = (msFx * 1000) / f.passes;
+    out.equilibrium.loops.push({ flowsheet: pair.label, equilibrium: { status: e.status, passes: e.passes, ms: msEq, usPerPass: perPassEq }, fixed: { status: f.status, passes: f.passes, ms: msFx, usPerPass: perPassFx }, perPassRatio: ratio });
+    rows.push([pair.label, `${f.status} ${f.passes}`, fmt(msFx), fmt(perPassFx), `${e.status} ${e.passes}`, fmt(msEq), fmt(perPassEq), fmt(ratio)]);
+  }
+  say('\n2c. Converters at equilibrium against the same loop at the conversions equilibrium reaches (auto method)');
+  say(table(['flowsheet', 'fixed: status passes', 'ms/solve', 'us/pass', 'equilibrium: status passes', 'ms/solve', 'us/pass', 'per pass eq/fixed'], rows));
+  say('aim: an equilibrium reactor adds at most 2x to the time per pass');
+  const eqSolver = measureEquilibrium(lib, { quick });
+  out.equilibrium.solver = eqSolver.cases;
+  say('the equilibrium solver alone, microseconds per solve (bench/equilibrium.mjs):');
+  say(table(EQUILIBRIUM_HEADER, eqSolver.rows));
 }
 
 // ---------------------------------------------------------------------------------------------

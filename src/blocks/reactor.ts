@@ -7,6 +7,17 @@
  * steady state: the extents are scaled down to what is available (so the solvers see a
  * continuous map), and the block reports the shortfall as an infeasibility.
  *
+ * Equilibrium: a reaction written `equilibrium: true` (with an optional `approach: 20 K`) takes no
+ * conversion or extent: its extent is what brings it to chemical equilibrium at the reactor's
+ * outlet temperature and pressure (src/thermo/equilibrium.ts: K(T) from the formation Gibbs
+ * energies and the ideal-gas heat capacities, fugacity coefficients from the file's equation of
+ * state; with an approach, the equilibrium of T + approach for an exothermic reaction and of
+ * T - approach for an endothermic one). All the reactions at equilibrium of a reactor are solved
+ * together, on what reaches them after the reactions at fixed conversion or extent (applied first,
+ * in parallel or in sequence as the reactor says). An adiabatic converter finds its outlet
+ * temperature and its equilibrium together. `key` is optional for an equilibrium reaction (the
+ * conversion of its first reactant is reported without one).
+ *
  * Energy: `T:` holds the outlet at T (isothermal; the duty that takes is reported), and so does
  * a reactor with none of `T`, `adiabatic` and `duty`, at its inlet temperature; `adiabatic: true`
  * or `duty:` (W, heat into the reactor's material) finds the outlet T from the enthalpy
@@ -19,16 +30,24 @@ import type { UnitSpecBase } from '../flowsheet/model.js';
 import { parseEquation, elementImbalance, EquationError } from '../thermo/reaction.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import { hIG } from '../thermo/ideal-gas.js';
+import { makeEos } from '../thermo/eos.js';
+import { prepareEquilibrium, type EquilibriumResult, type EquilibriumSolver } from '../thermo/equilibrium.js';
+import { newAdiabaticResult, solveAdiabaticEquilibrium, type AdiabaticResult } from '../thermo/equilibrium-adiabatic.js';
 import type { BlockDef, Stream, UnitFigure, UnitSummary } from './types.js';
 import { combineInlets } from './combine.js';
-import { checkCorrelationRange, describeMissing, enthalpyIn, hasEnergyData, missingEnergyKeys, OutletState, powerFigure, setFromState } from './energy.js';
+import { checkCorrelationRange, describeMissing, enthalpyIn, hasEnergyData, missingEnergyKeys, OutletState, powerFigure, setFromState, type StateFound } from './energy.js';
 
 export interface ReactionSpec {
   equation: string;
   nu: Float64Array;
+  /** The component whose conversion is reported (an equilibrium reaction without `key`: its first reactant). */
   key: number;
   conversion?: number;
   extent?: number;
+  /** Held at chemical equilibrium (its extent follows from K). */
+  equilibrium?: boolean;
+  /** Approach to equilibrium, K (equilibrium reactions only). */
+  approach?: number;
 }
 
 export interface ReactorSpec extends UnitSpecBase {
@@ -46,10 +65,13 @@ export interface ReactorSpec extends UnitSpecBase {
 
 /** Relative shortfall below which a reactant is taken as exactly used up (rounding). */
 const SHORTFALL_TOL = 1e-12;
+/** Outlet temperatures an adiabatic converter at equilibrium is searched between, K. */
+const ADIABATIC_TMIN = 150;
+const ADIABATIC_TMAX = 2500;
 
 export const reactor: BlockDef<ReactorSpec> = {
   type: 'reactor',
-  description: 'reactions by fixed conversion of a key reactant or fixed extent',
+  description: 'reactions by fixed conversion of a key reactant, fixed extent, or chemical equilibrium',
   keys: ['in', 'out', 'reactions', 'sequence', 'T', 'P', 'dp', 'adiabatic', 'duty'],
   read(name, f) {
     const inlet = f.streams('in', { required: true });
@@ -64,25 +86,45 @@ export const reactor: BlockDef<ReactorSpec> = {
     if (!items) return undefined;
     const reactions: ReactionSpec[] = [];
     let ok = true;
+    const readers: typeof items = [];
     for (const it of items) {
-      it.checkKeys(['equation', 'key', 'conversion', 'extent']);
+      it.checkKeys(['equation', 'key', 'conversion', 'extent', 'equilibrium', 'approach']);
       const eq = it.string('equation', { required: true, example: '"CO2 + 3 H2 -> CH3OH + H2O"' });
-      const key = it.component('key', { required: true });
+      const atEquilibrium = it.boolean('equilibrium') ?? false;
+      const key = atEquilibrium && !it.has('key') ? undefined : it.component('key', { required: true });
       const hasX = it.has('conversion');
       const hasE = it.has('extent');
-      if (hasX === hasE) {
-        it.error(null, `${it.what} needs exactly one of \`conversion\` (per pass, 0 to 1) and \`extent\` (mol/s)`, 'for example `conversion: 0.25`');
-        ok = false;
+      let approach: number | undefined;
+      if (atEquilibrium) {
+        if (hasX || hasE) {
+          it.errorAtKey(hasX ? 'conversion' : 'extent', `${it.what} is at \`equilibrium\`, so it takes no \`${hasX ? 'conversion' : 'extent'}\`: its extent follows from the equilibrium constant`, 'remove it, or remove `equilibrium: true` to fix the conversion');
+          ok = false;
+        }
+        if (it.has('approach')) {
+          // A temperature difference: in kelvin (a reading such as `20 degC` would be a temperature).
+          approach = it.quantity('approach', 'temperature', { min: 0, max: 200, example: '20 K', difference: true });
+          if (approach === undefined) ok = false;
+        }
+      } else {
+        if (it.has('approach')) {
+          it.errorAtKey('approach', `${it.what} has an \`approach\` but is not at equilibrium`, 'add `equilibrium: true`, or remove `approach`');
+          ok = false;
+        }
+        if (hasX === hasE) {
+          it.error(null, `${it.what} needs exactly one of \`conversion\` (per pass, 0 to 1) and \`extent\` (mol/s)`, 'for example `conversion: 0.25`, or `equilibrium: true` to let the equilibrium decide');
+          ok = false;
+        }
       }
-      const conversion = hasX ? it.number('conversion', { min: 0, max: 1, example: '0.25' }) : undefined;
-      const extent = hasE ? it.quantity('extent', 'molarFlow', { min: 0, example: '0.8 mol/s' }) : undefined;
-      if (eq === undefined || key === undefined || (hasX && conversion === undefined) || (hasE && extent === undefined)) {
+      const conversion = hasX && !atEquilibrium ? it.number('conversion', { min: 0, max: 1, example: '0.25' }) : undefined;
+      const extent = hasE && !atEquilibrium ? it.quantity('extent', 'molarFlow', { min: 0, example: '0.8 mol/s' }) : undefined;
+      if (eq === undefined || (!atEquilibrium && key === undefined) || (hasX && !atEquilibrium && conversion === undefined) || (hasE && !atEquilibrium && extent === undefined)) {
         ok = false;
         continue;
       }
       let nu: Float64Array;
+      let species: number[];
       try {
-        nu = parseEquation(eq, f.componentIds).nu;
+        ({ nu, species } = parseEquation(eq, f.componentIds));
       } catch (e) {
         if (!(e instanceof EquationError)) throw e;
         it.error('equation', e.message, e.help);
@@ -97,12 +139,39 @@ export const reactor: BlockDef<ReactorSpec> = {
         ok = false;
         continue;
       }
-      if (!(nu[key] < 0)) {
+      if (key !== undefined && !(nu[key] < 0)) {
         it.error('key', `the key \`${f.componentIds[key]}\` is not a reactant of \`${eq}\``, 'the key must appear on the left of the arrow');
         ok = false;
         continue;
       }
-      reactions.push({ equation: eq, nu, key, conversion, extent });
+      if (atEquilibrium) {
+        // K(T) needs the formation data of every species of the reaction.
+        const lacking = [...nu.keys()].filter((i) => nu[i] !== 0).map((i) => f.components[i]).filter((c) => c.cp === undefined || c.hf === undefined || c.gf === undefined);
+        if (lacking.length) {
+          const names: Record<string, string> = { cp: '`cp` (ideal-gas heat capacity)', hf: '`hf` (enthalpy of formation)', gf: '`gf` (Gibbs energy of formation)' };
+          it.errorAtKey('equilibrium', `${it.what} is at equilibrium, but ${lacking.map((c) => `\`${c.id}\` has no ${['cp', 'hf', 'gf'].filter((k) => c[k as 'cp' | 'hf' | 'gf'] === undefined).map((k) => names[k]).join(', no ')}`).join('; ')}`,
+            'K(T) needs cp, hf and gf of every species of the reaction: add them to those components under `components:` (e.g. `gf: -16.4 kJ/mol`, ideal gas at 298.15 K and 1 bar), or give the reaction a fixed `conversion`');
+          ok = false;
+          continue;
+        }
+      }
+      // Without a key: the reactant written first in the equation.
+      const firstReactant = species.find((i) => nu[i] < 0) ?? 0;
+      reactions.push({ equation: eq, nu, key: key ?? firstReactant, conversion, extent, ...(atEquilibrium ? { equilibrium: true, approach } : {}) });
+      readers.push(it);
+    }
+    const atEq = reactions.filter((rx) => rx.equilibrium);
+    if (ok && atEq.length) {
+      // The equilibrium solver's own checks of the set (independent reactions), at read time.
+      const prepared = prepareEquilibrium(makeEos('ideal', f.components), atEq.map((rx) => ({ nu: rx.nu, approach: rx.approach, label: `\`${rx.equation}\`` })));
+      if (prepared.status === 'invalid') {
+        for (const pr of prepared.problems) {
+          const r = pr.reaction >= 0 ? reactions.indexOf(atEq[pr.reaction]) : -1;
+          if (r >= 0) readers[r].error(null, `${readers[r].what}: ${pr.message}`, pr.help);
+          else f.error('reactions', `unit \`${name}\`: ${pr.message}`, pr.help);
+        }
+        return undefined;
+      }
     }
     if (!ok || !inlet || !out) return undefined;
     if (!sequence) {
@@ -135,6 +204,31 @@ export const reactor: BlockDef<ReactorSpec> = {
     let duty = 0;
     const comps = ctx.model.components;
 
+    // Reactions at equilibrium: one solver for all of them, warm-started from the last pass.
+    const eqIdx: number[] = [];
+    spec.reactions.forEach((rx, r) => {
+      if (rx.equilibrium) eqIdx.push(r);
+    });
+    let eqSolver: EquilibriumSolver | undefined;
+    let eqResult: EquilibriumResult | undefined;
+    let adResult: AdiabaticResult | undefined;
+    const eqStart = new Float64Array(eqIdx.length);
+    let eqWarm = false;
+    const eqLnK = new Float64Array(R).fill(Number.NaN);
+    const eqTeq = new Float64Array(R).fill(Number.NaN);
+    const eqNote: string[] = [];
+    if (eqIdx.length) {
+      const prepared = prepareEquilibrium(ctx.eos, eqIdx.map((r) => {
+        const rx = spec.reactions[r];
+        return { nu: rx.nu, approach: rx.approach, key: rx.key, label: `\`${rx.equation}\`` };
+      }));
+      // read() ran the same checks on the same reactions; a set refused here is a program fault.
+      if (prepared.status !== 'ok') throw new Error(`reactor ${spec.name}: ${prepared.problems.map((p) => p.message).join('; ')}`);
+      eqSolver = prepared.solver;
+      eqResult = eqSolver.newResult();
+      if (spec.adiabatic || spec.duty !== undefined) adResult = newAdiabaticResult(eqSolver);
+    }
+
     const shortfall = (i: number, need: number, have: number, rx: ReactionSpec | null): EvaluationFailure => {
       const what = rx
         ? `reaction \`${rx.equation}\` (${rx.conversion !== undefined ? `conversion ${rx.conversion} of ${ids[rx.key]}` : `extent ${rx.extent} mol/s`})`
@@ -150,10 +244,76 @@ export const reactor: BlockDef<ReactorSpec> = {
       };
     };
 
+    let lastOutT = Number.NaN;
+    const reactionHeats = (T: number) => {
+      for (let r = 0; r < R; r++) {
+        const nu = spec.reactions[r].nu;
+        let q = 0;
+        for (let i = 0; i < n; i++) if (nu[i] !== 0) q += nu[i] * hIG(comps[i], T);
+        heat[r] = q;
+      }
+    };
+    /** Takes a converged equilibrium into the outlet flows f, the extents and the generation; else the failure. */
+    const takeEquilibrium = (res: EquilibriumResult, f: Float64Array): EvaluationFailure | null => {
+      eqNote.length = 0;
+      if (res.status !== 'converged') {
+        eqWarm = false;
+        return equilibriumFailure(res.status, res.message);
+      }
+      for (let q = 0; q < eqIdx.length; q++) {
+        const r = eqIdx[q];
+        const e = res.extents[q];
+        ext[r] = e;
+        req[r] = e;
+        keyIn[r] = f[spec.reactions[r].key];
+        eqLnK[r] = res.lnK[q];
+        eqTeq[r] = res.Teq[q];
+        const nu = spec.reactions[r].nu;
+        for (let i = 0; i < n; i++) gen[i] += nu[i] * e;
+      }
+      eqStart.set(res.extents);
+      eqWarm = true;
+      if (res.message) eqNote.push(res.message);
+      for (let i = 0; i < n; i++) {
+        const v = res.flows[i];
+        f[i] = v > 0 ? v : 0;
+      }
+      return null;
+    };
+    const equilibriumFailure = (status: EquilibriumResult['status'], text: string): EvaluationFailure => {
+      // The solver's own advice, when it gives one, ends its message as "(to fix: ...)".
+      const own = /^([\s\S]*?) \(to fix: ([^)]*)\)([\s\S]*)$/.exec(text);
+      const message = own ? own[1] + own[3] : text;
+      return {
+        kind: status === 'converged' ? 'invalid' : status,
+        unit: spec.name,
+        message: `reactor \`${spec.name}\`: ${message}`,
+        help: own ? own[2] : status === 'infeasible'
+        ? 'the converter model is one gas phase: raise its temperature or lower its pressure, or check the feed'
+          : status === 'not-converged' ? 'the equilibrium was not found from this state: try --method direct, or check the converter\'s T and P' : 'check the converter\'s T, P and feed',
+      };
+    };
+    /**
+     * The equilibrium holds for one gas phase. With the energy balance the outlet's flash (with its
+     * stability test on a thorough pass) says whether it is one; without, on a thorough pass (the
+     * final pass of a solve above all), the tangent-plane test of the outlet.
+     */
+    const phaseAtEnd = (T: number, P: number, flows: Float64Array, found?: StateFound): EvaluationFailure | null => {
+      if (!eqSolver) return null;
+      let why: string | null = null;
+      if (found) {
+        if (found.phase !== 'vapor') why = `at ${fmt(T)} K and ${fmt(P / 1e5)} bar the converter outlet is ${found.phase === 'liquid' ? 'a liquid' : `two phases (vapor fraction ${fmt(found.beta)})`}; the equilibrium model is for one gas phase`;
+      } else if (ctx.checks === undefined || ctx.checks.thorough) {
+        why = eqSolver.phaseProblem(T, P, flows);
+      }
+      return why ? { kind: 'infeasible', unit: spec.name, message: `reactor \`${spec.name}\`: ${why}`, help: 'raise the converter\'s temperature or lower its pressure' } : null;
+    };
+
     return {
       spec,
       reset() {
         state.reset();
+        eqWarm = false;
       },
       compute(ins: readonly Stream[], outs: Stream[]) {
         const o = outs[0];
@@ -170,7 +330,7 @@ export const reactor: BlockDef<ReactorSpec> = {
           for (let r = 0; r < R; r++) {
             const rx = spec.reactions[r];
             keyIn[r] = f[rx.key];
-            req[r] = rx.conversion !== undefined ? (rx.conversion * f[rx.key]) / -rx.nu[rx.key] : rx.extent!;
+            req[r] = rx.equilibrium ? 0 : rx.conversion !== undefined ? (rx.conversion * f[rx.key]) / -rx.nu[rx.key] : rx.extent!;
             ext[r] = req[r];
             for (let i = 0; i < n; i++) if (rx.nu[i] < 0) cons[i] -= rx.nu[i] * req[r];
           }
@@ -201,6 +361,10 @@ export const reactor: BlockDef<ReactorSpec> = {
           for (let r = 0; r < R; r++) {
             const rx = spec.reactions[r];
             keyIn[r] = f[rx.key];
+            if (rx.equilibrium) {
+              ext[r] = req[r] = 0;
+              continue;
+            }
             req[r] = rx.conversion !== undefined ? (rx.conversion * f[rx.key]) / -rx.nu[rx.key] : rx.extent!;
             let e = req[r];
             let worst = -1;
@@ -231,13 +395,49 @@ export const reactor: BlockDef<ReactorSpec> = {
           o.P = inletP;
           problem ??= pressureBelowZero(spec.name, inletP, spec.dp ?? 0);
         }
+        const fixedT = !spec.adiabatic && spec.duty === undefined;
+        if (eqSolver && fixedT) {
+          // The equilibrium at the outlet temperature, on what the fixed reactions leave.
+          const Tout = spec.T ?? inletT;
+          const res = eqSolver.solve({ T: Tout, P: o.P, flows: f, start: eqWarm ? eqStart : undefined }, eqResult);
+          const failed = takeEquilibrium(res, f);
+          if (failed) return problem ?? failed;
+        }
         if (!energy) {
           o.T = spec.T ?? inletT;
           o.vf = Number.NaN;
           o.h = Number.NaN;
-          return problem;
+          return problem ?? phaseAtEnd(o.T, o.P, f);
         }
         const Hin = enthalpyIn(ins);
+        if (eqSolver && !fixedT) {
+          // Adiabatic or fixed duty: the outlet T and the equilibrium found together.
+          let flashFailure: EvaluationFailure | null = null;
+          const target = Hin + (spec.duty ?? 0);
+          const T0 = Number.isFinite(lastOutT) ? lastOutT : inletT;
+          const ad = solveAdiabaticEquilibrium(eqSolver, { P: o.P, flows: f, start: eqWarm ? eqStart : undefined }, (T, flows) => {
+            const Ft = state.setFlows(flows);
+            if (!(Ft > 0)) return Number.NaN;
+            const fl = state.atTP(T, o.P, true);
+            if (fl) {
+              flashFailure = fl;
+              return Number.NaN;
+            }
+            return Ft * state.found.h - target;
+          }, { Tmin: ADIABATIC_TMIN, Tmax: ADIABATIC_TMAX, T0, tolT: 1e-7 }, adResult);
+          if (ad.status !== 'converged') {
+            if (flashFailure) return problem ?? flashFailure;
+            return problem ?? equilibriumFailure(ad.status, `the adiabatic equilibrium: ${ad.message}`);
+          }
+          const failed = takeEquilibrium(ad.equilibrium, f);
+          if (failed) return problem ?? failed;
+          lastOutT = ad.T;
+          // state.found is the state of the last trial: the outlet at ad.T with these flows.
+          setFromState(o, state.found, true);
+          duty = spec.duty ?? 0;
+          reactionHeats(o.T);
+          return problem ?? phaseAtEnd(o.T, o.P, f, state.found);
+        }
         const F = state.setFlows(f);
         if (!(F > 0)) {
           o.T = spec.T ?? inletT;
@@ -245,17 +445,12 @@ export const reactor: BlockDef<ReactorSpec> = {
           o.h = Number.isFinite(ins[0]?.h) ? ins[0].h : 0;
           return problem;
         }
-        const fixedT = !spec.adiabatic && spec.duty === undefined;
         const fail = fixedT ? state.atTP(spec.T ?? inletT, o.P, true) : state.atPH(o.P, (Hin + (spec.duty ?? 0)) / F, inletT);
         setFromState(o, state.found, true);
         duty = fixedT ? F * o.h - Hin : spec.duty ?? 0;
-        for (let r = 0; r < R; r++) {
-          const nu = spec.reactions[r].nu;
-          let q = 0;
-          for (let i = 0; i < n; i++) if (nu[i] !== 0) q += nu[i] * hIG(comps[i], o.T);
-          heat[r] = q;
-        }
-        return problem ?? fail;
+        if (!fixedT) lastOutT = o.T;
+        reactionHeats(o.T);
+        return problem ?? fail ?? phaseAtEnd(o.T, o.P, f, state.found);
       },
       generation: () => gen,
       energy: () => ({ duty, power: 0 }),
@@ -268,6 +463,12 @@ export const reactor: BlockDef<ReactorSpec> = {
         const notes: string[] = [];
         if (spec.T === undefined && !spec.adiabatic && spec.duty === undefined) notes.push(energy ? 'isothermal at the inlet temperature (no `T`, `duty` or `adiabatic` given)' : 'outlet T carried from the inlet; no energy balance');
         if (spec.adiabatic) notes.push('adiabatic');
+        for (const r of eqIdx) {
+          const rx = spec.reactions[r];
+          figures.push({ label: `equilibrium temperature of ${rx.equation}`, value: eqTeq[r], kind: 'temperature', key: `equilibrium-temperature.${r}` });
+          figures.push({ label: `equilibrium constant of ${rx.equation}`, value: Math.exp(eqLnK[r]), kind: 'number', key: `equilibrium-constant.${r}` });
+        }
+        notes.push(...eqNote);
         return {
           figures,
           notes,
@@ -278,6 +479,7 @@ export const reactor: BlockDef<ReactorSpec> = {
             conversion: keyIn[r] > 0 ? (ext[r] * -rx.nu[rx.key]) / keyIn[r] : 0,
             requested: rx.conversion,
             ...(energy && Number.isFinite(heat[r]) ? { heatOfReaction: heat[r] } : {}),
+            ...(rx.equilibrium ? { equilibrium: true, equilibriumConstant: Math.exp(eqLnK[r]), equilibriumTemperature: eqTeq[r], approach: rx.approach ?? 0 } : {}),
           })),
           conversions,
         };
@@ -303,6 +505,10 @@ export const reactor: BlockDef<ReactorSpec> = {
         dimension: 'molarFlow' as const,
         read: (u: UnitSummary) => u.reactions?.[r]?.extent ?? Number.NaN,
       })),
+      ...spec.reactions.flatMap((rx, r) => rx.equilibrium ? [
+        { name: `equilibrium-temperature.${r}`, dimension: 'temperature' as const, read: (u: UnitSummary) => u.reactions?.[r]?.equilibriumTemperature ?? Number.NaN },
+        { name: `equilibrium-constant.${r}`, dimension: 'dimensionless' as const, read: (u: UnitSummary) => u.reactions?.[r]?.equilibriumConstant ?? Number.NaN },
+      ] : []),
     ];
   },
   balances(spec) {
@@ -330,7 +536,8 @@ export const reactor: BlockDef<ReactorSpec> = {
         const n = model.ids.length;
         const have = Uint8Array.from(have0);
         for (const rx of spec.reactions) {
-          if (active(rx)) {
+          // A reaction at equilibrium that cannot proceed has extent 0, and its solve says so.
+          if (active(rx) && !rx.equilibrium) {
             const missing: number[] = [];
             for (let i = 0; i < n; i++) if (rx.nu[i] < 0 && !have[i]) missing.push(i);
             if (missing.includes(rx.key)) {
@@ -343,7 +550,7 @@ export const reactor: BlockDef<ReactorSpec> = {
                 `feed ${names} upstream of \`${spec.name}\`, or change the equation`);
             }
           }
-          if (spec.sequence && active(rx) && rx.nu.every((x, i) => x >= 0 || have[i])) {
+          if (spec.sequence && active(rx) && !rx.equilibrium && rx.nu.every((x, i) => x >= 0 || have[i])) {
             for (let i = 0; i < n; i++) if (rx.nu[i] > 0) have[i] = 1;
           }
         }
@@ -400,8 +607,9 @@ function keyComponents(spec: ReactorSpec): number[] {
   return out;
 }
 
-/** Whether a reaction runs at all (a zero conversion or extent does nothing). */
+/** Whether a reaction runs at all (a zero conversion or extent does nothing; one at equilibrium may run). */
 function active(rx: ReactionSpec): boolean {
+  if (rx.equilibrium) return true;
   return rx.conversion !== undefined ? rx.conversion > 0 : (rx.extent ?? 0) > 0;
 }
 
@@ -415,17 +623,21 @@ function reactorOutlet(spec: ReactorSpec, inlet: Uint8Array): { out: Uint8Array;
   const cur = Uint8Array.from(inlet);
   const consumed = new Uint8Array(n);
   const formed = new Uint8Array(n);
-  const canRun = (rx: ReactionSpec, have: Uint8Array) => {
-    if (!active(rx)) return false;
-    for (let i = 0; i < n; i++) if (rx.nu[i] < 0 && !have[i]) return false;
-    return true;
+  // The direction a reaction can run in: 1 forward (its reactants reach it), -1 backward (an
+  // equilibrium reaction whose products reach it and reactants do not), 0 not at all.
+  const direction = (rx: ReactionSpec, have: Uint8Array): number => {
+    if (!active(rx)) return 0;
+    if (rx.nu.every((x, i) => x >= 0 || have[i])) return 1;
+    if (rx.equilibrium && rx.nu.every((x, i) => x <= 0 || have[i])) return -1;
+    return 0;
   };
   if (spec.sequence) {
     for (const rx of spec.reactions) {
-      if (!canRun(rx, cur)) continue;
+      const d = rx.equilibrium ? 0 : direction(rx, cur);
+      if (d === 0) continue;
       for (let i = 0; i < n; i++) {
-        if (rx.nu[i] < 0) consumed[i] = 1;
-        if (rx.nu[i] > 0) {
+        if (d * rx.nu[i] < 0) consumed[i] = 1;
+        if (d * rx.nu[i] > 0) {
           cur[i] = 1;
           formed[i] = 1;
         }
@@ -435,16 +647,34 @@ function reactorOutlet(spec: ReactorSpec, inlet: Uint8Array): { out: Uint8Array;
   } else {
     const fullKey = new Float64Array(n);
     for (const rx of spec.reactions) {
-      if (!canRun(rx, inlet)) continue;
+      const d = rx.equilibrium ? 0 : direction(rx, inlet);
+      if (d === 0) continue;
       for (let i = 0; i < n; i++) {
-        if (rx.nu[i] < 0) consumed[i] = 1;
-        if (rx.nu[i] > 0) formed[i] = 1;
+        if (d * rx.nu[i] < 0) consumed[i] = 1;
+        if (d * rx.nu[i] > 0) formed[i] = 1;
       }
       if (rx.conversion !== undefined) fullKey[rx.key] += rx.conversion;
     }
     for (let i = 0; i < n; i++) {
       if (formed[i]) cur[i] = 1;
       else if (fullKey[i] >= 1 - 1e-12) cur[i] = 0;
+    }
+  }
+  // The reactions at equilibrium take what the others leave, all together: repeated until
+  // nothing more can form (one may form what another needs).
+  for (let changed = true; changed;) {
+    changed = false;
+    for (const rx of spec.reactions) {
+      const d = rx.equilibrium ? direction(rx, cur) : 0;
+      if (d === 0) continue;
+      for (let i = 0; i < n; i++) {
+        if (d * rx.nu[i] < 0) consumed[i] = 1;
+        if (d * rx.nu[i] > 0) {
+          formed[i] = 1;
+          if (!cur[i]) changed = true;
+          cur[i] = 1;
+        }
+      }
     }
   }
   return { out: cur, consumed, formed };

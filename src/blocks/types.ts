@@ -90,6 +90,14 @@ export interface ReactionFigures {
    * value sum_i nu_i h_i^ig(T) (the real-gas mixing terms are in the duty, not here).
    */
   heatOfReaction?: number;
+  /** Held at chemical equilibrium (the extent follows from K). */
+  equilibrium?: boolean;
+  /** K of the reaction at its equilibrium temperature (1 bar standard state, dimensionless). */
+  equilibriumConstant?: number;
+  /** Temperature whose equilibrium the reaction reaches, K: the outlet T, plus the approach when exothermic, less it when endothermic. */
+  equilibriumTemperature?: number;
+  /** Approach to equilibrium as given, K (0 without one). */
+  approach?: number;
 }
 
 export interface UnitSummary {

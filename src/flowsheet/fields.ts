@@ -19,6 +19,8 @@ export interface NumberRule {
   /** Exclusive lower bound. */
   above?: number;
   example?: string;
+  /** A temperature difference (an approach): in K, never in a unit with an offset such as degC. */
+  difference?: boolean;
 }
 
 export interface FieldReader {

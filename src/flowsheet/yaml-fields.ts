@@ -40,9 +40,19 @@ export function unitText(written: string): string {
   return written.trim().replace(/^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?\s*/, '');
 }
 
+/** Whether a unit of this dimension reads a value with an offset (degC, degF): not a difference. */
+export function offsetUnit(unit: string, dim: Dimension): boolean {
+  if (dim !== 'temperature' || unit === '') return false;
+  try {
+    return parseQuantity(`0 ${unit}`, dim).value !== 0;
+  } catch {
+    return false;
+  }
+}
+
 /** Why a value breaks a rule, or undefined. `dim` words the message for pressures and temperatures. */
 export function ruleProblem(what: string, v: number, rule: NumberRule, dim?: Dimension | readonly Dimension[]): string | undefined {
-  const abs = dim === 'pressure' ? ' (absolute, after any gauge conversion)' : dim === 'temperature' ? ' (absolute)' : '';
+  const abs = dim === 'pressure' ? ' (absolute, after any gauge conversion)' : dim === 'temperature' && !rule.difference ? ' (absolute)' : '';
   const si = dim === 'pressure' ? `${fmt(v)} Pa` : dim === 'temperature' ? `${fmt(v)} K` : fmt(v);
   if (rule.above !== undefined && !(v > rule.above)) return `${what} is ${si}${abs}; it must be above ${rule.above === 0 && dim ? 'zero' : rule.above}`;
   if (rule.min !== undefined && v < rule.min) return `${what} is ${si}; it must be at least ${rule.min}`;
@@ -77,7 +87,12 @@ function parsedQuantityAt(r: Reader, node: Node | null, dim: Dimension | readonl
   try {
     q = parseQuantity(v, dim, { atmosphere: ctx.atmosphere, standards: ctx.standards as Map<string, StandardRef> | undefined });
   } catch (err) {
+    if (err instanceof UnitError && err.kind === 'missing-unit' && rule.example) err.help = `write a unit, e.g. \`${rule.example}\``;
     reportUnitError(r, node, what, err);
+    return undefined;
+  }
+  if (rule.difference && offsetUnit(unitText(String(v)), q.dimension)) {
+    r.bag.error(`${what} is a temperature difference, but \`${unitText(String(v))}\` reads a temperature (it has an offset)`, r.at(node), `write the difference in K, e.g. ${rule.example ? `\`${rule.example}\`` : '`20 K`'} (a difference of 1 degC is 1 K)`);
     return undefined;
   }
   if (!checkRule(r, node, what, q.value, rule, dim)) return undefined;

@@ -237,10 +237,13 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
   for (const [name, u] of r.units) {
     const parts: string[] = [];
     for (const rx of u.reactions ?? []) {
-      parts.push(`${rx.equation}: extent ${F(rx.extent)} ${fu}, conversion of ${rx.key} ${num(rx.conversion, 5)}${rx.heatOfReaction !== undefined ? `, heat of reaction ${num(rx.heatOfReaction / 1000, 5)} kJ/mol at the outlet T (ideal gas)` : ''}`);
+      const eq = rx.equilibrium && rx.equilibriumTemperature !== undefined && rx.equilibriumConstant !== undefined
+        ? `, at equilibrium: K ${num(rx.equilibriumConstant, 5)} at ${num(toUnit(rx.equilibriumTemperature, 'temperature', tu, ctx), 5)} ${tu}${rx.approach ? ` (approach ${num(rx.approach, 4)} K)` : ''}`
+        : '';
+      parts.push(`${rx.equation}: extent ${F(rx.extent)} ${fu}, conversion of ${rx.key} ${num(rx.conversion, 5)}${eq}${rx.heatOfReaction !== undefined ? `, heat of reaction ${num(rx.heatOfReaction / 1000, 5)} kJ/mol at the outlet T (ideal gas)` : ''}`);
     }
     for (const f of u.figures) {
-      if (f.key.startsWith('extent.') || f.kind === 'count') continue;
+      if (f.key.startsWith('extent.') || f.key.startsWith('equilibrium-') || f.kind === 'count') continue;
       const v = f.kind === 'molarFlow' ? `${F(f.value)} ${fu}`
         : f.kind === 'power' ? `${num(f.value / 1000, 6)} kW`
           : f.kind === 'temperature' ? `${num(toUnit(f.value, 'temperature', tu, ctx), 5)} ${tu}`

@@ -22,7 +22,7 @@ import { getIn, isSettingMap, setIn, type OwnerSettings, type ParameterSlot, typ
 import { SettingsFields } from '../flowsheet/settings-fields.js';
 import { checkStructure } from '../flowsheet/structure.js';
 import { frozenSettings } from '../flowsheet/validate.js';
-import { ruleProblem, type FieldContext, type Recording } from '../flowsheet/yaml-fields.js';
+import { offsetUnit, ruleProblem, type FieldContext, type Recording } from '../flowsheet/yaml-fields.js';
 import { parseQuantity, UnitError, type Dimension } from '../units/index.js';
 import { FrozenMap } from '../flowsheet/model.js';
 
@@ -40,7 +40,7 @@ export interface Parameter {
   /** SI value in the model (for an outlet written `rest`, what the others leave). */
   value: number;
   /** The bounds the block reads it with. */
-  bounds: { min?: number; max?: number; above?: number };
+  bounds: { min?: number; max?: number; above?: number; difference?: boolean };
   span?: SourceSpan;
   /** A standard volume flow: its reference (a value must be given at the same reference). */
   reference?: string;
@@ -135,6 +135,9 @@ export function toSI(model: Model, p: Parameter, value: number, unit?: string): 
     return value;
   }
   const u = unit ?? p.unit;
+  if (p.bounds.difference && offsetUnit(u, p.dimension)) {
+    throw fail(`\`${p.path}\` is a temperature difference; \`${u}\` reads a temperature (it has an offset)`, 'give the values in K (a difference of 1 degC is 1 K)');
+  }
   try {
     const q = parseQuantity(`${value} ${u}`, p.dimension, { atmosphere: model.thermo.atmosphere, standards: model.thermo.standards as Map<string, never> });
     if (p.reference && q.standard && q.standard.name !== p.reference) {
