@@ -152,6 +152,7 @@ function unitsSection(input: ReportInput, d: Display): string {
     for (const rx of reactions) {
       rows.push([`extent of ${String(rx.equation)} [${d.flowUnit}]`, d.flow(rx.extent)]);
       rows.push([`conversion of ${String(rx.key)} per pass`, d.fraction(rx.conversion, 5)]);
+      if (rx.equilibrium === true) rows.push([`approach to equilibrium of ${String(rx.equation)} [K]`, typeof rx.approach === 'number' ? String(rx.approach) : '0']);
     }
     for (const [label, value] of unitFigures(input, d, u.name)) rows.push([label, value]);
     const notes = Array.isArray(o?.notes) ? (o!.notes as unknown[]).map(String) : [];

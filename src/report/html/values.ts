@@ -166,7 +166,8 @@ export function unitFacts(input: ReportInput, d: Display, name: string): Facts {
   const u = obj(obj(input.result.units)?.[name]);
   const reactions = Array.isArray(u?.reactions) ? (u!.reactions as Obj[]) : [];
   for (const rx of reactions) {
-    rows.push([String(rx.equation), `extent ${d.flow(rx.extent)} ${d.flowUnit}; conversion of ${String(rx.key)} ${d.fraction(rx.conversion, 5)}`]);
+    const eq = rx.equilibrium === true ? `; at equilibrium${typeof rx.approach === 'number' && rx.approach > 0 ? ` less an approach of ${rx.approach} K` : ''}` : '';
+    rows.push([String(rx.equation), `extent ${d.flow(rx.extent)} ${d.flowUnit}; conversion of ${String(rx.key)} ${d.fraction(rx.conversion, 5)}${eq}`]);
   }
   rows.push(...unitFigures(input, d, name));
   const notes = Array.isArray(u?.notes) ? (u!.notes as unknown[]).map(String) : [];
