@@ -84,10 +84,25 @@ export function luStep(fac: Factored, f: Float64Array, dx: Float64Array): void {
 }
 
 
-/** Solves A x = b for a small dense system (A row-major n*n), b overwritten with x; false when A is singular. */
-export function solveDense(A: Float64Array, b: Float64Array, n: number): boolean {
+/**
+ * Solves A x = b for a small dense system (A row-major n*n), b overwritten with x; false when A is
+ * singular, or when its smallest pivot is below minPivotRatio times its largest (default 0: only an
+ * exactly singular A is refused).
+ */
+export function solveDense(A: Float64Array, b: Float64Array, n: number, minPivotRatio = 0): boolean {
   const lu = new LuDecomposition(Matrix.from1DArray(n, n, A));
   if (lu.isSingular()) return false;
+  if (minPivotRatio > 0) {
+    const U = lu.upperTriangularMatrix;
+    let big = 0;
+    let small = Infinity;
+    for (let i = 0; i < n; i++) {
+      const p = Math.abs(U.get(i, i));
+      if (p > big) big = p;
+      if (p < small) small = p;
+    }
+    if (!(small > minPivotRatio * big)) return false;
+  }
   const x = lu.solve(Matrix.columnVector(Array.from(b)));
   for (let i = 0; i < n; i++) {
     const v = x.get(i, 0);

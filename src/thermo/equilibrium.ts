@@ -112,6 +112,7 @@ import { R } from './constants.js';
 import { gIG, hIG, outsideRange, P_STD } from './ideal-gas.js';
 import { reactionSpace, type ReactionSpace } from './equilibrium-space.js';
 import { stabilityTest } from './stability.js';
+import { solveDense } from '../solve/linear.js';
 import type { ComponentData, Eos } from './types.js';
 
 /** One reaction to hold at equilibrium. */
@@ -257,6 +258,8 @@ const ROUNDING = 8 * Number.EPSILON;
 const TO_BOUNDARY = 0.99;
 /** Fraction of its scarcest reactant that a reaction takes in the built-in start. */
 const START_FRACTION = 0.1;
+/** Smallest pivot of the scaled Newton matrix, relative to its largest, before it counts as singular. */
+const PIVOT_RATIO = 1e-13;
 /** Armijo constant of the line search. */
 const ARMIJO = 1e-4;
 /** Halvings of a step before the line search gives up. */
@@ -1264,7 +1267,8 @@ export class EquilibriumSolver {
 /**
  * Solves A d = rhs in place for A of size k x k: scaled symmetrically by the square roots of its
  * diagonal (the ideal-gas part is positive definite, and its diagonal spans the range of 1/n_i),
- * then LU with partial pivoting; A is overwritten and sc is scratch (length k). False when singular.
+ * then the project's dense LU (ml-matrix, partial pivoting; src/solve/linear.ts) with a pivot test;
+ * A is overwritten and sc is scratch (length k). False when singular.
  */
 function luSolve(A: Float64Array, rhs: Float64Array, k: number, sc: Float64Array): boolean {
   for (let c = 0; c < k; c++) {
@@ -1278,40 +1282,7 @@ function luSolve(A: Float64Array, rhs: Float64Array, k: number, sc: Float64Array
   let big = 0;
   for (let q = 0; q < k * k; q++) big = Math.max(big, Math.abs(A[q]));
   if (!(big > 0) || !Number.isFinite(big)) return false;
-  for (let c = 0; c < k; c++) {
-    let piv = c;
-    let pv = Math.abs(A[c * k + c]);
-    for (let i = c + 1; i < k; i++) {
-      const v = Math.abs(A[i * k + c]);
-      if (v > pv) {
-        pv = v;
-        piv = i;
-      }
-    }
-    if (pv <= 1e-13 * big) return false;
-    if (piv !== c) {
-      for (let j = 0; j < k; j++) {
-        const t = A[c * k + j];
-        A[c * k + j] = A[piv * k + j];
-        A[piv * k + j] = t;
-      }
-      const t = rhs[c];
-      rhs[c] = rhs[piv];
-      rhs[piv] = t;
-    }
-    const dd = A[c * k + c];
-    for (let i = c + 1; i < k; i++) {
-      const f = A[i * k + c] / dd;
-      if (f === 0) continue;
-      for (let j = c + 1; j < k; j++) A[i * k + j] -= f * A[c * k + j];
-      rhs[i] -= f * rhs[c];
-    }
-  }
-  for (let c = k - 1; c >= 0; c--) {
-    let s = rhs[c];
-    for (let j = c + 1; j < k; j++) s -= A[c * k + j] * rhs[j];
-    rhs[c] = s / A[c * k + c];
-  }
+  if (!solveDense(A.length === k * k ? A : A.subarray(0, k * k), rhs.length === k ? rhs : rhs.subarray(0, k), k, PIVOT_RATIO)) return false;
   for (let c = 0; c < k; c++) rhs[c] *= sc[c];
   return true;
 }
