@@ -15,8 +15,12 @@ export interface LoopFigures {
   /** Total recycle / total fresh feed (molar). */
   recycleRatio: number;
   freshFeed: number;
-  /** Per key component: single-pass conversion (in the first unit, in calculation order, that reports it) and overall. */
-  conversions: Record<string, { unit: string; singlePass: number; overall: number }>;
+  /**
+   * Per key component: single-pass conversion (in the first unit, in calculation order, that
+   * reports it) and overall; where several units report one (beds in series, reactors in
+   * parallel), `byUnit` holds each unit's own, in calculation order.
+   */
+  conversions: Record<string, { unit: string; singlePass: number; overall: number; byUnit?: Record<string, number> }>;
 }
 
 export function loopFigures(rt: Runtime, streams: ReadonlyMap<string, StreamResult>, units: ReadonlyMap<string, UnitSummary>, balance: Balance, feedTotal: number): LoopFigures {
@@ -25,7 +29,12 @@ export function loopFigures(rt: Runtime, streams: ReadonlyMap<string, StreamResu
   const conversions: LoopFigures['conversions'] = {};
   for (const name of rt.plan.order) {
     for (const [id, singlePass] of Object.entries(units.get(name)?.conversions ?? {})) {
-      if (conversions[id]) continue;
+      const seen = conversions[id];
+      if (seen) {
+        seen.byUnit ??= { [seen.unit]: seen.singlePass };
+        seen.byUnit[name] = singlePass;
+        continue;
+      }
       const cb = balance.components[id];
       conversions[id] = { unit: name, singlePass, overall: cb.in > 0 ? (cb.in - cb.out) / cb.in : 0 };
     }

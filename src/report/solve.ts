@@ -257,7 +257,8 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
   out.push('Loop');
   out.push(`  fresh feed ${F(r.loop.freshFeed)} ${fu}; recycle ratio (recycle / fresh feed) ${num(r.loop.recycleRatio, 5)}${r.loop.recycles.length ? ` (recycle: ${r.loop.recycles.join(', ')})` : ''}`);
   for (const [key, c] of Object.entries(r.loop.conversions)) {
-    out.push(`  ${key}: single-pass conversion ${num(c.singlePass, 5)} (${c.unit}), overall conversion ${num(c.overall, 5)}`);
+    const each = c.byUnit ? Object.entries(c.byUnit).map(([u, x]) => `${num(x, 5)} (${u})`).join(', ') : `${num(c.singlePass, 5)} (${c.unit})`;
+    out.push(`  ${key}: single-pass conversion ${each}, overall conversion ${num(c.overall, 5)}`);
   }
   out.push(`  products: ${r.products.join(', ')}`);
 

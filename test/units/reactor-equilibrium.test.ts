@@ -13,7 +13,9 @@ import { parseOutput, outputValue } from '../../src/study/outputs.js';
 import { gIG } from '../../src/thermo/ideal-gas.js';
 import { makeEos } from '../../src/thermo/eos.js';
 import type { Eos } from '../../src/thermo/types.js';
-import { cli, tempFile } from '../helpers/cli.js';
+import { join } from 'node:path';
+import { loadFlowsheet } from '../../src/flowsheet/load.js';
+import { cli, ROOT, tempFile } from '../helpers/cli.js';
 
 const R = 8.314462618; // J/(mol K), as src/thermo/constants.ts
 const BAR = 1e5;
@@ -343,5 +345,25 @@ describe('the approach as a parameter of studies', () => {
     const bad = cli(['sweep', file, '--values', 'converter.reactions.0.approach=0,10 degC', '--report', 'converter.conversion.N2', '--out', '-']);
     expect(bad.code).toBe(2);
     expect(bad.stderr).toMatch(/`converter.reactions.0.approach` is a temperature difference; `degC` reads a temperature/);
+  });
+});
+
+describe('the two-bed demo', () => {
+  it('each bed is at its own equilibrium; the loop lists the single-pass conversion of each bed', () => {
+    const r = solveFlowsheet(loadFlowsheet(join(ROOT, 'flowsheets', 'ammonia-loop-two-beds.yaml')).model);
+    expect(r.status, r.message).toBe('converged');
+    const c = r.loop.conversions.N2;
+    expect(c.unit).toBe('bed-1');
+    expect(Object.keys(c.byUnit!)).toEqual(['bed-1', 'bed-2']);
+    expect(c.byUnit!['bed-1']).toBeCloseTo(r.units.get('bed-1')!.conversions!.N2, 14);
+    expect(c.byUnit!['bed-2']).toBeCloseTo(r.units.get('bed-2')!.conversions!.N2, 14);
+    const eos = makeEos('SRK', r.model.components);
+    for (const [bed, out] of [['bed-1', 'bed-1-out'], ['bed-2', 'converter-out']] as const) {
+      const s = r.streams.get(out)!;
+      expect(r.units.get(bed)!.reactions![0].equilibriumTemperature).toBeCloseTo(s.T + 20, 9);
+      expect(Math.abs(conditionResidual(eos, s.T + 20, s.P, { N2: -1, H2: -3, NH3: 2 }, r.model.ids, flows(r, out)))).toBeLessThan(1e-6);
+    }
+    // The second bed starts cooler (400 degC after the interbed cooler) and ends cooler than the first.
+    expect(r.streams.get('converter-out')!.T).toBeLessThan(r.streams.get('bed-1-out')!.T);
   });
 });

@@ -176,7 +176,9 @@ function loopSection(input: ReportInput, d: Display): string {
   const conv = obj(loop.conversions) ?? {};
   for (const [key, c0] of Object.entries(conv)) {
     const c = obj(c0) ?? {};
-    rows.push([`${key}: single-pass conversion (${String(c.unit)})`, d.fraction(c.singlePass, 5)]);
+    const byUnit = obj(c.byUnit);
+    if (byUnit) for (const [u, x] of Object.entries(byUnit)) rows.push([`${key}: single-pass conversion (${u})`, d.fraction(x, 5)]);
+    else rows.push([`${key}: single-pass conversion (${String(c.unit)})`, d.fraction(c.singlePass, 5)]);
     rows.push([`${key}: overall conversion (fresh feed to products)`, d.fraction(c.overall, 5)]);
   }
   return tableHtml(['loop figure', 'value'], rows);
