@@ -63,12 +63,12 @@ function run(seed: number, numRuns: number, equilibrium: boolean) {
 
 describe('random valid loops', () => {
   // With the energy balance every pass runs flashes (adiabatic mixers), and the loops that do
-  // not converge run to their budget of passes: about 25 s here (12 s before the energy
+  // not converge run to their budget of passes: about 25 s for 600 loops (12 s before the energy
   // balance), more on a loaded machine, hence the time allowed.
-  it('separators and fixed condenser splits: 600 loops, seed 20240611', { timeout: 180_000 }, () => {
-    const seen = run(20240611, 600, false);
+  it('separators and fixed condenser splits: 300 loops, seed 20240611', { timeout: 180_000 }, () => {
+    const seen = run(20240611, 300, false);
     // The generator reaches every outcome the solver can give (else it tests too little).
-    expect(seen.converged).toBeGreaterThan(200);
+    expect(seen.converged).toBeGreaterThan(100);
     expect(seen.refused).toBeGreaterThan(0);
     expect(seen.infeasible + seen['not-converged']).toBeGreaterThan(0);
   });

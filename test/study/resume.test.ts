@@ -27,7 +27,7 @@ function killAfter(args: string[], rows: number, sig: NodeJS.Signals = 'SIGKILL'
 describe('loopclose sweep --resume', () => {
   it('after kill -9 mid-sweep, solves only the missing points and gives the same file as an uninterrupted run', async () => {
     const dir = dirname(tempFile('x', ''));
-    const args = (out: string) => ['sweep', PILOT, '--grid', 'reactor.reactions.0.conversion=0.15:0.35:800', ...REPORT, '--block', '40', '--out', out];
+    const args = (out: string) => ['sweep', PILOT, '--grid', 'reactor.reactions.0.conversion=0.15:0.35:240', ...REPORT, '--block', '40', '--out', out];
     const full = join(dir, 'full.csv');
     expect(cli(args(full)).code).toBe(0);
     const killed = join(dir, 'killed.csv');
@@ -41,22 +41,22 @@ describe('loopclose sweep --resume', () => {
     expect(readFileSync(killed, 'utf8')).toBe(readFileSync(full, 'utf8'));
     // Each point once, in walk order.
     const points = lines(killed).slice(4, -1).map((l) => Number(l.split(',')[0]));
-    expect(points).toEqual(Array.from({ length: 800 }, (_, k) => k + 1));
+    expect(points).toEqual(Array.from({ length: 240 }, (_, k) => k + 1));
   });
 
   it('stops cleanly on Ctrl-C (SIGINT): whole lines only, exit 130, and --resume finishes it', async () => {
     const dir = dirname(tempFile('x', ''));
-    const args = (out: string) => ['sweep', PILOT, '--jsonl', '--grid', 'reactor.reactions.0.conversion=0.15:0.35:600', ...REPORT, '--out', out];
+    const args = (out: string) => ['sweep', PILOT, '--jsonl', '--grid', 'reactor.reactions.0.conversion=0.15:0.35:200', ...REPORT, '--out', out];
     const full = join(dir, 'full.jsonl');
     expect(cli(args(full)).code).toBe(0);
     const out = join(dir, 'stopped.jsonl');
     const r = await killAfter(args(out), 60, 'SIGINT');
     expect(r.code).toBe(130);
-    expect(r.stderr).toMatch(/sweep interrupted: \d+ of 600 points written .*run the same command with --resume/);
+    expect(r.stderr).toMatch(/sweep interrupted: \d+ of 200 points written .*run the same command with --resume/);
     const text = readFileSync(out, 'utf8');
     expect(text.endsWith('\n')).toBe(true);
     const rows = text.split('\n').slice(1, -1);
-    expect(rows.length).toBeLessThan(600);
+    expect(rows.length).toBeLessThan(200);
     for (const l of rows) expect(JSON.parse(l).status).toBe('converged');
     expect(cli([...args(out), '--resume']).code).toBe(0);
     expect(readFileSync(out, 'utf8')).toBe(readFileSync(full, 'utf8'));
