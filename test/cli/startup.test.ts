@@ -1,11 +1,12 @@
 /**
- * The start of the command line: each command reads only the modules it needs (dist/cli.mjs and
- * the chunks beside it, mathjs only for a unit outside the built-in table), and nothing changes
- * for the user: every command is still listed and found, a unit outside the table still parses,
- * and the library entry exports what the sources export.
+ * The start of the command line: V8 is handed the code cache the build made (src/cli/start.ts),
+ * mathjs is read only for a unit outside the built-in table, and nothing changes for the user:
+ * the same output without a cache or with a stale one, every command still listed and found, a
+ * unit outside the table still parsed, --jobs as before, and the library entry exporting what the
+ * sources export.
  */
 import { spawnSync } from 'node:child_process';
-import { readFileSync, readdirSync } from 'node:fs';
+import { cpSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { describe, expect, it } from 'vitest';
@@ -14,23 +15,6 @@ import { BIN, cli, ROOT, tempFile } from '../helpers/cli.js';
 
 const DIST = join(ROOT, 'dist');
 const PILOT = 'flowsheets/methanol-pilot.yaml';
-
-/** The files of dist/ that a module reads before it runs (its static imports, transitively). */
-function staticClosure(file: string, seen = new Set<string>()): Set<string> {
-  if (seen.has(file)) return seen;
-  seen.add(file);
-  const text = readFileSync(join(DIST, file), 'utf8');
-  for (const m of text.matchAll(/^import\s*(?:[^'"]*?\bfrom\s*)?"\.\/([^"]+\.mjs)";?$/gm)) staticClosure(m[1], seen);
-  return seen;
-}
-
-/** The chunk that `import('./NAME.js')` in dist/cli.mjs reads. */
-function commandChunk(name: string): string {
-  const f = readdirSync(DIST).find((x) => new RegExp(`^cli-${name}-[A-Z0-9]+\\.mjs$`).test(x));
-  expect(f, `dist/cli-${name}-*.mjs`).toBeDefined();
-  expect(readFileSync(join(DIST, 'cli.mjs'), 'utf8')).toContain(`import("./${f}")`);
-  return f!;
-}
 
 /** Runs the CLI with a probe that prints, at exit, which bundle files of dist/ were read with require(). */
 function requiredFiles(args: string[]): { code: number; required: string[] } {
@@ -42,21 +26,28 @@ function requiredFiles(args: string[]): { code: number; required: string[] } {
 }
 
 describe('what each command reads', () => {
-  it('dist/cli.mjs holds the command line alone; solve and meter read neither mathjs nor the plant layer, nor the study layer', () => {
-    const cliFiles = staticClosure('cli.mjs');
-    for (const name of ['solve', 'meter']) {
-      const files = staticClosure(commandChunk(name), new Set(cliFiles));
-      const text = [...files].map((f) => readFileSync(join(DIST, f), 'utf8')).join('\n');
-      expect(text).toContain('function parseQuantity(');
-      // mathjs (typed-function, its unit factory), the plant layer's statistics (@stdlib), the sweep's runner.
-      expect(text).not.toMatch(/typed-function|createUnitClass/);
-      expect(text).not.toContain('@stdlib');
-      expect(text).not.toContain('function runParallel(');
-    }
-    // The command line itself: no flowsheet reader, no equation of state.
-    const own = [...cliFiles].map((f) => readFileSync(join(DIST, f), 'utf8')).join('\n');
-    expect(own).not.toContain('function parseQuantity(');
-    expect(own).not.toContain('function loadFlowsheet(');
+  it('the command line starts from the code cache the build made; without it, or with a stale one, it prints the same', () => {
+    const solve = (bin: string) => spawnSync(process.execPath, [bin, 'solve', join(ROOT, PILOT)], { encoding: 'utf8', env: { ...process.env, LOOPCLOSE_CODE_CACHE: 'report' } });
+    const built = solve(BIN);
+    expect(built.status).toBe(0);
+    expect(built.stderr).toBe('loopclose code cache: accepted\n');
+    // A copy of bin/ and dist/ without the cache, then with the cache of another source.
+    const dir = dirname(tempFile('package.json', readFileSync(join(ROOT, 'package.json'), 'utf8')));
+    cpSync(join(ROOT, 'bin'), join(dir, 'bin'), { recursive: true });
+    cpSync(DIST, join(dir, 'dist'), { recursive: true, filter: (f) => !f.endsWith('.map') });
+    const cache = join(dir, 'dist', 'cli-code.cjs.cache');
+    rmSync(cache);
+    const none = solve(join(dir, 'bin', 'loopclose.js'));
+    expect(none.status).toBe(0);
+    expect(none.stderr).toBe('loopclose code cache: none\n');
+    expect(none.stdout).toBe(built.stdout);
+    // V8 checks the cache against the source it is given: a cache of a changed source is refused.
+    writeFileSync(join(dir, 'dist', 'cli-code.cjs'), `${readFileSync(join(DIST, 'cli-code.cjs'), 'utf8')}\n// changed\n`);
+    cpSync(join(DIST, 'cli-code.cjs.cache'), cache);
+    const stale = solve(join(dir, 'bin', 'loopclose.js'));
+    expect(stale.status).toBe(0);
+    expect(stale.stderr).toBe('loopclose code cache: rejected\n');
+    expect(stale.stdout).toBe(built.stdout);
   });
 
   it('mathjs is read from disk only when a unit outside the built-in table is parsed, and then gives the same answer', () => {
