@@ -3,11 +3,6 @@ import { Command, CommanderError } from 'commander';
 import { InputError, diagnosticsJson, formatDiagnostics } from '../diagnostics.js';
 import { EXIT, exitCodeOf } from './exit.js';
 import { isStandardOutput, writeErr, writeOut, writeOutput } from './io.js';
-import { runMeter } from './meter.js';
-import { runSolve } from './solve.js';
-import { registerSweep } from './sweep.js';
-import { registerMerge } from './merge.js';
-import { registerReconcile } from './reconcile.js';
 import { readFileSync } from 'node:fs';
 
 const VERSION = '0.1.0';
@@ -61,6 +56,24 @@ function faultHook(): void {
   if (process.env.LOOPCLOSE_FAULT === '1') throw new Error('fault injected by LOOPCLOSE_FAULT=1 (test hook)');
 }
 
+/** Commands registered in this file (their modules load when they run). */
+const CORE_COMMANDS = new Set(['meter', 'solve', 'report', 'plot']);
+/** Commands whose registration lives in a module of its own, loaded by main(). */
+const LOADED_COMMANDS = new Set(['sweep', 'merge', 'reconcile']);
+
+/**
+ * The command named on the line (the first word after the program that is not an option), or
+ * undefined for none. The program's own options (--debug, --version, --help) take no value, so
+ * the first such word is the command.
+ */
+export function commandName(argv: readonly string[]): string | undefined {
+  for (const a of argv.slice(2)) {
+    if (a === '--') return undefined;
+    if (!a.startsWith('-')) return a;
+  }
+  return undefined;
+}
+
 export async function main(argv: string[]): Promise<void> {
   const debug = argv.includes('--debug');
   const json = argv.includes('--json');
@@ -107,6 +120,7 @@ export async function main(argv: string[]): Promise<void> {
     .option('--overwrite', 'replace --out when it exists')
     .action(async (file: string | undefined, o) => {
       faultHook();
+      const { runMeter } = await import('./meter.js');
       await emit(runMeter(file, o), o.out, o.overwrite);
     });
 
@@ -127,6 +141,7 @@ export async function main(argv: string[]): Promise<void> {
     .option('--overwrite', 'replace --out when it exists')
     .action(async (file: string, o) => {
       faultHook();
+      const { runSolve } = await import('./solve.js');
       const { text, result } = runSolve(file, o);
       await emit(text, o.out, o.overwrite);
       if (o.csv && result.status !== 'converged') {
@@ -174,15 +189,25 @@ export async function main(argv: string[]): Promise<void> {
       await emit(r.text, o.out, o.overwrite);
     });
 
-  registerSweep(program, (c) => {
+  // sweep, merge and reconcile bring their own modules (the study and plant layers): each is
+  // loaded only when it is the command that runs, or when every command must be known (help, a
+  // misspelled command). Their order in `loopclose help` stays: sweep, merge, reconcile.
+  const name = commandName(argv);
+  const setCode = (c: number) => {
     code = c;
-  });
-  registerMerge(program, (c) => {
-    code = c;
-  });
-  registerReconcile(program, (c) => {
-    code = c;
-  }, emit);
+  };
+  const versionOnly = name === undefined && argv.slice(2).some((a) => a === '--version' || a === '-V');
+  if (!versionOnly && (name === undefined || !CORE_COMMANDS.has(name))) {
+    const all = name === undefined || !LOADED_COMMANDS.has(name);
+    const [sweep, merge, reconcile] = await Promise.all([
+      all || name === 'sweep' ? import('./sweep.js') : undefined,
+      all || name === 'merge' ? import('./merge.js') : undefined,
+      all || name === 'reconcile' ? import('./reconcile.js') : undefined,
+    ]);
+    sweep?.registerSweep(program, setCode);
+    merge?.registerMerge(program, setCode);
+    reconcile?.registerReconcile(program, setCode, emit);
+  }
 
   try {
     await program.parseAsync(argv);

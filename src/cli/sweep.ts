@@ -8,6 +8,7 @@ import { InputError } from '../diagnostics.js';
 import { readFlowsheetFile } from '../flowsheet/validate.js';
 import type { MethodName } from '../solve/types.js';
 import type { AxisSpec } from '../study/grid.js';
+import { parseOutput } from '../study/outputs.js';
 import { Progress } from '../study/progress.js';
 import { headerText, makeHeader, rowText, type SweepFormat } from '../study/records.js';
 import { runParallel, runSerial, WorkerFailure, type Task } from '../study/runner.js';
@@ -143,7 +144,7 @@ export async function runSweep(file: string, axes: AxisSpec[], given: SweepCliOp
     continuation: o.continuation,
   };
   const format: SweepFormat = o.jsonl ? 'jsonl' : 'csv';
-  let ctx = prepareSweep(spec);
+  const ctx = prepareSweep(spec);
   if (format === 'csv') {
     // CSV is read by people: outputs without a unit of their own take the file's display units
     // (flows, pressures, temperatures); JSON Lines stays in SI.
@@ -155,8 +156,10 @@ export async function runSweep(file: string, axes: AxisSpec[], given: SweepCliOp
       return unit ? `${r}[${unit}]` : r;
     });
     if (report.some((r, k) => r !== spec.report[k])) {
+      // Only the outputs change (each now with its unit): read them again, not the whole sweep
+      // (the file, every grid value and the runtime, which are the same).
       spec.report = report;
-      ctx = prepareSweep(spec);
+      ctx.outputs = report.map((r) => parseOutput(r, ctx.model));
     }
   }
   const header = makeHeader(ctx, format, opt.shard);

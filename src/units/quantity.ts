@@ -11,12 +11,13 @@
  * table of documented units (table.ts, exact definitions) with the gauge/absolute suffix rule
  * ("barg" = bar + atmosphere), then mathjs for every other spelling (with the same suffix rule).
  *
- * mathjs is loaded with only its unit machinery (create({ unitDependencies })) and created on first
- * use, which the table avoids for the documented units (a short cold start). Units mathjs lacks or
+ * mathjs is loaded with only its unit machinery (create({ unitDependencies })), read from disk and
+ * created on first use (mathjs-load.ts), which the table avoids for the documented units (a short
+ * cold start). Units mathjs lacks or
  * defines loosely are added or replaced on that private instance.
  */
-import { create, unitDependencies } from 'mathjs';
 import type { MathJsInstance, Unit } from 'mathjs';
+import { loadMathjs } from './mathjs-load.js';
 import { PSI, R_GAS, STANDARD_SPELLINGS, findStandard, matchStandardSpelling } from './standard.js';
 import type { StandardRef } from './standard.js';
 import { lookupUnit } from './table.js';
@@ -171,6 +172,7 @@ let mathInstance: MathJsInstance | undefined;
  */
 function math(): MathJsInstance {
   if (mathInstance) return mathInstance;
+  const { create, unitDependencies } = loadMathjs();
   const m = create({ unitDependencies });
   m.Unit.createUnit(
     {
