@@ -108,12 +108,14 @@ export function meterFlowBudget(meter: MeterEos): FlowBudget {
     if (kind === 'standard') {
       const ref = input.reference!;
       const realGas = input.realGas ?? true;
-      // The molar volume alone (no phase test: the same v as state(), which also classifies the phase).
-      const v = realGas ? meter.molarVolume(ref.T, ref.P, x) : (R * ref.T) / ref.P;
+      // The state at the reference (with its phase test, which the model's figure reads; v is the
+      // same as molarVolume's), made once for v and the model's figure.
+      const st = realGas ? meter.state(ref.T, ref.P, x) : undefined;
+      const v = st ? st.v : (R * ref.T) / ref.P;
       const F = reading / v;
       const terms: BudgetTerm[] = [{ source: 'instrument', sigma: reading > 0 ? (F / reading) * instrument : instrument / v }];
       if (realGas) {
-        const mu = meter.modelUncertainty(ref.T, ref.P, x);
+        const mu = meter.modelUncertainty(ref.T, ref.P, x, st);
         terms.push({ source: `equation of state at the reference (${mu.model})`, sigma: mu.relative === null ? 0 : F * mu.relative, note: mu.source });
         notes.push(...mu.notes);
       }

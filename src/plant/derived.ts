@@ -20,6 +20,34 @@ export interface DerivedEstimate {
 }
 
 /**
+ * What every estimate of one result shares, made on the first and kept with the result: a copy of
+ * x to difference in (each estimate puts back what it changed, bit for bit), the covariance
+ * position of each variable (-1: not in it), and the standard deviations at those positions
+ * (computed when first asked for).
+ */
+interface ResultScratch {
+  x: Float64Array;
+  positionOf: Int32Array;
+  sd: Float64Array;
+  sdDone: Uint8Array;
+}
+
+const scratchOf = new WeakMap<ReconcileResult, ResultScratch>();
+
+function scratchFor(result: ReconcileResult): ResultScratch {
+  let s = scratchOf.get(result);
+  if (!s) {
+    const x = Float64Array.from(result.x);
+    const { indices } = result.covariance;
+    const positionOf = new Int32Array(x.length).fill(-1);
+    for (let a = 0; a < indices.length; a++) if (indices[a] >= 0 && indices[a] < x.length && positionOf[indices[a]] < 0) positionOf[indices[a]] = a;
+    s = { x, positionOf, sd: new Float64Array(indices.length), sdDone: new Uint8Array(indices.length) };
+    scratchOf.set(result, s);
+  }
+  return s;
+}
+
+/**
  * Value and standard uncertainty of f(x) at a reconciled result (status reconciled or not-redundant).
  * `reads`, when given, holds every variable index f can read (more is harmless): the derivatives
  * of the others are exactly zero (f cannot tell their change), so they are not differenced, and
@@ -29,7 +57,8 @@ export function derivedEstimate(result: ReconcileResult, f: (x: Float64Array) =>
   if (result.status !== 'reconciled' && result.status !== 'not-redundant') {
     return { value: null, uncertainty: null, sensitivities: [], note: `no estimate: the reconciliation is ${result.status}` };
   }
-  const x = Float64Array.from(result.x);
+  const scratch = scratchFor(result);
+  const x = scratch.x;
   const value = f(x);
   if (!Number.isFinite(value)) {
     return { value: null, uncertainty: null, sensitivities: [], note: 'not determined: it depends on an unobservable variable (or is not finite at the solution)' };
@@ -37,29 +66,39 @@ export function derivedEstimate(result: ReconcileResult, f: (x: Float64Array) =>
   const { indices, factor } = result.covariance;
   const N = indices.length;
   // The covariance's entries: from its factor W (C = W W') when the result holds one.
-  const varianceAt = factor
-    ? (a: number) => {
-        let s = 0;
-        for (let i = 0; i < factor.rank; i++) s += factor.W[a * factor.rank + i] ** 2;
-        return s;
-      }
-    : (a: number) => result.covariance.matrix[a * N + a];
+  const sdAt = (a: number) => {
+    if (scratch.sdDone[a]) return scratch.sd[a];
+    let v: number;
+    if (factor) {
+      v = 0;
+      for (let i = 0; i < factor.rank; i++) v += factor.W[a * factor.rank + i] ** 2;
+    } else v = result.covariance.matrix[a * N + a];
+    scratch.sdDone[a] = 1;
+    return (scratch.sd[a] = Math.sqrt(Math.max(0, v)));
+  };
   const grad = new Float64Array(N);
   const h0 = Math.cbrt(Number.EPSILON);
-  // Covariance positions to difference (every one, or those f can read, in the same order).
+  // Covariance positions to difference (every one, or those f can read), in increasing order.
   let positions: ArrayLike<number>;
   if (reads) {
-    const wanted = new Uint8Array(x.length);
-    for (let k = 0; k < reads.length; k++) wanted[reads[k]] = 1;
-    const list: number[] = [];
-    for (let a = 0; a < N; a++) if (wanted[indices[a]]) list.push(a);
-    positions = list;
+    const list = new Int32Array(reads.length);
+    let k = 0;
+    for (let t = 0; t < reads.length; t++) {
+      const j = reads[t];
+      const a = j >= 0 && j < x.length ? scratch.positionOf[j] : -1;
+      if (a >= 0) list[k++] = a;
+    }
+    const used = list.subarray(0, k).sort();
+    // A variable listed twice in reads is differenced once.
+    let u = 0;
+    for (let t = 0; t < used.length; t++) if (t === 0 || used[t] !== used[t - 1]) used[u++] = used[t];
+    positions = used.subarray(0, u);
   } else positions = { length: N } as ArrayLike<number>;
   for (let t = 0; t < positions.length; t++) {
     const a = reads ? positions[t] : t;
     const j = indices[a];
     const xj = x[j];
-    const sd = Math.sqrt(Math.max(0, varianceAt(a)));
+    const sd = sdAt(a);
     const h = h0 * Math.max(Math.abs(xj), sd, 1e-300);
     x[j] = xj + h;
     const fp = f(x);
@@ -68,23 +107,30 @@ export function derivedEstimate(result: ReconcileResult, f: (x: Float64Array) =>
     x[j] = xj;
     grad[a] = (fp - fm) / (2 * h);
   }
-  // u^2 = g' C g over the non-zero derivatives (a zero term adds nothing to either sum).
-  const nz: number[] = [];
-  for (let a = 0; a < N; a++) if (grad[a] !== 0) nz.push(a);
+  // u^2 = g' C g over the non-zero derivatives (a zero term adds nothing to either sum), in
+  // increasing position.
+  const nz = new Int32Array(positions.length);
+  let nnz = 0;
+  for (let t = 0; t < positions.length; t++) {
+    const a = reads ? positions[t] : t;
+    if (grad[a] !== 0) nz[nnz++] = a;
+  }
   let variance = 0;
   if (factor) {
     // g' W W' g = |W' g|^2.
     const r = factor.rank;
+    const W = factor.W;
     for (let i = 0; i < r; i++) {
       let s = 0;
-      for (const a of nz) s += grad[a] * factor.W[a * r + i];
+      for (let t = 0; t < nnz; t++) s += grad[nz[t]] * W[nz[t] * r + i];
       variance += s * s;
     }
   } else {
     const matrix = result.covariance.matrix;
-    for (const a of nz) {
+    for (let t = 0; t < nnz; t++) {
+      const a = nz[t];
       let s = 0;
-      for (const b of nz) s += matrix[a * N + b] * grad[b];
+      for (let u = 0; u < nnz; u++) s += matrix[a * N + nz[u]] * grad[nz[u]];
       variance += grad[a] * s;
     }
   }

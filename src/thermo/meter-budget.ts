@@ -133,7 +133,7 @@ export function meterBudget(meter: MeterEos, reading: BudgetReading, instrument:
   else missing.push('pressure');
   if (instrument.temperature !== undefined) add('temperature', 'line temperature', instrument.temperature, 'K', dist, (-p * n * dlnvdlnT) / T, 'declared for the temperature sensor');
   else missing.push('temperature');
-  const mu = meter.modelUncertainty(T, P, x);
+  const mu = meter.modelUncertainty(T, P, x, s);
   if (mu.relative !== null) add('equation-of-state', `equation of state (${mu.model})`, mu.relative, '1', mu.distribution, p * n, mu.source);
   else missing.push('equation-of-state');
   if (mu.reference && mu.reference.relative !== null) add('reference-equation', 'reference equation (GERG-2008)', mu.reference.relative, '1', mu.reference.distribution, p * n, mu.reference.source);
