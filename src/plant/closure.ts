@@ -87,19 +87,18 @@ export function closure(input: ClosureInput, options: { coverageFactor?: number 
   const side = (terms: readonly ClosureTerm[]) => {
     let total = 0;
     const d = new Float64Array(nq);
-    for (const t of terms) {
-      const c = t.coefficient ?? 1;
+    for (let t = 0; t < terms.length; t++) {
+      const factors = terms[t].factors;
+      const c = terms[t].coefficient ?? 1;
       let prod = c;
-      for (const f of t.factors) prod *= quantities[f].value;
+      for (let a = 0; a < factors.length; a++) prod *= quantities[factors[a]].value;
       total += prod;
       // Product rule: for each appearance, the product of the other factors.
-      t.factors.forEach((f, pos) => {
+      for (let pos = 0; pos < factors.length; pos++) {
         let other = c;
-        t.factors.forEach((g, p2) => {
-          if (p2 !== pos) other *= quantities[g].value;
-        });
-        d[f] += other;
-      });
+        for (let p2 = 0; p2 < factors.length; p2++) if (p2 !== pos) other *= quantities[factors[p2]].value;
+        d[factors[pos]] += other;
+      }
     }
     return { total, d };
   };
@@ -120,7 +119,7 @@ export function closure(input: ClosureInput, options: { coverageFactor?: number 
     varRel += sens[q] * sens[q] * u2;
   }
   const relativeUncertainty = Math.sqrt(varRel);
-  return {
+  const out: ClosureResult = {
     status: 'ok',
     issues,
     inflow: I.total,
@@ -131,11 +130,18 @@ export function closure(input: ClosureInput, options: { coverageFactor?: number 
     relativeUncertainty,
     coverageFactor: k,
     relativeExpanded: k * relativeUncertainty,
-    contributions: quantities.map((q, index) => ({
+    contributions: [],
+  };
+  // Made when read (a row of a historian export wants the closure and its uncertainty only).
+  Object.defineProperty(out, 'contributions', {
+    enumerable: true,
+    configurable: true,
+    get: () => quantities.map((q, index) => ({
       name: q.name,
       index,
       sensitivity: sens[index],
       share: varRel > 0 ? (sens[index] ** 2 * q.sigma ** 2) / varRel : 0,
     })),
-  };
+  });
+  return out;
 }
