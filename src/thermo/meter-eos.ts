@@ -331,7 +331,9 @@ export class MeterEos {
    *     the ideal-gas law is from the cubic), not a measured figure; the result says so.
    */
   modelUncertainty(T: number, P: number, x: ArrayLike<number>, state?: MeterState): ModelUncertainty {
-    // `state`: this.state(T, P, x) with its phase test, when the caller has just made it (the same figures, not made again).
+    // `state`: this.state(T, P, x) when the caller has just made it (the same figures, not made
+    // again); made without the phase test it must have found a vapor (a split would change
+    // nothing read here: the two-phase class and the vapor both take the gas root and the gas-like region).
     const s = state ?? this.state(T, P, x, emptyMeterState());
     if (s.model === 'GERG-2008') return this.gergStated(T, P, x, s);
     const notes: string[] = [];
