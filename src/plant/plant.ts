@@ -342,12 +342,24 @@ export class PlantReconciliation {
     });
     if (serial.suspects.length > 0) {
       const after: NonNullable<PlantReport['afterRemoving']> = { tags: [...new Set(report.suspects.map((s) => s.tag))], globalTest: globalTestOf(final), instruments: {} };
-      const tmp: PlantReport = { ...report, instruments: {} };
-      for (const [tag, rep] of Object.entries(instruments)) tmp.instruments[tag] = { ...rep };
-      this.describeInstruments(tmp, final, budgets, usable, removed);
-      for (const [tag, rep] of Object.entries(tmp.instruments)) {
-        if (rep.molarFlow || rep.fractions) after.instruments[tag] = { ...(rep.molarFlow ? { molarFlow: rep.molarFlow } : {}), ...(rep.fractions ? { fractions: rep.fractions } : {}) };
-      }
+      // The instruments without the suspects are described when first read (a row of a
+      // historian export does not read them); nothing they read changes after this row's run.
+      const base = Object.entries(instruments).map(([tag, rep]) => [tag, { ...rep }] as const);
+      let described: NonNullable<PlantReport['afterRemoving']>['instruments'] | undefined;
+      Object.defineProperty(after, 'instruments', {
+        enumerable: true,
+        configurable: true,
+        get: () => {
+          if (described) return described;
+          const tmp: PlantReport = { ...report, instruments: Object.fromEntries(base) };
+          this.describeInstruments(tmp, final, budgets, usable, removed);
+          described = {};
+          for (const [tag, rep] of Object.entries(tmp.instruments)) {
+            if (rep.molarFlow || rep.fractions) described[tag] = { ...(rep.molarFlow ? { molarFlow: rep.molarFlow } : {}), ...(rep.fractions ? { fractions: rep.fractions } : {}) };
+          }
+          return described;
+        },
+      });
       report.afterRemoving = after;
     }
     this.describeEstimates(report, final, serial.suspects.length > 0, usable);
@@ -453,7 +465,8 @@ export class PlantReconciliation {
       const file = fp?.value;
       const isParameter = fp !== undefined;
       const unit = fp ? fp.unit : fig.unit;
-      const d = ok ? derivedEstimate(res, (x) => fig.value(x), fig.reads) : { value: null, uncertainty: null };
+      // Differenced only in the variables the figure reads at the solution (the others' derivatives are exactly zero).
+      const d = ok ? derivedEstimate(res, (x) => fig.value(x), fig.readsAt(res.x)) : { value: null, uncertainty: null };
       // A figure of a component that is not there at all (0 / 0) is left out.
       if (d.value === null && !isParameter && ok && !Number.isFinite(fig.value(Float64Array.from(this.network.start)))) continue;
       report.parameters[fig.path] = { value: d.value, sigma: d.uncertainty, unit, ...(file !== undefined ? { file } : {}), parameter: isParameter, observable: d.value !== null };
