@@ -412,7 +412,7 @@ export class PlantReconciliation {
           const comp = this.composition(s, x && Number.isFinite(totalOf(s, x)) ? x : undefined);
           let MW = 0;
           for (let i = 0; i < comp.length; i++) MW += comp[i] * this.model.components[i].MW;
-          const tot = ok ? derivedEstimate(res, (xx) => totalOf(s, xx), streamVariables(s)) : { value: null, uncertainty: null };
+          const tot = ok ? derivedEstimate(res, (xx) => totalOf(s, xx), this.variablesOf(s)) : { value: null, uncertainty: null };
           rep.molarFlow = { measured: measured === null ? null : measured / MW, reconciled: tot.value, sigma: sigma === null ? null : sigma / MW, reconciledSigma: tot.uncertainty };
         } else {
           rep.molarFlow = { measured, reconciled: recon, sigma, reconciledSigma: rsig };
@@ -475,13 +475,22 @@ export class PlantReconciliation {
     const metered = new Set(this.model.instruments.filter((d) => this.network.instruments.get(d.tag)!.variable !== undefined && usable.has(d.tag) && !report.instruments[d.tag].suspect).map((d) => d.stream));
     for (const [name, s] of this.network.streams) {
       if (metered.has(name)) continue;
-      const d = ok ? derivedEstimate(res, (x) => totalOf(s, x), streamVariables(s)) : { value: null, uncertainty: null };
+      const d = ok ? derivedEstimate(res, (x) => totalOf(s, x), this.variablesOf(s)) : { value: null, uncertainty: null };
       report.unmeasured[`streams.${name}.total`] = {
         value: d.value, sigma: d.uncertainty, observable: d.value !== null,
         ...(d.value === null ? { reason: ok ? 'not observable: the readings and balances do not determine it' : `no reconciliation (${res.status})` } : {}),
       };
     }
     if (afterSuspects) report.notes.push('fitted figures and unmeasured streams are from the reconciliation without the suspects');
+  }
+
+  /** The variables of each stream (streamVariables), made once. */
+  private readonly streamVars = new Map<StreamVars, number[]>();
+
+  private variablesOf(s: StreamVars): number[] {
+    let v = this.streamVars.get(s);
+    if (!v) this.streamVars.set(s, (v = streamVariables(s)));
+    return v;
   }
 
   /** What the raw closure reads of the model, the same for every row (made on first use). */
