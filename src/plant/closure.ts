@@ -50,7 +50,8 @@ export interface ClosureResult {
   contributions: { name: string; index: number; sensitivity: number; share: number }[];
 }
 
-export function closure(input: ClosureInput, options: { coverageFactor?: number } = {}): ClosureResult {
+/** `contributions: false` leaves the per-quantity contributions out (an empty list): the figures are the same. */
+export function closure(input: ClosureInput, options: { coverageFactor?: number; contributions?: boolean } = {}): ClosureResult {
   const k = options.coverageFactor ?? 2;
   const { quantities } = input;
   const issues: string[] = [];
@@ -119,7 +120,7 @@ export function closure(input: ClosureInput, options: { coverageFactor?: number 
     varRel += sens[q] * sens[q] * u2;
   }
   const relativeUncertainty = Math.sqrt(varRel);
-  const out: ClosureResult = {
+  return {
     status: 'ok',
     issues,
     inflow: I.total,
@@ -130,18 +131,11 @@ export function closure(input: ClosureInput, options: { coverageFactor?: number 
     relativeUncertainty,
     coverageFactor: k,
     relativeExpanded: k * relativeUncertainty,
-    contributions: [],
-  };
-  // Made when read (a row of a historian export wants the closure and its uncertainty only).
-  Object.defineProperty(out, 'contributions', {
-    enumerable: true,
-    configurable: true,
-    get: () => quantities.map((q, index) => ({
+    contributions: options.contributions === false ? [] : quantities.map((q, index) => ({
       name: q.name,
       index,
       sensitivity: sens[index],
       share: varRel > 0 ? (sens[index] ** 2 * q.sigma ** 2) / varRel : 0,
     })),
-  });
-  return out;
+  };
 }

@@ -30,6 +30,10 @@ interface ResultScratch {
   positionOf: Int32Array;
   sd: Float64Array;
   sdDone: Uint8Array;
+  /** Work space of one estimate: derivatives, positions differenced, positions with a non-zero derivative. */
+  grad: Float64Array;
+  positions: Int32Array;
+  nz: Int32Array;
 }
 
 const scratchOf = new WeakMap<ReconcileResult, ResultScratch>();
@@ -41,7 +45,8 @@ function scratchFor(result: ReconcileResult): ResultScratch {
     const { indices } = result.covariance;
     const positionOf = new Int32Array(x.length).fill(-1);
     for (let a = 0; a < indices.length; a++) if (indices[a] >= 0 && indices[a] < x.length && positionOf[indices[a]] < 0) positionOf[indices[a]] = a;
-    s = { x, positionOf, sd: new Float64Array(indices.length), sdDone: new Uint8Array(indices.length) };
+    const N = indices.length;
+    s = { x, positionOf, sd: new Float64Array(N), sdDone: new Uint8Array(N), grad: new Float64Array(N), positions: new Int32Array(N), nz: new Int32Array(N) };
     scratchOf.set(result, s);
   }
   return s;
@@ -57,12 +62,33 @@ export function derivedEstimate(result: ReconcileResult, f: (x: Float64Array) =>
   if (result.status !== 'reconciled' && result.status !== 'not-redundant') {
     return { value: null, uncertainty: null, sensitivities: [], note: `no estimate: the reconciliation is ${result.status}` };
   }
+  const grad = new Float64Array(result.covariance.indices.length);
+  const r = estimate(result, f, reads, grad);
+  if (r.value === null) {
+    return { value: null, uncertainty: null, sensitivities: [], note: 'not determined: it depends on an unobservable variable (or is not finite at the solution)' };
+  }
+  const { indices } = result.covariance;
+  const out: DerivedEstimate = { value: r.value, uncertainty: r.uncertainty, sensitivities: [] };
+  // Made when read: most callers want the value and its uncertainty only.
+  Object.defineProperty(out, 'sensitivities', { enumerable: true, configurable: true, get: () => Array.from(indices, (index, a) => ({ index, derivative: grad[a] })) });
+  return out;
+}
+
+/**
+ * The value and standard uncertainty of derivedEstimate, the same figures, without the
+ * sensitivities (for the many figures of every row of a historian export).
+ */
+export function derivedFigure(result: ReconcileResult, f: (x: Float64Array) => number, reads?: ArrayLike<number>): { value: number | null; uncertainty: number | null } {
+  if (result.status !== 'reconciled' && result.status !== 'not-redundant') return { value: null, uncertainty: null };
+  return estimate(result, f, reads, scratchFor(result).grad);
+}
+
+/** f and its uncertainty; grad (one entry per covariance position) receives the derivatives of the positions differenced. */
+function estimate(result: ReconcileResult, f: (x: Float64Array) => number, reads: ArrayLike<number> | undefined, grad: Float64Array): { value: number | null; uncertainty: number | null } {
   const scratch = scratchFor(result);
   const x = scratch.x;
   const value = f(x);
-  if (!Number.isFinite(value)) {
-    return { value: null, uncertainty: null, sensitivities: [], note: 'not determined: it depends on an unobservable variable (or is not finite at the solution)' };
-  }
+  if (!Number.isFinite(value)) return { value: null, uncertainty: null };
   const { indices, factor } = result.covariance;
   const N = indices.length;
   // The covariance's entries: from its factor W (C = W W') when the result holds one.
@@ -76,26 +102,30 @@ export function derivedEstimate(result: ReconcileResult, f: (x: Float64Array) =>
     scratch.sdDone[a] = 1;
     return (scratch.sd[a] = Math.sqrt(Math.max(0, v)));
   };
-  const grad = new Float64Array(N);
   const h0 = Math.cbrt(Number.EPSILON);
   // Covariance positions to difference (every one, or those f can read), in increasing order.
-  let positions: ArrayLike<number>;
+  let count: number;
+  const positions = scratch.positions;
   if (reads) {
-    const list = new Int32Array(reads.length);
-    let k = 0;
+    count = 0;
     for (let t = 0; t < reads.length; t++) {
       const j = reads[t];
       const a = j >= 0 && j < x.length ? scratch.positionOf[j] : -1;
-      if (a >= 0) list[k++] = a;
+      if (a < 0) continue;
+      // Insertion in order; a variable listed twice in reads is differenced once.
+      let k = count;
+      while (k > 0 && positions[k - 1] > a) k--;
+      if (k > 0 && positions[k - 1] === a) continue;
+      for (let m = count; m > k; m--) positions[m] = positions[m - 1];
+      positions[k] = a;
+      count++;
     }
-    const used = list.subarray(0, k).sort();
-    // A variable listed twice in reads is differenced once.
-    let u = 0;
-    for (let t = 0; t < used.length; t++) if (t === 0 || used[t] !== used[t - 1]) used[u++] = used[t];
-    positions = used.subarray(0, u);
-  } else positions = { length: N } as ArrayLike<number>;
-  for (let t = 0; t < positions.length; t++) {
-    const a = reads ? positions[t] : t;
+  } else {
+    count = N;
+    for (let a = 0; a < N; a++) positions[a] = a;
+  }
+  for (let t = 0; t < count; t++) {
+    const a = positions[t];
     const j = indices[a];
     const xj = x[j];
     const sd = sdAt(a);
@@ -109,10 +139,10 @@ export function derivedEstimate(result: ReconcileResult, f: (x: Float64Array) =>
   }
   // u^2 = g' C g over the non-zero derivatives (a zero term adds nothing to either sum), in
   // increasing position.
-  const nz = new Int32Array(positions.length);
+  const nz = scratch.nz;
   let nnz = 0;
-  for (let t = 0; t < positions.length; t++) {
-    const a = reads ? positions[t] : t;
+  for (let t = 0; t < count; t++) {
+    const a = positions[t];
     if (grad[a] !== 0) nz[nnz++] = a;
   }
   let variance = 0;
@@ -134,8 +164,5 @@ export function derivedEstimate(result: ReconcileResult, f: (x: Float64Array) =>
       variance += grad[a] * s;
     }
   }
-  const out: DerivedEstimate = { value, uncertainty: Math.sqrt(Math.max(0, variance)), sensitivities: [] };
-  // Made when read: most callers want the value and its uncertainty only.
-  Object.defineProperty(out, 'sensitivities', { enumerable: true, configurable: true, get: () => Array.from(indices, (index, a) => ({ index, derivative: grad[a] })) });
-  return out;
+  return { value, uncertainty: Math.sqrt(Math.max(0, variance)) };
 }

@@ -30,7 +30,7 @@ import { meterFlowBudget, type FlowBudget, type FlowBudgetResult } from './budge
 import { meterEosFor } from '../thermo/meter-eos.js';
 import { closure as rawClosure, type ClosureTerm } from './closure.js';
 import { standardUncertainty, type InstrumentDecl } from './declarations.js';
-import { derivedEstimate } from './derived.js';
+import { derivedFigure } from './derived.js';
 import { buildNetwork, flowOf, streamVariables, totalOf, type Network, type StreamVars } from './network.js';
 import { prepareReconciliation, type PreparedReconciliation } from './reconcile.js';
 import { serialElimination } from './serial.js';
@@ -412,7 +412,7 @@ export class PlantReconciliation {
           const comp = this.composition(s, x && Number.isFinite(totalOf(s, x)) ? x : undefined);
           let MW = 0;
           for (let i = 0; i < comp.length; i++) MW += comp[i] * this.model.components[i].MW;
-          const tot = ok ? derivedEstimate(res, (xx) => totalOf(s, xx), this.variablesOf(s)) : { value: null, uncertainty: null };
+          const tot = ok ? derivedFigure(res, (xx) => totalOf(s, xx), this.variablesOf(s)) : { value: null, uncertainty: null };
           rep.molarFlow = { measured: measured === null ? null : measured / MW, reconciled: tot.value, sigma: sigma === null ? null : sigma / MW, reconciledSigma: tot.uncertainty };
         } else {
           rep.molarFlow = { measured, reconciled: recon, sigma, reconciledSigma: rsig };
@@ -466,7 +466,7 @@ export class PlantReconciliation {
       const isParameter = fp !== undefined;
       const unit = fp ? fp.unit : fig.unit;
       // Differenced only in the variables the figure reads at the solution (the others' derivatives are exactly zero).
-      const d = ok ? derivedEstimate(res, (x) => fig.value(x), fig.readsAt(res.x)) : { value: null, uncertainty: null };
+      const d = ok ? derivedFigure(res, (x) => fig.value(x), fig.readsAt(res.x)) : { value: null, uncertainty: null };
       // A figure of a component that is not there at all (0 / 0) is left out.
       if (d.value === null && !isParameter && ok && !Number.isFinite(fig.value(Float64Array.from(this.network.start)))) continue;
       report.parameters[fig.path] = { value: d.value, sigma: d.uncertainty, unit, ...(file !== undefined ? { file } : {}), parameter: isParameter, observable: d.value !== null };
@@ -475,7 +475,7 @@ export class PlantReconciliation {
     const metered = new Set(this.model.instruments.filter((d) => this.network.instruments.get(d.tag)!.variable !== undefined && usable.has(d.tag) && !report.instruments[d.tag].suspect).map((d) => d.stream));
     for (const [name, s] of this.network.streams) {
       if (metered.has(name)) continue;
-      const d = ok ? derivedEstimate(res, (x) => totalOf(s, x), this.variablesOf(s)) : { value: null, uncertainty: null };
+      const d = ok ? derivedFigure(res, (x) => totalOf(s, x), this.variablesOf(s)) : { value: null, uncertainty: null };
       report.unmeasured[`streams.${name}.total`] = {
         value: d.value, sigma: d.uncertainty, observable: d.value !== null,
         ...(d.value === null ? { reason: ok ? 'not observable: the readings and balances do not determine it' : `no reconciliation (${res.status})` } : {}),
@@ -613,7 +613,7 @@ export class PlantReconciliation {
       return out;
     }
     const entry = (terms: ClosureTerm[], outTerms: ClosureTerm[]): ClosureEntry | null => {
-      const c = rawClosure({ quantities, inflow: terms, outflow: outTerms });
+      const c = rawClosure({ quantities, inflow: terms, outflow: outTerms }, { contributions: false });
       if (c.status !== 'ok') return null;
       return { in: c.inflow, out: c.outflow, relative: c.relative, uncertainty: c.relativeExpanded };
     };

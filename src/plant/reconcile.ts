@@ -185,6 +185,10 @@ export class PreparedReconciliation {
   private readonly structuredState: StructuredState;
   /** Whether the factorisation in the buffers is the structured one (else the whole one). */
   private lastStructured = false;
+  /** The confidence as the messages print it (the options are fixed). */
+  private confidenceText: string | undefined;
+  /** Work space of summarise: the covariance position of each variable. */
+  private readonly covPosition: Int32Array;
 
   constructor(problem: ReconciliationProblem, options: ReconcileOptions = {}) {
     this.problem = problem;
@@ -229,6 +233,7 @@ export class PreparedReconciliation {
     this.vec = new Float64Array(Math.max(M, n));
     this.z = new Float64Array(n);
     this.dx = new Float64Array(n);
+    this.covPosition = new Int32Array(n);
     this.qrB = newQrWork(n);
     this.qrG = newQrWork(M);
     for (let j = 0; j < n; j++) {
@@ -885,8 +890,9 @@ export class PreparedReconciliation {
       covariance = { indices, matrix: cov };
       variance = (a) => cov[a * N + a];
     }
-    const covIndex = new Map<number, number>();
-    indices.forEach((j, a) => covIndex.set(j, a));
+    // Covariance position of each variable (indices holds each variable once).
+    const covIndex = this.covPosition;
+    for (let a = 0; a < N; a++) covIndex[indices[a]] = a;
 
     // Tests.
     let redundantCount = 0;
@@ -923,7 +929,7 @@ export class PreparedReconciliation {
         const k = this.position[j];
         const isRedundant = redundant[k] === 1;
         if (!isRedundant && !atBound) x[j] = this.y[j];
-        const a = covIndex.get(j)!;
+        const a = covIndex[j];
         const adjustment = x[j] - this.y[j];
         const adjustmentSigma = sigma[j] * Math.sqrt(leverage[k]);
         const e: VariableEstimate = {
@@ -954,7 +960,7 @@ export class PreparedReconciliation {
       } else {
         const k = this.position[j];
         if (observable[k]) {
-          const a = covIndex.get(j)!;
+          const a = covIndex[j];
           const e: VariableEstimate = {
             index: j,
             name,
@@ -978,7 +984,7 @@ export class PreparedReconciliation {
     }
     const norms = this.residualNorms();
     const status = rho === 0 ? 'not-redundant' : 'reconciled';
-    const pct = `${+(confidence * 100).toPrecision(4)} %`;
+    const pct = (this.confidenceText ??= `${+(confidence * 100).toPrecision(4)} %`);
     const message =
       status === 'not-redundant'
         ? 'not redundant: no reading is checked by another (redundancy 0); the readings pass through unadjusted and no gross-error test is possible'
