@@ -36,19 +36,34 @@ interface ResultScratch {
   nz: Int32Array;
 }
 
-const scratchOf = new WeakMap<ReconcileResult, ResultScratch>();
+/**
+ * One work space, for the result last asked about (estimates of one result come together); made
+ * again, in the same buffers, for another result.
+ */
+let scratch: (ResultScratch & { result: ReconcileResult | undefined }) | undefined;
 
 function scratchFor(result: ReconcileResult): ResultScratch {
-  let s = scratchOf.get(result);
-  if (!s) {
-    const x = Float64Array.from(result.x);
-    const { indices } = result.covariance;
-    const positionOf = new Int32Array(x.length).fill(-1);
-    for (let a = 0; a < indices.length; a++) if (indices[a] >= 0 && indices[a] < x.length && positionOf[indices[a]] < 0) positionOf[indices[a]] = a;
-    const N = indices.length;
-    s = { x, positionOf, sd: new Float64Array(N), sdDone: new Uint8Array(N), grad: new Float64Array(N), positions: new Int32Array(N), nz: new Int32Array(N) };
-    scratchOf.set(result, s);
+  const n = result.x.length;
+  const N = result.covariance.indices.length;
+  if (scratch && scratch.result === result) return scratch;
+  if (!scratch || scratch.x.length < n || scratch.sd.length < N) {
+    const nn = Math.max(n, scratch?.x.length ?? 0);
+    const NN = Math.max(N, scratch?.sd.length ?? 0);
+    scratch = {
+      result: undefined, x: new Float64Array(nn), positionOf: new Int32Array(nn), sd: new Float64Array(NN), sdDone: new Uint8Array(NN),
+      grad: new Float64Array(NN), positions: new Int32Array(NN), nz: new Int32Array(NN),
+    };
   }
+  const s = scratch;
+  s.result = undefined;
+  const { indices } = result.covariance;
+  const x = s.x.length === n ? s.x : (s.x = new Float64Array(n));
+  x.set(result.x);
+  const positionOf = s.positionOf.length === n ? s.positionOf : (s.positionOf = new Int32Array(n));
+  positionOf.fill(-1);
+  for (let a = 0; a < N; a++) if (indices[a] >= 0 && indices[a] < n && positionOf[indices[a]] < 0) positionOf[indices[a]] = a;
+  s.sdDone.fill(0);
+  s.result = result;
   return s;
 }
 

@@ -187,8 +187,10 @@ export class PreparedReconciliation {
   private lastStructured = false;
   /** The confidence as the messages print it (the options are fixed). */
   private confidenceText: string | undefined;
-  /** Work space of summarise: the covariance position of each variable. */
+  /** Work space of summarise: the covariance position of each variable, leverages, scales. */
   private readonly covPosition: Int32Array;
+  private readonly leverageWork: Float64Array;
+  private readonly scaleWork: Float64Array;
 
   constructor(problem: ReconciliationProblem, options: ReconcileOptions = {}) {
     this.problem = problem;
@@ -234,6 +236,8 @@ export class PreparedReconciliation {
     this.z = new Float64Array(n);
     this.dx = new Float64Array(n);
     this.covPosition = new Int32Array(n);
+    this.leverageWork = new Float64Array(n);
+    this.scaleWork = new Float64Array(n);
     this.qrB = newQrWork(n);
     this.qrG = newQrWork(M);
     for (let j = 0; j < n; j++) {
@@ -847,7 +851,7 @@ export class PreparedReconciliation {
         for (let l = 0; l < p; l++) L[offset + l] = -A[l * R + b];
       };
     }
-    const leverage = new Float64Array(p);
+    const leverage = this.leverageWork;
     for (let k = 0; k < p; k++) {
       let s = 0;
       for (let l = 0; l < rho; l++) s += QG[l * ldG + k] * QG[l * ldG + k];
@@ -862,7 +866,7 @@ export class PreparedReconciliation {
     for (let k = 0; k < p; k++) indices.push(meas[k]);
     for (let k = 0; k < q; k++) if (observable[k]) indices.push(unmeas[k]);
     const N = indices.length;
-    const scale = new Float64Array(N);
+    const scale = this.scaleWork;
     for (let k = 0; k < p; k++) scale[k] = sigma[meas[k]];
     for (let a = p; a < N; a++) scale[a] = typical[indices[a]];
     let covariance: ReconcileResult['covariance'];
