@@ -87,7 +87,8 @@ export function closure(input: ClosureInput, options: { coverageFactor?: number;
   const nq = quantities.length;
   const side = (terms: readonly ClosureTerm[]) => {
     let total = 0;
-    const d = new Float64Array(nq);
+    // Plain arrays: typed arrays this small cost more to allocate than to use.
+    const d: number[] = new Array<number>(nq).fill(0);
     for (let t = 0; t < terms.length; t++) {
       const factors = terms[t].factors;
       const c = terms[t].coefficient ?? 1;
@@ -111,7 +112,7 @@ export function closure(input: ClosureInput, options: { coverageFactor?: number;
   }
   let varImb = 0;
   let varRel = 0;
-  const sens = new Float64Array(nq);
+  const sens: number[] = new Array<number>(nq).fill(0);
   for (let q = 0; q < nq; q++) {
     const u2 = quantities[q].sigma ** 2;
     const dImb = I.d[q] - O.d[q];

@@ -154,6 +154,8 @@ export class PlantReconciliation {
     this.eos = makeEos(model.thermo.eos, model.components, model.thermo.kij);
     this.budget = options.budget ?? meterFlowBudget(meterEosFor(model.thermo.meterEos, this.eos));
     this.byTag = new Map(model.instruments.map((d) => [d.tag, d]));
+    this.rowValues = new Float64Array(this.network.variables.length);
+    this.rowSigmas = new Float64Array(this.network.variables.length);
     this.prepared = prepareReconciliation({ variables: this.network.variables, constraints: this.network.constraints }, { ...PLANT_RECONCILE_DEFAULTS, ...options.reconcile });
     for (const fig of this.network.figures) {
       try {
@@ -197,8 +199,9 @@ export class PlantReconciliation {
     const { network, model } = this;
     const n = network.variables.length;
     const ids = model.ids;
-    const values = new Float64Array(n).fill(Number.NaN);
-    const sigmas = new Float64Array(n).fill(Number.NaN);
+    // The readings and sigmas of this row (read by this row's solves only).
+    const values = this.rowValues.fill(Number.NaN);
+    const sigmas = this.rowSigmas.fill(Number.NaN);
     const start = Float64Array.from(network.start);
     if (warm) for (let j = 0; j < n; j++) if (Number.isFinite(warm[j])) start[j] = warm[j];
     const instruments: Record<string, InstrumentReport> = {};
@@ -483,6 +486,10 @@ export class PlantReconciliation {
     }
     if (afterSuspects) report.notes.push('fitted figures and unmeasured streams are from the reconciliation without the suspects');
   }
+
+  /** Work space of run: a row's readings and sigmas by variable. */
+  private readonly rowValues: Float64Array;
+  private readonly rowSigmas: Float64Array;
 
   /** The variables of each stream (streamVariables), made once. */
   private readonly streamVars = new Map<StreamVars, number[]>();
