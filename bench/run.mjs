@@ -399,10 +399,13 @@ if (only.has('plant')) {
   const demo = flowsheetPath('ammonia-loop.yaml');
   const year = join(root, 'flowsheets', 'data', 'ammonia-loop-year.csv');
   const rows = [];
+  // Against an aim: met, or the gap (judged on the wall time, as the aim is stated; the CPU time
+  // beside it tells what a loaded machine added).
+  const verdict = (wall, cpu, aim) => (!Number.isFinite(wall) ? '' : wall <= aim ? 'met' : `not met: +${fmt(wall - aim, 3)} ms wall (${(wall / aim).toFixed(2)}x)${Number.isFinite(cpu) ? `, cpu ${cpu <= aim ? 'within' : `+${fmt(cpu - aim, 3)} ms`}` : ''}`);
   if (e) {
-    rows.push([`one snapshot, 5 streams, 4 elements (${e.problem.variables} variables), in-process`, fmt(e.snapshotMs, 3), fmt(e.snapshotCpuMs, 3), '<= 2']);
-    if (e.demoRowMs !== undefined) rows.push([`ammonia demo, one row of the year (${e.demoVariables} variables), in-process`, fmt(e.demoRowMs, 3), fmt(e.demoRowCpuMs, 3), '']);
-  } else rows.push(['one snapshot, 5 streams, 4 elements, in-process', `failed (exit ${engine.status})`, '', '<= 2']);
+    rows.push([`one snapshot, 5 streams, 4 elements (${e.problem.variables} variables), in-process`, fmt(e.snapshotMs, 3), fmt(e.snapshotCpuMs, 3), '<= 2', verdict(e.snapshotMs, e.snapshotCpuMs, 2)]);
+    if (e.demoRowMs !== undefined) rows.push([`ammonia demo, one row of the year (${e.demoVariables} variables), in-process`, fmt(e.demoRowMs, 3), fmt(e.demoRowCpuMs, 3), '', '']);
+  } else rows.push(['one snapshot, 5 streams, 4 elements, in-process', `failed (exit ${engine.status})`, '', '<= 2', '']);
   const ammonia = existsSync(demo) ? demo : undefined;
   out.plant = { engine: e ?? { exit: engine.status, stderr: engine.stderr.slice(0, 2000) } };
   if (existsSync(year) && ammonia) {
@@ -428,10 +431,11 @@ if (only.has('plant')) {
     out.plant.yearExit = serial.status;
     out.plant.yearJobs2Ms = jobs2.ms;
     out.plant.yearJobs2CpuMs = jobs2.cpuMs;
-    rows.push(['8760 hourly rows of ammonia-loop-year.csv, whole process, serial (CSV to a pipe)', fmt(serial.ms, 5), fmt(serial.cpuMs, 5), '<= 5000']);
-    rows.push(['the same with --jobs 2', fmt(jobs2.ms, 5), fmt(jobs2.cpuMs, 5), '']);
+    rows.push(['8760 hourly rows of ammonia-loop-year.csv, whole process, serial (CSV to a pipe)', fmt(serial.ms, 5), fmt(serial.cpuMs, 5), '<= 5000', verdict(serial.ms, serial.cpuMs, 5000)]);
+    rows.push(['the same with --jobs 2', fmt(jobs2.ms, 5), fmt(jobs2.cpuMs, 5), '', '']);
+    out.plant.yearAimMet = serial.ms <= 5000;
   }
-  say(table(['case', 'wall ms', 'cpu ms', 'aim ms'], rows));
+  say(table(['case', 'wall ms', 'cpu ms', 'aim ms', 'aim'], rows));
   say(`load average ${loadavg()[0].toFixed(1)} on ${cpus().length} cores (wall times grow with the other processes' load)`);
 }
 

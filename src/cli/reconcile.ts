@@ -19,6 +19,10 @@ import { runBlocksParallel, runBlocksSerial, WorkerFailure, type Task } from '..
 import { EXIT } from './exit.js';
 import { writeErr } from './io.js';
 
+/** Rows written to the output with one call, at most (and at most CHUNK_MS apart). */
+const ROW_CHUNK = 64;
+const CHUNK_MS = 250;
+
 export interface ReconcileCliOptions {
   readings?: string;
   json?: boolean;
@@ -135,12 +139,30 @@ async function runRows(file: string, o: ReconcileCliOptions, block: number, froz
       left = 0;
     }
   }
+  // Rows go to the sink in chunks of whole lines (one write call for up to ROW_CHUNK rows or
+  // CHUNK_MS of work), not one call per row: an interrupted run loses at most the rows of the
+  // chunk not yet written, which --resume reconciles again (a row is only counted once written).
+  let chunk = '';
+  let chunkRows = 0;
+  const chunkStatus: string[] = [];
+  let chunkSince = Date.now();
+  const flush = () => {
+    if (chunkRows === 0) return;
+    sink.write(chunk);
+    written += chunkRows;
+    for (const s of chunkStatus) tally.set(s, (tally.get(s) ?? 0) + 1);
+    progress.tick(chunkRows);
+    chunk = '';
+    chunkRows = 0;
+    chunkStatus.length = 0;
+    chunkSince = Date.now();
+  };
   const hooks = {
     onRow(row: RowOut) {
-      sink.write(row.line);
-      written++;
-      tally.set(row.status, (tally.get(row.status) ?? 0) + 1);
-      progress.tick();
+      chunk = chunkRows === 0 ? row.line : `${chunk}\n${row.line}`;
+      chunkRows++;
+      chunkStatus.push(row.status);
+      if (chunkRows >= ROW_CHUNK || Date.now() - chunkSince >= CHUNK_MS) flush();
     },
     stopped: () => signal !== undefined || !sink.open,
   };
@@ -152,6 +174,7 @@ async function runRows(file: string, o: ReconcileCliOptions, block: number, froz
     if (e instanceof WorkerFailure && e.workerStack) e.stack = e.workerStack;
     throw e;
   } finally {
+    flush();
     progress.finish();
     sink.close();
     process.off('SIGINT', onSignal);

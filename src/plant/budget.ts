@@ -22,7 +22,7 @@ import { R } from '../thermo/constants.js';
 import type { Eos } from '../thermo/types.js';
 import type { StandardRef } from '../units/index.js';
 import type { FlowKind } from './declarations.js';
-import { meterBudget } from '../thermo/meter-budget.js';
+import { meterBudget, phaseForBudget } from '../thermo/meter-budget.js';
 import type { MeterEos } from '../thermo/meter-eos.js';
 
 export interface FlowBudgetInput {
@@ -108,12 +108,14 @@ export function meterFlowBudget(meter: MeterEos): FlowBudget {
     if (kind === 'standard') {
       const ref = input.reference!;
       const realGas = input.realGas ?? true;
-      // The molar volume alone (no phase test: the same v as state(), which also classifies the phase).
-      const v = realGas ? meter.molarVolume(ref.T, ref.P, x) : (R * ref.T) / ref.P;
+      // The state at the reference (v is the same as molarVolume's), made once for v and the
+      // model's figure; its phase test only where the figure can read it (phaseForBudget).
+      const st = realGas ? phaseForBudget(meter, ref.T, ref.P, x) : undefined;
+      const v = st ? st.v : (R * ref.T) / ref.P;
       const F = reading / v;
       const terms: BudgetTerm[] = [{ source: 'instrument', sigma: reading > 0 ? (F / reading) * instrument : instrument / v }];
       if (realGas) {
-        const mu = meter.modelUncertainty(ref.T, ref.P, x);
+        const mu = meter.modelUncertainty(ref.T, ref.P, x, st);
         terms.push({ source: `equation of state at the reference (${mu.model})`, sigma: mu.relative === null ? 0 : F * mu.relative, note: mu.source });
         notes.push(...mu.notes);
       }
@@ -127,7 +129,7 @@ export function meterFlowBudget(meter: MeterEos): FlowBudget {
     if (input.design) {
       const d = input.design;
       const zc = d.composition ?? x;
-      designDensity = d.density ?? molarMass(input.eos, zc) / meter.state(d.T!, d.P!, zc).v;
+      designDensity = d.density ?? molarMass(input.eos, zc) / meter.molarVolume(d.T!, d.P!, zc);
     }
     const b = meterBudget(meter, { flow: reading, T: line.T, P: line.P, x, designDensity }, {
       flow: reading > 0 ? instrument / reading : undefined, pressure: line.uP, temperature: line.uT,

@@ -50,7 +50,8 @@ export interface ClosureResult {
   contributions: { name: string; index: number; sensitivity: number; share: number }[];
 }
 
-export function closure(input: ClosureInput, options: { coverageFactor?: number } = {}): ClosureResult {
+/** `contributions: false` leaves the per-quantity contributions out (an empty list): the figures are the same. */
+export function closure(input: ClosureInput, options: { coverageFactor?: number; contributions?: boolean } = {}): ClosureResult {
   const k = options.coverageFactor ?? 2;
   const { quantities } = input;
   const issues: string[] = [];
@@ -86,20 +87,20 @@ export function closure(input: ClosureInput, options: { coverageFactor?: number 
   const nq = quantities.length;
   const side = (terms: readonly ClosureTerm[]) => {
     let total = 0;
-    const d = new Float64Array(nq);
-    for (const t of terms) {
-      const c = t.coefficient ?? 1;
+    // Plain arrays: typed arrays this small cost more to allocate than to use.
+    const d: number[] = new Array<number>(nq).fill(0);
+    for (let t = 0; t < terms.length; t++) {
+      const factors = terms[t].factors;
+      const c = terms[t].coefficient ?? 1;
       let prod = c;
-      for (const f of t.factors) prod *= quantities[f].value;
+      for (let a = 0; a < factors.length; a++) prod *= quantities[factors[a]].value;
       total += prod;
       // Product rule: for each appearance, the product of the other factors.
-      t.factors.forEach((f, pos) => {
+      for (let pos = 0; pos < factors.length; pos++) {
         let other = c;
-        t.factors.forEach((g, p2) => {
-          if (p2 !== pos) other *= quantities[g].value;
-        });
-        d[f] += other;
-      });
+        for (let p2 = 0; p2 < factors.length; p2++) if (p2 !== pos) other *= quantities[factors[p2]].value;
+        d[factors[pos]] += other;
+      }
     }
     return { total, d };
   };
@@ -111,7 +112,7 @@ export function closure(input: ClosureInput, options: { coverageFactor?: number 
   }
   let varImb = 0;
   let varRel = 0;
-  const sens = new Float64Array(nq);
+  const sens: number[] = new Array<number>(nq).fill(0);
   for (let q = 0; q < nq; q++) {
     const u2 = quantities[q].sigma ** 2;
     const dImb = I.d[q] - O.d[q];
@@ -131,7 +132,7 @@ export function closure(input: ClosureInput, options: { coverageFactor?: number 
     relativeUncertainty,
     coverageFactor: k,
     relativeExpanded: k * relativeUncertainty,
-    contributions: quantities.map((q, index) => ({
+    contributions: options.contributions === false ? [] : quantities.map((q, index) => ({
       name: q.name,
       index,
       sensitivity: sens[index],

@@ -247,35 +247,40 @@ export function rowInput(h: Historian, model: Model, r: number, frozen: Map<numb
   const leftOut = new Map<string, string>();
   const fz = frozen.get(r);
   const n = model.ids.length;
+  const where = `${h.file}:${row.line}`;
+  const labelOf = (c: HistorianColumn) => (c.component === undefined ? c.tag : `${c.tag}.${model.ids[c.component]}`);
   for (const c of h.columns) {
-    const raw = (row.cells[c.index] ?? '').trim();
-    const label = c.component === undefined ? c.tag : `${c.tag}.${model.ids[c.component]}`;
+    const cell = row.cells[c.index];
+    const raw = cell === undefined ? '' : cell.trim();
     if (raw === '') {
-      said.push(`${label}: no reading (empty cell)`);
+      said.push(`${labelOf(c)}: no reading (empty cell)`);
       continue;
     }
     const v = Number(raw);
-    if (!/^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(raw) || !Number.isFinite(v)) {
-      said.push(`${label}: left out: \`${raw}\` at ${h.file}:${row.line}:${columnOf(h.rows[r] ? rowText(row) : '', c.index)} is not a number`);
+    if (!NUMBER.test(raw) || !Number.isFinite(v)) {
+      said.push(`${labelOf(c)}: left out: \`${raw}\` at ${h.file}:${row.line}:${columnOf(h.rows[r] ? rowText(row) : '', c.index)} is not a number`);
       if (c.component === undefined) leftOut.set(c.tag, `not a number (\`${raw}\`)`);
       continue;
     }
     const frozenWhy = fz?.get(c.component === undefined ? c.tag : `${c.tag}#${c.component}`);
     if (frozenWhy) {
-      said.push(`${label}: left out: ${frozenWhy}`);
+      said.push(`${labelOf(c)}: left out: ${frozenWhy}`);
       if (c.component === undefined) leftOut.set(c.tag, frozenWhy);
       continue;
     }
     const si = c.scale * v + c.offset;
-    if (c.component === undefined) readings.set(c.tag, { value: si, reference: c.reference, where: `${h.file}:${row.line}` });
+    if (c.component === undefined) readings.set(c.tag, { value: si, reference: c.reference, where });
     else {
       let rr = readings.get(c.tag);
-      if (!rr) readings.set(c.tag, (rr = { fractions: new Float64Array(n).fill(Number.NaN), where: `${h.file}:${row.line}` }));
+      if (!rr) readings.set(c.tag, (rr = { fractions: new Float64Array(n).fill(Number.NaN), where }));
       rr.fractions![c.component] = si;
     }
   }
   return { input: { readings, leftOut }, said };
 }
+
+/** A decimal number as a historian writes it (no hexadecimal, no Infinity, no blanks). */
+const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 
 function rowText(row: HistorianRow): string {
   return row.cells.map((c) => (/[",]/.test(c) ? `"${c.replace(/"/g, '""')}"` : c)).join(',');

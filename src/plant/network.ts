@@ -85,6 +85,13 @@ export interface NetworkFigure {
   value(x: Float64Array): number;
   /** Every variable value(x) can read: its unit's inlet and outlet streams and extents. */
   reads: Int32Array;
+  /**
+   * The variables value(x) reads at this x, in increasing order (a subset of reads). The figure
+   * sees x only through its unit's view, so at any x that differs from this one only in other
+   * variables it reads the same values, takes the same path and gives the same number: its
+   * derivative in each of them is exactly zero.
+   */
+  readsAt(x: Float64Array): Int32Array;
 }
 
 export interface Network {
@@ -457,10 +464,27 @@ export function buildNetwork(model: Model, design?: FlowsheetResult): Network {
       const reads = Int32Array.from(new Set([...[...ins, ...outs].flatMap(streamVariables), ...uv.extents, ...uv.others]));
       // One view per figure, reading the x of the call (derived estimates call value() many times).
       let at: Float64Array = new Float64Array(0);
+      // While readsAt records: the variables the view has read.
+      let seen: Uint8Array | undefined;
+      const mark = (st: StreamVars, i: number | undefined) => {
+        if (st.total !== undefined) seen![st.total] = 1;
+        else if (i === undefined) {
+          for (const j of st.flows!) if (j >= 0) seen![j] = 1;
+        } else if (st.flows![i] >= 0) seen![st.flows![i]] = 1;
+      };
       const view: BalanceView = {
-        inlet: (i) => ins.reduce((t, s) => t + (i === undefined ? totalOf(s, at) : flowOf(s, i, at)), 0),
-        outlet: (k, i) => (i === undefined ? totalOf(outs[k], at) : flowOf(outs[k], i, at)),
-        extent: (r) => at[uv.extents[r]],
+        inlet: (i) => {
+          if (seen) for (const st of ins) mark(st, i);
+          return ins.reduce((t, s) => t + (i === undefined ? totalOf(s, at) : flowOf(s, i, at)), 0);
+        },
+        outlet: (k, i) => {
+          if (seen) mark(outs[k], i);
+          return i === undefined ? totalOf(outs[k], at) : flowOf(outs[k], i, at);
+        },
+        extent: (r) => {
+          if (seen) seen[uv.extents[r]] = 1;
+          return at[uv.extents[r]];
+        },
       };
       figures.push({
         path: fig.path,
@@ -469,6 +493,18 @@ export function buildNetwork(model: Model, design?: FlowsheetResult): Network {
         value(x) {
           at = x;
           return fig.value(view);
+        },
+        readsAt(x) {
+          at = x;
+          seen = new Uint8Array(x.length);
+          try {
+            fig.value(view);
+            const out: number[] = [];
+            for (let j = 0; j < seen.length; j++) if (seen[j]) out.push(j);
+            return Int32Array.from(out);
+          } finally {
+            seen = undefined;
+          }
         },
       });
     }

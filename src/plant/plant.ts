@@ -30,7 +30,7 @@ import { meterFlowBudget, type FlowBudget, type FlowBudgetResult } from './budge
 import { meterEosFor } from '../thermo/meter-eos.js';
 import { closure as rawClosure, type ClosureTerm } from './closure.js';
 import { standardUncertainty, type InstrumentDecl } from './declarations.js';
-import { derivedEstimate } from './derived.js';
+import { derivedFigure } from './derived.js';
 import { buildNetwork, flowOf, streamVariables, totalOf, type Network, type StreamVars } from './network.js';
 import { prepareReconciliation, type PreparedReconciliation } from './reconcile.js';
 import { serialElimination } from './serial.js';
@@ -154,6 +154,8 @@ export class PlantReconciliation {
     this.eos = makeEos(model.thermo.eos, model.components, model.thermo.kij);
     this.budget = options.budget ?? meterFlowBudget(meterEosFor(model.thermo.meterEos, this.eos));
     this.byTag = new Map(model.instruments.map((d) => [d.tag, d]));
+    this.rowValues = new Float64Array(this.network.variables.length);
+    this.rowSigmas = new Float64Array(this.network.variables.length);
     this.prepared = prepareReconciliation({ variables: this.network.variables, constraints: this.network.constraints }, { ...PLANT_RECONCILE_DEFAULTS, ...options.reconcile });
     for (const fig of this.network.figures) {
       try {
@@ -197,8 +199,9 @@ export class PlantReconciliation {
     const { network, model } = this;
     const n = network.variables.length;
     const ids = model.ids;
-    const values = new Float64Array(n).fill(Number.NaN);
-    const sigmas = new Float64Array(n).fill(Number.NaN);
+    // The readings and sigmas of this row (read by this row's solves only).
+    const values = this.rowValues.fill(Number.NaN);
+    const sigmas = this.rowSigmas.fill(Number.NaN);
     const start = Float64Array.from(network.start);
     if (warm) for (let j = 0; j < n; j++) if (Number.isFinite(warm[j])) start[j] = warm[j];
     const instruments: Record<string, InstrumentReport> = {};
@@ -342,12 +345,24 @@ export class PlantReconciliation {
     });
     if (serial.suspects.length > 0) {
       const after: NonNullable<PlantReport['afterRemoving']> = { tags: [...new Set(report.suspects.map((s) => s.tag))], globalTest: globalTestOf(final), instruments: {} };
-      const tmp: PlantReport = { ...report, instruments: {} };
-      for (const [tag, rep] of Object.entries(instruments)) tmp.instruments[tag] = { ...rep };
-      this.describeInstruments(tmp, final, budgets, usable, removed);
-      for (const [tag, rep] of Object.entries(tmp.instruments)) {
-        if (rep.molarFlow || rep.fractions) after.instruments[tag] = { ...(rep.molarFlow ? { molarFlow: rep.molarFlow } : {}), ...(rep.fractions ? { fractions: rep.fractions } : {}) };
-      }
+      // The instruments without the suspects are described when first read (a row of a
+      // historian export does not read them); nothing they read changes after this row's run.
+      const base = Object.entries(instruments).map(([tag, rep]) => [tag, { ...rep }] as const);
+      let described: NonNullable<PlantReport['afterRemoving']>['instruments'] | undefined;
+      Object.defineProperty(after, 'instruments', {
+        enumerable: true,
+        configurable: true,
+        get: () => {
+          if (described) return described;
+          const tmp: PlantReport = { ...report, instruments: Object.fromEntries(base) };
+          this.describeInstruments(tmp, final, budgets, usable, removed);
+          described = {};
+          for (const [tag, rep] of Object.entries(tmp.instruments)) {
+            if (rep.molarFlow || rep.fractions) described[tag] = { ...(rep.molarFlow ? { molarFlow: rep.molarFlow } : {}), ...(rep.fractions ? { fractions: rep.fractions } : {}) };
+          }
+          return described;
+        },
+      });
       report.afterRemoving = after;
     }
     this.describeEstimates(report, final, serial.suspects.length > 0, usable);
@@ -400,7 +415,7 @@ export class PlantReconciliation {
           const comp = this.composition(s, x && Number.isFinite(totalOf(s, x)) ? x : undefined);
           let MW = 0;
           for (let i = 0; i < comp.length; i++) MW += comp[i] * this.model.components[i].MW;
-          const tot = ok ? derivedEstimate(res, (xx) => totalOf(s, xx), streamVariables(s)) : { value: null, uncertainty: null };
+          const tot = ok ? derivedFigure(res, (xx) => totalOf(s, xx), this.variablesOf(s)) : { value: null, uncertainty: null };
           rep.molarFlow = { measured: measured === null ? null : measured / MW, reconciled: tot.value, sigma: sigma === null ? null : sigma / MW, reconciledSigma: tot.uncertainty };
         } else {
           rep.molarFlow = { measured, reconciled: recon, sigma, reconciledSigma: rsig };
@@ -453,7 +468,8 @@ export class PlantReconciliation {
       const file = fp?.value;
       const isParameter = fp !== undefined;
       const unit = fp ? fp.unit : fig.unit;
-      const d = ok ? derivedEstimate(res, (x) => fig.value(x), fig.reads) : { value: null, uncertainty: null };
+      // Differenced only in the variables the figure reads at the solution (the others' derivatives are exactly zero).
+      const d = ok ? derivedFigure(res, (x) => fig.value(x), fig.readsAt(res.x)) : { value: null, uncertainty: null };
       // A figure of a component that is not there at all (0 / 0) is left out.
       if (d.value === null && !isParameter && ok && !Number.isFinite(fig.value(Float64Array.from(this.network.start)))) continue;
       report.parameters[fig.path] = { value: d.value, sigma: d.uncertainty, unit, ...(file !== undefined ? { file } : {}), parameter: isParameter, observable: d.value !== null };
@@ -462,7 +478,7 @@ export class PlantReconciliation {
     const metered = new Set(this.model.instruments.filter((d) => this.network.instruments.get(d.tag)!.variable !== undefined && usable.has(d.tag) && !report.instruments[d.tag].suspect).map((d) => d.stream));
     for (const [name, s] of this.network.streams) {
       if (metered.has(name)) continue;
-      const d = ok ? derivedEstimate(res, (x) => totalOf(s, x), streamVariables(s)) : { value: null, uncertainty: null };
+      const d = ok ? derivedFigure(res, (x) => totalOf(s, x), this.variablesOf(s)) : { value: null, uncertainty: null };
       report.unmeasured[`streams.${name}.total`] = {
         value: d.value, sigma: d.uncertainty, observable: d.value !== null,
         ...(d.value === null ? { reason: ok ? 'not observable: the readings and balances do not determine it' : `no reconciliation (${res.status})` } : {}),
@@ -471,69 +487,131 @@ export class PlantReconciliation {
     if (afterSuspects) report.notes.push('fitted figures and unmeasured streams are from the reconciliation without the suspects');
   }
 
+  /** Work space of run: a row's readings and sigmas by variable. */
+  private readonly rowValues: Float64Array;
+  private readonly rowSigmas: Float64Array;
+
+  /** The variables of each stream (streamVariables), made once. */
+  private readonly streamVars = new Map<StreamVars, number[]>();
+
+  private variablesOf(s: StreamVars): number[] {
+    let v = this.streamVars.get(s);
+    if (!v) this.streamVars.set(s, (v = streamVariables(s)));
+    return v;
+  }
+
+  /** What the raw closure reads of the model, the same for every row (made on first use). */
+  private envelope?: {
+    elements: string[];
+    /** Atoms of each element per molecule of each component (elements x components). */
+    atoms: Float64Array[];
+    streams: { name: string; s: StreamVars; role: 'feed' | 'product'; tags: string[]; analyzers: InstrumentDecl[]; design: Float64Array }[];
+  };
+
+  private envelopeOf(): NonNullable<PlantReconciliation['envelope']> {
+    if (!this.envelope) {
+      const { model, network } = this;
+      const elements = [...new Set(model.elements.flatMap((e) => Object.keys(e)))];
+      const atoms = elements.map((el) => Float64Array.from(model.ids, (_, i) => model.elements[i][el] ?? 0));
+      const streams: NonNullable<PlantReconciliation['envelope']>['streams'] = [];
+      for (const [name, s] of network.streams) {
+        if (s.role === 'internal') continue;
+        streams.push({
+          name, s, role: s.role === 'feed' ? 'feed' : 'product',
+          tags: model.instruments.filter((d) => d.stream === name).map((d) => d.tag),
+          analyzers: model.instruments.filter((d) => d.stream === name && d.kind === 'analyzer'),
+          design: this.composition(s, undefined),
+        });
+      }
+      this.envelope = { elements, atoms, streams };
+    }
+    return this.envelope;
+  }
+
   /** Raw closure over the envelope from the readings alone (first usable flow instrument of each boundary stream). */
   private closure(usable: Map<string, RowReading>, budgets: Map<string, FlowBudgetResult>, res: ReconcileResult): PlantReport['closure'] {
-    const { model, network } = this;
+    const { model } = this;
     const ids = model.ids;
     const nC = ids.length;
+    const env = this.envelopeOf();
+    const elements = env.elements;
     const quantities: { name: string; value: number; sigma: number }[] = [];
-    const elements = [...new Set(model.elements.flatMap((e) => Object.keys(e)))];
-    const inflow = new Map<string, ClosureTerm[]>(elements.map((e) => [e, []]));
-    const outflow = new Map<string, ClosureTerm[]>(elements.map((e) => [e, []]));
+    const inflow: ClosureTerm[][] = elements.map(() => []);
+    const outflow: ClosureTerm[][] = elements.map(() => []);
     const massIn: ClosureTerm[] = [];
     const massOut: ClosureTerm[] = [];
     const missing: string[] = [];
     const assumed: string[] = [];
-    for (const [name, s] of network.streams) {
-      if (s.role === 'internal') continue;
-      const flowTag = model.instruments.find((d) => d.stream === name && usable.has(d.tag) && budgets.has(d.tag))?.tag;
+    const fracValue = new Float64Array(nC);
+    const fracQ = new Int32Array(nC);
+    for (const { name, s, role, tags, analyzers, design } of env.streams) {
+      let flowTag: string | undefined;
+      for (const t of tags) {
+        if (usable.has(t) && budgets.has(t)) {
+          flowTag = t;
+          break;
+        }
+      }
       if (!flowTag) {
         missing.push(name);
         continue;
       }
       const b = budgets.get(flowTag)!;
       // Composition: the file's (a feed), an analyzer's reading, or the design solve's.
-      const design = this.composition(s, undefined);
-      const frac: { value: number; q: number }[] = Array.from({ length: nC }, (_, i) => ({ value: design[i], q: -1 }));
-      const an = model.instruments.find((d) => d.stream === name && d.kind === 'analyzer' && usable.has(d.tag));
+      fracValue.set(design);
+      fracQ.fill(-1);
+      let an: InstrumentDecl | undefined;
+      for (const d of analyzers) {
+        if (usable.has(d.tag)) {
+          an = d;
+          break;
+        }
+      }
       if (!s.z && an) {
         const r = usable.get(an.tag)!;
-        const read = an.components!.filter((k) => Number.isFinite(r.fractions![k]));
-        const unread = an.normalized === false ? ids.map((_, i) => i).filter((i) => !read.includes(i)) : ids.map((_, i) => i).filter((i) => !an.components!.includes(i));
+        const comps = an.components!;
+        const read = comps.filter((k) => Number.isFinite(r.fractions![k]));
+        const unread: number[] = [];
+        for (let i = 0; i < nC; i++) if (!(an.normalized === false ? read : comps).includes(i)) unread.push(i);
         let dRest = 0;
         for (const i of unread) dRest += design[i];
         let readSum = 0;
         for (const k of read) readSum += r.fractions![k];
         const scale = an.normalized === false ? 1 : 1 - dRest;
         for (const k of read) {
-          const pos = an.components!.indexOf(k);
+          const pos = comps.indexOf(k);
           const sig = standardUncertainty(an.componentUncertainty?.[pos] ?? an.uncertainty!, r.fractions![k]);
           quantities.push({ name: `${an.tag}.${ids[k]}`, value: r.fractions![k] * scale, sigma: sig * scale });
-          frac[k] = { value: r.fractions![k] * scale, q: quantities.length - 1 };
+          fracValue[k] = r.fractions![k] * scale;
+          fracQ[k] = quantities.length - 1;
         }
         if (an.normalized === false) {
           const rest = 1 - readSum;
-          for (const i of unread) frac[i] = { value: dRest > 0 ? (design[i] * rest) / dRest : 0, q: -1 };
+          for (const i of unread) {
+            fracValue[i] = dRest > 0 ? (design[i] * rest) / dRest : 0;
+            fracQ[i] = -1;
+          }
         }
         if (unread.some((i) => design[i] > 0)) assumed.push(`${name} (${unread.filter((i) => design[i] > 0).map((i) => ids[i]).join(', ')})`);
       } else if (!s.z) assumed.push(name);
       let MW = 0;
-      for (let i = 0; i < nC; i++) MW += frac[i].value * model.components[i].MW;
+      for (let i = 0; i < nC; i++) MW += fracValue[i] * model.components[i].MW;
       const F = b.basis === 'mass' ? b.value / MW : b.value;
       const uF = b.basis === 'mass' ? b.sigma / MW : b.sigma;
       quantities.push({ name: flowTag, value: F, sigma: uF });
       const fq = quantities.length - 1;
-      const side = s.role === 'feed' ? inflow : outflow;
-      const mside = s.role === 'feed' ? massIn : massOut;
+      const side = role === 'feed' ? inflow : outflow;
+      const mside = role === 'feed' ? massIn : massOut;
       for (let i = 0; i < nC; i++) {
-        const fi = frac[i];
-        if (fi.value === 0 && fi.q < 0) continue;
-        const term = (coef: number): ClosureTerm => (fi.q >= 0 ? { coefficient: coef, factors: [fq, fi.q] } : { coefficient: coef * fi.value, factors: [fq] });
-        for (const el of elements) {
-          const a = model.elements[i][el] ?? 0;
-          if (a) side.get(el)!.push(term(a));
+        const value = fracValue[i];
+        const q = fracQ[i];
+        if (value === 0 && q < 0) continue;
+        for (let e = 0; e < elements.length; e++) {
+          const a = env.atoms[e][i];
+          if (a) side[e].push(q >= 0 ? { coefficient: a, factors: [fq, q] } : { coefficient: a * value, factors: [fq] });
         }
-        mside.push(term(model.components[i].MW));
+        const mw = model.components[i].MW;
+        mside.push(q >= 0 ? { coefficient: mw, factors: [fq, q] } : { coefficient: mw * value, factors: [fq] });
       }
     }
     const out: PlantReport['closure'] = { elements: {}, mass: null };
@@ -542,14 +620,14 @@ export class PlantReconciliation {
       return out;
     }
     const entry = (terms: ClosureTerm[], outTerms: ClosureTerm[]): ClosureEntry | null => {
-      const c = rawClosure({ quantities, inflow: terms, outflow: outTerms });
+      const c = rawClosure({ quantities, inflow: terms, outflow: outTerms }, { contributions: false });
       if (c.status !== 'ok') return null;
       return { in: c.inflow, out: c.outflow, relative: c.relative, uncertainty: c.relativeExpanded };
     };
-    for (const el of elements) {
-      if (inflow.get(el)!.length === 0) continue;
-      const e = entry(inflow.get(el)!, outflow.get(el)!);
-      if (e) out.elements[el] = e;
+    for (let e = 0; e < elements.length; e++) {
+      if (inflow[e].length === 0) continue;
+      const c = entry(inflow[e], outflow[e]);
+      if (c) out.elements[elements[e]] = c;
     }
     out.mass = entry(massIn, massOut);
     if (assumed.length) out.note = `compositions from the design solve (no analyzer reads them) for: ${assumed.join('; ')}`;

@@ -185,6 +185,12 @@ export class PreparedReconciliation {
   private readonly structuredState: StructuredState;
   /** Whether the factorisation in the buffers is the structured one (else the whole one). */
   private lastStructured = false;
+  /** The confidence as the messages print it (the options are fixed). */
+  private confidenceText: string | undefined;
+  /** Work space of summarise: the covariance position of each variable, leverages, scales. */
+  private readonly covPosition: Int32Array;
+  private readonly leverageWork: Float64Array;
+  private readonly scaleWork: Float64Array;
 
   constructor(problem: ReconciliationProblem, options: ReconcileOptions = {}) {
     this.problem = problem;
@@ -229,6 +235,9 @@ export class PreparedReconciliation {
     this.vec = new Float64Array(Math.max(M, n));
     this.z = new Float64Array(n);
     this.dx = new Float64Array(n);
+    this.covPosition = new Int32Array(n);
+    this.leverageWork = new Float64Array(n);
+    this.scaleWork = new Float64Array(n);
     this.qrB = newQrWork(n);
     this.qrG = newQrWork(M);
     for (let j = 0; j < n; j++) {
@@ -842,7 +851,7 @@ export class PreparedReconciliation {
         for (let l = 0; l < p; l++) L[offset + l] = -A[l * R + b];
       };
     }
-    const leverage = new Float64Array(p);
+    const leverage = this.leverageWork;
     for (let k = 0; k < p; k++) {
       let s = 0;
       for (let l = 0; l < rho; l++) s += QG[l * ldG + k] * QG[l * ldG + k];
@@ -857,7 +866,7 @@ export class PreparedReconciliation {
     for (let k = 0; k < p; k++) indices.push(meas[k]);
     for (let k = 0; k < q; k++) if (observable[k]) indices.push(unmeas[k]);
     const N = indices.length;
-    const scale = new Float64Array(N);
+    const scale = this.scaleWork;
     for (let k = 0; k < p; k++) scale[k] = sigma[meas[k]];
     for (let a = p; a < N; a++) scale[a] = typical[indices[a]];
     let covariance: ReconcileResult['covariance'];
@@ -885,8 +894,9 @@ export class PreparedReconciliation {
       covariance = { indices, matrix: cov };
       variance = (a) => cov[a * N + a];
     }
-    const covIndex = new Map<number, number>();
-    indices.forEach((j, a) => covIndex.set(j, a));
+    // Covariance position of each variable (indices holds each variable once).
+    const covIndex = this.covPosition;
+    for (let a = 0; a < N; a++) covIndex[indices[a]] = a;
 
     // Tests.
     let redundantCount = 0;
@@ -923,7 +933,7 @@ export class PreparedReconciliation {
         const k = this.position[j];
         const isRedundant = redundant[k] === 1;
         if (!isRedundant && !atBound) x[j] = this.y[j];
-        const a = covIndex.get(j)!;
+        const a = covIndex[j];
         const adjustment = x[j] - this.y[j];
         const adjustmentSigma = sigma[j] * Math.sqrt(leverage[k]);
         const e: VariableEstimate = {
@@ -954,7 +964,7 @@ export class PreparedReconciliation {
       } else {
         const k = this.position[j];
         if (observable[k]) {
-          const a = covIndex.get(j)!;
+          const a = covIndex[j];
           const e: VariableEstimate = {
             index: j,
             name,
@@ -978,7 +988,7 @@ export class PreparedReconciliation {
     }
     const norms = this.residualNorms();
     const status = rho === 0 ? 'not-redundant' : 'reconciled';
-    const pct = `${+(confidence * 100).toPrecision(4)} %`;
+    const pct = (this.confidenceText ??= `${+(confidence * 100).toPrecision(4)} %`);
     const message =
       status === 'not-redundant'
         ? 'not redundant: no reading is checked by another (redundancy 0); the readings pass through unadjusted and no gross-error test is possible'

@@ -73,7 +73,7 @@ export interface StructuredStepInfo {
 export interface StructuredSummary {
   /** Observable, by unmeasured position. */
   observable: Uint8Array;
-  /** Q_C1 (p x r, column i at i * p): I - Q_G Q_G' = Q_C1 Q_C1'. */
+  /** Q_C1 (p x r, column i at i * p): I - Q_G Q_G' = Q_C1 Q_C1'. Q1 and follow are the steps' work space, read before the next summary. */
   Q1: Float64Array;
   r: number;
   /**
@@ -122,6 +122,11 @@ export class StructuredSteps {
   private readonly zeta: Float64Array;
   private readonly vFN: Float64Array;
   private readonly col: Float64Array;
+  /** Work space of summary (what it returns in Q1 and follow lives here until the next summary). */
+  private readonly Q1work: Float64Array;
+  private readonly followWork: Float64Array;
+  private readonly sizeWork: Float64Array;
+  private readonly nvWork: Float64Array;
   // Shape of the last step.
   private f = 0;
   private rS = 0;
@@ -242,6 +247,10 @@ export class StructuredSteps {
     this.zeta = new Float64Array(n);
     this.vFN = new Float64Array(n);
     this.col = new Float64Array(n);
+    this.Q1work = new Float64Array(Math.max(1, n * n));
+    this.followWork = new Float64Array(Math.max(1, n * n));
+    this.sizeWork = new Float64Array(n);
+    this.nvWork = new Float64Array(n);
   }
 
   /** Rows eliminated once per problem (the linear balances), for the record. */
@@ -425,7 +434,7 @@ export class StructuredSteps {
       applyQ(Ct, p, n, beta, rC, col);
       for (let k = 0; k < p; k++) QG[l * ldQ + k] = col[k];
     }
-    const Q1 = new Float64Array(p * rC);
+    const Q1 = this.Q1work;
     for (let i = 0; i < rC; i++) {
       col.fill(0, 0, p);
       col[i] = 1;
@@ -435,7 +444,8 @@ export class StructuredSteps {
     // (d v / d zeta) Q_C1: on the basic columns of C~, -R11^-1 Q_C1' Q_C1 = -R11^-1 (row i of
     // the inverse for basic column i); then back through K_S and K_L.
     const r = rC;
-    const follow = new Float64Array(n * r);
+    const follow = this.followWork;
+    follow.fill(0, 0, n * r);
     for (let l = 0; l < r; l++) {
       // Column l of R11^-1: solve R11 y = e_l.
       col.fill(0, 0, r);
@@ -462,8 +472,10 @@ export class StructuredSteps {
       }
     }
     // Observability: every null vector of the whole system, one per free column of C~.
-    const size = new Float64Array(n);
-    const nv = new Float64Array(n);
+    const size = this.sizeWork;
+    const nv = this.nvWork;
+    size.fill(0);
+    nv.fill(0);
     const nvFN = this.vFN;
     for (let fr = rC; fr < kN; fr++) {
       nvFN.fill(0, 0, kN);

@@ -27,7 +27,7 @@
  *   meterBudget(meter: MeterEos, reading: BudgetReading, instrument?: InstrumentUncertainty): MeterBudget
  *   standardUncertainty(value, statedAs): the standard uncertainty of a declared figure.
  */
-import type { MeterEos, MeterEosName } from './meter-eos.js';
+import type { MeterEos, MeterEosName, MeterState } from './meter-eos.js';
 
 /** One meter reading, SI. */
 export interface BudgetReading {
@@ -108,7 +108,7 @@ export function standardUncertainty(value: number, statedAs: 'standard' | 'expan
 export function meterBudget(meter: MeterEos, reading: BudgetReading, instrument: InstrumentUncertainty = {}): MeterBudget {
   const { flow, T, P, x } = reading;
   if (!(flow > 0) || !(T > 0) || !(P > 0)) throw new RangeError(`meterBudget: flow, T and P must be positive (got ${flow}, ${T}, ${P})`);
-  const s = meter.state(T, P, x);
+  const s = phaseForBudget(meter, T, P, x);
   const v = s.v;
   const dlnvdlnP = s.dlnvdlnP;
   const dlnvdlnT = s.dlnvdlnT;
@@ -133,7 +133,7 @@ export function meterBudget(meter: MeterEos, reading: BudgetReading, instrument:
   else missing.push('pressure');
   if (instrument.temperature !== undefined) add('temperature', 'line temperature', instrument.temperature, 'K', dist, (-p * n * dlnvdlnT) / T, 'declared for the temperature sensor');
   else missing.push('temperature');
-  const mu = meter.modelUncertainty(T, P, x);
+  const mu = meter.modelUncertainty(T, P, x, s);
   if (mu.relative !== null) add('equation-of-state', `equation of state (${mu.model})`, mu.relative, '1', mu.distribution, p * n, mu.source);
   else missing.push('equation-of-state');
   if (mu.reference && mu.reference.relative !== null) add('reference-equation', 'reference equation (GERG-2008)', mu.reference.relative, '1', mu.reference.distribution, p * n, mu.reference.source);
@@ -153,6 +153,19 @@ export function meterBudget(meter: MeterEos, reading: BudgetReading, instrument:
     molarFlow: n, model, lines, missing, combined, combinedRelative: combined / n, expanded: 2 * combined, expandedRelative: (2 * combined) / n, coverage: 2, notes,
   };
 }
+
+/**
+ * The meter EOS's state for a budget. The phase split (a tangent-plane stability test, the
+ * costliest part of a state) is looked for only where the state without it is not a vapor: the
+ * budget reads the phase only to choose GERG-2008's root and region, and a vapor and a split
+ * choose the same (the gas root, the gas-like region), so the figures are the same either way.
+ */
+export function phaseForBudget(meter: MeterEos, T: number, P: number, x: ArrayLike<number>): MeterState {
+  const s = meter.state(T, P, x, undefined, NO_PHASE_TEST);
+  return s.phase === 'vapor' ? s : meter.state(T, P, x);
+}
+
+const NO_PHASE_TEST = { phase: false } as const;
 
 function inputWords(i: BudgetInput): string {
   return i === 'flow' ? 'the meter\'s own uncertainty' : i === 'pressure' ? 'the line pressure' : i === 'temperature' ? 'the line temperature' : i;

@@ -330,8 +330,11 @@ export class MeterEos {
    *     distribution: this project's bound (the cubic is taken to be no further from the truth than
    *     the ideal-gas law is from the cubic), not a measured figure; the result says so.
    */
-  modelUncertainty(T: number, P: number, x: ArrayLike<number>): ModelUncertainty {
-    const s = this.state(T, P, x, emptyMeterState());
+  modelUncertainty(T: number, P: number, x: ArrayLike<number>, state?: MeterState): ModelUncertainty {
+    // `state`: this.state(T, P, x) when the caller has just made it (the same figures, not made
+    // again); made without the phase test it must have found a vapor (a split would change
+    // nothing read here: the two-phase class and the vapor both take the gas root and the gas-like region).
+    const s = state ?? this.state(T, P, x, emptyMeterState());
     if (s.model === 'GERG-2008') return this.gergStated(T, P, x, s);
     const notes: string[] = [];
     if (s.fallback) notes.push(`${this.name} was not used: ${s.fallback}; ${s.model} converted this reading`);
