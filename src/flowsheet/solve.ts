@@ -28,7 +28,7 @@ export const NEWTON_WARMUP_PASSES = 3;
  * then Newton: a finite-difference Jacobian costs about one pass per variable (and n^2
  * numbers), more than the whole of a demo's solve (about 30 passes), while Anderson converged
  * the generated nested-recycle trains of bench/generate.mjs in 12 to 38 passes from 35 to 3,087
- * variables (91 variables: 15 passes, where Wegstein then Newton took 121). The demos have 6 to
+ * variables (98 variables, the 30-unit train: 15 passes, where Wegstein then Newton took 121). The demos have 6 to
  * 8 tear variables and keep Wegstein then Newton.
  */
 export const AUTO_ANDERSON_VARIABLES = 30;
