@@ -23,7 +23,11 @@ function inventedComponent(k) {
   const omega = (0.02 + 0.28 * t).toFixed(3);
   const carbons = 1 + (k % 6);
   const formula = `C${carbons}H${2 * carbons + 2}`;
-  return { id: `X${k}`, body: `{ Tc: ${Tc} K, Pc: ${Pc} bar, omega: ${omega}, formula: ${formula} }` };
+  // Ideal-gas heat capacity and enthalpy of formation (the energy balance needs them), also
+  // invented, growing with the carbon number as the alkanes' do.
+  const cp = (20 + 22 * carbons).toFixed(1);
+  const hf = (-(50 + 21 * carbons)).toFixed(1);
+  return { id: `X${k}`, body: `{ Tc: ${Tc} K, Pc: ${Pc} bar, omega: ${omega}, formula: ${formula}, cp: ${cp} J/(mol K), hf: ${hf} kJ/mol }` };
 }
 
 /** Built-in components used first (the reaction needs H2, C2H4, C2H6). */

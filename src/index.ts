@@ -10,7 +10,7 @@
  */
 export { loadFlowsheet, validateText } from './flowsheet/load.js';
 export type { LoadedFile, Model, FeedSpec, UnitSpecBase, ThermoSpec, SolverSpec, DisplaySpec, TargetDecl } from './flowsheet/model.js';
-export { solveFlowsheet } from './flowsheet/solve.js';
+export { solveFlowsheet, AUTO_ANDERSON_VARIABLES } from './flowsheet/solve.js';
 export type { FlowsheetResult, StreamResult, SolveFlowsheetOptions, LoopFigures, TargetReport } from './flowsheet/solve.js';
 export { createRuntime } from './flowsheet/runtime.js';
 export type { Runtime, Condition } from './flowsheet/runtime.js';

@@ -25,7 +25,7 @@ export function runSolve(file: string, o: SolveCliOptions): { text: string; resu
   const errs: string[] = [];
   let method: MethodName | undefined;
   if (o.method !== undefined) {
-    if (!(METHODS as readonly string[]).includes(o.method)) errs.push(`--method: unknown method \`${o.method}\` (use direct, wegstein, newton or auto)`);
+    if (!(METHODS as readonly string[]).includes(o.method)) errs.push(`--method: unknown method \`${o.method}\` (use direct, wegstein, newton, anderson or auto)`);
     else method = o.method as MethodName;
   }
   let maxPasses: number | undefined;

@@ -66,7 +66,7 @@ export function registerSweep(program: Command, setCode: (code: number) => void)
     .option('--shard <i/N>', 'solve only share i of N of the points (merge the shares with `loopclose merge`); `auto` takes i and N from an array job (Slurm, Grid Engine)')
     .option('--block <n>', `points solved in a row from one cold start (default ${DEFAULT_BLOCK})`)
     .option('--no-continuation', 'start every point cold instead of from its neighbour')
-    .option('--method <name>', 'direct, wegstein, newton or auto for every point (default: the file\'s method from a cold start, newton from a neighbour)')
+    .option('--method <name>', 'direct, wegstein, newton, anderson or auto for every point (default: the file\'s method from a cold start, newton from a neighbour)')
     .option('--max-passes <n>', 'budget of flowsheet passes per point')
     .option('--tolerance <rtol>', 'relative tolerance on every tear variable (default: the file\'s, else 1e-10)')
     .action(async (file: string, o: SweepCliOptions) => {
@@ -92,7 +92,7 @@ function options(o: Required<Pick<SweepCliOptions, 'report' | 'target' | 'by' | 
   const maxPasses = o.maxPasses === undefined ? undefined : int('--max-passes', o.maxPasses, 1);
   let method: MethodName | undefined;
   if (o.method !== undefined) {
-    if (!['direct', 'wegstein', 'newton', 'auto'].includes(o.method)) errs.push(`--method: unknown method \`${o.method}\` (use direct, wegstein, newton or auto)`);
+    if (!['direct', 'wegstein', 'newton', 'anderson', 'auto'].includes(o.method)) errs.push(`--method: unknown method \`${o.method}\` (use direct, wegstein, newton, anderson or auto)`);
     else method = o.method as MethodName;
   }
   let rtol: number | undefined;

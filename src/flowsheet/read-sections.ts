@@ -147,7 +147,7 @@ export function readDisplay(r: Reader, e: Entry | undefined, atmosphere: number)
   return display;
 }
 
-export const METHODS = ['direct', 'wegstein', 'newton', 'auto'] as const;
+export const METHODS = ['direct', 'wegstein', 'newton', 'anderson', 'auto'] as const;
 
 export function readSolver(r: Reader, e: Entry | undefined): SolverSpec {
   const solver: SolverSpec = { method: 'auto', rtol: 1e-10 };
@@ -158,7 +158,7 @@ export function readSolver(r: Reader, e: Entry | undefined): SolverSpec {
   if (m) {
     const v = r.string(m.value, '`solver.method`');
     if (v !== undefined) {
-      if (!(METHODS as readonly string[]).includes(v)) r.bag.error(`unknown method \`${v}\``, r.at(m.value), didYouMean(v, METHODS) ?? 'use `direct`, `wegstein`, `newton` or `auto`');
+      if (!(METHODS as readonly string[]).includes(v)) r.bag.error(`unknown method \`${v}\``, r.at(m.value), didYouMean(v, METHODS) ?? 'use `direct`, `wegstein`, `newton`, `anderson` or `auto`');
       else solver.method = v as SolverSpec['method'];
     }
   }

@@ -170,7 +170,7 @@ export class HistoryRecorder {
   private residual: Float64Array;
   private methods: Uint8Array;
   private size = 0;
-  private static readonly METHODS: readonly StepMethod[] = ['direct', 'wegstein', 'newton'];
+  private static readonly METHODS: readonly StepMethod[] = ['direct', 'wegstein', 'newton', 'anderson'];
 
   /** capacity: the most entries expected; storage starts small (at most 64) and doubles as needed. */
   constructor(capacity: number) {

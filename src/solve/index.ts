@@ -1,7 +1,7 @@
 /**
  * Generic solvers: problem, method, result. Non-convergence is a result, never an exception.
  *
- *   solveFixedPoint(problem, method, options)  x = g(x) by 'direct' | 'wegstein' | 'newton' | 'auto'
+ *   solveFixedPoint(problem, method, options)  x = g(x) by 'direct' | 'wegstein' | 'newton' | 'anderson' | 'auto'
  *   solveRoot(problem, options)                F(x) = 0 by Newton
  *
  * 'auto' runs bounded Wegstein within its pass budget (options.wegstein.maxPasses, default
@@ -15,11 +15,13 @@
 import { solveDirect } from './direct.js';
 import { NEWTON_DEFAULTS, solveNewtonFixedPoint } from './newton.js';
 import { solveWegstein } from './wegstein.js';
+import { solveAnderson } from './anderson.js';
 import type { FixedPointProblem, MethodName, SolveOptions, SolveResult } from './types.js';
 import { invalidInput } from './convergence.js';
 
 export { solveDirect, DIRECT_MAX_PASSES } from './direct.js';
 export { solveWegstein, WEGSTEIN_DEFAULTS } from './wegstein.js';
+export { solveAnderson, ANDERSON_DEFAULTS } from './anderson.js';
 export { solveRoot, solveNewtonFixedPoint, NEWTON_DEFAULTS } from './newton.js';
 export { columnGroups } from './jacobian.js';
 export {
@@ -47,11 +49,13 @@ export function solveFixedPoint(
       return solveWegstein(problem, options);
     case 'newton':
       return solveNewtonFixedPoint(problem, options);
+    case 'anderson':
+      return solveAnderson(problem, options);
     case 'auto':
       return solveAuto(problem, options);
     default: {
       const never: never = method;
-      return invalidInput(String(never), problem.x0, `unknown method "${String(never)}"; use direct, wegstein, newton or auto`);
+      return invalidInput(String(never), problem.x0, `unknown method "${String(never)}"; use direct, wegstein, newton, anderson or auto`);
     }
   }
 }

@@ -66,7 +66,7 @@ export interface JacobianStructure {
   groups?: readonly (readonly number[])[];
 }
 
-export type MethodName = 'direct' | 'wegstein' | 'newton' | 'auto';
+export type MethodName = 'direct' | 'wegstein' | 'newton' | 'anderson' | 'auto';
 
 export interface SolveOptions {
   /** Relative tolerance on every variable (default 1e-10). */
@@ -98,7 +98,7 @@ export interface HistoryEntry {
   scaled: number;
   /** Largest absolute residual. */
   residual: number;
-  method: 'direct' | 'wegstein' | 'newton';
+  method: 'direct' | 'wegstein' | 'newton' | 'anderson';
 }
 
 export interface SolveResult {
