@@ -3,9 +3,10 @@
 //
 // The process runs with a young generation far larger than what is measured
 // (--min-semi-space-size = --max-semi-space-size = 512 MB, re-spawned with those flags when
-// started without them), so that nothing is collected while the passes run: the growth of
-// v8.getHeapStatistics().used_heap_size over N passes is then every byte those passes
-// allocated. A PerformanceObserver('gc') checks that no collection ran during a measurement
+// started without them), so that nothing is collected while the passes run: the growth of the
+// young generation (v8.getHeapSpaceStatistics(): new space and new large-object space) over N
+// passes is then every byte those passes allocated (the compiler's code and feedback, which
+// land in the old spaces as functions warm up, are left out). A PerformanceObserver('gc') checks that no collection ran during a measurement
 // (a case where one did is shown as such, not as a figure). The harness's own cost (the
 // statistics objects, the loop) is measured the same way with no work and subtracted.
 //
@@ -18,9 +19,10 @@
 //                Jacobian, as a sweep's next point starts), divided by its passes: the result's
 //                assembly included
 //
-//   node bench/alloc.mjs [--root DIR] [--passes 2000] [--json] [--where CASE]
+//   node bench/alloc.mjs [--root DIR] [--passes 2000] [--json] [--where CASE [--depth 4]]
 // --where CASE prints the functions that allocate most in that case (V8's sampling heap
-// profiler, which with no collection sees every sampled allocation).
+// profiler, which with no collection sees every sampled allocation), by their stack's top
+// --depth frames.
 import { build } from 'esbuild';
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
@@ -44,6 +46,7 @@ const root = resolve(value('--root', join(here, '..')));
 const N = Number(value('--passes', 2000));
 const json = args.includes('--json');
 const where = value('--where', undefined);
+const depth = Number(value('--depth', 4));
 
 // The tree's own modules, bundled: createRuntime, the tear problem, the solve, the parameter layer.
 const tmp = mkdtempSync(join(tmpdir(), 'loopclose-alloc-'));
@@ -70,14 +73,25 @@ const obs = new PerformanceObserver((list) => {
 obs.observe({ entryTypes: ['gc'] });
 const settle = () => new Promise((r) => setImmediate(r));
 
+/**
+ * Bytes in the young generation (new space and its large-object space): where every object a
+ * pass creates is put. The old spaces are left out: the compiler's code and feedback land
+ * there as the functions warm up, which is not the passes' allocation.
+ */
+function young() {
+  let b = 0;
+  for (const s of v8.getHeapSpaceStatistics()) if (s.space_name === 'new_space' || s.space_name === 'new_large_object_space') b += s.space_used_size;
+  return b;
+}
+
 /** Bytes allocated by `count` calls of fn, and whether a collection ran meanwhile. */
 async function bytesOf(fn, count) {
   globalThis.gc();
   await settle();
   const t0 = performance.now();
-  const h0 = v8.getHeapStatistics().used_heap_size;
+  const h0 = young();
   for (let k = 0; k < count; k++) fn(k);
-  const h1 = v8.getHeapStatistics().used_heap_size;
+  const h1 = young();
   const t1 = performance.now();
   await new Promise((r) => setTimeout(r, 20));
   return { bytes: h1 - h0, collected: gcTimes.some((t) => t >= t0 && t <= t1) };
@@ -176,7 +190,7 @@ async function profile(fn, count, label) {
     const name = `${f.functionName || '(anonymous)'} ${f.url.split('/').pop()}:${f.lineNumber + 1}`;
     const here2 = [name, ...stack];
     if (n.selfSize > 0) {
-      const key = here2.slice(0, 4).join(' < ');
+      const key = here2.slice(0, depth).join(' < ');
       self.set(key, (self.get(key) ?? 0) + n.selfSize);
     }
     for (const c of n.children) walk(c, here2);

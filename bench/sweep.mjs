@@ -149,8 +149,11 @@ for (const c of Object.values(cases)) {
   say(`${c.name.padEnd(48)} ${f3(c.med).padStart(7)}s ${f3(c.cpu).padStart(7)}s  ${(c.cpu / c.med).toFixed(2).padStart(8)}  ${startUp ? `${f3(c.med - startUp.med)} s` : ''}`);
 }
 const busy = load0 > 0.5 || load1 > 0.5 ? `; the machine was not idle (load ${load0.toFixed(1)}): wall times are stretched by other processes` : '';
-say(`serial sweep CPU / wall: ${cpuWall.toFixed(2)}; aim <= 1.1: ${verdict(cpuWall <= 1.1, `${(cpuWall - 1.1).toFixed(2)} over: ${f3(cases.serial.cpu - cases.serial.med)} s of CPU beside the main thread`)}${busy}`);
-say(`--jobs 2: ${speedup.toFixed(2)}x the speed of serial (${speedupAfter.toFixed(2)}x after start-up); aim >= 1.7x: ${verdict(speedup >= 1.7, `${(1.7 - speedup).toFixed(2)} short`)}${busy}; 8 cores not available here`);
+// On a busy machine a process waits for a core: its wall time grows and CPU / wall falls below
+// 1 whatever it allocates, so neither wall-time aim is judged then.
+const judged = (ok, gap) => (busy ? 'not judged' : verdict(ok, gap));
+say(`serial sweep CPU / wall: ${cpuWall.toFixed(2)}; aim <= 1.1: ${judged(cpuWall <= 1.1, `${(cpuWall - 1.1).toFixed(2)} over: ${f3(cases.serial.cpu - cases.serial.med)} s of CPU beside the main thread`)}${busy}`);
+say(`--jobs 2: ${speedup.toFixed(2)}x the speed of serial (${speedupAfter.toFixed(2)}x after start-up); aim >= 1.7x: ${judged(speedup >= 1.7, `${(1.7 - speedup).toFixed(2)} short`)}${busy}; 8 cores not available here`);
 say(`serial and --jobs 2 outputs identical: ${same}`);
 say(`continuation: ${(cases.cold.med / cases.serial.med).toFixed(2)}x faster than every point cold (${((cases.cold.med - cases.start.med) / (cases.serial.med - cases.start.med)).toFixed(2)}x after start-up)`);
 say(`ammonia-loop continued point: ${f3(perPoint)} ms whole process (after start-up), ${f3(inProcess.msPerPoint)} ms in-process (${f3(inProcess.cpuMsPerPoint)} ms CPU, ${inProcess.passesPerPoint.toFixed(2)} passes per point${inProcess.failed ? `, ${inProcess.failed} failed` : ''}); aim <= 0.3 ms: ${verdict(inProcess.msPerPoint <= 0.3 && perPoint <= 0.3, `${f3(Math.max(inProcess.msPerPoint, perPoint) - 0.3)} ms over`)}`);
