@@ -63,17 +63,19 @@ function pieceOverTIntegral(c: CpPiece, T0: number, T: number): number {
  * unboxed (no allocation per call).
  */
 function piecewise(c: CpCorrelation, T0: number, T: number, overT: boolean): number {
-  if (T < T0) return -piecewise(c, T, T0, overT);
+  // T below T0: minus the integral from T to T0 (no recursion, so that the call can be inlined)
+  const from = T < T0 ? T : T0;
+  const to = T < T0 ? T0 : T;
   const p = c.pieces;
   let v = 0;
   for (let k = 0; k < p.length; k++) {
     const lo = k === 0 ? -Infinity : p[k].Tmin;
     const hi = k === p.length - 1 ? Infinity : p[k].Tmax;
-    const a = Math.max(T0, lo);
-    const b = Math.min(T, hi);
+    const a = Math.max(from, lo);
+    const b = Math.min(to, hi);
     if (b > a) v += overT ? pieceOverTIntegral(p[k], a, b) : pieceIntegral(p[k], a, b);
   }
-  return v;
+  return T < T0 ? -v : v;
 }
 
 /** Cp/R at T. */
