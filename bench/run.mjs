@@ -3,7 +3,7 @@
 // runs after a warm-up; comparisons are ratios measured in the same run (absolute times on a
 // shared machine drift from run to run).
 //
-//   node bench/run.mjs [--json] [--quick] [--root DIR] [--only meter,gerg,demos,flash,equilibrium,scaling,sweep,cold,plant]
+//   node bench/run.mjs [--json] [--quick] [--root DIR] [--only meter,gerg,demos,flash,equilibrium,scaling,sweep,alloc,cold,plant]
 //
 // --root DIR benchmarks another build of the project (DIR/dist/index.mjs, DIR/bin/loopclose.js,
 // DIR/flowsheets), e.g. a copy of an earlier commit, so before and after come from one machine.
@@ -28,7 +28,7 @@ const value = (f, d) => {
 const json = flag('--json');
 const quick = flag('--quick');
 const root = resolve(value('--root', join(here, '..')));
-const only = new Set((value('--only', 'meter,gerg,demos,flash,equilibrium,scaling,sweep,cold,plant')).split(','));
+const only = new Set((value('--only', 'meter,gerg,demos,flash,equilibrium,scaling,sweep,alloc,cold,plant')).split(','));
 const libPath = join(root, 'dist', 'index.mjs');
 const cliPath = join(root, 'bin', 'loopclose.js');
 if (!existsSync(libPath)) {
@@ -394,18 +394,43 @@ if (only.has('scaling')) {
 if (only.has('sweep')) {
   const sweepBench = join(here, 'sweep.mjs');
   say('\n4. Sweep throughput');
-  if (root !== resolve(here, '..')) {
-    out.sweep = { skipped: 'bench/sweep.mjs measures the build next to it, not a --root build' };
-    say('not measured for a --root build (bench/sweep.mjs measures the build next to it)');
-  } else if (existsSync(sweepBench)) {
-    // bench/sweep.mjs spawns the CLI for a 1,000-point sweep; its lines are shown as they are.
-    const r = spawnSync(process.execPath, [sweepBench, ...(quick ? ['--points', '100', '--repeat', '1'] : [])], { encoding: 'utf8' });
+  if (existsSync(sweepBench)) {
+    // bench/sweep.mjs spawns the CLI for 2,000-point sweeps (serial, --jobs 2, cold, the ammonia
+    // loop); its lines, each with its aim, are shown as they are.
+    const r = spawnSync(process.execPath, [sweepBench, '--root', root, ...(quick ? ['--points', '100', '--repeat', '1'] : [])], { encoding: 'utf8' });
     const lines = r.stdout.trimEnd().split('\n').filter(Boolean);
     out.sweep = { exit: r.status, lines, ...(r.status !== 0 ? { stderr: r.stderr.slice(0, 2000) } : {}) };
     say(lines.length > 0 ? lines.join('\n') : `bench/sweep.mjs printed nothing (exit ${r.status}) ${r.stderr.slice(0, 500)}`);
   } else {
     out.sweep = { pending: 'the sweep benchmark is in bench/sweep.mjs once the sweep command lands' };
     say('not measured here: the sweep benchmark is in bench/sweep.mjs once the sweep command lands');
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// 4b. Allocations per pass (bench/alloc.mjs: the growth of the heap over N passes of each demo's
+//     tear function, and over continued solves divided by their passes, with a young generation
+//     large enough that nothing is collected in between, checked by a gc observer).
+// ---------------------------------------------------------------------------------------------
+if (only.has('alloc')) {
+  say('\n4b. Bytes allocated per pass (bench/alloc.mjs; no collection during a measurement)');
+  const r = spawnSync(process.execPath, [join(here, 'alloc.mjs'), '--json', '--root', root, ...(quick ? ['--passes', '200'] : [])], { encoding: 'utf8' });
+  let a;
+  try {
+    a = JSON.parse(r.stdout);
+  } catch {
+    a = undefined;
+  }
+  if (!a) {
+    out.alloc = { exit: r.status, stderr: r.stderr.slice(0, 2000) };
+    say(`bench/alloc.mjs failed (exit ${r.status}) ${r.stderr.slice(0, 500)}`);
+  } else {
+    out.alloc = a.rows;
+    const b = (v) => (typeof v === 'number' ? fmt(v) : v ?? '-');
+    const gap = (v) => (typeof v !== 'number' ? '' : v < 16 ? 'met' : `not met (${fmt(v)} B)`);
+    say(table(['flowsheet', 'tear vars', 'B per pass', 'aim 0 B', 'passes per continued solve', 'B per pass in a solve', 'aim 0 B'],
+      a.rows.map((x) => (x.error ? [x.case, x.error, '', '', '', '', ''] : [x.case, x.tears, b(x.pass), gap(x.pass), b(x.passesPerSolve), b(x.solvePerPass), gap(x.solvePerPass)]))));
+    say('aim: a pass allocates nothing (under 16 B: the measurement\'s own noise); a solve\'s result and its history are allocated once per solve, not per pass');
   }
 }
 

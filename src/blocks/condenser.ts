@@ -70,6 +70,7 @@ function makeDef(type: 'condenser' | 'flash'): BlockDef<CondenserSpec> {
         { name: 'duty', dimension: 'power' as const, read: (u: UnitSummary) => u.figures.find((x) => x.key === 'duty')?.value ?? Number.NaN },
       ] : []),
     ],
+    structureKey: (spec) => (spec.model === 'split' && spec.split ? `split ${Array.from(spec.split, (x) => `${x > 0 ? 1 : 0}${x < 1 ? 1 : 0}`).join('')}` : spec.model),
     structure(spec, model) {
       return {
         // outlets: [vapor, liquid]. Under an equilibrium flash any component dissolves a little

@@ -20,7 +20,7 @@
 import type { FieldReader } from '../flowsheet/fields.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import { newPhaseProperties, phasePropertiesInto, type PhaseProperties } from '../thermo/enthalpy.js';
-import { flashTP } from '../thermo/flash.js';
+import { flashTP, flashTPInto, newFlashResult, type FlashOptions, type FlashResult } from '../thermo/flash.js';
 import { flashPH, flashPS } from '../thermo/flash-ph.js';
 import { outsideRange } from '../thermo/ideal-gas.js';
 import { R as R_GAS } from '../thermo/constants.js';
@@ -181,12 +181,28 @@ export class OutletState {
   private vT = Number.NaN;
   private vP = Number.NaN;
   private readonly vZ: Float64Array;
+  /** The warm flashes' result and options, reused on every pass (no history kept). */
+  private readonly flashOut: FlashResult;
+  private readonly flashOpts: FlashOptions = { K0: undefined, history: false };
 
   constructor(private readonly eos: Eos, private readonly unit: string, private readonly checks?: PhaseChecks) {
     const n = eos.n;
     this.z = new Float64Array(n);
     this.vZ = new Float64Array(n);
+    this.flashOut = newFlashResult(n);
     this.found = { T: NaN, P: NaN, phase: 'vapor', beta: 1, x: new Float64Array(n), y: new Float64Array(n), h: NaN, hV: NaN, hL: NaN, flashes: 0, liquidLiquid: false };
+  }
+
+  /** The isothermal flash from the last K-values, into the reused result. */
+  private warmFlash(T: number, P: number): FlashResult {
+    this.flashOpts.K0 = this.K0;
+    return flashTPInto(this.eos, T, P, this.z, this.flashOpts, this.flashOut);
+  }
+
+  /** Keeps K as the next flash's start (in place: no flash holds on to the array). */
+  private keepK(K: Float64Array): void {
+    if (this.K0 !== undefined && this.K0.length === K.length) this.K0.set(K);
+    else this.K0 = Float64Array.from(K);
   }
 
   reset(): void {
@@ -266,7 +282,7 @@ export class OutletState {
       this.single(T, P);
       return null;
     }
-    const r = flashTP(this.eos, T, P, this.z, { K0: this.K0 });
+    const r = this.warmFlash(T, P);
     const f = this.found;
     f.T = T;
     f.P = P;
@@ -276,7 +292,7 @@ export class OutletState {
     f.y.set(r.y);
     f.flashes = 1;
     f.liquidLiquid = r.liquidLiquid === true;
-    if (r.phase === 'two-phase') this.K0 = Float64Array.from(r.K);
+    if (r.phase === 'two-phase') this.keepK(r.K);
     this.lastT = T;
     if (withH) this.enthalpies();
     else f.h = f.hV = f.hL = NaN;
@@ -339,7 +355,7 @@ export class OutletState {
     f.y.set(r.y);
     f.flashes = r.flashes;
     f.liquidLiquid = false;
-    if (r.phase === 'two-phase') this.K0 = Float64Array.from(r.K);
+    if (r.phase === 'two-phase') this.keepK(r.K);
     this.enthalpies();
     if (r.status === 'converged') this.remember();
     else this.verified = false;
@@ -377,9 +393,9 @@ export class OutletState {
     let Tp = Number.NaN;
     let rp = Number.NaN;
     for (let k = 0; k < NESTED_MAX; k++) {
-      const r0 = flashTP(this.eos, T, P, this.z, { K0: this.K0 });
+      const r0 = this.warmFlash(T, P);
       if (r0.status !== 'converged' || r0.phase !== 'two-phase' || r0.liquidLiquid) return false;
-      this.K0 = Float64Array.from(r0.K);
+      this.keepK(r0.K);
       const hV = phaseH(this.eos, T, P, r0.y);
       const hL = phaseH(this.eos, T, P, r0.x);
       const H = r0.beta * hV + (1 - r0.beta) * hL;

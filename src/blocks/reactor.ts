@@ -528,6 +528,7 @@ export const reactor: BlockDef<ReactorSpec> = {
       })),
     };
   },
+  structureKey: (spec) => reactorStructureKey(spec),
   structure(spec, model) {
     return {
       passes: () => true,
@@ -618,6 +619,34 @@ function active(rx: ReactionSpec): boolean {
  * the products of reactions whose reactants all reach it, less a key used up completely
  * (conversion 1) and not formed again. Also returns what the reactions use up and form.
  */
+/**
+ * What reactorOutlet and the reactor's structure check read of the values: each reaction's
+ * running at all (active), its equilibrium flag and full conversion (sequence), and, for
+ * reactions side by side, whether the conversions of the reactions on one key add up to 1 for
+ * every set of them that could run together (the sums in reactorOutlet's order).
+ */
+function reactorStructureKey(spec: ReactorSpec): string | undefined {
+  const parts = spec.reactions.map((rx) => `${rx.equilibrium ? 1 : 0}${active(rx) ? 1 : 0}${rx.conversion !== undefined && rx.conversion >= 1 ? 1 : 0}`);
+  let key = `${spec.sequence ? 's' : 'p'} ${parts.join(' ')}`;
+  if (!spec.sequence) {
+    const byKey = new Map<number, number[]>();
+    spec.reactions.forEach((rx, r) => {
+      if (!rx.equilibrium && rx.conversion !== undefined) byKey.set(rx.key, [...(byKey.get(rx.key) ?? []), r]);
+    });
+    for (const [k, rs] of byKey) {
+      if (rs.length > 10) return undefined; // too many sets to enumerate: always checked again
+      const flags: number[] = [];
+      for (let set = 1; set < 1 << rs.length; set++) {
+        let sum = 0;
+        for (let j = 0; j < rs.length; j++) if (set & (1 << j)) sum += spec.reactions[rs[j]].conversion!;
+        flags.push(sum >= 1 - 1e-12 ? 1 : 0);
+      }
+      key += ` k${k}:${flags.join('')}`;
+    }
+  }
+  return key;
+}
+
 function reactorOutlet(spec: ReactorSpec, inlet: Uint8Array): { out: Uint8Array; consumed: Uint8Array; formed: Uint8Array } {
   const n = inlet.length;
   const cur = Uint8Array.from(inlet);

@@ -112,6 +112,7 @@ export const separator: BlockDef<SeparatorSpec> = {
     };
   },
   outputs: (_spec, model) => (hasEnergyData(model.components) ? [{ name: 'duty', dimension: 'power', read: (u) => u.figures.find((x) => x.key === 'duty')?.value ?? Number.NaN }] : []),
+  structureKey: (spec) => spec.recovery.map((r) => Array.from(r, (x) => (x > 0 ? 1 : 0)).join('')).join('|'),
   structure(spec) {
     return {
       passes: (k, i) => spec.recovery[k][i] > 0,

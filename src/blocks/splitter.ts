@@ -78,6 +78,7 @@ export const splitter: BlockDef<SplitterSpec> = {
       }),
     };
   },
+  structureKey: (spec) => spec.fractions.map((x) => (x > 0 ? 1 : 0)).join(''),
   structure(spec) {
     return {
       passes: (k) => spec.fractions[k] > 0,

@@ -205,6 +205,13 @@ export interface BlockDef<S extends UnitSpecBase = UnitSpecBase> {
   /** How components pass (default: every inlet component to every outlet). */
   structure?(spec: S, model: Model): StructureRules;
   /**
+   * A text equal for two specs of one unit (the same file, other values) whose structure rules
+   * answer every question alike: what `structure` depends on (which values are zero, which
+   * reactions run), so that a sweep's next value is not checked again when its key is the
+   * same. Absent, or undefined: every change of value is checked again.
+   */
+  structureKey?(spec: S, model: Model): string | undefined;
+  /**
    * Sets a parameter (key within the unit's settings) to an SI value, where setting it alone
    * is not the whole story (a splitter's other outlet); default: the value is set as it is.
    */

@@ -1,37 +1,118 @@
 /**
- * Linear algebra of the solvers, on ml-matrix: a Jacobian equilibrated (columns by the size of
- * their variable, rows by their largest entry) and factored by LU with partial pivoting, with a
- * pivot test for singularity; and a plain dense solve for small systems.
+ * Linear algebra of the solvers: a Jacobian equilibrated (columns by the size of their variable,
+ * rows by their largest entry) and factored by LU with partial pivoting, with a pivot test for
+ * singularity; and a plain dense solve for small systems.
+ *
+ * The LU is ml-matrix's LuDecomposition (the algorithm of JAMA: Crout's column order, partial
+ * pivoting) done in place on arrays made once: the same operations in the same order, so the
+ * same numbers to the last bit (test/solve/linear.test.ts checks it against ml-matrix), but no
+ * matrix, clone or vector allocated per factorization or solve, which a solve's Newton steps and
+ * an equilibrium reactor's inner Newton do on every pass.
  */
-import { LuDecomposition, Matrix } from 'ml-matrix';
 
 /** Smallest |U_ii| / max |U_jj| of the equilibrated LU before the Jacobian counts as singular. */
 const PIVOT_RATIO_MIN = 1e-12;
 
+/** An LU of order n in place: the factors (row-major, L below the diagonal with unit diagonal), the row order, scratch. */
+export interface LuWork {
+  n: number;
+  lu: Float64Array;
+  pivot: Int32Array;
+  col: Float64Array;
+  x: Float64Array;
+}
+
+export function newLuWork(n: number): LuWork {
+  return { n, lu: new Float64Array(n * n), pivot: new Int32Array(n), col: new Float64Array(n), x: new Float64Array(n) };
+}
+
+/** Factors the row-major n*n A into w (A is left as it was). */
+export function luFactor(A: ArrayLike<number>, w: LuWork): void {
+  const n = w.n;
+  const { lu, pivot, col } = w;
+  for (let i = 0; i < n * n; i++) lu[i] = A[i];
+  for (let i = 0; i < n; i++) pivot[i] = i;
+  for (let j = 0; j < n; j++) {
+    for (let i = 0; i < n; i++) col[i] = lu[i * n + j];
+    for (let i = 0; i < n; i++) {
+      const kmax = i < j ? i : j;
+      let s = 0;
+      const row = i * n;
+      for (let k = 0; k < kmax; k++) s += lu[row + k] * col[k];
+      col[i] -= s;
+      lu[row + j] = col[i];
+    }
+    let p = j;
+    for (let i = j + 1; i < n; i++) if (Math.abs(col[i]) > Math.abs(col[p])) p = i;
+    if (p !== j) {
+      const rp = p * n;
+      const rj = j * n;
+      for (let k = 0; k < n; k++) {
+        const t = lu[rp + k];
+        lu[rp + k] = lu[rj + k];
+        lu[rj + k] = t;
+      }
+      const v = pivot[p];
+      pivot[p] = pivot[j];
+      pivot[j] = v;
+    }
+    const d = lu[j * n + j];
+    if (d !== 0) for (let i = j + 1; i < n; i++) lu[i * n + j] = lu[i * n + j] / d;
+  }
+}
+
+/** Whether a pivot of the factored w is exactly zero. */
+export function luSingular(w: LuWork): boolean {
+  const n = w.n;
+  for (let j = 0; j < n; j++) if (w.lu[j * n + j] === 0) return true;
+  return false;
+}
+
+/** Solves with the factored w: out = A^-1 b (out may be b). */
+export function luSolve(w: LuWork, b: ArrayLike<number>, out: Float64Array): Float64Array {
+  const n = w.n;
+  const { lu, pivot, x } = w;
+  for (let i = 0; i < n; i++) x[i] = b[pivot[i]];
+  for (let k = 0; k < n; k++) {
+    const xk = x[k];
+    for (let i = k + 1; i < n; i++) x[i] = x[i] - xk * lu[i * n + k];
+  }
+  for (let k = n - 1; k >= 0; k--) {
+    x[k] = x[k] / lu[k * n + k];
+    const xk = x[k];
+    for (let i = 0; i < k; i++) x[i] = x[i] - xk * lu[i * n + k];
+  }
+  out.set(x);
+  return out;
+}
+
 /**
  * A factored, equilibrated Jacobian: dx = colScale .* (LU \ (rowScale .* -F)).
- * The scaled matrix and scale vectors are allocated once per solve; the LU is ml-matrix's.
+ * Everything is allocated once per solve (newFactored).
  */
 export interface Factored {
   /** The equilibrated Jacobian, row-major n*n (scratch). */
   scaled: Float64Array;
-  lu: LuDecomposition | null;
+  lu: LuWork;
+  /** Whether lu holds a usable factorization (factor returned no message). */
+  ok: boolean;
   rowScale: Float64Array;
   colScale: Float64Array;
-  rhs: Matrix;
+  rhs: Float64Array;
 }
 
 export function newFactored(n: number): Factored {
-  return { scaled: new Float64Array(n * n), lu: null, rowScale: new Float64Array(n), colScale: new Float64Array(n), rhs: new Matrix(n, 1) };
+  return { scaled: new Float64Array(n * n), lu: newLuWork(n), ok: false, rowScale: new Float64Array(n), colScale: new Float64Array(n), rhs: new Float64Array(n) };
 }
 
 /**
- * Equilibrates and factors J into fac (ml-matrix LU, partial pivoting); returns a message when J
- * is singular. `rowLabel(i)` and `columnLabel(j)` name a residual and a variable for messages.
+ * Equilibrates and factors J into fac (LU, partial pivoting); returns a message when J is
+ * singular. `rowLabel(i)` and `columnLabel(j)` name a residual and a variable for messages.
  */
 export function factor(J: Float64Array, x: Float64Array, typical: Float64Array, fac: Factored, rowLabel: (i: number) => string, columnLabel: (j: number) => string): string | undefined {
   const n = x.length;
   const { colScale, rowScale, scaled: A } = fac;
+  fac.ok = false;
   for (let j = 0; j < n; j++) colScale[j] = Math.max(Math.abs(x[j]), typical[j]);
   for (let i = 0; i < n; i++) {
     let big = 0;
@@ -53,61 +134,66 @@ export function factor(J: Float64Array, x: Float64Array, typical: Float64Array, 
     for (let i = 0; i < n && zero; i++) if (A[i * n + j] !== 0) zero = false;
     if (zero) return `singular Jacobian: ${columnLabel(j)} has no effect on any residual`;
   }
-  const lu = new LuDecomposition(Matrix.from1DArray(n, n, A));
-  const U = lu.upperTriangularMatrix;
+  const w = fac.lu;
+  luFactor(A, w);
   let maxPivot = 0;
   let minPivot = Infinity;
   let minAt = 0;
   for (let i = 0; i < n; i++) {
-    const p = Math.abs(U.get(i, i));
+    const p = Math.abs(w.lu[i * n + i]);
     if (p > maxPivot) maxPivot = p;
     if (p < minPivot) {
       minPivot = p;
       minAt = i;
     }
   }
-  if (lu.isSingular() || !(minPivot > PIVOT_RATIO_MIN * maxPivot)) {
-    fac.lu = null;
+  if (luSingular(w) || !(minPivot > PIVOT_RATIO_MIN * maxPivot)) {
     return `singular Jacobian (smallest pivot ${minPivot.toExponential(2)} at elimination step ${minAt} against largest ${maxPivot.toExponential(2)}): the residuals are not independent near this point; check for a variable that is fixed by no equation or two equations that say the same`;
   }
-  fac.lu = lu;
+  fac.ok = true;
   return undefined;
 }
 
 /** dx = colScale .* (LU \ (rowScale .* -f)). */
 export function luStep(fac: Factored, f: Float64Array, dx: Float64Array): void {
   const { rowScale, colScale, rhs } = fac;
+  if (!fac.ok) throw new Error('luStep: the Jacobian is not factored');
   const n = colScale.length;
-  for (let i = 0; i < n; i++) rhs.set(i, 0, -f[i] * rowScale[i]);
-  const y = fac.lu!.solve(rhs);
-  for (let j = 0; j < n; j++) dx[j] = y.get(j, 0) * colScale[j];
+  for (let i = 0; i < n; i++) rhs[i] = -f[i] * rowScale[i];
+  luSolve(fac.lu, rhs, rhs);
+  for (let j = 0; j < n; j++) dx[j] = rhs[j] * colScale[j];
 }
 
+/** LU work per order, for solveDense (which never calls itself). */
+const denseWork = new Map<number, LuWork>();
 
 /**
  * Solves A x = b for a small dense system (A row-major n*n), b overwritten with x; false when A is
  * singular, or when its smallest pivot is below minPivotRatio times its largest (default 0: only an
- * exactly singular A is refused).
+ * exactly singular A is refused). A is left as it was.
  */
 export function solveDense(A: Float64Array, b: Float64Array, n: number, minPivotRatio = 0): boolean {
-  const lu = new LuDecomposition(Matrix.from1DArray(n, n, A));
-  if (lu.isSingular()) return false;
+  let w = denseWork.get(n);
+  if (w === undefined) {
+    w = newLuWork(n);
+    denseWork.set(n, w);
+  }
+  luFactor(A, w);
+  if (luSingular(w)) return false;
   if (minPivotRatio > 0) {
-    const U = lu.upperTriangularMatrix;
     let big = 0;
     let small = Infinity;
     for (let i = 0; i < n; i++) {
-      const p = Math.abs(U.get(i, i));
+      const p = Math.abs(w.lu[i * n + i]);
       if (p > big) big = p;
       if (p < small) small = p;
     }
     if (!(small > minPivotRatio * big)) return false;
   }
-  const x = lu.solve(Matrix.columnVector(Array.from(b)));
+  const x = luSolve(w, b, w.x);
   for (let i = 0; i < n; i++) {
-    const v = x.get(i, 0);
-    if (!Number.isFinite(v)) return false;
-    b[i] = v;
+    if (!Number.isFinite(x[i])) return false;
+    b[i] = x[i];
   }
   return true;
 }

@@ -234,7 +234,7 @@ export function withValues(model: Model, values: readonly ParameterValue[], opts
   }
   if (diags.length) throw new InputError(diags);
   const next: Model = { ...model, units, feeds, settings: new FrozenMap(settings) };
-  if (opts.structure !== false) {
+  if (opts.structure !== false && !sameStructure(model, next, [...byOwner.keys()])) {
     const bag = new DiagnosticBag();
     checkStructure(next, bag);
     if (bag.hasErrors) {
@@ -243,6 +243,49 @@ export function withValues(model: Model, values: readonly ParameterValue[], opts
     }
   }
   return deepFreeze(next);
+}
+
+/** Whether a model passes the structure checks, found once per model. */
+const structureOk = new WeakMap<Model, boolean>();
+
+function passesStructure(model: Model): boolean {
+  let ok = structureOk.get(model);
+  if (ok === undefined) {
+    const bag = new DiagnosticBag();
+    checkStructure(model, bag);
+    ok = !bag.hasErrors;
+    structureOk.set(model, ok);
+  }
+  return ok;
+}
+
+/**
+ * Whether `next` (model with the owners `changed` read again with other values) passes the
+ * structure checks because model does and nothing they read differs: the checks read the
+ * topology and feed names (which values do not change), which components each feed carries,
+ * and each unit's structure rules, which depend on its values only through its block's
+ * structureKey. False when that cannot be told: the checks then run.
+ */
+function sameStructure(model: Model, next: Model, changed: readonly string[]): boolean {
+  for (const prefix of changed) {
+    const own = model.settings.get(prefix);
+    if (own === undefined) return false;
+    if (own.kind === 'feed') {
+      const a = model.feeds.find((f) => f.name === own.name);
+      const b = next.feeds.find((f) => f.name === own.name);
+      if (!a || !b || a.composition.length !== b.composition.length) return false;
+      for (let i = 0; i < a.composition.length; i++) if (a.composition[i] > 0 !== b.composition[i] > 0) return false;
+    } else {
+      const a = model.units.find((u) => u.name === own.name);
+      const b = next.units.find((u) => u.name === own.name);
+      if (!a || !b || a.type !== b.type) return false;
+      const def = blockOf(b);
+      if (def.structure === undefined) continue; // no rules: everything everywhere, whatever the values
+      const ka = def.structureKey?.(a, model);
+      if (ka === undefined || ka !== def.structureKey!(b, next)) return false;
+    }
+  }
+  return passesStructure(model);
 }
 
 function boundsHelp(p: Parameter): string | undefined {

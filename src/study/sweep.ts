@@ -76,8 +76,12 @@ export interface PointRow {
   adjusted?: number[];
 }
 
-/** Builds the context; every problem with the options is reported at once. */
-export function prepareSweep(spec: SweepSpec): SweepContext {
+/**
+ * Builds the context; every problem with the options is reported at once. `checked`: the spec
+ * was prepared before (a worker thread's copy of the main thread's): each axis value is not
+ * tried on the file again (for a long axis that check costs as much as solving).
+ */
+export function prepareSweep(spec: SweepSpec, opts: { checked?: boolean } = {}): SweepContext {
   const model = validateText(spec.file, spec.text).model;
   const diags: Diagnostic[] = [];
   const collect = <T>(f: () => T): T | undefined => {
@@ -118,7 +122,7 @@ export function prepareSweep(spec: SweepSpec): SweepContext {
   // Every value of every axis, each on its own (the others at the file's values), must make a
   // valid file: a grid that runs out of range is a mistake in the command, found before
   // anything is solved. (A combination that is invalid is a row of status invalid.)
-  for (const a of axes) {
+  for (const a of opts.checked ? [] : axes) {
     for (let k = 0; k < a.values.length; k++) {
       try {
         withValues(model, [{ parameter: a.parameter, value: a.si[k] }]);

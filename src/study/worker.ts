@@ -12,7 +12,8 @@ if (!port) throw new Error('worker.mjs runs as a worker thread of a sweep');
 const post = (m: FromWorker) => port.postMessage(m);
 
 try {
-  const ctx = prepareSweep((workerData as { spec: SweepSpec }).spec);
+  // The main thread prepared the same spec (every axis value checked) before starting this one.
+  const ctx = prepareSweep((workerData as { spec: SweepSpec }).spec, { checked: true });
   port.on('message', (m: ToWorker) => {
     try {
       for (const row of blockRows(ctx, m.block, m.skip)) post({ type: 'row', block: m.block, row });

@@ -147,8 +147,33 @@ export function newPhaseProperties(): PhaseProperties {
   return { H: 0, S: 0, Cp: 0, Z: 1, root: 'vapor' };
 }
 
-/** Departure scratch per equation of state, for phasePropertiesInto. */
-const depScratch = new WeakMap<Eos, Departure>();
+/**
+ * Scratch of phasePropertiesInto per equation of state: the departure, and each component's
+ * ideal-gas h, cp (and s) at the last temperature (a loop's flashes and enthalpies come back to
+ * the same T again and again: a condenser's, a stream's), so that neither is computed nor
+ * allocated again at that T.
+ */
+interface PropertyScratch {
+  dep: Departure;
+  n: number;
+  /** Temperature of h and cp; of s. */
+  T: number;
+  sT: number;
+  h: Float64Array;
+  cp: Float64Array;
+  s: Float64Array;
+}
+const depScratch = new WeakMap<Eos, PropertyScratch>();
+
+function scratchFor(eos: Eos): PropertyScratch {
+  let w = depScratch.get(eos);
+  const n = eos.n;
+  if (w === undefined || w.n !== n) {
+    w = { dep: newDeparture(), n, T: NaN, sT: NaN, h: new Float64Array(n), cp: new Float64Array(n), s: new Float64Array(n) };
+    depScratch.set(eos, w);
+  }
+  return w;
+}
 
 /**
  * H, Cp and (when withEntropy) S of one phase of composition x at T, P on the chosen root,
@@ -158,25 +183,42 @@ const depScratch = new WeakMap<Eos, Departure>();
 export function phasePropertiesInto(
   eos: Eos, T: number, P: number, x: ArrayLike<number>, root: RootChoice, withEntropy: boolean, out: PhaseProperties,
 ): PhaseProperties {
-  let dep = depScratch.get(eos);
-  if (dep === undefined) {
-    dep = newDeparture();
-    depScratch.set(eos, dep);
-  }
+  const w = scratchFor(eos);
+  const dep = w.dep;
   departureInto(eos, T, P, x, root, dep);
   const comps = eos.components;
   const n = eos.n;
   const inv = 1 / fractionSum(x, n);
+  // Per component at this T, computed on first need (a component with data missing is never
+  // asked for: the caller checked the components present).
+  if (w.T !== T) {
+    w.T = T;
+    w.h.fill(NaN);
+  }
+  if (withEntropy && w.sT !== T) {
+    w.sT = T;
+    w.s.fill(NaN);
+  }
+  const hs = w.h;
+  const cps = w.cp;
+  const ss = w.s;
   let h = 0;
   let cp = 0;
   let s = 0;
   for (let i = 0; i < n; i++) {
     const xi = x[i] * inv;
     if (!(xi > 0)) continue;
-    const c = comps[i];
-    h += xi * hIG(c, T);
-    cp += xi * cpIG(c, T);
-    if (withEntropy) s += xi * (sIG(c, T) - R * Math.log(xi));
+    if (hs[i] !== hs[i]) {
+      const c = comps[i];
+      hs[i] = hIG(c, T);
+      cps[i] = cpIG(c, T);
+    }
+    h += xi * hs[i];
+    cp += xi * cps[i];
+    if (withEntropy) {
+      if (ss[i] !== ss[i]) ss[i] = sIG(comps[i], T);
+      s += xi * (ss[i] - R * Math.log(xi));
+    }
   }
   out.H = h + dep.H;
   out.Cp = cp + dep.Cp;

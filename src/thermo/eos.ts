@@ -369,6 +369,12 @@ export class CubicEos implements EosModel {
   }
 
   lnPhi(T: number, P: number, x: ArrayLike<number>, which: RootChoice, out: Float64Array): RootResult {
+    this.lnPhiInto(T, P, x, which, out);
+    return this.result();
+  }
+
+  /** lnPhi without the RootResult (allocation-free: the flashes' inner loops); the root is `lastRoot`. */
+  lnPhiInto(T: number, P: number, x: ArrayLike<number>, which: RootChoice, out: Float64Array): void {
     this.zValue(T, P, x, which);
     const Z = this.zSel;
     const A = this.Asel;
@@ -385,7 +391,6 @@ export class CubicEos implements EosModel {
       const bi = b[i] * invB;
       out[i] = bi * zm1 - lnZB - AL * (invA2 * sumA[i] - bi);
     }
-    return this.result();
   }
 }
 

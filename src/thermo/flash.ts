@@ -23,8 +23,9 @@
  */
 import { solveDense } from '../solve/linear.js';
 import type { Eos } from './types.js';
-import { stabilityTest } from './stability.js';
-import { solveRachfordRice, rachfordRiceCompositions } from './rachford-rice.js';
+import { lnPhiInto, stableRootOf } from './flash-eos.js';
+import { stabilityCore } from './stability.js';
+import { newRachfordRiceResult, solveRachfordRice, rachfordRiceCompositions, type RachfordRiceResult } from './rachford-rice.js';
 import { wilsonK } from './wilson.js';
 
 export interface FlashOptions {
@@ -34,6 +35,11 @@ export interface FlashOptions {
   tol?: number;
   /** Budget of phase-split iterations (substitution + Newton), default 300. */
   maxIterations?: number;
+  /**
+   * false: flashTPInto leaves the result's history empty (a block in a loop that never reads it
+   * saves the array's growth). flashTP always records it.
+   */
+  history?: boolean;
 }
 
 export interface FlashResult {
@@ -90,8 +96,19 @@ interface SplitState {
   saved: Float64Array;
   /** Scratch for the feed's fugacity coefficients. */
   phiZ: Float64Array;
+  /** Scratch for Wilson's K of a single-phase answer. */
+  wilson: Float64Array;
   beta: number;
   evaluations: number;
+  /** Reused results: Rachford-Rice's, the evaluations', the phase split's outcome. */
+  rr: RachfordRiceResult;
+  evaluation: Evaluation;
+  probe: Evaluation;
+  outcome: SplitOutcome;
+  /** Newton's arrays (J, F, F at a probe, u, du), made on its first use. */
+  newton: { J: Float64Array; F: Float64Array; Fp: Float64Array; u: Float64Array; du: Float64Array } | undefined;
+  /** Where the phase split records its residuals (a result's history), or undefined. */
+  history: number[] | undefined;
 }
 
 /** Arrays of one flash, kept per equation of state (allocated once, reused by every flash). */
@@ -104,7 +121,9 @@ function stateFor(eos: Eos): SplitState {
     const a = () => new Float64Array(n);
     s = {
       n, z: a(), present: new Uint8Array(n), lnK: a(), K: a(), x: a(), y: a(), phiL: a(), phiV: a(),
-      res: a(), step: a(), prevStep: a(), saved: a(), phiZ: a(), beta: NaN, evaluations: 0,
+      res: a(), step: a(), prevStep: a(), saved: a(), phiZ: a(), wilson: a(), beta: NaN, evaluations: 0,
+      rr: newRachfordRiceResult(), evaluation: newEvaluation(), probe: newEvaluation(),
+      outcome: { kind: 'converged', iterations: 0, residual: 0, gRT: 0 }, newton: undefined, history: undefined,
     };
     workspaces.set(eos, s);
   }
@@ -145,13 +164,13 @@ function evaluate(eos: Eos, T: number, P: number, s: SplitState, res: Float64Arr
     const l = s.lnK[i];
     s.K[i] = Math.exp(l > 600 ? 600 : l < -600 ? -600 : l);
   }
-  const rr = solveRachfordRice(s.z, s.K);
+  const rr = solveRachfordRice(s.z, s.K, undefined, undefined, s.rr);
   if (rr.kind === 'all-liquid') return setEvaluation(out, 'single-liquid', Infinity, Infinity);
   if (rr.kind === 'all-vapor') return setEvaluation(out, 'single-vapor', Infinity, Infinity);
   s.beta = rr.beta;
   rachfordRiceCompositions(s.z, s.K, rr.beta, s.x, s.y);
-  eos.lnPhi(T, P, s.x, 'stable', s.phiL);
-  eos.lnPhi(T, P, s.y, 'stable', s.phiV);
+  lnPhiInto(eos, T, P, s.x, 'stable', s.phiL);
+  lnPhiInto(eos, T, P, s.y, 'stable', s.phiV);
   s.evaluations++;
   let r = 0;
   let g = 0;
@@ -183,7 +202,16 @@ interface SplitOutcome {
   iterations: number;
   residual: number;
   gRT: number;
-  history: number[];
+}
+
+/** The phase split's outcome, written into the state's reused object. */
+function splitOutcome(s: SplitState, kind: SplitOutcome['kind'], iterations: number, residual: number, gRT: number): SplitOutcome {
+  const o = s.outcome;
+  o.kind = kind;
+  o.iterations = iterations;
+  o.residual = residual;
+  o.gRT = gRT;
+  return o;
 }
 
 /** Successive substitution with GDEM, then Newton on ln K when slow. */
@@ -191,8 +219,8 @@ function phaseSplit(eos: Eos, T: number, P: number, s: SplitState, tol: number, 
   const n = s.n;
   const { res, step, prevStep, saved } = s;
   prevStep.fill(0);
-  const evaluation = newEvaluation();
-  const history: number[] = [];
+  const evaluation = s.evaluation;
+  const history = s.history;
   let savedG = Infinity;
   let accelPending = false;
   let prevResidual = Infinity;
@@ -200,7 +228,7 @@ function phaseSplit(eos: Eos, T: number, P: number, s: SplitState, tol: number, 
   let it = 0;
   let ev = evaluate(eos, T, P, s, res, evaluation);
   for (;;) {
-    if (ev.outcome !== 'ok') return { kind: ev.outcome, iterations: it, residual: Infinity, gRT: Infinity, history };
+    if (ev.outcome !== 'ok') return splitOutcome(s, ev.outcome, it, Infinity, Infinity);
     if (accelPending) {
       accelPending = false;
       if (!(ev.gRT < savedG)) {
@@ -210,16 +238,16 @@ function phaseSplit(eos: Eos, T: number, P: number, s: SplitState, tol: number, 
         continue;
       }
     }
-    history.push(ev.residual);
+    if (history !== undefined) history.push(ev.residual);
     if (ev.residual <= tol) break;
-    if (trivialNorm(s) < TRIVIAL_NORM) return { kind: 'trivial', iterations: it, residual: ev.residual, gRT: ev.gRT, history };
-    if (it >= maxIt) return { kind: 'not-converged', iterations: it, residual: ev.residual, gRT: ev.gRT, history };
+    if (trivialNorm(s) < TRIVIAL_NORM) return splitOutcome(s, 'trivial', it, ev.residual, ev.gRT);
+    if (it >= maxIt) return splitOutcome(s, 'not-converged', it, ev.residual, ev.gRT);
     it++;
     // slow substitution (ratio near 1, typically close to a critical point): switch to Newton
     slow = ev.residual > 0.6 * prevResidual ? slow + 1 : 0;
     prevResidual = ev.residual;
     if ((slow >= 3 && it > 5) || it > 60) {
-      return newtonSplit(eos, T, P, s, tol, maxIt, it, history, res);
+      return newtonSplit(eos, T, P, s, tol, maxIt, it, res);
     }
     let dot1 = 0;
     let dot0 = 0;
@@ -248,7 +276,7 @@ function phaseSplit(eos: Eos, T: number, P: number, s: SplitState, tol: number, 
     prevStep.set(step);
     ev = evaluate(eos, T, P, s, res, evaluation);
   }
-  return { kind: 'converged', iterations: it, residual: ev.residual, gRT: ev.gRT, history };
+  return splitOutcome(s, 'converged', it, ev.residual, ev.gRT);
 }
 
 /**
@@ -256,23 +284,21 @@ function phaseSplit(eos: Eos, T: number, P: number, s: SplitState, tol: number, 
  * difference Jacobian (n extra evaluations per step) and step halving when max |F| grows.
  */
 function newtonSplit(
-  eos: Eos, T: number, P: number, s: SplitState, tol: number, maxIt: number, it0: number, history: number[], res: Float64Array,
+  eos: Eos, T: number, P: number, s: SplitState, tol: number, maxIt: number, it0: number, res: Float64Array,
 ): SplitOutcome {
   const n = s.n;
-  const J = new Float64Array(n * n);
-  const F = new Float64Array(n);
-  const Fp = new Float64Array(n);
-  const u = new Float64Array(n);
-  const du = new Float64Array(n);
+  s.newton ??= { J: new Float64Array(n * n), F: new Float64Array(n), Fp: new Float64Array(n), u: new Float64Array(n), du: new Float64Array(n) };
+  const { J, F, Fp, u, du } = s.newton;
+  const history = s.history;
   let it = it0;
-  const base = newEvaluation();
-  const probe = newEvaluation();
+  const base = s.evaluation;
+  const probe = s.probe;
   let ev = evaluate(eos, T, P, s, res, base);
-  if (ev.outcome !== 'ok') return { kind: ev.outcome, iterations: it, residual: Infinity, gRT: Infinity, history };
+  if (ev.outcome !== 'ok') return splitOutcome(s, ev.outcome, it, Infinity, Infinity);
   for (;;) {
-    if (ev.residual <= tol) return { kind: 'converged', iterations: it, residual: ev.residual, gRT: ev.gRT, history };
-    if (trivialNorm(s) < TRIVIAL_NORM) return { kind: 'trivial', iterations: it, residual: ev.residual, gRT: ev.gRT, history };
-    if (it >= maxIt) return { kind: 'not-converged', iterations: it, residual: ev.residual, gRT: ev.gRT, history };
+    if (ev.residual <= tol) return splitOutcome(s, 'converged', it, ev.residual, ev.gRT);
+    if (trivialNorm(s) < TRIVIAL_NORM) return splitOutcome(s, 'trivial', it, ev.residual, ev.gRT);
+    if (it >= maxIt) return splitOutcome(s, 'not-converged', it, ev.residual, ev.gRT);
     it++;
     u.set(s.lnK);
     for (let i = 0; i < n; i++) F[i] = s.present[i] ? res[i] : s.lnK[i] - (s.phiL[i] - s.phiV[i]);
@@ -294,7 +320,7 @@ function newtonSplit(
       const gRT = ev.gRT;
       s.lnK.set(u);
       evaluate(eos, T, P, s, res, probe);
-      return { kind: 'not-converged', iterations: it, residual: r0, gRT, history };
+      return splitOutcome(s, 'not-converged', it, r0, gRT);
     }
     let t = 1;
     for (let k = 0; k < 12; k++) {
@@ -303,22 +329,52 @@ function newtonSplit(
       if (ev.outcome === 'ok' && ev.residual < r0) break;
       t *= 0.5;
     }
-    if (ev.outcome !== 'ok') return { kind: ev.outcome, iterations: it, residual: Infinity, gRT: Infinity, history };
-    history.push(ev.residual);
+    if (ev.outcome !== 'ok') return splitOutcome(s, ev.outcome, it, Infinity, Infinity);
+    if (history !== undefined) history.push(ev.residual);
   }
 }
 
 function feedGibbs(eos: Eos, T: number, P: number, z: Float64Array, present: Uint8Array, phi: Float64Array): number {
-  eos.lnPhi(T, P, z, 'stable', phi);
+  lnPhiInto(eos, T, P, z, 'stable', phi);
   let g = 0;
   for (let i = 0; i < eos.n; i++) if (present[i]) g += z[i] * (Math.log(z[i]) + phi[i]);
   return g;
 }
 
+/** A result for flashTPInto to write into again and again (arrays of n, an empty history). */
+export function newFlashResult(n: number): FlashResult {
+  return {
+    status: 'converged', phase: 'vapor', beta: 1, x: new Float64Array(n), y: new Float64Array(n), K: new Float64Array(n),
+    iterations: 0, residual: 0, note: undefined, trivial: undefined, evaluations: 0, history: [], tpd: undefined,
+    method: 'direct', liquidLiquid: undefined,
+  };
+}
+
 /**
- * Isothermal flash of feed z (mole fractions, normalised internally) at T (K), P (Pa).
+ * Isothermal flash of feed z (mole fractions, normalised internally) at T (K), P (Pa): a new
+ * result, its arrays its own.
  */
 export function flashTP(eos: Eos, T: number, P: number, z: ArrayLike<number>, opts: FlashOptions = {}): FlashResult {
+  const r = flashTPInto(eos, T, P, z, opts.history === false ? { ...opts, history: true } : opts, newFlashResult(eos.n));
+  // Only the fields that apply, as a plain answer.
+  const out: FlashResult = {
+    status: r.status, phase: r.phase, beta: r.beta, x: r.x, y: r.y, K: r.K, iterations: r.iterations, residual: r.residual,
+    evaluations: r.evaluations, history: r.history, method: r.method,
+  };
+  if (r.note !== undefined) out.note = r.note;
+  if (r.trivial !== undefined) out.trivial = r.trivial;
+  if (r.tpd !== undefined) out.tpd = r.tpd;
+  if (r.liquidLiquid !== undefined) out.liquidLiquid = r.liquidLiquid;
+  return out;
+}
+
+/**
+ * The isothermal flash written into `out` (from newFlashResult(n); its arrays and fields are
+ * overwritten, the fields that do not apply set to undefined): nothing is allocated on the
+ * paths a loop takes (a split from the last K-values, a stable feed), so that a block's flash
+ * on every pass costs no garbage. The history is recorded unless opts.history is false.
+ */
+export function flashTPInto(eos: Eos, T: number, P: number, z: ArrayLike<number>, opts: FlashOptions, out: FlashResult): FlashResult {
   const n = eos.n;
   const tol = opts.tol ?? 1e-10;
   const maxIt = opts.maxIterations ?? 300;
@@ -326,6 +382,7 @@ export function flashTP(eos: Eos, T: number, P: number, z: ArrayLike<number>, op
   if (!(P > 0) || P === Infinity) throw new RangeError(`flash: pressure must be a finite positive number of pascal, got ${P}`);
   if (z.length !== n) throw new RangeError(`flash: feed has ${z.length} entries, expected ${n}`);
   if (opts.K0 !== undefined && opts.K0.length !== n) throw new RangeError(`flash: K0 has ${opts.K0.length} entries, expected ${n}`);
+  if (out.x.length !== n || out.y.length !== n || out.K.length !== n) throw new RangeError(`flash: the result's arrays must have ${n} entries`);
   let sum = 0;
   for (let i = 0; i < n; i++) {
     const zi = z[i];
@@ -333,8 +390,8 @@ export function flashTP(eos: Eos, T: number, P: number, z: ArrayLike<number>, op
     sum += zi;
   }
   if (!(sum > 0)) throw new RangeError('flash: feed must have a positive sum');
-  // Work arrays reused from the last flash with this equation of state; everything returned
-  // is a copy (Float64Array.from), so no result shares them.
+  // Work arrays reused from the last flash with this equation of state; the result's arrays
+  // are the caller's (copies of the work arrays).
   const s = stateFor(eos);
   const zz = s.z;
   const present = s.present;
@@ -350,42 +407,24 @@ export function flashTP(eos: Eos, T: number, P: number, z: ArrayLike<number>, op
   s.y.fill(0);
   s.phiL.fill(0);
   s.phiV.fill(0);
+  const history = out.history;
+  history.length = 0;
+  s.history = opts.history === false ? undefined : history;
   let iterations = 0;
-  const history: number[] = [];
-
-  const twoPhase = (method: FlashResult['method'], residual: number, tpd?: number): FlashResult => {
-    const r: FlashResult = {
-      status: 'converged', phase: 'two-phase', beta: s.beta,
-      x: Float64Array.from(s.x), y: Float64Array.from(s.y), K: Float64Array.from(s.K),
-      iterations, residual, evaluations: s.evaluations, history, method,
-      ...(tpd !== undefined ? { tpd } : {}),
-    };
-    s.evaluations += 2;
-    r.evaluations = s.evaluations;
-    if (eos.z(T, P, s.y, 'stable').root === 'liquid' && eos.z(T, P, s.x, 'stable').root === 'liquid') {
-      r.liquidLiquid = true;
-      r.note = 'both phases are liquid-like: the model predicts a liquid-liquid split (check the k_ij of polar pairs such as water-methanol)';
-    }
-    return r;
-  };
-  const single = (
-    phase: 'vapor' | 'liquid', method: FlashResult['method'], K: Float64Array, extra: Partial<FlashResult> = {},
-  ): FlashResult => ({
-    status: 'converged', phase, beta: phase === 'vapor' ? 1 : 0,
-    x: Float64Array.from(zz), y: Float64Array.from(zz), K: Float64Array.from(K),
-    iterations, residual: 0, evaluations: s.evaluations, history, method, ...extra,
-  });
-  const labelOfFeed = (): 'vapor' | 'liquid' => {
-    s.evaluations++;
-    return eos.z(T, P, zz, 'stable').root;
-  };
+  out.note = undefined;
+  out.trivial = undefined;
+  out.tpd = undefined;
+  out.liquidLiquid = undefined;
 
   if (eos.name === 'ideal') {
     // no liquid in the model
-    return single('vapor', 'direct', wilsonK(eos.components, T, P, new Float64Array(n)), { note: 'ideal-gas model: no liquid phase' });
+    single(out, s, 'vapor', 'direct', wilsonK(eos.components, T, P, s.wilson), iterations);
+    out.note = 'ideal-gas model: no liquid phase';
+    return out;
   }
   if (nPresent === 1) {
-    return single(labelOfFeed(), 'direct', wilsonK(eos.components, T, P, new Float64Array(n)));
+    s.evaluations++;
+    return single(out, s, stableRootOf(eos, T, P, zz), 'direct', wilsonK(eos.components, T, P, s.wilson), iterations);
   }
 
   // 1. fast path from the caller's K
@@ -399,67 +438,126 @@ export function flashTP(eos: Eos, T: number, P: number, z: ArrayLike<number>, op
     if (okK) {
       const o = phaseSplit(eos, T, P, s, tol, Math.min(maxIt, 50));
       iterations += o.iterations;
-      history.push(...o.history);
       if (o.kind === 'converged' && s.beta > 0 && s.beta < 1 && trivialNorm(s) >= TRIVIAL_NORM) {
+        const residual = o.residual;
+        const gRT = o.gRT;
         const gFeed = feedGibbs(eos, T, P, zz, present, s.phiZ);
         s.evaluations++;
         // the split is lower in Gibbs energy than the feed: accept
-        if (o.gRT < gFeed) {
+        if (gRT < gFeed) {
           evaluateK(s);
-          return twoPhase('from-K0', o.residual);
+          return twoPhase(eos, T, P, out, s, 'from-K0', residual, iterations);
         }
       }
     }
   }
 
-  // 2. stability test
-  const st = stabilityTest(eos, T, P, zz);
+  // 2. stability test (stabilityTest's defaults: tol 1e-10, 500 iterations)
+  let zs = 0;
+  for (let i = 0; i < n; i++) zs += zz[i];
+  const st = stabilityCore(eos, T, P, zz, zs, 1e-10, 500);
   s.evaluations += st.evaluations;
+  const tpd = st.tpd;
   if (st.stable) {
-    const K = opts.K0 !== undefined && opts.K0.every((k) => k > 0 && Number.isFinite(k)) ? opts.K0 : wilsonK(eos.components, T, P, new Float64Array(n));
-    const extra: Partial<FlashResult> = { tpd: st.tpd };
-    if (st.incomplete) extra.note = 'stability test stopped before converging; the single-phase answer is uncertain';
-    const r = single(labelOfFeed(), 'stability', K, extra);
-    if (st.incomplete) r.status = 'not-converged';
-    return r;
+    let useK0 = opts.K0 !== undefined;
+    if (opts.K0 !== undefined) for (let i = 0; i < n; i++) if (!(opts.K0[i] > 0 && Number.isFinite(opts.K0[i]))) useK0 = false;
+    const K = useK0 ? opts.K0! : wilsonK(eos.components, T, P, s.wilson);
+    const incomplete = st.incomplete;
+    s.evaluations++;
+    single(out, s, stableRootOf(eos, T, P, zz), 'stability', K, iterations);
+    out.tpd = tpd;
+    if (incomplete) {
+      out.note = 'stability test stopped before converging; the single-phase answer is uncertain';
+      out.status = 'not-converged';
+    }
+    return out;
   }
 
   // 3. phase split from the stability test's K
-  for (let i = 0; i < n; i++) s.lnK[i] = Math.log(st.K![i]);
+  for (let i = 0; i < n; i++) s.lnK[i] = Math.log(st.Kout[i]);
   const o = phaseSplit(eos, T, P, s, tol, maxIt);
   iterations += o.iterations;
-  history.push(...o.history);
-  const base = { tpd: st.tpd };
   switch (o.kind) {
     case 'converged':
       evaluateK(s);
-      if (s.beta > 0 && s.beta < 1) return twoPhase('stability+split', o.residual, st.tpd);
-      return {
-        ...single(s.beta >= 1 ? 'vapor' : 'liquid', 'stability+split', s.K, base),
-        status: 'not-converged',
-        note: `the stability test found the feed unstable (tpd ${st.tpd.toExponential(2)}) but the phase split converged to beta = ${s.beta.toPrecision(4)} outside [0, 1]`,
-      };
-    case 'trivial':
-      return {
-        ...single(labelOfFeed(), 'stability+split', s.K, base),
-        status: 'not-converged', trivial: true, residual: o.residual,
-        note: 'the phase split collapsed to the trivial solution (K -> 1, both phases alike): the state is close to a critical point',
-      };
+      if (s.beta > 0 && s.beta < 1) {
+        twoPhase(eos, T, P, out, s, 'stability+split', o.residual, iterations);
+        out.tpd = tpd;
+        return out;
+      }
+      single(out, s, s.beta >= 1 ? 'vapor' : 'liquid', 'stability+split', s.K, iterations);
+      out.tpd = tpd;
+      out.status = 'not-converged';
+      out.note = `the stability test found the feed unstable (tpd ${tpd.toExponential(2)}) but the phase split converged to beta = ${s.beta.toPrecision(4)} outside [0, 1]`;
+      return out;
+    case 'trivial': {
+      const residual = o.residual;
+      s.evaluations++;
+      single(out, s, stableRootOf(eos, T, P, zz), 'stability+split', s.K, iterations);
+      out.tpd = tpd;
+      out.status = 'not-converged';
+      out.trivial = true;
+      out.residual = residual;
+      out.note = 'the phase split collapsed to the trivial solution (K -> 1, both phases alike): the state is close to a critical point';
+      return out;
+    }
     case 'single-liquid':
     case 'single-vapor':
-      return {
-        ...single(o.kind === 'single-vapor' ? 'vapor' : 'liquid', 'stability+split', s.K, base),
-        status: 'not-converged',
-        note: 'the phase split left the two-phase region (all K on one side of 1) although the stability test found the feed unstable',
-      };
+      single(out, s, o.kind === 'single-vapor' ? 'vapor' : 'liquid', 'stability+split', s.K, iterations);
+      out.tpd = tpd;
+      out.status = 'not-converged';
+      out.note = 'the phase split left the two-phase region (all K on one side of 1) although the stability test found the feed unstable';
+      return out;
     default:
-      return {
-        status: 'not-converged', phase: 'two-phase', beta: s.beta,
-        x: Float64Array.from(s.x), y: Float64Array.from(s.y), K: Float64Array.from(s.K),
-        iterations, residual: o.residual, evaluations: s.evaluations, history, method: 'stability+split', tpd: st.tpd,
-        note: `the phase split did not converge in ${iterations} iterations (fugacity residual ${o.residual.toExponential(2)})`,
-      };
+      out.status = 'not-converged';
+      out.phase = 'two-phase';
+      out.beta = s.beta;
+      out.x.set(s.x);
+      out.y.set(s.y);
+      out.K.set(s.K);
+      out.iterations = iterations;
+      out.residual = o.residual;
+      out.evaluations = s.evaluations;
+      out.method = 'stability+split';
+      out.tpd = tpd;
+      out.note = `the phase split did not converge in ${iterations} iterations (fugacity residual ${o.residual.toExponential(2)})`;
+      return out;
   }
+}
+
+/** A converged two-phase answer from the work arrays. */
+function twoPhase(eos: Eos, T: number, P: number, out: FlashResult, s: SplitState, method: FlashResult['method'], residual: number, iterations: number): FlashResult {
+  out.status = 'converged';
+  out.phase = 'two-phase';
+  out.beta = s.beta;
+  out.x.set(s.x);
+  out.y.set(s.y);
+  out.K.set(s.K);
+  out.iterations = iterations;
+  out.residual = residual;
+  out.method = method;
+  s.evaluations += 2;
+  out.evaluations = s.evaluations;
+  if (stableRootOf(eos, T, P, s.y) === 'liquid' && stableRootOf(eos, T, P, s.x) === 'liquid') {
+    out.liquidLiquid = true;
+    out.note = 'both phases are liquid-like: the model predicts a liquid-liquid split (check the k_ij of polar pairs such as water-methanol)';
+  }
+  return out;
+}
+
+/** A converged single-phase answer: the feed as both phases, K the estimate used. */
+function single(out: FlashResult, s: SplitState, phase: 'vapor' | 'liquid', method: FlashResult['method'], K: ArrayLike<number>, iterations: number): FlashResult {
+  out.status = 'converged';
+  out.phase = phase;
+  out.beta = phase === 'vapor' ? 1 : 0;
+  out.x.set(s.z);
+  out.y.set(s.z);
+  out.K.set(K);
+  out.iterations = iterations;
+  out.residual = 0;
+  out.evaluations = s.evaluations;
+  out.method = method;
+  return out;
 }
 
 /** K of the converged state, including components absent from the feed (infinite dilution). */

@@ -56,19 +56,26 @@ function pieceOverTIntegral(c: CpPiece, T0: number, T: number): number {
   return v;
 }
 
-/** Integral of f over [T0, T] across the pieces (each piece on its own range; the end pieces extend beyond). */
-function piecewise(c: CpCorrelation, T0: number, T: number, f: (p: CpPiece, a: number, b: number) => number): number {
-  if (T < T0) return -piecewise(c, T, T0, f);
+/**
+ * Integral of Cp/R (overT false) or Cp/(R T) (overT true) over [T0, T] across the pieces (each
+ * piece on its own range; the end pieces extend beyond). One function with a flag rather than a
+ * callback: the call stays monomorphic, so that the compiler inlines it and the numbers stay
+ * unboxed (no allocation per call).
+ */
+function piecewise(c: CpCorrelation, T0: number, T: number, overT: boolean): number {
+  // T below T0: minus the integral from T to T0 (no recursion, so that the call can be inlined)
+  const from = T < T0 ? T : T0;
+  const to = T < T0 ? T0 : T;
   const p = c.pieces;
   let v = 0;
   for (let k = 0; k < p.length; k++) {
     const lo = k === 0 ? -Infinity : p[k].Tmin;
     const hi = k === p.length - 1 ? Infinity : p[k].Tmax;
-    const a = Math.max(T0, lo);
-    const b = Math.min(T, hi);
-    if (b > a) v += f(p[k], a, b);
+    const a = Math.max(from, lo);
+    const b = Math.min(to, hi);
+    if (b > a) v += overT ? pieceOverTIntegral(p[k], a, b) : pieceIntegral(p[k], a, b);
   }
-  return v;
+  return T < T0 ? -v : v;
 }
 
 /** Cp/R at T. */
@@ -78,12 +85,12 @@ export function cpOverR(c: CpCorrelation, T: number): number {
 
 /** Integral of Cp/R dT from T0 to T (K). */
 export function cpIntegral(c: CpCorrelation, T0: number, T: number): number {
-  return piecewise(c, T0, T, pieceIntegral);
+  return piecewise(c, T0, T, false);
 }
 
 /** Integral of Cp/(R T) dT from T0 to T (K). */
 export function cpOverTIntegral(c: CpCorrelation, T0: number, T: number): number {
-  return piecewise(c, T0, T, pieceOverTIntegral);
+  return piecewise(c, T0, T, true);
 }
 
 /** Whether a component has what the energy balance needs (cp and hf). */

@@ -40,8 +40,28 @@ function rrValue(z: ArrayLike<number>, K: ArrayLike<number>, beta: number, n: nu
   return f;
 }
 
-/** Solves the Rachford-Rice equation. z need not be normalised (only the root matters). */
-export function solveRachfordRice(z: ArrayLike<number>, K: ArrayLike<number>, tol = 1e-15, maxIterations = 200): RachfordRiceResult {
+/** A result to pass to solveRachfordRice again and again (its fields are overwritten). */
+export function newRachfordRiceResult(): RachfordRiceResult {
+  return { kind: 'root', beta: 0, status: 'converged', iterations: 0, residual: 0 };
+}
+
+function answer(
+  out: RachfordRiceResult | undefined, kind: RachfordRiceResult['kind'], beta: number, status: RachfordRiceResult['status'], iterations: number, residual: number,
+): RachfordRiceResult {
+  if (out === undefined) return { kind, beta, status, iterations, residual };
+  out.kind = kind;
+  out.beta = beta;
+  out.status = status;
+  out.iterations = iterations;
+  out.residual = residual;
+  return out;
+}
+
+/**
+ * Solves the Rachford-Rice equation. z need not be normalised (only the root matters). With
+ * `out`, the result is written there (no allocation: the flashes' inner loops).
+ */
+export function solveRachfordRice(z: ArrayLike<number>, K: ArrayLike<number>, tol = 1e-15, maxIterations = 200, out?: RachfordRiceResult): RachfordRiceResult {
   const n = z.length;
   if (K.length !== n) throw new RangeError(`Rachford-Rice: z has ${n} entries, K has ${K.length}`);
   let kMax = -Infinity;
@@ -55,8 +75,8 @@ export function solveRachfordRice(z: ArrayLike<number>, K: ArrayLike<number>, to
     }
   }
   if (kMax === -Infinity) throw new RangeError('Rachford-Rice: no component with z > 0');
-  if (kMax <= 1) return { kind: 'all-liquid', beta: -Infinity, status: 'converged', iterations: 0, residual: 0 };
-  if (kMin >= 1) return { kind: 'all-vapor', beta: Infinity, status: 'converged', iterations: 0, residual: 0 };
+  if (kMax <= 1) return answer(out, 'all-liquid', -Infinity, 'converged', 0, 0);
+  if (kMin >= 1) return answer(out, 'all-vapor', Infinity, 'converged', 0, 0);
 
   // bracket: the poles, narrowed by the signs of f(0) and f(1)
   let lo = 1 / (1 - kMax);
@@ -65,12 +85,12 @@ export function solveRachfordRice(z: ArrayLike<number>, K: ArrayLike<number>, to
   const f1 = rrValue(z, K, 1, n);
   let beta: number;
   if (f0 <= 0) {
-    if (f0 === 0) return { kind: 'root', beta: 0, status: 'converged', iterations: 0, residual: 0 };
+    if (f0 === 0) return answer(out, 'root', 0, 'converged', 0, 0);
     hi = 0;
     beta = 0.5 * lo;
   } else if (f1 >= 0) {
     lo = 1;
-    if (f1 === 0) return { kind: 'root', beta: 1, status: 'converged', iterations: 0, residual: 0 };
+    if (f1 === 0) return answer(out, 'root', 1, 'converged', 0, 0);
     beta = 0.5 * (1 + hi);
   } else {
     lo = 0;
@@ -92,7 +112,7 @@ export function solveRachfordRice(z: ArrayLike<number>, K: ArrayLike<number>, to
         df -= zi * t * t;
       }
     }
-    if (f === 0) return { kind: 'root', beta, status: 'converged', iterations: it, residual: 0 };
+    if (f === 0) return answer(out, 'root', beta, 'converged', it, 0);
     if (f > 0) lo = beta;
     else hi = beta;
     let next = beta - f / df;
@@ -100,10 +120,10 @@ export function solveRachfordRice(z: ArrayLike<number>, K: ArrayLike<number>, to
     const step = Math.abs(next - beta);
     beta = next;
     if (step <= tol * Math.max(1, Math.abs(beta)) || hi - lo <= tol * Math.max(1, Math.abs(beta))) {
-      return { kind: 'root', beta, status: 'converged', iterations: it, residual: Math.abs(rrValue(z, K, beta, n)) };
+      return answer(out, 'root', beta, 'converged', it, Math.abs(rrValue(z, K, beta, n)));
     }
   }
-  return { kind: 'root', beta, status: 'not-converged', iterations: maxIterations, residual: Math.abs(f) };
+  return answer(out, 'root', beta, 'not-converged', maxIterations, Math.abs(f));
 }
 
 /** x_i = z_i / (1 + beta (K_i - 1)), y_i = K_i x_i; components with z_i = 0 get 0. */

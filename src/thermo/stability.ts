@@ -17,6 +17,7 @@
  * A trial that converges to the feed itself (sum (ln W_i - ln z_i)^2 small) is the trivial
  * solution and counts as tpd = 0.
  */
+import { lnPhiInto } from './flash-eos.js';
 import type { Eos } from './types.js';
 import { wilsonK } from './wilson.js';
 
@@ -50,17 +51,8 @@ export interface StabilityResult {
  */
 export const TPD_NEGATIVE = -1e-8;
 
-interface TrialOutcome {
-  tpd: number;
-  trivial: boolean;
-  converged: boolean;
-  w: Float64Array;
-  iterations: number;
-  evaluations: number;
-}
-
-/** Work arrays of one trial phase. */
-interface TrialWork {
+/** Work arrays of one trial phase, and its outcome (written by runTrial; w is the trial's composition). */
+export interface TrialWork {
   lnW: Float64Array;
   W: Float64Array;
   w: Float64Array;
@@ -68,10 +60,15 @@ interface TrialWork {
   prevStep: Float64Array;
   step: Float64Array;
   saved: Float64Array;
+  tpd: number;
+  trivial: boolean;
+  converged: boolean;
+  iterations: number;
+  evaluations: number;
 }
 
 /** Work arrays of one stability test, kept per equation of state (allocated once, reused). */
-interface StabilityWork {
+export interface StabilityWork {
   n: number;
   zz: Float64Array;
   present: Uint8Array;
@@ -84,6 +81,15 @@ interface StabilityWork {
   /** ln of Wilson's K. */
   lnKw: Float64Array;
   trials: [TrialWork, TrialWork];
+  /** The outcome of the last test (stabilityCore): K is the estimate for a flash when unstable. */
+  stable: boolean;
+  tpd: number;
+  iterations: number;
+  evaluations: number;
+  incomplete: boolean;
+  Kout: Float64Array;
+  /** The trial with the smallest tpd when unstable. */
+  best: TrialWork | undefined;
 }
 
 const workspaces = new WeakMap<Eos, StabilityWork>();
@@ -92,16 +98,18 @@ function trialWork(n: number): TrialWork {
   return {
     lnW: new Float64Array(n), W: new Float64Array(n), w: new Float64Array(n), lnPhi: new Float64Array(n),
     prevStep: new Float64Array(n), step: new Float64Array(n), saved: new Float64Array(n),
+    tpd: 0, trivial: false, converged: false, iterations: 0, evaluations: 0,
   };
 }
 
-function workFor(eos: Eos): StabilityWork {
+export function workFor(eos: Eos): StabilityWork {
   const n = eos.n;
   let w = workspaces.get(eos);
   if (w === undefined || w.n !== n) {
     w = {
       n, zz: new Float64Array(n), present: new Uint8Array(n), lnPhiZ: new Float64Array(n), d: new Float64Array(n),
       K: new Float64Array(n), lnW: new Float64Array(n), lnz: new Float64Array(n), lnKw: new Float64Array(n), trials: [trialWork(n), trialWork(n)],
+      stable: true, tpd: 0, iterations: 0, evaluations: 0, incomplete: false, Kout: new Float64Array(n), best: undefined,
     };
     workspaces.set(eos, w);
   }
@@ -114,7 +122,7 @@ const MAX_LN_W = 300;
 function runTrial(
   eos: Eos, T: number, P: number, lnz: Float64Array, d: Float64Array, present: Uint8Array,
   lnW0: Float64Array, tol: number, maxIt: number, work: TrialWork,
-): TrialOutcome {
+): TrialWork {
   const n = eos.n;
   const { lnW, W, w, lnPhi, prevStep, step, saved } = work;
   lnW.set(lnW0);
@@ -132,7 +140,7 @@ function runTrial(
       sumW += W[i];
     }
     for (let i = 0; i < n; i++) w[i] = W[i] / sumW;
-    eos.lnPhi(T, P, w, 'stable', lnPhi);
+    lnPhiInto(eos, T, P, w, 'stable', lnPhi);
     evaluations++;
     tm = 1;
     tpd = 0;
@@ -168,8 +176,8 @@ function runTrial(
       const dz = next - lnz[i];
       trivialNorm += dz * dz;
     }
-    if (trivialNorm < 1e-8) return { tpd: 0, trivial: true, converged: true, w, iterations: it, evaluations };
-    if (maxStep <= tol) return { tpd, trivial: false, converged: true, w, iterations: it, evaluations };
+    if (trivialNorm < 1e-8) return outcome(work, 0, true, true, it, evaluations);
+    if (maxStep <= tol) return outcome(work, tpd, false, true, it, evaluations);
     if (it % 5 === 0 && dot0 > 0) {
       const lambda = dot1 / dot0;
       if (lambda > 0 && lambda < 1) {
@@ -196,7 +204,16 @@ function runTrial(
     }
     prevStep.set(step);
   }
-  return { tpd, trivial: false, converged: false, w, iterations: maxIt, evaluations };
+  return outcome(work, tpd, false, false, maxIt, evaluations);
+}
+
+function outcome(work: TrialWork, tpd: number, trivial: boolean, converged: boolean, iterations: number, evaluations: number): TrialWork {
+  work.tpd = tpd;
+  work.trivial = trivial;
+  work.converged = converged;
+  work.iterations = iterations;
+  work.evaluations = evaluations;
+  return work;
 }
 
 /**
@@ -205,8 +222,6 @@ function runTrial(
  */
 export function stabilityTest(eos: Eos, T: number, P: number, z: ArrayLike<number>, opts: StabilityOptions = {}): StabilityResult {
   const n = eos.n;
-  const tol = opts.tol ?? 1e-10;
-  const maxIt = opts.maxIterations ?? 500;
   if (z.length !== n) throw new RangeError(`stabilityTest: composition has ${z.length} entries, expected ${n}`);
   let s = 0;
   for (let i = 0; i < n; i++) {
@@ -215,6 +230,20 @@ export function stabilityTest(eos: Eos, T: number, P: number, z: ArrayLike<numbe
     s += zi;
   }
   if (!(s > 0)) throw new RangeError('stabilityTest: composition must have a positive sum');
+  const w = stabilityCore(eos, T, P, z, s, opts.tol ?? 1e-10, opts.maxIterations ?? 500);
+  const base = { iterations: w.iterations, evaluations: w.evaluations, ...(w.incomplete ? { incomplete: true } : {}) };
+  if (w.stable) return { stable: true, tpd: w.tpd, ...base };
+  // The work arrays are reused by the next test: hand out copies.
+  return { stable: false, tpd: w.tpd, trial: Float64Array.from(w.best!.w), K: Float64Array.from(w.Kout), ...base };
+}
+
+/**
+ * The test itself, on a composition already checked (z_i finite and >= 0, sum s > 0), with
+ * its outcome in the equation of state's work object (stable, tpd, Kout, best, iterations,
+ * evaluations, incomplete): no allocation. The flash calls it directly.
+ */
+export function stabilityCore(eos: Eos, T: number, P: number, z: ArrayLike<number>, s: number, tol: number, maxIt: number): StabilityWork {
+  const n = eos.n;
   const work = workFor(eos);
   const { zz, present, lnPhiZ, d, K, lnW, lnz, lnKw } = work;
   let nPresent = 0;
@@ -223,9 +252,10 @@ export function stabilityTest(eos: Eos, T: number, P: number, z: ArrayLike<numbe
     present[i] = zz[i] > 0 ? 1 : 0;
     if (zz[i] > 0) nPresent++;
   }
-  if (nPresent === 1) return { stable: true, tpd: 0, iterations: 0, evaluations: 0 };
+  work.best = undefined;
+  if (nPresent === 1) return verdict(work, true, 0, 0, 0, false);
 
-  eos.lnPhi(T, P, zz, 'stable', lnPhiZ);
+  lnPhiInto(eos, T, P, zz, 'stable', lnPhiZ);
   for (let i = 0; i < n; i++) {
     lnz[i] = present[i] ? Math.log(zz[i]) : 0;
     d[i] = present[i] ? lnz[i] + lnPhiZ[i] : 0;
@@ -236,7 +266,6 @@ export function stabilityTest(eos: Eos, T: number, P: number, z: ArrayLike<numbe
   let iterations = 0;
   let evaluations = 1;
   let incomplete = false;
-  const outcomes: TrialOutcome[] = [];
   for (let t = 0; t < 2; t++) {
     const sign = t === 0 ? 1 : -1; // vapor-like trial first, then liquid-like
     for (let i = 0; i < n; i++) lnW[i] = present[i] ? lnz[i] + sign * lnKw[i] : 0;
@@ -244,16 +273,14 @@ export function stabilityTest(eos: Eos, T: number, P: number, z: ArrayLike<numbe
     iterations += o.iterations;
     evaluations += o.evaluations;
     if (!o.converged) incomplete = true;
-    outcomes.push(o);
   }
-  const [v, l] = outcomes;
+  const [v, l] = work.trials;
   const vNeg = !v.trivial && v.tpd < TPD_NEGATIVE;
   const lNeg = !l.trivial && l.tpd < TPD_NEGATIVE;
   const tpd = Math.min(v.trivial ? 0 : v.tpd, l.trivial ? 0 : l.tpd);
-  const base = { iterations, evaluations, ...(incomplete ? { incomplete } : {}) };
-  if (!vNeg && !lNeg) return { stable: true, tpd, ...base };
+  if (!vNeg && !lNeg) return verdict(work, true, tpd, iterations, evaluations, incomplete);
 
-  const Kout = new Float64Array(n);
+  const Kout = work.Kout;
   for (let i = 0; i < n; i++) {
     if (!present[i]) {
       Kout[i] = K[i];
@@ -265,7 +292,15 @@ export function stabilityTest(eos: Eos, T: number, P: number, z: ArrayLike<numbe
       Kout[i] = zz[i] / l.w[i];
     }
   }
-  const best = vNeg && (!lNeg || v.tpd <= l.tpd) ? v : l;
-  // The trial's array is reused by the next test: hand out a copy.
-  return { stable: false, tpd, trial: Float64Array.from(best.w), K: Kout, ...base };
+  work.best = vNeg && (!lNeg || v.tpd <= l.tpd) ? v : l;
+  return verdict(work, false, tpd, iterations, evaluations, incomplete);
+}
+
+function verdict(work: StabilityWork, stable: boolean, tpd: number, iterations: number, evaluations: number, incomplete: boolean): StabilityWork {
+  work.stable = stable;
+  work.tpd = tpd;
+  work.iterations = iterations;
+  work.evaluations = evaluations;
+  work.incomplete = incomplete;
+  return work;
 }
