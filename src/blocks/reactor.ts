@@ -245,6 +245,8 @@ export const reactor: BlockDef<ReactorSpec> = {
     };
 
     let lastOutT = Number.NaN;
+    /** dg/dT of the last adiabatic equilibrium solve (W/K): the next pass's first step. */
+    let lastSlope = Number.NaN;
     const reactionHeats = (T: number) => {
       for (let r = 0; r < R; r++) {
         const nu = spec.reactions[r].nu;
@@ -314,6 +316,7 @@ export const reactor: BlockDef<ReactorSpec> = {
       reset() {
         state.reset();
         eqWarm = false;
+        lastSlope = Number.NaN;
       },
       compute(ins: readonly Stream[], outs: Stream[]) {
         const o = outs[0];
@@ -414,7 +417,8 @@ export const reactor: BlockDef<ReactorSpec> = {
           // Adiabatic or fixed duty: the outlet T and the equilibrium found together.
           let flashFailure: EvaluationFailure | null = null;
           const target = Hin + (spec.duty ?? 0);
-          const T0 = Number.isFinite(lastOutT) ? lastOutT : inletT;
+          const warmT = Number.isFinite(lastOutT);
+          const T0 = warmT ? lastOutT : inletT;
           const ad = solveAdiabaticEquilibrium(eqSolver, { P: o.P, flows: f, start: eqWarm ? eqStart : undefined }, (T, flows) => {
             const Ft = state.setFlows(flows);
             if (!(Ft > 0)) return Number.NaN;
@@ -424,7 +428,7 @@ export const reactor: BlockDef<ReactorSpec> = {
               return Number.NaN;
             }
             return Ft * state.found.h - target;
-          }, { Tmin: ADIABATIC_TMIN, Tmax: ADIABATIC_TMAX, T0, tolT: 1e-7 }, adResult);
+          }, { Tmin: ADIABATIC_TMIN, Tmax: ADIABATIC_TMAX, T0, tolT: 1e-7, slope0: warmT ? lastSlope : undefined }, adResult);
           if (ad.status !== 'converged') {
             if (flashFailure) return problem ?? flashFailure;
             return problem ?? equilibriumFailure(ad.status, `the adiabatic equilibrium: ${ad.message}`);
@@ -432,6 +436,7 @@ export const reactor: BlockDef<ReactorSpec> = {
           const failed = takeEquilibrium(ad.equilibrium, f);
           if (failed) return problem ?? failed;
           lastOutT = ad.T;
+          if (ad.slope > 0) lastSlope = ad.slope;
           // state.found is the state of the last trial: the outlet at ad.T with these flows.
           setFromState(o, state.found, true);
           duty = spec.duty ?? 0;

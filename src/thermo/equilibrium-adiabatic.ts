@@ -38,6 +38,12 @@ export interface AdiabaticOptions {
   tolT?: number;
   /** Equilibrium solves allowed (default 60). */
   maxEvaluations?: number;
+  /**
+   * dg/dT near T0 (W/K), e.g. the result's `slope` from the last pass: the second trial is then
+   * the Newton step from T0 (at least MIN_STEP away) instead of T0 + 1 K, and T0 itself is the
+   * answer when that step is below a tenth of tolT.
+   */
+  slope0?: number;
 }
 
 export interface AdiabaticResult {
@@ -51,6 +57,8 @@ export interface AdiabaticResult {
   equilibrium: EquilibriumResult;
   /** Equilibrium solves made. */
   evaluations: number;
+  /** dg/dT from the first two trials (W/K; NaN when fewer than two were made): a slope0 for the next call. */
+  slope: number;
   /** Temperatures tried and energy residuals: historyT[k], historyG[k] for k < evaluations. */
   historyT: Float64Array;
   historyG: Float64Array;
@@ -59,13 +67,15 @@ export interface AdiabaticResult {
 /** A result object for solveAdiabaticEquilibrium, to reuse across calls. */
 export function newAdiabaticResult(solver: EquilibriumSolver, maxEvaluations = 60): AdiabaticResult {
   return {
-    status: 'invalid', message: '', T: Number.NaN, residual: Number.NaN, equilibrium: solver.newResult(), evaluations: 0,
+    status: 'invalid', message: '', T: Number.NaN, residual: Number.NaN, equilibrium: solver.newResult(), evaluations: 0, slope: Number.NaN,
     historyT: new Float64Array(maxEvaluations), historyG: new Float64Array(maxEvaluations),
   };
 }
 
 /** Largest temperature step before a bracket is found, K. */
 const MAX_STEP = 100;
+/** Smallest second step from T0 when a slope is given, K: a secant over a shorter base would read rounding. */
+const MIN_STEP = 0.01;
 
 /**
  * Outlet temperature and equilibrium together: the root of energy(T, flows_eq(T)) in
@@ -86,6 +96,7 @@ export function solveAdiabaticEquilibrium(
   res.status = 'converged';
   res.message = '';
   res.evaluations = 0;
+  res.slope = Number.NaN;
   res.T = Number.NaN;
   res.residual = Number.NaN;
   if (!(Tmin > 0) || !(Tmax > Tmin) || !Number.isFinite(Tmax) || res.historyT.length < maxEv) {
@@ -139,8 +150,19 @@ export function solveAdiabaticEquilibrium(
   if (!Number.isFinite(ga)) return res;
   if (ga === 0) return res;
   let b = a + (a + 1 <= Tmax ? 1 : -1);
+  const s0 = options.slope0;
+  if (s0 !== undefined && s0 > 0 && Number.isFinite(s0)) {
+    const d = -ga / s0;
+    // The last pass's slope says T0 is within a tenth of the tolerance: the answer (the solve of
+    // T0 is the last one made, so res holds its equilibrium).
+    if (Math.abs(d) <= 0.1 * tolT) return res;
+    const step = Math.min(Math.max(Math.abs(d), MIN_STEP), MAX_STEP);
+    const t = a + (d < 0 ? -step : step);
+    if (t >= Tmin && t <= Tmax) b = t;
+  }
   let gb = g(b);
   if (!Number.isFinite(gb)) return res;
+  res.slope = (gb - ga) / (b - a);
   // Bracket: lo has g < 0, hi has g > 0.
   let lo = Number.NaN;
   let hi = Number.NaN;

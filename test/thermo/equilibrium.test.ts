@@ -590,4 +590,30 @@ describe('adiabatic converter: outlet temperature and equilibrium together', () 
     expect(capped.status).toBe('infeasible');
     expect(capped.message).toMatch(/no outlet temperature between 500 K and/);
   });
+
+  it('with the last slope, a start 0.5 K off takes fewer solves to the same outlet, and a start at the answer takes one', () => {
+    const { solver, energy } = setup();
+    const first = solveAdiabaticEquilibrium(solver, { P, flows: inlet }, energy, { Tmin: 500, Tmax: 1100, tolT: 1e-7 });
+    expect(first.status).toBe('converged');
+    // The slope of g: positive (the sensible heat), about N Cp of the outlet.
+    expect(first.slope).toBeGreaterThan(0);
+    const start = Float64Array.from(first.equilibrium.extents);
+    const plain = newAdiabaticResult(solver);
+    const sloped = newAdiabaticResult(solver);
+    solveAdiabaticEquilibrium(solver, { P, flows: inlet, start }, energy, { Tmin: 500, Tmax: 1100, T0: first.T - 0.5, tolT: 1e-7 }, plain);
+    solveAdiabaticEquilibrium(solver, { P, flows: inlet, start }, energy, { Tmin: 500, Tmax: 1100, T0: first.T - 0.5, tolT: 1e-7, slope0: first.slope }, sloped);
+    expect(plain.status).toBe('converged');
+    expect(sloped.status).toBe('converged');
+    expect(Math.abs(sloped.T - first.T)).toBeLessThan(1e-6);
+    expect(Math.abs(plain.T - first.T)).toBeLessThan(1e-6);
+    expect(sloped.evaluations).toBeLessThan(plain.evaluations);
+    const at = solveAdiabaticEquilibrium(solver, { P, flows: inlet, start }, energy, { Tmin: 500, Tmax: 1100, T0: first.T, tolT: 1e-7, slope0: first.slope });
+    expect(at.status).toBe('converged');
+    expect(at.evaluations).toBe(1);
+    expect(at.T).toBe(first.T);
+    // A slope of the wrong sign or not finite is ignored (the 1 K second point).
+    const ignored = solveAdiabaticEquilibrium(solver, { P, flows: inlet, start }, energy, { Tmin: 500, Tmax: 1100, T0: first.T - 0.5, tolT: 1e-7, slope0: -first.slope });
+    expect(ignored.evaluations).toBe(plain.evaluations);
+    expect(ignored.historyT[1] - ignored.historyT[0]).toBe(1);
+  });
 });
