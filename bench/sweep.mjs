@@ -95,24 +95,38 @@ let inProcess;
   const n = points;
   const block = 50;
   const value = (k) => 0.02 + (0.01 * k) / (n - 1);
+  // As the CLI walks a block (src/study/sweep.ts): from the neighbour's tears and Jacobian, and
+  // from the line through the last two solved points when both are there (equal steps here).
   const walk = () => {
     let start;
+    let before;
     let jacobian;
     let passes = 0;
     let failed = 0;
     for (let k = 0; k < n; k++) {
       if (k % block === 0) {
         start = undefined;
+        before = undefined;
         jacobian = undefined;
       }
-      const r = lib.solvePoint(model, [{ parameter: p, value: value(k) }], { start, jacobian, method: start ? 'newton' : undefined, runtime: rt });
+      let x = start;
+      if (start && before && before.length === start.length) {
+        x = new Float64Array(start.length);
+        for (let j = 0; j < x.length; j++) {
+          const e = 2 * start[j] - before[j];
+          x[j] = Number.isFinite(e) && e >= 0 ? e : start[j];
+        }
+      }
+      const r = lib.solvePoint(model, [{ parameter: p, value: value(k) }], { start: x, jacobian, method: start ? 'newton' : undefined, runtime: rt });
       if (r.status !== 'converged') {
         failed++;
         start = undefined;
+        before = undefined;
         jacobian = undefined;
         continue;
       }
       passes += r.result.passes;
+      before = start;
       start = r.start;
       jacobian = r.jacobian;
     }
