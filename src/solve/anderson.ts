@@ -27,6 +27,7 @@ import {
   HistoryRecorder,
   checkProblem,
   clipToBounds,
+  fixedPointResult,
   fixedPointTolerances,
   invalidInput,
   measureFixedPoint,
@@ -34,7 +35,6 @@ import {
   newMeasure,
   nonFiniteMessage,
   statusOfFailure,
-  worstFixedPoint,
 } from './convergence.js';
 import type { FixedPointProblem, SolveOptions, SolveResult } from './types.js';
 
@@ -96,22 +96,8 @@ export function solveAnderson(problem: FixedPointProblem, options: SolveOptions 
   let iterations = 0;
   let restarts = 0;
 
-  const finish = (status: SolveResult['status'], message?: string): SolveResult => {
-    const result: SolveResult = {
-      status,
-      method: 'anderson',
-      x,
-      residual: m.residual,
-      scaledResidual: m.scaled,
-      passes,
-      iterations,
-      jacobians: 0,
-      history: history.entries(),
-    };
-    if (message) result.message = message;
-    if (status !== 'converged' && passes > 0) result.worst = worstFixedPoint(x, gx, rtol, atol, names);
-    return result;
-  };
+  const finish = (status: SolveResult['status'], message?: string): SolveResult =>
+    fixedPointResult('anderson', status, { x, gx, m, passes, iterations, history }, { rtol, atol, names }, message);
 
   if (n === 0) return finish('converged');
   m.residual = Infinity;

@@ -161,6 +161,27 @@ export function worstFixedPoint(
 }
 
 /**
+ * The result of a fixed-point method (direct, Wegstein, Anderson) at x, with g(x) in gx: the
+ * measure of the last pass, the counts and the history, and the worst variables when the
+ * iteration stopped short of convergence after at least one pass.
+ */
+export function fixedPointResult(
+  method: 'direct' | 'wegstein' | 'anderson',
+  status: Status,
+  at: { x: Float64Array; gx: Float64Array; m: Measure; passes: number; iterations: number; history: HistoryRecorder },
+  tol: { rtol: number; atol: Float64Array; names: readonly string[] | undefined },
+  message?: string,
+): SolveResult {
+  const { x, gx, m, passes, iterations, history } = at;
+  const result: SolveResult = {
+    status, method, x, residual: m.residual, scaledResidual: m.scaled, passes, iterations, jacobians: 0, history: history.entries(),
+  };
+  if (message) result.message = message;
+  if (status !== 'converged' && passes > 0) result.worst = worstFixedPoint(x, gx, tol.rtol, tol.atol, tol.names);
+  return result;
+}
+
+/**
  * History stored in preallocated columns while iterating, turned into HistoryEntry objects
  * once at the end (keeps the direct and Wegstein loops free of allocation).
  */

@@ -8,13 +8,13 @@ import {
   HistoryRecorder,
   checkProblem,
   clipToBounds,
+  fixedPointResult,
   fixedPointTolerances,
   invalidInput,
   measureFixedPoint,
   newMeasure,
   nonFiniteMessage,
   statusOfFailure,
-  worstFixedPoint,
   nameOf,
 } from './convergence.js';
 import type { FixedPointProblem, SolveOptions, SolveResult } from './types.js';
@@ -38,22 +38,8 @@ export function solveDirect(problem: FixedPointProblem, options: SolveOptions = 
   let passes = 0;
   let iterations = 0;
 
-  const finish = (status: SolveResult['status'], message?: string): SolveResult => {
-    const result: SolveResult = {
-      status,
-      method: 'direct',
-      x,
-      residual: m.residual,
-      scaledResidual: m.scaled,
-      passes,
-      iterations,
-      jacobians: 0,
-      history: history.entries(),
-    };
-    if (message) result.message = message;
-    if (status !== 'converged' && passes > 0) result.worst = worstFixedPoint(x, gx, rtol, atol, names);
-    return result;
-  };
+  const finish = (status: SolveResult['status'], message?: string): SolveResult =>
+    fixedPointResult('direct', status, { x, gx, m, passes, iterations, history }, { rtol, atol, names }, message);
 
   if (n === 0) {
     m.residual = 0;

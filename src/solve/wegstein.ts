@@ -18,6 +18,7 @@ import {
   HistoryRecorder,
   checkProblem,
   clipToBounds,
+  fixedPointResult,
   fixedPointTolerances,
   invalidInput,
   measureFixedPoint,
@@ -25,7 +26,6 @@ import {
   newMeasure,
   nonFiniteMessage,
   statusOfFailure,
-  worstFixedPoint,
 } from './convergence.js';
 import type { FixedPointProblem, SolveOptions, SolveResult } from './types.js';
 
@@ -61,22 +61,8 @@ export function solveWegstein(problem: FixedPointProblem, options: SolveOptions 
   let passes = 0;
   let iterations = 0;
 
-  const finish = (status: SolveResult['status'], message?: string): SolveResult => {
-    const result: SolveResult = {
-      status,
-      method: 'wegstein',
-      x,
-      residual: m.residual,
-      scaledResidual: m.scaled,
-      passes,
-      iterations,
-      jacobians: 0,
-      history: history.entries(),
-    };
-    if (message) result.message = message;
-    if (status !== 'converged' && passes > 0) result.worst = worstFixedPoint(x, gx, rtol, atol, names);
-    return result;
-  };
+  const finish = (status: SolveResult['status'], message?: string): SolveResult =>
+    fixedPointResult('wegstein', status, { x, gx, m, passes, iterations, history }, { rtol, atol, names }, message);
 
   if (n === 0) return finish('converged');
   m.residual = Infinity;
