@@ -28,7 +28,7 @@ import type { EvaluationFailure } from '../solve/types.js';
 import type { BlockDef, Stream, UnitFigure, UnitSummary } from './types.js';
 import type { Eos } from '../thermo/types.js';
 import { newPhaseProperties, phasePropertiesInto } from '../thermo/enthalpy.js';
-import { describeMissing, missingEnergyKeys, OutletState, phaseH, phaseS, powerFigure, setFromState } from './energy.js';
+import { lackingData, missingEnergyKeys, OutletState, phaseH, phaseS, powerFigure, setFromState } from './energy.js';
 
 export interface CompressorSpec extends UnitSpecBase {
   type: 'compressor';
@@ -73,7 +73,7 @@ export const compressor: BlockDef<CompressorSpec> = {
     }
     const miss = missingEnergyKeys(f.components, true);
     if (miss.length) {
-      f.error(null, `compressor \`${name}\` needs enthalpies and entropies, but ${describeMissing(miss)} ${miss.length > 1 ? 'have' : 'has'} no data for them`, 'add the missing keys to those components under `components:` (`cp:`, `hf:` and `gf:`)');
+      f.error(null, `compressor \`${name}\` needs enthalpies and entropies, but ${lackingData(miss, 'them')}`, 'add the missing keys to those components under `components:` (`cp:`, `hf:` and `gf:`)');
       ok = false;
     }
     if (!ok || !inlet || !out || (f.has('P') && P === undefined) || (f.has('ratio') && ratio === undefined)

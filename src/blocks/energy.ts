@@ -76,6 +76,11 @@ export function describeMissing(m: { id: string; keys: string[] }[]): string {
   return m.map((x) => `\`${x.id}\` (${x.keys.map((k) => `\`${k}:\``).join(', ')})`).join(', ');
 }
 
+/** "`CO` (`cp:`) has no data for it": the components a unit's energy balance lacks, as its message says them. */
+export function lackingData(m: { id: string; keys: string[] }[], forWhat = 'it'): string {
+  return `${describeMissing(m)} ${m.length > 1 ? 'have' : 'has'} no data for ${forWhat}`;
+}
+
 /** Total molar flow of a stream, mol/s. */
 export function totalFlow(s: Stream): number {
   let t = 0;

@@ -11,7 +11,7 @@
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { BlockDef, Stream, UnitFigure } from './types.js';
 import { combineInlets } from './combine.js';
-import { checkCorrelationRange, describeMissing, enthalpyIn, hasEnergyData, missingEnergyKeys, OutletState, powerFigure, setFromState, totalFlow } from './energy.js';
+import { checkCorrelationRange, lackingData, enthalpyIn, hasEnergyData, missingEnergyKeys, OutletState, powerFigure, setFromState, totalFlow } from './energy.js';
 
 export interface MixerSpec extends UnitSpecBase {
   type: 'mixer';
@@ -33,7 +33,7 @@ export const mixer: BlockDef<MixerSpec> = {
     const P = f.quantity('P', 'pressure', { above: 0, example: '30 barg' });
     if (!inlets || !out || !checkCorrelationRange(f, 'T', T, name)) return undefined;
     if (T === undefined && !f.has('T') && !hasEnergyData(f.components)) {
-      f.error(null, `mixer \`${name}\` finds its outlet temperature by the energy balance, but ${describeMissing(missingEnergyKeys(f.components))} ${missingEnergyKeys(f.components).length > 1 ? 'have' : 'has'} no data for it`,
+      f.error(null, `mixer \`${name}\` finds its outlet temperature by the energy balance, but ${lackingData(missingEnergyKeys(f.components))}`,
         'add the missing keys to those components under `components:` (e.g. `cp: 35 J/(mol K)`, `hf: -110.5 kJ/mol`), or give the mixer an outlet temperature, e.g. `T: 40 degC`');
       return undefined;
     }

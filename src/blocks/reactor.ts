@@ -35,7 +35,7 @@ import { prepareEquilibrium, type EquilibriumResult, type EquilibriumSolver } fr
 import { newAdiabaticResult, solveAdiabaticEquilibrium, type AdiabaticResult } from '../thermo/equilibrium-adiabatic.js';
 import type { BlockDef, Stream, UnitFigure, UnitSummary } from './types.js';
 import { combineInlets } from './combine.js';
-import { checkCorrelationRange, describeMissing, enthalpyIn, hasEnergyData, missingEnergyKeys, OutletState, powerFigure, setFromState, type StateFound } from './energy.js';
+import { checkCorrelationRange, lackingData, enthalpyIn, hasEnergyData, missingEnergyKeys, OutletState, powerFigure, setFromState, type StateFound } from './energy.js';
 
 export interface ReactionSpec {
   equation: string;
@@ -589,7 +589,7 @@ export function readEnergyMode(name: string, f: import('../flowsheet/fields.js')
   }
   if ((adiabatic || f.has('duty')) && !hasEnergyData(f.components)) {
     const miss = missingEnergyKeys(f.components);
-    f.error(adiabatic ? 'adiabatic' : 'duty', `${what} \`${name}\` needs the energy balance, but ${describeMissing(miss)} ${miss.length > 1 ? 'have' : 'has'} no data for it`, 'add the missing keys to those components under `components:` (e.g. `cp: 35 J/(mol K)`, `hf: -110.5 kJ/mol`), or set `T:` instead');
+    f.error(adiabatic ? 'adiabatic' : 'duty', `${what} \`${name}\` needs the energy balance, but ${lackingData(miss)}`, 'add the missing keys to those components under `components:` (e.g. `cp: 35 J/(mol K)`, `hf: -110.5 kJ/mol`), or set `T:` instead');
     ok = false;
   }
   if (!ok || (f.has('duty') && duty === undefined) || (f.has('dp') && dp === undefined)) return undefined;

@@ -8,7 +8,7 @@ import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import type { BlockDef, Stream, UnitFigure } from './types.js';
 import { combineInlets } from './combine.js';
-import { describeMissing, enthalpyIn, hasEnergyData, missingEnergyKeys, OutletState, setFromState } from './energy.js';
+import { lackingData, enthalpyIn, hasEnergyData, missingEnergyKeys, OutletState, setFromState } from './energy.js';
 import { pressureBelowZero } from './reactor.js';
 
 export interface ValveSpec extends UnitSpecBase {
@@ -32,7 +32,7 @@ export const valve: BlockDef<ValveSpec> = {
     }
     if (!hasEnergyData(f.components)) {
       const miss = missingEnergyKeys(f.components);
-      f.error(null, `valve \`${name}\` keeps the enthalpy across the letdown, but ${describeMissing(miss)} ${miss.length > 1 ? 'have' : 'has'} no data for it`, 'add the missing keys to those components under `components:` (e.g. `cp: 35 J/(mol K)`, `hf: -110.5 kJ/mol`)');
+      f.error(null, `valve \`${name}\` keeps the enthalpy across the letdown, but ${lackingData(miss)}`, 'add the missing keys to those components under `components:` (e.g. `cp: 35 J/(mol K)`, `hf: -110.5 kJ/mol`)');
       return undefined;
     }
     if (!inlet || !out || (f.has('P') && P === undefined) || (f.has('dp') && dp === undefined)) return undefined;
