@@ -133,6 +133,11 @@ export interface Model {
   instruments: readonly InstrumentDecl[];
   readings: ReadonlyMap<string, ReadingDecl>;
   warnings: readonly Diagnostic[];
+  /**
+   * True when these values passed the structure checks (every validated model, and withValues's
+   * own when it checks); absent after withValues with `structure: false`.
+   */
+  structureChecked?: boolean;
 }
 
 /** A validated file: the model and the text it was read from. */

@@ -246,6 +246,7 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag()): Load
   checkStructure(model, bag);
   if (bag.hasErrors) throw new InputError(bag.items);
   model.warnings = bag.warnings();
+  model.structureChecked = true;
   return { model: deepFreeze(model), source: src };
 }
 

@@ -234,7 +234,10 @@ export function withValues(model: Model, values: readonly ParameterValue[], opts
   }
   if (diags.length) throw new InputError(diags);
   const next: Model = { ...model, units, feeds, settings: new FrozenMap(settings) };
-  if (opts.structure !== false && !sameStructure(model, next, [...byOwner.keys()])) {
+  delete next.structureChecked;
+  if (opts.structure === false) return deepFreeze(next);
+  next.structureChecked = true;
+  if (!sameStructure(model, next, [...byOwner.keys()])) {
     const bag = new DiagnosticBag();
     checkStructure(next, bag);
     if (bag.hasErrors) {
@@ -245,18 +248,12 @@ export function withValues(model: Model, values: readonly ParameterValue[], opts
   return deepFreeze(next);
 }
 
-/** Whether a model passes the structure checks, found once per model. */
-const structureOk = new WeakMap<Model, boolean>();
-
+/** Whether a model passes the structure checks: said by the model when it was checked, else checked now. */
 function passesStructure(model: Model): boolean {
-  let ok = structureOk.get(model);
-  if (ok === undefined) {
-    const bag = new DiagnosticBag();
-    checkStructure(model, bag);
-    ok = !bag.hasErrors;
-    structureOk.set(model, ok);
-  }
-  return ok;
+  if (model.structureChecked) return true;
+  const bag = new DiagnosticBag();
+  checkStructure(model, bag);
+  return !bag.hasErrors;
 }
 
 /**
