@@ -106,7 +106,8 @@ export function rowsHeader(ctx: RowsContext): { text: string; digest: string; fl
   const { spec } = ctx;
   const flowsheet = sha256(spec.text);
   const options = `--readings ${word(spec.readingsFile)} --block ${spec.block} --frozen ${spec.frozen}${spec.format === 'jsonl' ? ' --jsonl' : ''}`;
-  const digest = sha256(`${flowsheet}\n${sha256(spec.readingsText)}\n${options}`);
+  const readings = sha256(spec.readingsText);
+  const digest = sha256(`${flowsheet}\n${readings}\n${options}`);
   const command = `loopclose reconcile ${word(spec.file)} ${options}`;
   const N = ctx.historian.rows.length;
   if (spec.format === 'jsonl') {
@@ -115,7 +116,7 @@ export function rowsHeader(ctx: RowsContext): { text: string; digest: string; fl
       return m ? { path: m[1], unit: m[2] } : { path: n, unit: '1' };
     });
     const head = {
-      loopclose: 'reconcile', digest, flowsheet, readings: sha256(spec.readingsText), command, points: N, shape: [N], block: spec.block, shard: '1/1',
+      loopclose: 'reconcile', digest, flowsheet, readings, command, points: N, shape: [N], block: spec.block, shard: '1/1',
       inputs: [{ path: 'timestamp', unit: '1' }], outputs, adjusted: [], note: PLANT_CAUTION,
     };
     return { text: `${JSON.stringify(head)}\n`, digest, flowsheet, command };
