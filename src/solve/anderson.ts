@@ -27,16 +27,14 @@ import {
   HistoryRecorder,
   checkProblem,
   clipToBounds,
+  endOfPass,
   fixedPointResult,
   fixedPointTolerances,
   invalidInput,
-  measureFixedPoint,
   nameOf,
   newMeasure,
-  nonFiniteMessage,
-  statusOfFailure,
 } from './convergence.js';
-import type { FixedPointProblem, SolveOptions, SolveResult } from './types.js';
+import type { EvaluationFailure, FixedPointProblem, SolveOptions, SolveResult } from './types.js';
 
 export const ANDERSON_DEFAULTS = { memory: 40, maxPasses: 2000, restartGrowth: 1e3, directSteps: 1 } as const;
 
@@ -96,8 +94,9 @@ export function solveAnderson(problem: FixedPointProblem, options: SolveOptions 
   let iterations = 0;
   let restarts = 0;
 
-  const finish = (status: SolveResult['status'], message?: string): SolveResult =>
-    fixedPointResult('anderson', status, { x, gx, m, passes, iterations, history }, { rtol, atol, names }, message);
+  const tol = { rtol, atol, names };
+  const finish = (status: SolveResult['status'], message?: string, failure?: EvaluationFailure): SolveResult =>
+    fixedPointResult('anderson', status, { x, gx, m, passes, iterations, history }, tol, message, failure);
 
   if (n === 0) return finish('converged');
   m.residual = Infinity;
@@ -106,18 +105,9 @@ export function solveAnderson(problem: FixedPointProblem, options: SolveOptions 
   for (;;) {
     const failure = problem.g(x, gx);
     passes++;
-    if (failure) {
-      const r = finish(statusOfFailure(failure), failure.message);
-      r.failure = failure;
-      return r;
-    }
-    measureFixedPoint(x, gx, rtol, atol, m);
     const accelerate = passes > directSteps;
-    history.push(passes, m.scaled, m.residual, accelerate && stored > 0 ? 'anderson' : 'direct');
-    if (m.nonFinite >= 0) {
-      return finish('not-converged', nonFiniteMessage('g', gx[m.nonFinite], m.nonFinite, names, passes));
-    }
-    if (m.scaled <= 1) return finish('converged');
+    const end = endOfPass(failure, x, gx, tol, m, history, passes, accelerate && stored > 0 ? 'anderson' : 'direct');
+    if (end) return finish(end.status, end.message, end.failure);
     if (passes >= maxPasses) break;
 
     if (passes === 1) {

@@ -160,6 +160,43 @@ export function worstFixedPoint(
   return worstResiduals(r, s, names);
 }
 
+/** What a fixed-point method measures its passes against. */
+export interface FixedPointTolerance {
+  rtol: number;
+  atol: Float64Array;
+  names: readonly string[] | undefined;
+}
+
+/** How a pass of a fixed-point method ended the iteration. */
+export interface PassEnd {
+  status: Status;
+  message?: string;
+  failure?: EvaluationFailure;
+}
+
+/**
+ * One pass of a fixed-point method after g(x) -> gx: the failure g returned ends the iteration;
+ * else the pass is measured into m and recorded in the history (as `step`), and a value that is
+ * not finite or convergence ends it. Undefined: go on.
+ */
+export function endOfPass(
+  failure: EvaluationFailure | null | undefined | void,
+  x: Float64Array,
+  gx: Float64Array,
+  tol: FixedPointTolerance,
+  m: Measure,
+  history: HistoryRecorder,
+  passes: number,
+  step: StepMethod,
+): PassEnd | undefined {
+  if (failure) return { status: statusOfFailure(failure), message: failure.message, failure };
+  measureFixedPoint(x, gx, tol.rtol, tol.atol, m);
+  history.push(passes, m.scaled, m.residual, step);
+  if (m.nonFinite >= 0) return { status: 'not-converged', message: nonFiniteMessage('g', gx[m.nonFinite], m.nonFinite, tol.names, passes) };
+  if (m.scaled <= 1) return { status: 'converged' };
+  return undefined;
+}
+
 /**
  * The result of a fixed-point method (direct, Wegstein, Anderson) at x, with g(x) in gx: the
  * measure of the last pass, the counts and the history, and the worst variables when the
@@ -169,14 +206,16 @@ export function fixedPointResult(
   method: 'direct' | 'wegstein' | 'anderson',
   status: Status,
   at: { x: Float64Array; gx: Float64Array; m: Measure; passes: number; iterations: number; history: HistoryRecorder },
-  tol: { rtol: number; atol: Float64Array; names: readonly string[] | undefined },
+  tol: FixedPointTolerance,
   message?: string,
+  failure?: EvaluationFailure,
 ): SolveResult {
   const { x, gx, m, passes, iterations, history } = at;
   const result: SolveResult = {
     status, method, x, residual: m.residual, scaledResidual: m.scaled, passes, iterations, jacobians: 0, history: history.entries(),
   };
   if (message) result.message = message;
+  if (failure) result.failure = failure;
   if (status !== 'converged' && passes > 0) result.worst = worstFixedPoint(x, gx, tol.rtol, tol.atol, tol.names);
   return result;
 }

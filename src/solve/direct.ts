@@ -8,16 +8,14 @@ import {
   HistoryRecorder,
   checkProblem,
   clipToBounds,
+  endOfPass,
   fixedPointResult,
   fixedPointTolerances,
   invalidInput,
-  measureFixedPoint,
   newMeasure,
-  nonFiniteMessage,
-  statusOfFailure,
   nameOf,
 } from './convergence.js';
-import type { FixedPointProblem, SolveOptions, SolveResult } from './types.js';
+import type { EvaluationFailure, FixedPointProblem, SolveOptions, SolveResult } from './types.js';
 
 export const DIRECT_MAX_PASSES = 2000;
 
@@ -38,8 +36,9 @@ export function solveDirect(problem: FixedPointProblem, options: SolveOptions = 
   let passes = 0;
   let iterations = 0;
 
-  const finish = (status: SolveResult['status'], message?: string): SolveResult =>
-    fixedPointResult('direct', status, { x, gx, m, passes, iterations, history }, { rtol, atol, names }, message);
+  const tol = { rtol, atol, names };
+  const finish = (status: SolveResult['status'], message?: string, failure?: EvaluationFailure): SolveResult =>
+    fixedPointResult('direct', status, { x, gx, m, passes, iterations, history }, tol, message, failure);
 
   if (n === 0) {
     m.residual = 0;
@@ -52,17 +51,8 @@ export function solveDirect(problem: FixedPointProblem, options: SolveOptions = 
   for (;;) {
     const failure = problem.g(x, gx);
     passes++;
-    if (failure) {
-      const r = finish(statusOfFailure(failure), failure.message);
-      r.failure = failure;
-      return r;
-    }
-    measureFixedPoint(x, gx, rtol, atol, m);
-    history.push(passes, m.scaled, m.residual, 'direct');
-    if (m.nonFinite >= 0) {
-      return finish('not-converged', nonFiniteMessage('g', gx[m.nonFinite], m.nonFinite, names, passes));
-    }
-    if (m.scaled <= 1) return finish('converged');
+    const end = endOfPass(failure, x, gx, tol, m, history, passes, 'direct');
+    if (end) return finish(end.status, end.message, end.failure);
     // Budget spent: keep x as the iterate where g was last evaluated, so x and residual agree.
     if (passes >= maxPasses) break;
     x.set(gx);

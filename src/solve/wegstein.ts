@@ -18,16 +18,14 @@ import {
   HistoryRecorder,
   checkProblem,
   clipToBounds,
+  endOfPass,
   fixedPointResult,
   fixedPointTolerances,
   invalidInput,
-  measureFixedPoint,
   nameOf,
   newMeasure,
-  nonFiniteMessage,
-  statusOfFailure,
 } from './convergence.js';
-import type { FixedPointProblem, SolveOptions, SolveResult } from './types.js';
+import type { EvaluationFailure, FixedPointProblem, SolveOptions, SolveResult } from './types.js';
 
 export const WEGSTEIN_DEFAULTS = { qMin: -5, qMax: 0, directSteps: 2, maxPasses: 200 } as const;
 
@@ -61,8 +59,9 @@ export function solveWegstein(problem: FixedPointProblem, options: SolveOptions 
   let passes = 0;
   let iterations = 0;
 
-  const finish = (status: SolveResult['status'], message?: string): SolveResult =>
-    fixedPointResult('wegstein', status, { x, gx, m, passes, iterations, history }, { rtol, atol, names }, message);
+  const tol = { rtol, atol, names };
+  const finish = (status: SolveResult['status'], message?: string, failure?: EvaluationFailure): SolveResult =>
+    fixedPointResult('wegstein', status, { x, gx, m, passes, iterations, history }, tol, message, failure);
 
   if (n === 0) return finish('converged');
   m.residual = Infinity;
@@ -71,18 +70,9 @@ export function solveWegstein(problem: FixedPointProblem, options: SolveOptions 
   for (;;) {
     const failure = problem.g(x, gx);
     passes++;
-    if (failure) {
-      const r = finish(statusOfFailure(failure), failure.message);
-      r.failure = failure;
-      return r;
-    }
-    measureFixedPoint(x, gx, rtol, atol, m);
     const accelerate = passes > directSteps;
-    history.push(passes, m.scaled, m.residual, accelerate ? 'wegstein' : 'direct');
-    if (m.nonFinite >= 0) {
-      return finish('not-converged', nonFiniteMessage('g', gx[m.nonFinite], m.nonFinite, names, passes));
-    }
-    if (m.scaled <= 1) return finish('converged');
+    const end = endOfPass(failure, x, gx, tol, m, history, passes, accelerate ? 'wegstein' : 'direct');
+    if (end) return finish(end.status, end.message, end.failure);
     if (passes >= maxPasses) break;
 
     for (let i = 0; i < n; i++) {
