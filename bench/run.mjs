@@ -3,7 +3,7 @@
 // runs after a warm-up; comparisons are ratios measured in the same run (absolute times on a
 // shared machine drift from run to run).
 //
-//   node bench/run.mjs [--json] [--quick] [--root DIR] [--only meter,gerg,demos,flash,equilibrium,scaling,sweep,alloc,cold,plant]
+//   node bench/run.mjs [--json] [--quick] [--root DIR] [--only meter,gerg,demos,energy,flash,equilibrium,scaling,sweep,alloc,cold,plant]
 //
 // --root DIR benchmarks another build of the project (DIR/dist/index.mjs, DIR/bin/loopclose.js,
 // DIR/flowsheets), e.g. a copy of an earlier commit, so before and after come from one machine.
@@ -28,7 +28,7 @@ const value = (f, d) => {
 const json = flag('--json');
 const quick = flag('--quick');
 const root = resolve(value('--root', join(here, '..')));
-const only = new Set((value('--only', 'meter,gerg,demos,flash,equilibrium,scaling,sweep,alloc,cold,plant')).split(','));
+const only = new Set((value('--only', 'meter,gerg,demos,energy,flash,equilibrium,scaling,sweep,alloc,cold,plant')).split(','));
 const libPath = join(root, 'dist', 'index.mjs');
 const cliPath = join(root, 'bin', 'loopclose.js');
 if (!existsSync(libPath)) {
@@ -155,6 +155,66 @@ if (only.has('demos')) {
     out.demos.map((d) => [d.flowsheet.replace('.yaml', ''), fmt(d.ratios.passesDirectOverWegstein), fmt(d.ratios.timeDirectOverWegstein), fmt(d.ratios.timeWegsteinOverNewton)]),
   ));
   say('aims (methanol demo): Wegstein <= 20 passes, Newton <= 4 Jacobians; <= 0.05 ms/solve (split), <= 1 ms (equilibrium)');
+}
+
+// ---------------------------------------------------------------------------------------------
+// 2d. What the energy balance costs: each demo solved as it is (energy balance on) against the
+//     same loop without it, solved in the same run: the same model with the components' heat
+//     capacities and formation enthalpies taken out, so that the runtime turns the energy
+//     balance off as for a file without thermal data (an adiabatic mixer then stands at its
+//     inlets' flow-weighted temperature, a compressor or valve at its inlet's; the flows are the
+//     same). A loop whose flows depend on the energy balance (an equilibrium converter that
+//     finds its own temperature) has no such twin: its row says so.
+// ---------------------------------------------------------------------------------------------
+if (only.has('energy') && lib.createRuntime) {
+  const demos = ['methanol-pilot.yaml', 'methanol-pilot-split.yaml', 'methanol-pilot-equilibrium.yaml', 'ammonia-loop.yaml', 'ammonia-loop-adiabatic.yaml', 'ammonia-loop-two-beds.yaml', 'benzene-hydrogenation.yaml'];
+  const rows = [];
+  out.energy = [];
+  for (const d of demos) {
+    const p = flowsheetPath(d);
+    if (!existsSync(p)) continue;
+    const { model } = lib.loadFlowsheet(p);
+    const twin = { ...model, components: model.components.map((c) => ({ ...c, cp: undefined, hf: undefined })) };
+    // No twin where the flows depend on the energy balance, or where the loop cannot run
+    // without the thermal data (an equilibrium constant K(T) needs cp and hf).
+    let decoupled = lib.createRuntime(model).energyDecoupled;
+    let why = 'flows depend on it';
+    if (decoupled) {
+      try {
+        lib.createRuntime(twin);
+      } catch {
+        decoupled = false;
+        why = 'K(T) needs cp, hf';
+      }
+    }
+    const opts = quick ? reps : { ...reps, warmupMs: 1000 };
+    // interleaved: with, without, with, without... each figure the median over the rounds
+    const rounds = quick ? 1 : 5;
+    const a = [];
+    const b = [];
+    let r;
+    let r0;
+    for (let k = 0; k < rounds; k++) {
+      const w = measure(() => lib.solveFlowsheet(model, {}), k === 0 ? opts : { ...reps, warmupMs: 0 });
+      r = w.last;
+      a.push(w.ms);
+      if (decoupled) {
+        const o = measure(() => lib.solveFlowsheet(twin, {}), k === 0 ? opts : { ...reps, warmupMs: 0 });
+        r0 = o.last;
+        b.push(o.ms);
+      }
+    }
+    const ms = median(a);
+    const ms0 = decoupled ? median(b) : Number.NaN;
+    const ratio = decoupled ? ms / ms0 : Number.NaN;
+    const same = decoupled && r0.status === r.status;
+    out.energy.push({ flowsheet: d, status: r.status, passes: r.passes, ms, decoupled, without: decoupled ? { status: r0.status, passes: r0.passes, ms: ms0 } : undefined, ratio, met: decoupled ? ratio <= 3 && same : undefined });
+    rows.push([d.replace('.yaml', ''), `${r.status} ${r.passes}`, fmt(ms), decoupled ? `${r0.status} ${r0.passes}` : '-', decoupled ? fmt(ms0) : '-',
+      lib.createRuntime(model).energyDecoupled ? 'once, at the end' : 'every pass', decoupled ? `${fmt(ratio)} (${ratio <= 3 && same ? 'met' : 'not met'})` : `no loop without it (${why})`]);
+  }
+  say('\n2d. The energy balance: a solve with it against the same loop without it (ms per solve)');
+  say(table(['flowsheet', 'with: status passes', 'ms/solve', 'without: status passes', 'ms/solve', 'energy balance', 'with / without'], rows));
+  say('aim: the energy balance costs <= 3 x the passes-times-time of the same loop without it');
 }
 
 // ---------------------------------------------------------------------------------------------

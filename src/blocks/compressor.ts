@@ -25,7 +25,7 @@
  */
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { EvaluationFailure } from '../solve/types.js';
-import type { BlockDef, Stream, UnitFigure, UnitSummary } from './types.js';
+import { energyThisPass, type BlockDef, type Stream, type UnitFigure, type UnitSummary } from './types.js';
 import type { Eos } from '../thermo/types.js';
 import { newPhaseProperties, phasePropertiesInto } from '../thermo/enthalpy.js';
 import { lackingData, missingEnergyKeys, OutletState, phaseH, phaseS, powerFigure, setFromState } from './energy.js';
@@ -125,6 +125,13 @@ export const compressor: BlockDef<CompressorSpec> = {
             message: `compressor \`${spec.name}\`: the outlet pressure ${fmt(P2 / 1e5)} bar is below the inlet's, ${fmt(P1 / 1e5)} bar`,
             help: 'raise `P` above the inlet pressure, or let the pressure down with a `valve`',
           };
+        }
+        if (!energyThisPass(ctx)) {
+          // No unit's flows depend on this outlet's temperature: it stands at the inlet's until
+          // the final pass, which computes it with the power.
+          o.P = P2;
+          o.h = Number.NaN;
+          return null;
         }
         outState.z.set(inState.z);
         isState.z.set(inState.z);

@@ -10,7 +10,7 @@
  */
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { EvaluationFailure } from '../solve/types.js';
-import type { BlockDef, BlockRuntime, BuildContext, Stream, UnitFigure, UnitSummary } from './types.js';
+import { energyThisPass, type BlockDef, type BlockRuntime, type BuildContext, type Stream, type UnitFigure, type UnitSummary } from './types.js';
 import { checkCorrelationRange, enthalpyIn, hasEnergyData, OutletState, phaseH, powerFigure } from './energy.js';
 import { pressureBelowZero, readEnergyMode } from './reactor.js';
 
@@ -79,6 +79,8 @@ function makeDef(type: 'condenser' | 'flash'): BlockDef<CondenserSpec> {
         openOutlet: (k, id) => `let some \`${id}\` go to \`${spec.outlets[k]}\` in the \`split\` of \`${spec.name}\``,
       };
     },
+    // A flash at a temperature the energy balance finds (duty or adiabatic) splits by it.
+    needsEnergyEveryPass: (spec) => spec.model === 'equilibrium' && spec.T === undefined,
     balances(spec, model) {
       // The fraction of each component that leaves as liquid (the `split` parameter of a split
       // model; a figure of the data for an equilibrium flash).
@@ -123,6 +125,7 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
       }
       const inletT = F > 0 ? tSum / F : ins[0]?.T ?? Number.NaN;
       let problem: EvaluationFailure | null = null;
+      const energy = energyThisPass(ctx);
       note = '';
       duty = 0;
       let P = spec.P ?? pIn - (spec.dp ?? 0);

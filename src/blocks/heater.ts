@@ -7,7 +7,7 @@
  */
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { EvaluationFailure } from '../solve/types.js';
-import type { BlockDef, Stream, UnitFigure, UnitSummary } from './types.js';
+import { energyThisPass, type BlockDef, type Stream, type UnitFigure, type UnitSummary } from './types.js';
 import { combineInlets } from './combine.js';
 import { checkCorrelationRange, enthalpyIn, hasEnergyData, OutletState, powerFigure, setFromState } from './energy.js';
 import { pressureBelowZero, readEnergyMode } from './reactor.js';
@@ -62,7 +62,7 @@ function makeDef(type: 'heater' | 'cooler'): BlockDef<HeaterSpec> {
             o.P = pIn;
           }
           duty = 0;
-          if (!energy) {
+          if (!energyThisPass(ctx)) {
             o.T = spec.T ?? inT;
             o.vf = Number.NaN;
             o.h = Number.NaN;

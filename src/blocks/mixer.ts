@@ -9,7 +9,7 @@
  * there needs `T:`, and says so at the unit.
  */
 import type { UnitSpecBase } from '../flowsheet/model.js';
-import type { BlockDef, Stream, UnitFigure } from './types.js';
+import { energyThisPass, type BlockDef, type Stream, type UnitFigure } from './types.js';
 import { combineInlets } from './combine.js';
 import { checkCorrelationRange, lackingData, enthalpyIn, hasEnergyData, missingEnergyKeys, OutletState, powerFigure, setFromState, totalFlow } from './energy.js';
 
@@ -54,7 +54,9 @@ export const mixer: BlockDef<MixerSpec> = {
         if (spec.P !== undefined) o.P = spec.P;
         const meanT = o.T;
         duty = 0;
-        if (!energy) {
+        if (!energyThisPass(ctx)) {
+          // (without the energy balance in this pass, an adiabatic outlet stands at the inlets'
+          // flow-weighted temperature: no unit's flows depend on it, and the final pass finds it)
           if (spec.T !== undefined) o.T = spec.T;
           o.vf = Number.NaN;
           o.h = Number.NaN;

@@ -33,7 +33,7 @@ import { hIG } from '../thermo/ideal-gas.js';
 import { makeEos } from '../thermo/eos.js';
 import { prepareEquilibrium, type EquilibriumResult, type EquilibriumSolver } from '../thermo/equilibrium.js';
 import { newAdiabaticResult, solveAdiabaticEquilibrium, type AdiabaticResult } from '../thermo/equilibrium-adiabatic.js';
-import type { BlockDef, Stream, UnitFigure, UnitSummary } from './types.js';
+import { energyThisPass, type BlockDef, type Stream, type UnitFigure, type UnitSummary } from './types.js';
 import { combineInlets } from './combine.js';
 import { checkCorrelationRange, lackingData, enthalpyIn, hasEnergyData, missingEnergyKeys, OutletState, powerFigure, setFromState, type StateFound } from './energy.js';
 
@@ -406,7 +406,9 @@ export const reactor: BlockDef<ReactorSpec> = {
           const failed = takeEquilibrium(res, f);
           if (failed) return problem ?? failed;
         }
-        if (!energy) {
+        if (!energyThisPass(ctx)) {
+          // (an adiabatic reactor of fixed extents, in a pass without the energy balance: its
+          // outlet stands at the inlet temperature until the final pass finds it)
           o.T = spec.T ?? inletT;
           o.vf = Number.NaN;
           o.h = Number.NaN;
@@ -516,6 +518,9 @@ export const reactor: BlockDef<ReactorSpec> = {
       ] : []),
     ];
   },
+  // Reactions at equilibrium at a temperature the energy balance finds, or at the inlet's: the
+  // extents depend on it. Fixed conversions or extents do not, at any temperature.
+  needsEnergyEveryPass: (spec) => spec.reactions.some((rx) => rx.equilibrium) && (spec.adiabatic || spec.duty !== undefined || spec.T === undefined),
   balances(spec) {
     // Conversion per pass of each reaction's key: its extent times the key's coefficient over
     // what reaches it (the inlet; in sequence, what the reactions before it leave).

@@ -11,7 +11,7 @@
  */
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { EvaluationFailure } from '../solve/types.js';
-import type { BlockDef, Stream } from './types.js';
+import { energyThisPass, type BlockDef, type Stream } from './types.js';
 import { editOutletFraction } from './outlet-edit.js';
 import { enthalpyIn, hasEnergyData, OutletState, powerFigure, setFromState } from './energy.js';
 
@@ -85,6 +85,7 @@ export const separator: BlockDef<SeparatorSpec> = {
         const n = s.flows.length;
         let problem: EvaluationFailure | null = null;
         let Hout = 0;
+        const energyNow = energyThisPass(ctx);
         for (let k = 0; k < outs.length; k++) {
           const o = outs[k];
           const r = spec.recovery[k];
@@ -94,7 +95,7 @@ export const separator: BlockDef<SeparatorSpec> = {
           o.vf = Number.NaN;
           o.h = Number.NaN;
           o.hRule = 'flash';
-          if (!energy) continue;
+          if (!energyNow) continue;
           const F = states[k].setFlows(o.flows);
           if (!(F > 0)) {
             o.h = Number.isFinite(s.h) ? s.h : 0;
@@ -104,7 +105,7 @@ export const separator: BlockDef<SeparatorSpec> = {
           setFromState(o, states[k].found, true);
           Hout += F * o.h;
         }
-        duty = energy ? Hout - enthalpyIn(ins) : 0;
+        duty = energyNow ? Hout - enthalpyIn(ins) : 0;
         return problem;
       },
       energy: () => ({ duty, power: 0 }),

@@ -64,6 +64,20 @@ export interface BuildContext {
  */
 export interface PhaseChecks {
   thorough: boolean;
+  /**
+   * `true` in the passes of an iteration whose outlet flows nowhere depend on an enthalpy (no
+   * unit declares `needsEnergyEveryPass`): the blocks leave out enthalpies, duties and powers,
+   * and a temperature that only the energy balance decides is held at a stand-in (the inlet's).
+   * The final pass of a solve computes them all from the converged flows (closure.ts), and goes
+   * on iterating with the energy balance in every pass if that moves a tear. Read it through
+   * `energyThisPass`.
+   */
+  skipEnergy: boolean;
+}
+
+/** Whether a block with the energy balance on (`ctx.energy`) computes it in the current pass. */
+export function energyThisPass(ctx: BuildContext): boolean {
+  return ctx.energy && !(ctx.checks?.skipEnergy ?? false);
 }
 
 /** A figure a unit reports after the solve (extent, conversion, vapor fraction...). */
@@ -216,6 +230,14 @@ export interface BlockDef<S extends UnitSpecBase = UnitSpecBase> {
    * is not the whole story (a splitter's other outlet); default: the value is set as it is.
    */
   edit?(name: string, settings: SettingMap, key: readonly string[], value: number): ParameterEdit;
+  /**
+   * Whether the unit's outlet flows depend on an enthalpy or on an inlet temperature (an
+   * equilibrium at a temperature the energy balance finds, or at the inlet's): such a unit keeps
+   * the energy balance in every pass of the solve. Default: false, the outlet flows follow from
+   * the inlet flows, the pressures and the unit's settings alone, so the energy balance of a
+   * flowsheet of such units is solved once on the converged flows (PhaseChecks.skipEnergy).
+   */
+  needsEnergyEveryPass?(spec: S): boolean;
   /** What the unit conserves, for plant-data reconciliation (default: none: the unit cannot be reconciled). */
   balances?(spec: S, model: Model): BalanceDecl;
 }

@@ -6,7 +6,7 @@
  */
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { EvaluationFailure } from '../solve/types.js';
-import type { BlockDef, Stream, UnitFigure } from './types.js';
+import { energyThisPass, type BlockDef, type Stream, type UnitFigure } from './types.js';
 import { combineInlets } from './combine.js';
 import { lackingData, enthalpyIn, hasEnergyData, missingEnergyKeys, OutletState, setFromState } from './energy.js';
 import { pressureBelowZero } from './reactor.js';
@@ -62,6 +62,11 @@ export const valve: BlockDef<ValveSpec> = {
             message: `valve \`${spec.name}\`: the outlet pressure ${fmt(o.P / 1e5)} bar is above the inlet's, ${fmt(pIn / 1e5)} bar; a valve only lets down`,
             help: 'lower `P` below the inlet pressure, or raise the pressure with a `compressor`',
           };
+        }
+        if (!energyThisPass(ctx)) {
+          // the outlet temperature stands at the inlet's until the final pass finds it
+          o.h = Number.NaN;
+          return problem;
         }
         const Hin = enthalpyIn(ins);
         const F = state.setFlows(o.flows);

@@ -12,6 +12,12 @@ import { computeBalance, type Balance } from './balance.js';
 import type { Condition, Runtime } from './runtime.js';
 import { readTears, setTears } from './tear-problem.js';
 
+/**
+ * Direct passes that settle the temperatures of a solve whose iteration left the energy balance
+ * out, before the method is asked again.
+ */
+const SETTLE_PASSES = 4;
+
 /** The balance closure (relative) a converged result must meet, for a tear tolerance rtol. */
 export function closureTolerance(rtol: number): number {
   return Math.max(1e-9, 10 * rtol);
@@ -32,16 +38,33 @@ export function closeBalance(
 ): Closed {
   const tol = closureTolerance(opts.rtol);
   let result = first;
+  // Whether the iteration left the energy balance out (runtime.ts, energyDecoupled).
+  const deferred = rt.energyDecoupled && !rt.energyEveryPass;
+  let settle = 0;
   for (let k = 0; ; k++) {
     // The final pass: every stream at the current iterate (one counted pass), then the balance.
     setTears(rt, result.x);
     const conditions = rt.pass().slice();
+    // From here every pass computes the energy balance.
+    rt.energyEveryPass = true;
     result = { ...result, passes: result.passes + 1 };
     const balance = computeBalance(rt);
     // The final pass checks every phase in full (the iteration's passes may not have): if it
     // moves a tear stream beyond its tolerance, a phase appeared or vanished since the last check.
     const moved = tearMoved(rt, problem, result.x, opts.rtol);
     const room = opts.budget - result.passes - 1;
+    if (deferred && moved && result.status === 'converged' && settle < SETTLE_PASSES && room >= 1) {
+      // The flows converged without the energy balance, which they do not depend on: this pass
+      // found the temperatures it decides (a compressor's outlet, an adiabatic mixer's), and a
+      // tear that carries one moved. Direct passes settle them (one, when a unit at a set T
+      // lies between the tear and its maker in the loop; more when the enthalpy recycles).
+      settle++;
+      k--;
+      const next = new Float64Array(result.x.length);
+      readTears(rt, next);
+      result = { ...result, x: next };
+      continue;
+    }
     if (result.status !== 'converged' || (balance.worst <= tol && !moved) || k === 3 || room < 1) {
       if (result.status === 'converged' && balance.worst > tol) {
         result = { ...result, status: 'not-converged', message: `the tear streams meet their tolerance, but ${describeOpen(balance)}; this is not a solution`, worst: undefined };

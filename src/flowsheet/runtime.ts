@@ -59,6 +59,18 @@ export interface Runtime {
   /** Whether the energy balance is on: every component has cp and hf. */
   readonly energy: boolean;
   /**
+   * Whether the energy balance can wait for the converged flows: it is on, and no unit's outlet
+   * flows depend on it (BlockDef.needsEnergyEveryPass). Then the iteration's passes leave it out
+   * (PhaseChecks.skipEnergy) until `energyEveryPass` is set.
+   */
+  readonly energyDecoupled: boolean;
+  /**
+   * Set by a solve: false lets the passes of the iteration leave the energy balance out (when it
+   * is decoupled); the closure sets it once the converged flows have had their full pass, so
+   * that any further iteration carries the energy balance too.
+   */
+  energyEveryPass: boolean;
+  /**
    * Sets the molar enthalpy of tear guess t from its flows, T and P, by the rule its maker
    * last used (the taker's recomputation: h is no tear variable). No-op with the energy off.
    */
@@ -92,8 +104,10 @@ class FlowsheetRuntime implements Runtime {
   tearOutputs: Stream[] = [];
   perTear = 2;
   energy = false;
+  energyDecoupled = false;
+  energyEveryPass = true;
   private tearStates: OutletState[] = [];
-  readonly checks: PhaseChecks = { thorough: true };
+  readonly checks: PhaseChecks = { thorough: true, skipEnergy: false };
   private readonly conditions: Condition[] = [];
   private fixedEos: Eos | undefined;
 
@@ -117,6 +131,10 @@ class FlowsheetRuntime implements Runtime {
   tearEnthalpy(t: number): void {
     if (!this.energy) return;
     const g = this.tearStreams[t];
+    if (this.checks.skipEnergy) {
+      g.h = Number.NaN;
+      return;
+    }
     const rule = this.tearOutputs[t].hRule;
     g.hRule = rule;
     const h = enthalpyByRule(this.eos, g, rule, this.tearStates[t]);
@@ -152,6 +170,7 @@ class FlowsheetRuntime implements Runtime {
       this.byName.set(u.name, b);
       for (const s of this.sequence) if (s.block === old) s.block = b;
     });
+    this.energyDecoupled = decoupled(model, this.energy);
   }
 
   private feedResult(f: FeedSpec): FeedResult {
@@ -218,7 +237,13 @@ class FlowsheetRuntime implements Runtime {
     this.tearStreams = this.plan.tears.map((t) => guesses.get(t)!);
     this.tearOutputs = this.plan.tears.map((t) => this.streams.get(t)!);
     this.tearStates = this.plan.tears.map((t) => new OutletState(this.eos, t, this.checks));
+    this.energyDecoupled = decoupled(model, this.energy);
   }
+}
+
+/** Whether the energy balance is on and no unit's outlet flows depend on it. */
+function decoupled(model: Model, energy: boolean): boolean {
+  return energy && !model.units.some((u) => BLOCKS[u.type].needsEnergyEveryPass?.(u) ?? false);
 }
 
 /** A runtime for a model (optionally with an equation of state made elsewhere). */

@@ -52,6 +52,9 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
   const rt = opts.runtime ?? createRuntime(model, opts.eos);
   rt.load(model);
   rt.resetWarmStarts();
+  // The iteration leaves out an energy balance the flows do not depend on; the closure's final
+  // pass computes it (and turns it on for any pass after).
+  rt.energyEveryPass = false;
   const N = rt.tearStreams.length * rt.perTear;
   const rtol = opts.rtol ?? model.solver.rtol;
   const budget = opts.maxPasses ?? model.solver.maxPasses ?? DEFAULT_MAX_PASSES;
