@@ -85,7 +85,8 @@ export function tearProblem(rt: Runtime, x0: Float64Array, feedTotal: number): F
       // (runtime.ts, energyDecoupled); every other pass, the final one above all, checks in
       // full and computes every enthalpy
       rt.checks.thorough = false;
-      rt.checks.skipEnergy = rt.energyDecoupled && !rt.energyEveryPass;
+      const skip = rt.energyDecoupled && !rt.energyEveryPass;
+      rt.checks.skipEnergy = skip;
       try {
         setTears(rt, x);
         rt.pass();
@@ -94,6 +95,13 @@ export function tearProblem(rt: Runtime, x0: Float64Array, feedTotal: number): F
         rt.checks.skipEnergy = false;
       }
       readTears(rt, out);
+      if (skip) {
+        // No unit's flows depend on a temperature here, and one the energy balance decides
+        // stands at a stand-in in these passes: each tear's T is held at its guess (a
+        // neighbour's answer in a sweep) until the final pass computes it.
+        const m = rt.perTear;
+        for (let t = 0; t < rt.tearStreams.length; t++) out[t * m + rt.n] = x[t * m + rt.n];
+      }
     },
   };
 }
