@@ -46,6 +46,12 @@ export interface SolveFlowsheetOptions {
   eos?: Eos;
   /** A runtime owned by the caller, switched to this model (sweeps and targets reuse one). */
   runtime?: Runtime;
+  /**
+   * Carry the energy balance in every pass of the iteration even where no unit's flows depend
+   * on it (by default it is then solved once, on the converged flows: runtime.ts,
+   * energyDecoupled). The answer is the same to the tolerance; for comparisons and checks.
+   */
+  energyEveryPass?: boolean;
 }
 
 export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): FlowsheetResult {
@@ -54,7 +60,7 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
   rt.resetWarmStarts();
   // The iteration leaves out an energy balance the flows do not depend on; the closure's final
   // pass computes it (and turns it on for any pass after).
-  rt.energyEveryPass = false;
+  rt.energyEveryPass = opts.energyEveryPass ?? false;
   const N = rt.tearStreams.length * rt.perTear;
   const rtol = opts.rtol ?? model.solver.rtol;
   const budget = opts.maxPasses ?? model.solver.maxPasses ?? DEFAULT_MAX_PASSES;
