@@ -26,7 +26,7 @@
 import type { UnitSpecBase } from '../flowsheet/model.js';
 import type { EvaluationFailure } from '../solve/types.js';
 import { energyThisPass, type BlockDef, type Stream, type UnitFigure, type UnitSummary } from './types.js';
-import type { Eos } from '../thermo/types.js';
+import { eosWork, type Eos } from '../thermo/types.js';
 import { newPhaseProperties, phasePropertiesInto } from '../thermo/enthalpy.js';
 import { lackingData, missingEnergyKeys, OutletState, phaseH, phaseS, powerFigure, setFromState } from './energy.js';
 
@@ -231,8 +231,6 @@ export const compressor: BlockDef<CompressorSpec> = {
   balances: () => ({ law: 'components' }),
 };
 
-const isoScratch = newPhaseProperties();
-
 /**
  * The vapor-root state at P with molar entropy s: Newton on S(T) with dS/dT = Cp/T (the
  * analytic heat capacity of the root), from T0. Undefined when the root is not a vapor or the
@@ -241,7 +239,7 @@ const isoScratch = newPhaseProperties();
 function vaporAtEntropy(eos: Eos, P: number, s: number, T0: number, z: Float64Array): { T: number; h: number } | undefined {
   let T = T0;
   for (let k = 0; k < 30; k++) {
-    const p = phasePropertiesInto(eos, T, P, z, 'vapor', true, isoScratch);
+    const p = phasePropertiesInto(eos, T, P, z, 'vapor', true, eosWork(eos, 'compressorIsentropic', newPhaseProperties));
     if (p.root !== 'vapor' || !(p.Cp > 0)) return undefined;
     const r = p.S - s;
     if (Math.abs(r) <= 1e-10 * 8.314462618) return { T, h: p.H };

@@ -24,7 +24,7 @@ import { flashTP, flashTPInto, newFlashResult, type FlashOptions, type FlashResu
 import { flashPH, flashPS } from '../thermo/flash-ph.js';
 import { outsideRange } from '../thermo/ideal-gas.js';
 import { R as R_GAS } from '../thermo/constants.js';
-import type { ComponentData, Eos, RootChoice } from '../thermo/types.js';
+import { eosWork, type ComponentData, type Eos, type RootChoice } from '../thermo/types.js';
 import type { EnthalpyRule, PhaseChecks, Stream } from './types.js';
 
 /** Tolerance of the PH and PS flashes run by blocks, on |H - H_spec| / (R T). */
@@ -99,16 +99,14 @@ export function enthalpyIn(ins: readonly Stream[]): number {
   return H;
 }
 
-const phaseScratch = new WeakMap<Eos, PhaseProperties>();
-const nearScratches = new WeakMap<Eos, PhaseProperties>();
-
+/** Phase properties for the blocks' single-phase shortcuts, in the equation of state's work areas. */
 function nearScratch(eos: Eos): PhaseProperties {
-  let p = nearScratches.get(eos);
-  if (!p) {
-    p = newPhaseProperties();
-    nearScratches.set(eos, p);
-  }
-  return p;
+  return eosWork(eos, 'blocksNear', newPhaseProperties);
+}
+
+/** Phase properties for phaseH and phaseRoot, in the equation of state's work areas. */
+function phaseScratch(eos: Eos): PhaseProperties {
+  return eosWork(eos, 'blocksPhase', newPhaseProperties);
 }
 
 /** Molar enthalpy and root of the stable root of x at T, P. */
@@ -119,32 +117,20 @@ function phaseRootState(eos: Eos, T: number, P: number, x: ArrayLike<number>): {
 
 /** Molar enthalpy of one phase of composition x at T, P (data present: the caller checked). */
 export function phaseH(eos: Eos, T: number, P: number, x: ArrayLike<number>, root: RootChoice = 'stable'): number {
-  let p = phaseScratch.get(eos);
-  if (!p) {
-    p = newPhaseProperties();
-    phaseScratch.set(eos, p);
-  }
+  const p = phaseScratch(eos);
   return phasePropertiesInto(eos, T, P, x, root, false, p).H;
 }
 
 /** Molar enthalpy and the root taken, of one phase of composition x at T, P (data present). */
 export function phaseRoot(eos: Eos, T: number, P: number, x: ArrayLike<number>, root: RootChoice): { H: number; root: 'vapor' | 'liquid' } {
-  let p = phaseScratch.get(eos);
-  if (!p) {
-    p = newPhaseProperties();
-    phaseScratch.set(eos, p);
-  }
+  const p = phaseScratch(eos);
   phasePropertiesInto(eos, T, P, x, root, false, p);
   return { H: p.H, root: p.root };
 }
 
 /** Molar entropy of one phase of composition x at T, P (cp, hf and gf present). */
 export function phaseS(eos: Eos, T: number, P: number, x: ArrayLike<number>, root: RootChoice = 'stable'): number {
-  let p = phaseScratch.get(eos);
-  if (!p) {
-    p = newPhaseProperties();
-    phaseScratch.set(eos, p);
-  }
+  const p = phaseScratch(eos);
   return phasePropertiesInto(eos, T, P, x, root, true, p).S;
 }
 

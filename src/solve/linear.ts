@@ -164,20 +164,14 @@ export function luStep(fac: Factored, f: Float64Array, dx: Float64Array): void {
   for (let j = 0; j < n; j++) dx[j] = rhs[j] * colScale[j];
 }
 
-/** LU work per order, for solveDense (which never calls itself). */
-const denseWork = new Map<number, LuWork>();
-
 /**
  * Solves A x = b for a small dense system (A row-major n*n), b overwritten with x; false when A is
  * singular, or when its smallest pivot is below minPivotRatio times its largest (default 0: only an
- * exactly singular A is refused). A is left as it was.
+ * exactly singular A is refused). A is left as it was. `work` is the caller's LU work of order n
+ * (reused across calls: nothing allocated); without it, one is made for this call.
  */
-export function solveDense(A: Float64Array, b: Float64Array, n: number, minPivotRatio = 0): boolean {
-  let w = denseWork.get(n);
-  if (w === undefined) {
-    w = newLuWork(n);
-    denseWork.set(n, w);
-  }
+export function solveDense(A: Float64Array, b: Float64Array, n: number, minPivotRatio = 0, work?: LuWork): boolean {
+  const w = work !== undefined && work.n === n ? work : newLuWork(n);
   luFactor(A, w);
   if (luSingular(w)) return false;
   if (minPivotRatio > 0) {

@@ -31,7 +31,7 @@
  */
 import { R } from './constants.js';
 import { CubicEos } from './eos.js';
-import type { Eos, RootChoice } from './types.js';
+import { eosWork, type Eos, type RootChoice } from './types.js';
 
 /** Residual properties of one phase (SI: J/mol, J/(mol K)). */
 export interface Departure {
@@ -54,16 +54,9 @@ export function newDeparture(): Departure {
   return { Z: 1, root: 'vapor', H: 0, S: 0, G: 0, Cp: 0 };
 }
 
-/** Scratch of aDerivatives, one per equation of state. */
-const scratch = new WeakMap<CubicEos, Float64Array>();
-
+/** Scratch of aDerivatives, in the equation of state's work areas. */
 function aScratch(eos: CubicEos): Float64Array {
-  let s = scratch.get(eos);
-  if (s === undefined) {
-    s = new Float64Array(4);
-    scratch.set(eos, s);
-  }
-  return s;
+  return eosWork(eos, 'departure', () => new Float64Array(4));
 }
 
 /**

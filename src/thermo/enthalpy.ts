@@ -39,7 +39,7 @@ import { R } from './constants.js';
 import { departureInto, newDeparture, type Departure } from './departure.js';
 import { flashTP, type FlashOptions, type FlashResult } from './flash.js';
 import { cpIG, hIG, P_STD, sIG } from './ideal-gas.js';
-import type { ComponentData, Eos, RootChoice } from './types.js';
+import { eosWork, type ComponentData, type Eos, type RootChoice } from './types.js';
 
 export type ThermoField = 'cp' | 'hf' | 'gf';
 
@@ -163,16 +163,11 @@ interface PropertyScratch {
   cp: Float64Array;
   s: Float64Array;
 }
-const depScratch = new WeakMap<Eos, PropertyScratch>();
-
 function scratchFor(eos: Eos): PropertyScratch {
-  let w = depScratch.get(eos);
   const n = eos.n;
-  if (w === undefined || w.n !== n) {
-    w = { dep: newDeparture(), n, T: NaN, sT: NaN, h: new Float64Array(n), cp: new Float64Array(n), s: new Float64Array(n) };
-    depScratch.set(eos, w);
-  }
-  return w;
+  return eosWork(eos, 'phaseProperties',
+    (): PropertyScratch => ({ dep: newDeparture(), n, T: NaN, sT: NaN, h: new Float64Array(n), cp: new Float64Array(n), s: new Float64Array(n) }),
+    (w) => w.n === n);
 }
 
 /**

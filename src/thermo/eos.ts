@@ -39,7 +39,7 @@
  * ones such as hydrogen (negative omega): 1 + m(1 - sqrt(Tr)) stays positive for hydrogen up
  * to about 2400 K with SRK. Its absolute value is used for sqrt(a_i).
  */
-import type { ComponentData, Eos, EosName, RootChoice, RootResult } from './types.js';
+import type { ComponentData, Eos, EosName, EosWork, RootChoice, RootResult } from './types.js';
 import { R } from './constants.js';
 import { solveCubic } from './cubic.js';
 import type { CubicParameters } from './eos-params.js';
@@ -70,6 +70,7 @@ export class CubicEos implements EosModel {
   readonly n: number;
   readonly components: readonly ComponentData[];
   readonly params: CubicParameters;
+  readonly work: EosWork = {};
 
   private readonly d1: number;
   private readonly d2: number;

@@ -112,7 +112,7 @@ import { R } from './constants.js';
 import { gIG, hIG, outsideRange, P_STD } from './ideal-gas.js';
 import { reactionSpace, type ReactionSpace } from './equilibrium-space.js';
 import { stabilityTest } from './stability.js';
-import { solveDense } from '../solve/linear.js';
+import { newLuWork, solveDense, type LuWork } from '../solve/linear.js';
 import type { ComponentData, Eos } from './types.js';
 
 /** One reaction to hold at equilibrium. */
@@ -417,6 +417,8 @@ export class EquilibriumSolver {
   private readonly noiseGt: Float64Array;
   private readonly size: Float64Array;
   private readonly scale: Float64Array;
+  /** LU work of the Newton steps, by order (the reactions active in the step). */
+  private readonly lu: (LuWork | undefined)[] = [];
   private readonly J: Float64Array;
   private readonly JB: Float64Array;
   private readonly Jr: Float64Array;
@@ -1036,7 +1038,7 @@ export class EquilibriumSolver {
       this.reducedJacobian();
       if (phiPart) for (let k = 0; k < d * d; k++) Jr[k] += Jphi[k];
       for (let k = 0; k < d; k++) deta[k] = -G[k];
-      if (!luSolve(Jr, deta, d, this.scale)) {
+      if (!luSolve(Jr, deta, d, this.scale, (this.lu[d] ??= newLuWork(d)))) {
         this.writeExtents(out);
         if (!this.condenses(out, P)) this.fail(out, 'not-converged', 'singular', 'the equilibrium Jacobian is singular at the current extents');
         return true;
@@ -1268,9 +1270,9 @@ export class EquilibriumSolver {
  * Solves A d = rhs in place for A of size k x k: scaled symmetrically by the square roots of its
  * diagonal (the ideal-gas part is positive definite, and its diagonal spans the range of 1/n_i),
  * then the project's dense LU (ml-matrix, partial pivoting; src/solve/linear.ts) with a pivot test;
- * A is overwritten and sc is scratch (length k). False when singular.
+ * A is overwritten, sc is scratch (length k) and work the LU work of order k. False when singular.
  */
-function luSolve(A: Float64Array, rhs: Float64Array, k: number, sc: Float64Array): boolean {
+function luSolve(A: Float64Array, rhs: Float64Array, k: number, sc: Float64Array, work: LuWork): boolean {
   for (let c = 0; c < k; c++) {
     const dgl = Math.abs(A[c * k + c]);
     sc[c] = dgl > 0 && Number.isFinite(dgl) ? 1 / Math.sqrt(dgl) : 1;
@@ -1282,7 +1284,7 @@ function luSolve(A: Float64Array, rhs: Float64Array, k: number, sc: Float64Array
   let big = 0;
   for (let q = 0; q < k * k; q++) big = Math.max(big, Math.abs(A[q]));
   if (!(big > 0) || !Number.isFinite(big)) return false;
-  if (!solveDense(A.length === k * k ? A : A.subarray(0, k * k), rhs.length === k ? rhs : rhs.subarray(0, k), k, PIVOT_RATIO)) return false;
+  if (!solveDense(A.length === k * k ? A : A.subarray(0, k * k), rhs.length === k ? rhs : rhs.subarray(0, k), k, PIVOT_RATIO, work)) return false;
   for (let c = 0; c < k; c++) rhs[c] *= sc[c];
   return true;
 }

@@ -62,7 +62,7 @@ import {
 import { flashTP, type FlashResult } from './flash.js';
 import { rachfordRiceCompositions, solveRachfordRice } from './rachford-rice.js';
 import { cpIG, hIG, P_STD, sIG } from './ideal-gas.js';
-import type { ComponentData, Eos } from './types.js';
+import { eosWork, type ComponentData, type Eos } from './types.js';
 
 export interface StateFlashOptions {
   /** Starting temperature, K (default: the ideal-gas temperature of the specification). */
@@ -167,19 +167,14 @@ interface Workspace {
   work: Ctx['work'];
 }
 
-const workspaces = new WeakMap<Eos, Workspace>();
-
 function workspaceFor(eos: Eos): Workspace {
-  let w = workspaces.get(eos);
-  if (w === undefined || w.z.length !== eos.n) {
+  return eosWork(eos, 'stateFlash', (): Workspace => {
     const a = (): Float64Array => new Float64Array(eos.n);
-    w = {
+    return {
       z: a(), props: newPhaseProperties(), phiA: a(), phiB: a(), phiC: a(), phiD: a(), dlnK: a(),
       work: { lnK: a(), K: a(), x: a(), y: a(), phiL: a(), phiV: a(), phiZ: a(), lnKp: a() },
     };
-    workspaces.set(eos, w);
-  }
-  return w;
+  }, (w) => w.z.length === eos.n);
 }
 
 /**

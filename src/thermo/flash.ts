@@ -21,8 +21,8 @@
  * Only vapor-liquid (two-phase) splits are computed; three-phase equilibria are not.
  * Each phase uses the root of lower Gibbs energy for its own composition.
  */
-import { solveDense } from '../solve/linear.js';
-import type { Eos } from './types.js';
+import { newLuWork, solveDense, type LuWork } from '../solve/linear.js';
+import { eosWork, type Eos } from './types.js';
 import { lnPhiInto, stableRootOf } from './flash-eos.js';
 import { stabilityCore } from './stability.js';
 import { newRachfordRiceResult, solveRachfordRice, rachfordRiceCompositions, type RachfordRiceResult } from './rachford-rice.js';
@@ -106,27 +106,24 @@ interface SplitState {
   probe: Evaluation;
   outcome: SplitOutcome;
   /** Newton's arrays (J, F, F at a probe, u, du), made on its first use. */
-  newton: { J: Float64Array; F: Float64Array; Fp: Float64Array; u: Float64Array; du: Float64Array } | undefined;
+  newton: { J: Float64Array; F: Float64Array; Fp: Float64Array; u: Float64Array; du: Float64Array; lu: LuWork } | undefined;
   /** Where the phase split records its residuals (a result's history), or undefined. */
   history: number[] | undefined;
 }
 
-/** Arrays of one flash, kept per equation of state (allocated once, reused by every flash). */
-const workspaces = new WeakMap<Eos, SplitState>();
+/** Arrays of one flash, kept in the equation of state's work areas (allocated once, reused by every flash). */
 
 function stateFor(eos: Eos): SplitState {
   const n = eos.n;
-  let s = workspaces.get(eos);
-  if (s === undefined || s.n !== n) {
+  const s = eosWork(eos, 'flash', (): SplitState => {
     const a = () => new Float64Array(n);
-    s = {
+    return {
       n, z: a(), present: new Uint8Array(n), lnK: a(), K: a(), x: a(), y: a(), phiL: a(), phiV: a(),
       res: a(), step: a(), prevStep: a(), saved: a(), phiZ: a(), wilson: a(), beta: NaN, evaluations: 0,
       rr: newRachfordRiceResult(), evaluation: newEvaluation(), probe: newEvaluation(),
       outcome: { kind: 'converged', iterations: 0, residual: 0, gRT: 0 }, newton: undefined, history: undefined,
     };
-    workspaces.set(eos, s);
-  }
+  }, (w) => w.n === n);
   s.beta = NaN;
   s.evaluations = 0;
   return s;
@@ -287,8 +284,8 @@ function newtonSplit(
   eos: Eos, T: number, P: number, s: SplitState, tol: number, maxIt: number, it0: number, res: Float64Array,
 ): SplitOutcome {
   const n = s.n;
-  s.newton ??= { J: new Float64Array(n * n), F: new Float64Array(n), Fp: new Float64Array(n), u: new Float64Array(n), du: new Float64Array(n) };
-  const { J, F, Fp, u, du } = s.newton;
+  s.newton ??= { J: new Float64Array(n * n), F: new Float64Array(n), Fp: new Float64Array(n), u: new Float64Array(n), du: new Float64Array(n), lu: newLuWork(n) };
+  const { J, F, Fp, u, du, lu } = s.newton;
   const history = s.history;
   let it = it0;
   const base = s.evaluation;
@@ -316,7 +313,7 @@ function newtonSplit(
       }
     }
     for (let i = 0; i < n; i++) du[i] = -F[i];
-    if (!ok || !solveDense(J, du, n)) {
+    if (!ok || !solveDense(J, du, n, 0, lu)) {
       const gRT = ev.gRT;
       s.lnK.set(u);
       evaluate(eos, T, P, s, res, probe);

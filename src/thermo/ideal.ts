@@ -1,7 +1,7 @@
 /**
  * Ideal gas: PV = RT, Z = 1, ln phi_i = 0 for every component and composition.
  */
-import type { ComponentData, Eos, RootChoice, RootResult } from './types.js';
+import type { ComponentData, Eos, EosWork, RootChoice, RootResult } from './types.js';
 import { R } from './constants.js';
 import { checkState } from './state-check.js';
 
@@ -9,6 +9,7 @@ export class IdealGasEos implements Eos {
   readonly name = 'ideal' as const;
   readonly n: number;
   readonly components: readonly ComponentData[];
+  readonly work: EosWork = {};
 
   constructor(comps: readonly ComponentData[]) {
     this.components = comps;

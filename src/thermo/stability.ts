@@ -18,7 +18,7 @@
  * solution and counts as tpd = 0.
  */
 import { lnPhiInto } from './flash-eos.js';
-import type { Eos } from './types.js';
+import { eosWork, type Eos } from './types.js';
 import { wilsonK } from './wilson.js';
 
 export interface StabilityOptions {
@@ -92,7 +92,6 @@ export interface StabilityWork {
   best: TrialWork | undefined;
 }
 
-const workspaces = new WeakMap<Eos, StabilityWork>();
 
 function trialWork(n: number): TrialWork {
   return {
@@ -104,16 +103,11 @@ function trialWork(n: number): TrialWork {
 
 export function workFor(eos: Eos): StabilityWork {
   const n = eos.n;
-  let w = workspaces.get(eos);
-  if (w === undefined || w.n !== n) {
-    w = {
-      n, zz: new Float64Array(n), present: new Uint8Array(n), lnPhiZ: new Float64Array(n), d: new Float64Array(n),
-      K: new Float64Array(n), lnW: new Float64Array(n), lnz: new Float64Array(n), lnKw: new Float64Array(n), trials: [trialWork(n), trialWork(n)],
-      stable: true, tpd: 0, iterations: 0, evaluations: 0, incomplete: false, Kout: new Float64Array(n), best: undefined,
-    };
-    workspaces.set(eos, w);
-  }
-  return w;
+  return eosWork(eos, 'stability', (): StabilityWork => ({
+    n, zz: new Float64Array(n), present: new Uint8Array(n), lnPhiZ: new Float64Array(n), d: new Float64Array(n),
+    K: new Float64Array(n), lnW: new Float64Array(n), lnz: new Float64Array(n), lnKw: new Float64Array(n), trials: [trialWork(n), trialWork(n)],
+    stable: true, tpd: 0, iterations: 0, evaluations: 0, incomplete: false, Kout: new Float64Array(n), best: undefined,
+  }), (w) => w.n === n);
 }
 
 /** Largest |ln W| an extrapolated trial step may reach (exp(300) is far from overflow). */

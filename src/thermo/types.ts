@@ -66,6 +66,25 @@ export interface RootResult {
 }
 
 /**
+ * Work areas of the routines that compute with one equation of state (flash, stability test,
+ * departure functions, enthalpies...): arrays made on first use and reused by every call, by
+ * routine name. Scratch, never answers. They live in the equation's own object, which its
+ * caller owns (a runtime, a study, a test), so that no module keeps state.
+ */
+export type EosWork = Record<string, unknown>;
+
+/** The work area `key` of an equation of state, made by `make` on first use or when `fits` refuses it. */
+export function eosWork<T>(eos: Eos, key: string, make: () => T, fits?: (w: T) => boolean): T {
+  const work = eos.work;
+  let w = work[key] as T | undefined;
+  if (w === undefined || (fits !== undefined && !fits(w))) {
+    w = make();
+    work[key] = w;
+  }
+  return w;
+}
+
+/**
  * An equation of state prepared for one set of components (constants that do not change with
  * T, P or composition are computed once). Every method is allocation-free in its hot path when
  * the caller passes the output arrays.
@@ -74,6 +93,8 @@ export interface Eos {
   readonly name: EosName;
   readonly n: number;
   readonly components: readonly ComponentData[];
+  /** Work areas of the routines that use this equation (see EosWork). */
+  readonly work: EosWork;
   /** Compressibility factor of composition x (mole fractions, length n) at T (K), P (Pa). */
   z(T: number, P: number, x: ArrayLike<number>, which?: RootChoice): RootResult;
   /** Molar volume, m3/mol. */
