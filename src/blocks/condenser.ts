@@ -125,7 +125,7 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
       }
       const inletT = F > 0 ? tSum / F : ins[0]?.T ?? Number.NaN;
       let problem: EvaluationFailure | null = null;
-      const energy = energyThisPass(ctx);
+      const energyNow = energyThisPass(ctx);
       note = '';
       duty = 0;
       let P = spec.P ?? pIn - (spec.dp ?? 0);
@@ -133,7 +133,7 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
         problem = pressureBelowZero(spec.name, pIn, spec.dp ?? 0);
         P = pIn;
       }
-      const Hin = energy ? enthalpyIn(ins) : 0;
+      const Hin = energyNow ? enthalpyIn(ins) : 0;
       for (const o of outs) {
         o.T = spec.T ?? inletT;
         o.P = P;
@@ -145,7 +145,7 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
       if (!(F > 0)) {
         v.flows.fill(0);
         l.flows.fill(0);
-        const h = Number.isFinite(ins[0]?.h) ? ins[0].h : energy ? 0 : Number.NaN;
+        const h = Number.isFinite(ins[0]?.h) ? ins[0].h : energyNow ? 0 : Number.NaN;
         v.h = h;
         l.h = h;
         return problem;
@@ -161,7 +161,7 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
         lastBeta = V / F;
         lastT = spec.T!;
         v.h = l.h = Number.NaN;
-        if (energy) {
+        if (energyNow) {
           // each outlet on its own root at the set T: the split says which phase it is
           const L = F - V;
           if (V > 0) for (let i = 0; i < n; i++) zv[i] = v.flows[i] / V;
@@ -173,7 +173,7 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
         return problem;
       }
       for (let i = 0; i < n; i++) state.z[i] = feed[i] / F;
-      const fail = findsT ? state.atPH(P, (Hin + (spec.duty ?? 0)) / F, inletT) : state.atTP(spec.T!, P, energy);
+      const fail = findsT ? state.atPH(P, (Hin + (spec.duty ?? 0)) / F, inletT) : state.atTP(spec.T!, P, energyNow);
       const r = state.found;
       lastIterations = r.flashes;
       lastT = r.T;
@@ -213,7 +213,7 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
         note = `all liquid at ${findsT ? 'the T found' : 'the set T'} and P: no vapor`;
         v.h = l.h = r.h;
       }
-      if (energy) {
+      if (energyNow) {
         let V = 0;
         let L = 0;
         for (let i = 0; i < n; i++) {
