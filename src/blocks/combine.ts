@@ -7,7 +7,7 @@
  */
 import type { Stream } from './types.js';
 
-/** Adds the inlets' flows into `out.flows` and sets out.T and out.P as described above. */
+/** Adds the inlets' flows into `out.flows` and sets out.T and out.P as described above (a stand-in T if an inlet's is). */
 export function combineInlets(ins: readonly Stream[], out: Stream): void {
   const f = out.flows;
   const n = f.length;
@@ -15,6 +15,7 @@ export function combineInlets(ins: readonly Stream[], out: Stream): void {
   let pMin = Infinity;
   let tSum = 0;
   let fSum = 0;
+  let standIn = false;
   for (const s of ins) {
     let tot = 0;
     for (let i = 0; i < n; i++) {
@@ -25,8 +26,10 @@ export function combineInlets(ins: readonly Stream[], out: Stream): void {
     if (tot > 0 && Number.isFinite(s.T)) {
       tSum += s.T * tot;
       fSum += tot;
+      if (s.standIn) standIn = true;
     }
   }
+  out.standIn = standIn;
   out.P = Number.isFinite(pMin) ? pMin : Number.NaN;
   out.T = fSum > 0 ? tSum / fSum : ins[0]?.T ?? Number.NaN;
 }

@@ -113,6 +113,7 @@ export const compressor: BlockDef<CompressorSpec> = {
         o.vf = s.vf;
         o.h = s.h;
         o.hRule = s.hRule;
+        o.standIn = s.standIn;
         power = 0;
         const F = inState.setFlows(s.flows);
         if (!(F > 0)) {
@@ -131,8 +132,10 @@ export const compressor: BlockDef<CompressorSpec> = {
           // the final pass, which computes it with the power.
           o.P = P2;
           o.h = Number.NaN;
+          o.standIn = true;
           return null;
         }
+        o.standIn = false;
         outState.z.set(inState.z);
         isState.z.set(inState.z);
         let fail = inState.atTP(s.T, P1, true);

@@ -135,6 +135,7 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
       }
       const Hin = energyNow ? enthalpyIn(ins) : 0;
       for (const o of outs) {
+        o.standIn = false;
         o.T = spec.T ?? inletT;
         o.P = P;
       }

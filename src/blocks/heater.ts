@@ -63,11 +63,14 @@ function makeDef(type: 'heater' | 'cooler'): BlockDef<HeaterSpec> {
           }
           duty = 0;
           if (!energyThisPass(ctx)) {
+            // with a duty, the outlet stands at the inlet's temperature until the final pass
+            o.standIn = spec.T === undefined;
             o.T = spec.T ?? inT;
             o.vf = Number.NaN;
             o.h = Number.NaN;
             return problem;
           }
+          o.standIn = false;
           const Hin = enthalpyIn(ins);
           const F = state.setFlows(o.flows);
           if (!(F > 0)) {

@@ -57,11 +57,13 @@ export const mixer: BlockDef<MixerSpec> = {
         if (!energyThisPass(ctx)) {
           // (without the energy balance in this pass, an adiabatic outlet stands at the inlets'
           // flow-weighted temperature: no unit's flows depend on it, and the final pass finds it)
+          o.standIn = spec.T === undefined;
           if (spec.T !== undefined) o.T = spec.T;
           o.vf = Number.NaN;
           o.h = Number.NaN;
           return null;
         }
+        o.standIn = false;
         const Hin = enthalpyIn(ins);
         const F = state.setFlows(o.flows);
         if (!(F > 0)) {

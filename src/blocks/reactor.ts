@@ -409,11 +409,14 @@ export const reactor: BlockDef<ReactorSpec> = {
         if (!energyThisPass(ctx)) {
           // (an adiabatic reactor of fixed extents, in a pass without the energy balance: its
           // outlet stands at the inlet temperature until the final pass finds it)
+          if (spec.T !== undefined) o.standIn = false;
+          else if (!fixedT) o.standIn = true;
           o.T = spec.T ?? inletT;
           o.vf = Number.NaN;
           o.h = Number.NaN;
           return problem ?? phaseAtEnd(o.T, o.P, f);
         }
+        o.standIn = false;
         const Hin = enthalpyIn(ins);
         if (eqSolver && !fixedT) {
           // Adiabatic or fixed duty: the outlet T and the equilibrium found together.

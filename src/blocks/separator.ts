@@ -91,6 +91,7 @@ export const separator: BlockDef<SeparatorSpec> = {
           const r = spec.recovery[k];
           for (let i = 0; i < n; i++) o.flows[i] = r[i] * s.flows[i];
           o.T = spec.T ?? s.T;
+          o.standIn = spec.T === undefined && s.standIn;
           o.P = spec.P ?? s.P;
           o.vf = Number.NaN;
           o.h = Number.NaN;

@@ -69,6 +69,7 @@ export const splitter: BlockDef<SplitterSpec> = {
           o.vf = s.vf;
           o.h = s.h;
           o.hRule = s.hRule;
+          o.standIn = s.standIn;
         }
         return null;
       },

@@ -34,12 +34,19 @@ export interface Stream {
    * phases the split decides).
    */
   hRule: EnthalpyRule;
+  /**
+   * Whether T is a stand-in: a temperature only the energy balance decides, in a pass that
+   * leaves it out (PhaseChecks.skipEnergy), or one carried on from such a stream (a splitter's
+   * outlets, a mixer's mean). Read only in those passes: the tear problem holds such a tear's T
+   * at its guess, and lets every other tear's T iterate with the flows.
+   */
+  standIn: boolean;
 }
 
 export type EnthalpyRule = 'flash' | 'stable' | 'vapor' | 'liquid';
 
 export function newStream(n: number): Stream {
-  return { flows: new Float64Array(n), T: Number.NaN, P: Number.NaN, vf: Number.NaN, h: Number.NaN, hRule: 'flash' };
+  return { flows: new Float64Array(n), T: Number.NaN, P: Number.NaN, vf: Number.NaN, h: Number.NaN, hRule: 'flash', standIn: false };
 }
 
 export interface BuildContext {

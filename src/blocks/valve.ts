@@ -66,8 +66,10 @@ export const valve: BlockDef<ValveSpec> = {
         if (!energyThisPass(ctx)) {
           // the outlet temperature stands at the inlet's until the final pass finds it
           o.h = Number.NaN;
+          o.standIn = true;
           return problem;
         }
+        o.standIn = false;
         const Hin = enthalpyIn(ins);
         const F = state.setFlows(o.flows);
         if (!(F > 0)) {

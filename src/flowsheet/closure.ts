@@ -28,6 +28,13 @@ export interface Closed {
   balance: Balance;
   /** Conditions met by the units in the final pass (a copy). */
   conditions: Condition[];
+  /**
+   * Set when the iteration left the energy balance out and the pass that then computed it on
+   * the converged flows did not make a solution (a flash that did not converge, a balance left
+   * open, a temperature that would not settle): the caller solves again with the energy
+   * balance in every pass.
+   */
+  energyLate?: boolean;
 }
 
 export function closeBalance(
@@ -53,11 +60,14 @@ export function closeBalance(
     // moves a tear stream beyond its tolerance, a phase appeared or vanished since the last check.
     const moved = tearMoved(rt, problem, result.x, opts.rtol);
     const room = opts.budget - result.passes - 1;
-    if (deferred && moved && result.status === 'converged' && settle < SETTLE_PASSES && room >= 1) {
+    const flashFailed = conditions.some((c) => c.failure.kind === 'not-converged');
+    if (deferred && (moved || flashFailed) && result.status === 'converged' && settle < SETTLE_PASSES && room >= 1) {
       // The flows converged without the energy balance, which they do not depend on: this pass
       // found the temperatures it decides (a compressor's outlet, an adiabatic mixer's), and a
       // tear that carries one moved. Direct passes settle them (one, when a unit at a set T
-      // lies between the tear and its maker in the loop; more when the enthalpy recycles).
+      // lies between the tear and its maker in the loop; more when the enthalpy recycles). A
+      // flash that did not converge, started cold, may converge from the K-values of the pass
+      // before: the same passes give it that chance.
       settle++;
       k--;
       const next = new Float64Array(result.x.length);
@@ -65,13 +75,24 @@ export function closeBalance(
       result = { ...result, x: next };
       continue;
     }
+    if (deferred && k === 0 && flashFailed && result.status === 'converged') {
+      // still failing: the caller starts again with the energy balance in every pass
+      return { result, balance, conditions, energyLate: true };
+    }
     if (result.status !== 'converged' || (balance.worst <= tol && !moved) || k === 3 || room < 1) {
       if (result.status === 'converged' && balance.worst > tol) {
         result = { ...result, status: 'not-converged', message: `the tear streams meet their tolerance, but ${describeOpen(balance)}; this is not a solution`, worst: undefined };
       } else if (result.status === 'converged' && moved) {
         result = { ...result, status: 'not-converged', message: `the final pass moves tear stream ${moved} beyond its tolerance (a phase appeared or vanished between the checks of the iteration); this is not a solution`, worst: undefined };
       }
-      return { result, balance, conditions };
+      // The iteration converged without the energy balance, and with it on the converged flows
+      // this is no solution: its flashes started cold from the final state, where a loop that
+      // carries the energy balance in every pass reaches that state with warm starts that
+      // followed the path (on the generated 20-component trains, a separator's cold flash near
+      // its dew point has been seen not to converge where the warm one does). The caller starts
+      // again that way.
+      const energyLate = deferred && first.status === 'converged' && (result.status !== 'converged' || conditions.some((c) => c.failure.kind === 'not-converged'));
+      return { result, balance, conditions, energyLate };
     }
     const tighter = 10 ** -(k + 1);
     const atol = Float64Array.from(problem.atol ?? [], (v) => Math.max(1e-300, v * tighter * tighter));

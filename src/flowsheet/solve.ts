@@ -9,7 +9,7 @@ import { solveFixedPoint } from '../solve/index.js';
 import type { MethodName, SolveResult, Status, EvaluationFailure } from '../solve/types.js';
 import type { Eos } from '../thermo/types.js';
 import { computeBalance, type Balance } from './balance.js';
-import { closeBalance } from './closure.js';
+import { closeBalance, mergeResults } from './closure.js';
 import { buildUpMessage, findBuildUp } from './diagnose.js';
 import type { Model } from './model.js';
 import { assembleResult, type FlowsheetResult } from './result.js';
@@ -86,34 +86,50 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
     result = { status: 'converged', method: 'sequential', x: new Float64Array(0), residual: 0, scaledResidual: 0, passes: 1, iterations: 0, jacobians: 0, history: [] };
   } else {
     const x0 = opts.start ? Float64Array.from(opts.start) : coldStart(rt);
+    const start0 = Float64Array.from(x0);
     const problem = tearProblem(rt, x0, feedTotal);
     const wegstein = { qMin: model.solver.qMin, qMax: model.solver.qMax, maxPasses: method === 'auto' ? AUTO_WEGSTEIN_PASSES : undefined };
-    let pre = 0;
-    if (method === 'newton' && !opts.start) {
-      // Newton from a cold start (tears at zero) is fragile: a few direct passes first give it
-      // a physical starting point (every stream made by the plant's own units).
-      const tmp = new Float64Array(N);
-      for (let k = 0; k < NEWTON_WARMUP_PASSES && pre < budget - 2; k++) {
-        problem.g(problem.x0, tmp);
-        problem.x0.set(tmp);
-        pre++;
+    /** The method from `from`, with `used` passes of the budget already spent. */
+    const iterate = (from: Float64Array, used: number): SolveResult => {
+      problem.x0.set(from);
+      let pre = 0;
+      if (method === 'newton' && !opts.start) {
+        // Newton from a cold start (tears at zero) is fragile: a few direct passes first give it
+        // a physical starting point (every stream made by the plant's own units).
+        const tmp = new Float64Array(N);
+        for (let k = 0; k < NEWTON_WARMUP_PASSES && used + pre < budget - 2; k++) {
+          problem.g(problem.x0, tmp);
+          problem.x0.set(tmp);
+          pre++;
+        }
       }
+      // One pass of the budget is kept for the final pass that leaves the streams at the answer.
+      const r = solveFixedPoint(problem, method, {
+        rtol, maxPasses: Math.max(1, budget - used - pre - 1), wegstein,
+        newton: opts.jacobian ? { jacobian: opts.jacobian } : undefined,
+      });
+      r.passes += pre;
+      return r;
+    };
+    let iterated = iterate(start0, 0);
+    let closed = closeBalance(rt, problem, iterated, { method, rtol, budget, wegstein });
+    if (closed.energyLate && budget - closed.result.passes > 2) {
+      // The energy balance left to the converged flows made no solution (closure.ts says why):
+      // the whole solve again from the same start, the energy balance in every pass and every
+      // block started afresh; the passes of both attempts are counted.
+      rt.resetWarmStarts();
+      rt.energyEveryPass = true;
+      iterated = mergeResults(closed.result, iterate(start0, closed.result.passes));
+      closed = closeBalance(rt, problem, iterated, { method, rtol, budget, wegstein });
     }
-    // One pass of the budget is kept for the final pass that leaves the streams at the answer.
-    const first = solveFixedPoint(problem, method, {
-      rtol, maxPasses: Math.max(1, budget - pre - 1), wegstein,
-      newton: opts.jacobian ? { jacobian: opts.jacobian } : undefined,
-    });
-    first.passes += pre;
-    let closed = closeBalance(rt, problem, first, { method, rtol, budget, wegstein });
-    if (method === 'anderson' && first.status === 'converged' && closed.result.status !== 'converged' && budget - closed.result.passes > 2) {
+    if (method === 'anderson' && iterated.status === 'converged' && closed.result.status !== 'converged' && budget - closed.result.passes > 2) {
       // Anderson's early iterates can lie far from the answer, and a block's warm start (a PH
       // flash's last temperature, a flash's last K-values) carried from there has been seen to
       // leave a mixer's energy balance open by 1e-4 on the generated 20-component trains, the
       // state itself agreeing with Wegstein's to 2e-10. Once more from the same iterate, every
       // block started afresh as in a new solve; the passes of both attempts are counted.
       rt.resetWarmStarts();
-      closed = closeBalance(rt, problem, { ...first, passes: closed.result.passes, iterations: closed.result.iterations, history: closed.result.history }, { method, rtol, budget, wegstein });
+      closed = closeBalance(rt, problem, { ...iterated, passes: closed.result.passes, iterations: closed.result.iterations, history: closed.result.history }, { method, rtol, budget, wegstein });
     }
     ({ result, balance, conditions } = closed);
   }

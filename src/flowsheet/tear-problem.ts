@@ -17,6 +17,8 @@ export function setTears(rt: Runtime, x: Float64Array): void {
     for (let i = 0; i < n; i++) s.flows[i] = x[t * m + i];
     s.T = x[t * m + n];
     s.P = x[t * m + n + 1];
+    // the guess's T is a stand-in where its maker's was in the last pass
+    s.standIn = rt.tearOutputs[t].standIn;
     rt.tearEnthalpy(t);
   }
 }
@@ -96,11 +98,12 @@ export function tearProblem(rt: Runtime, x0: Float64Array, feedTotal: number): F
       }
       readTears(rt, out);
       if (skip) {
-        // No unit's flows depend on a temperature here, and one the energy balance decides
-        // stands at a stand-in in these passes: each tear's T is held at its guess (a
-        // neighbour's answer in a sweep) until the final pass computes it.
+        // No unit's flows depend on a temperature here. A tear whose T only the energy balance
+        // decides (Stream.standIn) holds it at its guess (a neighbour's answer in a sweep) until
+        // the final pass computes it; every other tear's T iterates with the flows.
         const m = rt.perTear;
-        for (let t = 0; t < rt.tearStreams.length; t++) out[t * m + rt.n] = x[t * m + rt.n];
+        const made = rt.tearOutputs;
+        for (let t = 0; t < made.length; t++) if (made[t].standIn) out[t * m + rt.n] = x[t * m + rt.n];
       }
     },
   };
