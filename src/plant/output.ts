@@ -134,8 +134,6 @@ export function rowColumns(plant: PlantReconciliation): RowColumns {
   return { names, elements, flowTags, analyzers, parameters, streams };
 }
 
-const v = (x: number | null | undefined): number | string => (x === null || x === undefined || !Number.isFinite(x) ? '' : x);
-
 /** What a row says besides its figures: readings left out or missing. */
 export function rowSaid(report: PlantReport | undefined, said: readonly string[]): string {
   const parts = [...said];
@@ -154,38 +152,44 @@ export function rowCsv(cols: RowColumns, point: number, timestamp: string, repor
     f.push('', rowSaid(undefined, said), message ?? '');
     return csvLine(f);
   }
+  // Appended field by field: a number's text never needs quoting, so only the words go through
+  // csvField; an absent or non-finite number is an empty field.
   const g = report.globalTest;
-  f.push(report.redundancy, v(g.statistic), g.dof, v(g.critical), v(g.pValue));
+  let line = `${n(point)},${csvField(timestamp)},${csvField(status)},${n(report.redundancy)},${n(g.statistic)},${n(g.dof)},${n(g.critical)},${n(g.pValue)}`;
   for (const el of cols.elements) {
     const c = report.closure.elements[el];
-    f.push(v(c?.relative), v(c?.uncertainty));
+    line += `,${n(c?.relative)},${n(c?.uncertainty)}`;
   }
-  f.push(v(report.closure.mass?.relative), v(report.closure.mass?.uncertainty));
+  line += `,${n(report.closure.mass?.relative)},${n(report.closure.mass?.uncertainty)}`;
   for (const t of cols.flowTags) {
     const r = report.instruments[t];
     const m = r?.molarFlow?.measured;
     const rc = r?.molarFlow?.reconciled;
-    const suspect = report.suspects.find((x) => x.tag === t && !x.component);
-    f.push(v(m), v(rc), m !== null && m !== undefined && rc !== null && rc !== undefined ? v(rc - m) : '', v(r?.test), v(suspect?.bias));
+    let bias: number | undefined;
+    for (const x of report.suspects) if (x.tag === t && !x.component) { bias = x.bias; break; }
+    line += `,${n(m)},${n(rc)},${m !== null && m !== undefined && rc !== null && rc !== undefined ? n(rc - m) : ''},${n(r?.test)},${n(bias)}`;
   }
   for (const a of cols.analyzers) {
     const r = report.instruments[a.tag];
-    for (const id of a.ids) f.push(v(r?.fractions?.[id]?.measured), v(r?.fractions?.[id]?.reconciled));
-    f.push(v(r?.test));
+    const fr = r?.fractions;
+    for (const id of a.ids) line += `,${n(fr?.[id]?.measured)},${n(fr?.[id]?.reconciled)}`;
+    line += `,${n(r?.test)}`;
   }
-  for (const p of cols.parameters) f.push(v(report.parameters[p]?.value), v(report.parameters[p]?.sigma));
-  for (const s of cols.streams) {
-    const u = report.unmeasured[`streams.${s}.total`];
-    f.push(v(u?.value), v(u?.sigma));
+  for (const p of cols.parameters) {
+    const e = report.parameters[p];
+    line += `,${n(e?.value)},${n(e?.sigma)}`;
   }
-  f.push(report.suspects.map((s) => `${s.tag}${s.component ? `.${s.component}` : ''}:${s.bias}`).join(' '), rowSaid(report, said), message ?? (report.status === 'reconciled' ? '' : report.message));
-  // csvLine's fields: a number's text never needs quoting, so only the words go through csvField.
-  let line = '';
-  for (let k = 0; k < f.length; k++) {
-    const x = f[k];
-    line += (k > 0 ? ',' : '') + (typeof x === 'number' ? (Number.isFinite(x) ? String(x) : '') : csvField(x));
+  for (const st of cols.streams) {
+    const u = report.unmeasured[`streams.${st}.total`];
+    line += `,${n(u?.value)},${n(u?.sigma)}`;
   }
-  return line;
+  const suspects = report.suspects.map((x) => `${x.tag}${x.component ? `.${x.component}` : ''}:${x.bias}`).join(' ');
+  return `${line},${csvField(suspects)},${csvField(rowSaid(report, said))},${csvField(message ?? (report.status === 'reconciled' ? '' : report.message))}`;
+}
+
+/** A number's CSV text (String(x): the shortest that reads back as x), or empty when absent or not finite. */
+function n(x: number | null | undefined): string {
+  return x === null || x === undefined || !Number.isFinite(x) ? '' : String(x);
 }
 
 /** One JSON Lines row: the snapshot contract without the budgets. */

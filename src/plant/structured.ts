@@ -140,6 +140,9 @@ export class StructuredSteps {
   private readonly mu: Float64Array;
   private readonly eWork: Float64Array;
   private readonly unitWork: Int32Array;
+  private readonly kCol: Int32Array;
+  private readonly lnF: Int32Array;
+  private readonly kVal: Float64Array;
   // Shape of the last step.
   private f = 0;
   private rS = 0;
@@ -274,6 +277,9 @@ export class StructuredSteps {
     this.mu = new Float64Array(Math.max(m, n));
     this.eWork = new Float64Array(n * n);
     this.unitWork = new Int32Array(n);
+    this.kCol = new Int32Array(n);
+    this.lnF = new Int32Array(n);
+    this.kVal = new Float64Array(n);
   }
 
   /** Rows eliminated once per problem (the linear balances), for the record. */
@@ -307,6 +313,8 @@ export class StructuredSteps {
     }
     for (let k = 0; k < p; k++) colF[meas[k]] = -1;
     // Rows I (into C, column-major, leading dimension n) and S (into S, leading dimension m).
+    const lnF = this.lnF;
+    for (let cc = 0; cc < nLN; cc++) lnF[cc] = colF[lnVar[cc]];
     C.fill(0, 0, f * n);
     S.fill(0, 0, f * m);
     let mS = 0;
@@ -335,7 +343,7 @@ export class StructuredSteps {
           const kb = b * nLN;
           for (let cc = 0; cc < nLN; cc++) {
             const kv = KL[kb + cc];
-            if (kv !== 0) target[colF[lnVar[cc]] * ld + r] -= e * kv;
+            if (kv !== 0) target[lnF[cc] * ld + r] -= e * kv;
           }
         } else target[colF[v] * ld + r] += e;
       }
@@ -375,15 +383,25 @@ export class StructuredSteps {
       solveUpper(S, m, rS, KS, o);
     }
     // C~ = C[:, SN] - C[:, SB] K_S and d~ = d - C[:, SB] p_S.
+    // Entry by entry, the non-zero terms of K_S's column in order (the same sums as column by column).
+    const kCol = this.kCol;
+    const kVal = this.kVal;
+    const copy = curvature ? this.CtCopy : undefined;
     for (let cc = 0; cc < kN; cc++) {
       const o = cc * n;
       const src = permS[rS + cc] * n;
-      for (let k = 0; k < p; k++) Ct[o + k] = C[src + k];
+      let nk = 0;
       for (let b = 0; b < rS; b++) {
         const ks = KS[o + b];
         if (ks === 0) continue;
-        const cb = permS[b] * n;
-        for (let k = 0; k < p; k++) Ct[o + k] -= C[cb + k] * ks;
+        kCol[nk] = permS[b] * n;
+        kVal[nk++] = ks;
+      }
+      for (let k = 0; k < p; k++) {
+        let v = C[src + k];
+        for (let t = 0; t < nk; t++) v -= C[kCol[t] + k] * kVal[t];
+        Ct[o + k] = v;
+        if (copy) copy[o + k] = v;
       }
     }
     for (let b = 0; b < rS; b++) {
@@ -392,7 +410,6 @@ export class StructuredSteps {
       const cb = permS[b] * n;
       for (let k = 0; k < p; k++) d[k] -= C[cb + k] * ps;
     }
-    if (curvature) for (let cc = 0; cc < kN; cc++) for (let k = 0, o = cc * n; k < p; k++) this.CtCopy[o + k] = Ct[o + k];
     // The core: pivoted QR of C~; zeta = Q_C2 Q_C2' d~.
     const rC = p > 0 && kN > 0 ? qrPivoted(Ct, p, kN, n, tol, this.qrC) : 0;
     const permC = this.qrC.perm;
