@@ -67,6 +67,14 @@
  * the Jacobian is analytic, the same step and statistics are computed on smaller matrices
  * (structured.ts: the linear unit balances factorised once per problem, each instrument's own
  * equation solved for its reading); a step with a bound held takes the whole factorisation.
+ * Second order (options.secondOrder, default true): the step above minimises |zeta|^2 alone, which
+ * leaves out the curvature of the bilinear balances weighted by their multipliers and converges
+ * linearly (about 1e-2 per step on the ammonia demo). Where the balances are quadratic
+ * (PlantConstraints.products, or found by differencing an analytic Jacobian), each step larger
+ * than the step tolerance is corrected in the null space of the linearised balances that its
+ * factorisation gives (curvature.ts: the SQP step with the exact Hessian of the Lagrangian), and
+ * the convergence is quadratic. The statistics at the solution are those of the linearisation
+ * there, as above.
  */
 import { applyQ, applyQt, newQrWork, qrPivoted, solveUpper, solveUpperTransposed, type QrWork } from './dense.js';
 import { StructuredSteps, type StructuredState, type StructuredSummary } from './structured.js';

@@ -98,7 +98,7 @@ export interface Snapshot {
 }
 
 export interface ReconcileOptions {
-  /** Gauss-Newton iterations (default 50). */
+  /** Iterations, each a linearised step (default 50). */
   maxIterations?: number;
   /** Converged when the last step is at most this, measured in sigmas for measured variables
    *  and in typical magnitudes for unmeasured ones (default 1e-8)... */
