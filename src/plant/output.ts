@@ -107,6 +107,8 @@ export interface RowColumns {
   analyzers: { tag: string; ids: string[] }[];
   parameters: string[];
   streams: string[];
+  /** Each stream's key in PlantReport.unmeasured (`streams.NAME.total`). */
+  streamKeys: string[];
 }
 
 export function rowColumns(plant: PlantReconciliation): RowColumns {
@@ -131,7 +133,7 @@ export function rowColumns(plant: PlantReconciliation): RowColumns {
   for (const p of parameters) names.push(p, `${p}.sigma`);
   for (const s of streams) names.push(`streams.${s}.total[mol/s]`, `streams.${s}.total.sigma[mol/s]`);
   names.push('suspects', 'left-out', 'message');
-  return { names, elements, flowTags, analyzers, parameters, streams };
+  return { names, elements, flowTags, analyzers, parameters, streams, streamKeys: streams.map((s) => `streams.${s}.total`) };
 }
 
 /** What a row says besides its figures: readings left out or missing. */
@@ -184,8 +186,8 @@ export function rowCsv(cols: RowColumns, point: number, timestamp: string, repor
     const e = report.parameters[p];
     f.push(e?.value, e?.sigma);
   }
-  for (const st of cols.streams) {
-    const u = report.unmeasured[`streams.${st}.total`];
+  for (const key of cols.streamKeys) {
+    const u = report.unmeasured[key];
     f.push(u?.value, u?.sigma);
   }
   let figures = JSON.stringify(f);

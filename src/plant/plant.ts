@@ -471,19 +471,33 @@ export class PlantReconciliation {
       const d = ok ? derivedFigure(res, (x) => fig.value(x), fig.readsAt(res.x)) : { value: null, uncertainty: null };
       // A figure of a component that is not there at all (0 / 0) is left out.
       if (d.value === null && !isParameter && ok && !Number.isFinite(fig.value(Float64Array.from(this.network.start)))) continue;
-      report.parameters[fig.path] = { value: d.value, sigma: d.uncertainty, unit, ...(file !== undefined ? { file } : {}), parameter: isParameter, observable: d.value !== null };
+      // Two literal shapes rather than a spread (the same keys in the same order).
+      report.parameters[fig.path] = file !== undefined
+        ? { value: d.value, sigma: d.uncertainty, unit, file, parameter: isParameter, observable: d.value !== null }
+        : { value: d.value, sigma: d.uncertainty, unit, parameter: isParameter, observable: d.value !== null };
     }
     // Streams that a flow instrument reads in this row are reported with the instrument.
-    const metered = new Set(this.model.instruments.filter((d) => this.network.instruments.get(d.tag)!.variable !== undefined && usable.has(d.tag) && !report.instruments[d.tag].suspect).map((d) => d.stream));
+    const metered = new Set<string>();
+    for (const d of this.model.instruments) {
+      if (this.network.instruments.get(d.tag)!.variable !== undefined && usable.has(d.tag) && !report.instruments[d.tag].suspect) metered.add(d.stream);
+    }
     for (const [name, s] of this.network.streams) {
       if (metered.has(name)) continue;
       const d = ok ? derivedFigure(res, (x) => totalOf(s, x), this.variablesOf(s)) : { value: null, uncertainty: null };
-      report.unmeasured[`streams.${name}.total`] = {
-        value: d.value, sigma: d.uncertainty, observable: d.value !== null,
-        ...(d.value === null ? { reason: ok ? 'not observable: the readings and balances do not determine it' : `no reconciliation (${res.status})` } : {}),
-      };
+      report.unmeasured[this.totalKey(name)] = d.value !== null
+        ? { value: d.value, sigma: d.uncertainty, observable: true }
+        : { value: d.value, sigma: d.uncertainty, observable: false, reason: ok ? 'not observable: the readings and balances do not determine it' : `no reconciliation (${res.status})` };
     }
     if (afterSuspects) report.notes.push('fitted figures and unmeasured streams are from the reconciliation without the suspects');
+  }
+
+  /** The key of a stream's total in PlantReport.unmeasured, made once per stream. */
+  private readonly totalKeys = new Map<string, string>();
+
+  private totalKey(name: string): string {
+    let k = this.totalKeys.get(name);
+    if (k === undefined) this.totalKeys.set(name, (k = `streams.${name}.total`));
+    return k;
   }
 
   /** Work space of run: a row's readings and sigmas by variable. */
