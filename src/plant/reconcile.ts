@@ -114,6 +114,13 @@ export function reconcile(problem: ReconciliationProblem, options: ReconcileOpti
   return prepareReconciliation(problem, options).solve(snapshot);
 }
 
+/** No variable left out of a snapshot. */
+const NONE: ReadonlySet<number> = new Set<number>();
+
+function sizeIssue(issues: string[], key: string, arr: ArrayLike<number> | undefined, n: number): void {
+  if (arr && arr.length !== n) issues.push(`snapshot: ${key} has ${arr.length} entries, the problem has ${n} variables`);
+}
+
 /** Checks the problem's shape once and allocates the work space for many snapshots. */
 export function prepareReconciliation(problem: ReconciliationProblem, options: ReconcileOptions = {}): PreparedReconciliation {
   return new PreparedReconciliation(problem, options);
@@ -413,13 +420,13 @@ export class PreparedReconciliation {
     const vars = this.problem.variables;
     const { n } = this;
     const before = issues.length;
-    const unmeasured = new Set(snapshot.unmeasured ?? []);
+    const unmeasured = snapshot.unmeasured && snapshot.unmeasured.length > 0 ? new Set(snapshot.unmeasured) : NONE;
     for (const j of unmeasured) {
       if (!Number.isInteger(j) || j < 0 || j >= n) issues.push(`snapshot: unmeasured index ${j} is not a variable index (0..${n - 1})`);
     }
-    for (const [key, arr] of [['values', snapshot.values], ['sigmas', snapshot.sigmas], ['start', snapshot.start]] as const) {
-      if (arr && arr.length !== n) issues.push(`snapshot: ${key} has ${arr.length} entries, the problem has ${n} variables`);
-    }
+    sizeIssue(issues, 'values', snapshot.values, n);
+    sizeIssue(issues, 'sigmas', snapshot.sigmas, n);
+    sizeIssue(issues, 'start', snapshot.start, n);
     if (issues.length > before) return;
     let p = 0;
     let q = 0;
