@@ -195,6 +195,8 @@ export class PreparedReconciliation {
   private readonly qrG: QrWork;
   private evaluations = 0;
   private jacobians = 0;
+  /** residualNorms at the last iterate of the current solve. */
+  private lastNorms: { abs: number; scaled: number; worst: number } | undefined;
   /** Which variables each balance involves, when the constraints say (and the Jacobian is analytic). */
   private readonly pattern: ConstraintPattern | undefined;
   /** The problem's structure (structured.ts), when it has one to use. */
@@ -295,6 +297,7 @@ export class PreparedReconciliation {
   solve(snapshot: Snapshot = {}): ReconcileResult {
     this.evaluations = 0;
     this.jacobians = 0;
+    this.lastNorms = undefined;
     const issues = [...this.issues];
     this.load(snapshot, issues);
     if (issues.length > 0) return this.invalid(issues);
@@ -379,7 +382,9 @@ export class PreparedReconciliation {
         x.set(this.xBase);
         return this.notConverged(iterations, history, this.nonFiniteMessage(`after iteration ${iterations}`));
       }
-      const { scaled } = this.residualNorms();
+      const norms = this.residualNorms();
+      this.lastNorms = norms;
+      const { scaled } = norms;
       let activeCount = 0;
       for (let j = 0; j < n; j++) if (active[j] !== 0) activeCount++;
       history.push({ iteration: iterations, objective, residual: scaled, step: info.step, stepLength: alpha, activeBounds: activeCount });
@@ -1118,7 +1123,8 @@ export class PreparedReconciliation {
         }
       }
     }
-    const norms = this.residualNorms();
+    // The residual at this x, as the last iteration measured it (c, J and x have not changed since).
+    const norms = this.lastNorms ?? this.residualNorms();
     const status = rho === 0 ? 'not-redundant' : 'reconciled';
     const pct = (this.confidenceText ??= `${+(confidence * 100).toPrecision(4)} %`);
     const message =
