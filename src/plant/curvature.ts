@@ -204,71 +204,92 @@ export class CurvatureStep {
   }
 }
 
+/** Largest n x n x m (variables squared times balances) for which products are looked for by differencing. */
+const PROBE_LIMIT = 5e7;
+
 /**
  * The products of balances that give only their Jacobian, found once per problem: the change of
  * the Jacobian along each variable, D_j = (J(x0 + h_j e_j) - J(x0)) / h_j, is exact (up to
  * rounding) when every row is at most bilinear; that this is so is checked at a third point,
  * J(x0 + sum_j theta_j h_j e_j) = J(x0) + sum_j theta_j h_j D_j, and that the second derivatives
- * are symmetric. Undefined when either check fails (the rows are not quadratic).
+ * are symmetric. Undefined when either check fails (the rows are not quadratic), or when the
+ * problem is too large to difference this way (n^2 m above PROBE_LIMIT: n + 2 Jacobians and a
+ * scan of each), which then takes Gauss-Newton steps.
  */
 function probeProducts(problem: ReconciliationProblem): ConstraintProducts | undefined {
   const cons = problem.constraints;
   const n = problem.variables.length;
   const m = cons.count;
-  if (!(n > 0 && m > 0)) return undefined;
+  if (!(n > 0 && m > 0) || n * n * m > PROBE_LIMIT) return undefined;
   const x0 = Float64Array.from(problem.variables, (v) => v.start);
   if (!x0.every(Number.isFinite)) return undefined;
-  const jac = (x: Float64Array) => {
-    const J = new Float64Array(m * n);
-    cons.jacobian!(x, J);
-    return J;
-  };
-  const J0 = jac(x0);
+  const J0 = new Float64Array(m * n);
+  cons.jacobian!(x0, J0);
+  const Jj = new Float64Array(m * n);
   const h = Float64Array.from(x0, (v) => Math.max(1, Math.abs(v)));
-  const D: Float64Array[] = [];
+  // The non-zero entries of each D_j: row i, column l, value (d J_il / d x_j).
+  const dRow: number[] = [];
+  const dCol: number[] = [];
+  const dVar: number[] = [];
+  const dVal: number[] = [];
   const x = Float64Array.from(x0);
   for (let j = 0; j < n; j++) {
     x[j] = x0[j] + h[j];
-    const Jj = jac(x);
+    Jj.fill(0);
+    cons.jacobian!(x, Jj);
     x[j] = x0[j];
-    for (let k = 0; k < m * n; k++) Jj[k] = (Jj[k] - J0[k]) / h[j];
-    D.push(Jj);
+    for (let k = 0; k < m * n; k++) {
+      const d = (Jj[k] - J0[k]) / h[j];
+      if (d === 0) continue;
+      if (!Number.isFinite(d)) return undefined;
+      dRow.push(Math.floor(k / n));
+      dCol.push(k % n);
+      dVar.push(j);
+      dVal.push(d);
+    }
   }
   // Affine: the Jacobian at a third point.
   const theta = (j: number) => 0.3 + 0.2 * (j % 4);
   for (let j = 0; j < n; j++) x[j] = x0[j] + theta(j) * h[j];
-  const J1 = jac(x);
+  const J1 = new Float64Array(m * n);
+  cons.jacobian!(x, J1);
+  const predicted = Float64Array.from(J0);
+  for (let t = 0; t < dVal.length; t++) predicted[dRow[t] * n + dCol[t]] += theta(dVar[t]) * h[dVar[t]] * dVal[t];
   let size = 0;
   for (let k = 0; k < m * n; k++) size = Math.max(size, Math.abs(J0[k]), Math.abs(J1[k]));
   const tol = 1e-9 * Math.max(1, size);
-  for (let k = 0; k < m * n; k++) {
-    let predicted = J0[k];
-    for (let j = 0; j < n; j++) if (D[j][k] !== 0) predicted += theta(j) * h[j] * D[j][k];
-    if (!(Math.abs(predicted - J1[k]) <= tol)) return undefined;
+  for (let k = 0; k < m * n; k++) if (!(Math.abs(predicted[k] - J1[k]) <= tol)) return undefined;
+  // Products: d2 c_i / dx_a dx_b (symmetric: the entry of D_b at (i, a) and of D_a at (i, b));
+  // coef x_a x_b with a < b, coef x_a^2 with half the second derivative. Entries below 1e-9 of
+  // the row's largest second derivative are rounding.
+  const second = new Map<string, number>();
+  const big = new Float64Array(m);
+  for (let t = 0; t < dVal.length; t++) {
+    second.set(`${dRow[t]} ${dCol[t]} ${dVar[t]}`, dVal[t]);
+    big[dRow[t]] = Math.max(big[dRow[t]], Math.abs(dVal[t]));
   }
-  // Products: d2 c_i / dx_a dx_b = D_b[i, a] (symmetric); coef x_a x_b with a < b, coef x_a^2 with half the second derivative.
+  const keys = new Set<string>();
   const row: number[] = [];
   const a: number[] = [];
   const b: number[] = [];
   const coef: number[] = [];
-  for (let i = 0; i < m; i++) {
-    let big = 0;
-    for (let l = 0; l < n; l++) for (let j = 0; j < n; j++) big = Math.max(big, Math.abs(D[j][i * n + l]));
-    if (big === 0) continue;
-    const small = 1e-9 * big;
-    for (let p = 0; p < n; p++) {
-      for (let q = p; q < n; q++) {
-        const u = D[q][i * n + p];
-        const w = D[p][i * n + q];
-        if (Math.abs(u - w) > small) return undefined;
-        const v = (u + w) / 2;
-        if (Math.abs(v) <= small) continue;
-        row.push(i);
-        a.push(p);
-        b.push(q);
-        coef.push(p === q ? v / 2 : v);
-      }
-    }
+  for (let t = 0; t < dVal.length; t++) {
+    const i = dRow[t];
+    const p = Math.min(dCol[t], dVar[t]);
+    const q = Math.max(dCol[t], dVar[t]);
+    const key = `${i} ${p} ${q}`;
+    if (keys.has(key)) continue;
+    keys.add(key);
+    const small = 1e-9 * big[i];
+    const u = second.get(`${i} ${p} ${q}`) ?? 0;
+    const w = second.get(`${i} ${q} ${p}`) ?? 0;
+    if (Math.abs(u - w) > small) return undefined;
+    const v = (u + w) / 2;
+    if (Math.abs(v) <= small) continue;
+    row.push(i);
+    a.push(p);
+    b.push(q);
+    coef.push(p === q ? v / 2 : v);
   }
   return { row: Int32Array.from(row), a: Int32Array.from(a), b: Int32Array.from(b), coef: Float64Array.from(coef) };
 }
