@@ -524,7 +524,7 @@ export class PreparedReconciliation {
    */
   private linearStep(): StepInfo {
     if (this.structure && this.p > 0 && !this.anyActive()) {
-      const s = this.structure.step(this.structuredState, this.options.rankTolerance, this.curvature);
+      const s = this.structure.step(this.structuredState, this.options.rankTolerance, this.trialStep ? undefined : this.curvature);
       if (s) {
         this.lastStructured = true;
         return { rows: this.m, ...s };
@@ -625,7 +625,7 @@ export class PreparedReconciliation {
     const permB = this.qrB.perm;
     let stepGN = step;
     for (let k = 0; k < r; k++) stepGN = Math.max(stepGN, Math.abs(rhs[k]));
-    if (this.curvature && p > rho && this.curvature.applies(stepGN) && this.wholeSecondOrder(M, r, rho, rhs, this.coordinateWork)) {
+    if (this.curvature && !this.trialStep && p > rho && this.curvature.applies(stepGN) && this.wholeSecondOrder(M, r, rho, rhs, this.coordinateWork)) {
       // dz = dz_GN + N u, dv_B = dv_GN - (R11^-1 Q1'A N) u.
       const { u } = this.curvature;
       const k = p - rho;
@@ -748,6 +748,22 @@ export class PreparedReconciliation {
    * are consistent, the single release whose variable moves furthest inside (or least outside).
    */
   private releaseBounds(forConsistency = false): number {
+    this.trialStep = true;
+    try {
+      return this.releaseTrials(forConsistency);
+    } finally {
+      this.trialStep = false;
+    }
+  }
+
+  /**
+   * Whether the steps made now are trials of releaseBounds: they take no second-order correction
+   * (they only tell which way a released variable would move, and whether the system is
+   * consistent; the iteration then steps with the correction).
+   */
+  private trialStep = false;
+
+  private releaseTrials(forConsistency: boolean): number {
     const { n, active, options } = this;
     this.saveStep();
     let best = -1;
