@@ -591,7 +591,7 @@ if (only.has('plant')) {
   const verdict = (wall, cpu, aim) => (!Number.isFinite(wall) ? '' : wall <= aim ? 'met' : `not met: +${fmt(wall - aim, 3)} ms wall (${(wall / aim).toFixed(2)}x)${Number.isFinite(cpu) ? `, cpu ${cpu <= aim ? 'within' : `+${fmt(cpu - aim, 3)} ms`}` : ''}`);
   if (e) {
     rows.push([`one snapshot, 5 streams, 4 elements (${e.problem.variables} variables), in-process`, fmt(e.snapshotMs, 3), fmt(e.snapshotCpuMs, 3), '<= 2', verdict(e.snapshotMs, e.snapshotCpuMs, 2)]);
-    if (e.demoRowMs !== undefined) rows.push([`ammonia demo, one row of the year (${e.demoVariables} variables), in-process`, fmt(e.demoRowMs, 3), fmt(e.demoRowCpuMs, 3), '', '']);
+    if (e.demoRowMs !== undefined) rows.push([`ammonia demo, one row of the year (${e.demoVariables} variables, ${e.demoIterationsPerSolve?.toFixed(2) ?? '?'} iterations per solve), in-process`, fmt(e.demoRowMs, 3), fmt(e.demoRowCpuMs, 3), '', '']);
   } else rows.push(['one snapshot, 5 streams, 4 elements, in-process', `failed (exit ${engine.status})`, '', '<= 2', '']);
   const ammonia = existsSync(demo) ? demo : undefined;
   out.plant = { engine: e ?? { exit: engine.status, stderr: engine.stderr.slice(0, 2000) } };

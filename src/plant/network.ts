@@ -45,7 +45,7 @@ import { InputError, type Diagnostic } from '../diagnostics.js';
 import type { FlowsheetResult } from '../flowsheet/result.js';
 import type { Model } from '../flowsheet/model.js';
 import type { InstrumentDecl } from './declarations.js';
-import type { ConstraintPattern, PlantConstraints, PlantVariable } from './types.js';
+import type { ConstraintPattern, ConstraintProducts, PlantConstraints, PlantVariable } from './types.js';
 
 export interface StreamVars {
   name: string;
@@ -187,6 +187,23 @@ export class BilinearConstraints implements PlantConstraints {
     }
     rowStart[this.count] = index.length;
     return { start: rowStart, index: Int32Array.from(index), linear };
+  }
+  products(): ConstraintProducts {
+    const { c, j, l, start } = this;
+    const rows: number[] = [];
+    const a: number[] = [];
+    const b: number[] = [];
+    const coef: number[] = [];
+    for (let i = 0; i < this.count; i++) {
+      for (let t = start[i]; t < start[i + 1]; t++) {
+        if (j[t] < 0 || l[t] < 0 || c[t] === 0) continue;
+        rows.push(i);
+        a.push(j[t]);
+        b.push(l[t]);
+        coef.push(c[t]);
+      }
+    }
+    return { row: Int32Array.from(rows), a: Int32Array.from(a), b: Int32Array.from(b), coef: Float64Array.from(coef) };
   }
   jacobian(x: Float64Array, out: Float64Array): void {
     const { c, j, l, start, n } = this;

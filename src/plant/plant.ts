@@ -28,7 +28,6 @@ import type { Eos } from '../thermo/types.js';
 import type { StandardRef } from '../units/index.js';
 import { meterFlowBudget, type FlowBudget, type FlowBudgetResult } from './budget.js';
 import { meterEosFor } from '../thermo/meter-eos.js';
-import { closure as rawClosure, type ClosureTerm } from './closure.js';
 import { standardUncertainty, type InstrumentDecl } from './declarations.js';
 import { derivedFigure } from './derived.js';
 import { buildNetwork, flowOf, streamVariables, totalOf, type Network, type StreamVars } from './network.js';
@@ -472,19 +471,33 @@ export class PlantReconciliation {
       const d = ok ? derivedFigure(res, (x) => fig.value(x), fig.readsAt(res.x)) : { value: null, uncertainty: null };
       // A figure of a component that is not there at all (0 / 0) is left out.
       if (d.value === null && !isParameter && ok && !Number.isFinite(fig.value(Float64Array.from(this.network.start)))) continue;
-      report.parameters[fig.path] = { value: d.value, sigma: d.uncertainty, unit, ...(file !== undefined ? { file } : {}), parameter: isParameter, observable: d.value !== null };
+      // Two literal shapes rather than a spread (the same keys in the same order).
+      report.parameters[fig.path] = file !== undefined
+        ? { value: d.value, sigma: d.uncertainty, unit, file, parameter: isParameter, observable: d.value !== null }
+        : { value: d.value, sigma: d.uncertainty, unit, parameter: isParameter, observable: d.value !== null };
     }
     // Streams that a flow instrument reads in this row are reported with the instrument.
-    const metered = new Set(this.model.instruments.filter((d) => this.network.instruments.get(d.tag)!.variable !== undefined && usable.has(d.tag) && !report.instruments[d.tag].suspect).map((d) => d.stream));
+    const metered = new Set<string>();
+    for (const d of this.model.instruments) {
+      if (this.network.instruments.get(d.tag)!.variable !== undefined && usable.has(d.tag) && !report.instruments[d.tag].suspect) metered.add(d.stream);
+    }
     for (const [name, s] of this.network.streams) {
       if (metered.has(name)) continue;
       const d = ok ? derivedFigure(res, (x) => totalOf(s, x), this.variablesOf(s)) : { value: null, uncertainty: null };
-      report.unmeasured[`streams.${name}.total`] = {
-        value: d.value, sigma: d.uncertainty, observable: d.value !== null,
-        ...(d.value === null ? { reason: ok ? 'not observable: the readings and balances do not determine it' : `no reconciliation (${res.status})` } : {}),
-      };
+      report.unmeasured[this.totalKey(name)] = d.value !== null
+        ? { value: d.value, sigma: d.uncertainty, observable: true }
+        : { value: d.value, sigma: d.uncertainty, observable: false, reason: ok ? 'not observable: the readings and balances do not determine it' : `no reconciliation (${res.status})` };
     }
     if (afterSuspects) report.notes.push('fitted figures and unmeasured streams are from the reconciliation without the suspects');
+  }
+
+  /** The key of a stream's total in PlantReport.unmeasured, made once per stream. */
+  private readonly totalKeys = new Map<string, string>();
+
+  private totalKey(name: string): string {
+    let k = this.totalKeys.get(name);
+    if (k === undefined) this.totalKeys.set(name, (k = `streams.${name}.total`));
+    return k;
   }
 
   /** Work space of run: a row's readings and sigmas by variable. */
@@ -535,15 +548,27 @@ export class PlantReconciliation {
     const nC = ids.length;
     const env = this.envelopeOf();
     const elements = env.elements;
-    const quantities: { name: string; value: number; sigma: number }[] = [];
-    const inflow: ClosureTerm[][] = elements.map(() => []);
-    const outflow: ClosureTerm[][] = elements.map(() => []);
-    const massIn: ClosureTerm[] = [];
-    const massOut: ClosureTerm[] = [];
+    const nE = elements.length;
+    // The closure of closure.ts (rawClosure) summed here as its terms come, without making them:
+    // quantities (readings) in order, and for each element (and the mass, at nE) and side the
+    // total and its derivative in each quantity, in the order rawClosure adds them, so that the
+    // figures are the same to the bit. A term is coef x F x w (a component an analyzer reads:
+    // F its stream's flow, w the reading) or (coef x w_design) x F.
+    const work = this.closureWorkFor(env);
+    const { qv, qs, din, dout, tin, tout, nin } = work;
+    let nq = 0;
+    tin.fill(0);
+    tout.fill(0);
+    nin.fill(0);
+    din.fill(0);
+    dout.fill(0);
+    const maxQ = work.maxQ;
     const missing: string[] = [];
     const assumed: string[] = [];
-    const fracValue = new Float64Array(nC);
-    const fracQ = new Int32Array(nC);
+    // rawClosure's checks: every quantity and coefficient finite, every standard uncertainty >= 0.
+    let valid = true;
+    const fracValue = work.fracValue;
+    const fracQ = work.fracQ;
     for (const { name, s, role, tags, analyzers, design } of env.streams) {
       let flowTag: string | undefined;
       for (const t of tags) {
@@ -581,9 +606,10 @@ export class PlantReconciliation {
         for (const k of read) {
           const pos = comps.indexOf(k);
           const sig = standardUncertainty(an.componentUncertainty?.[pos] ?? an.uncertainty!, r.fractions![k]);
-          quantities.push({ name: `${an.tag}.${ids[k]}`, value: r.fractions![k] * scale, sigma: sig * scale });
+          qv[nq] = r.fractions![k] * scale;
+          qs[nq] = sig * scale;
           fracValue[k] = r.fractions![k] * scale;
-          fracQ[k] = quantities.length - 1;
+          fracQ[k] = nq++;
         }
         if (an.normalized === false) {
           const rest = 1 - readSum;
@@ -598,20 +624,33 @@ export class PlantReconciliation {
       for (let i = 0; i < nC; i++) MW += fracValue[i] * model.components[i].MW;
       const F = b.basis === 'mass' ? b.value / MW : b.value;
       const uF = b.basis === 'mass' ? b.sigma / MW : b.sigma;
-      quantities.push({ name: flowTag, value: F, sigma: uF });
-      const fq = quantities.length - 1;
-      const side = role === 'feed' ? inflow : outflow;
-      const mside = role === 'feed' ? massIn : massOut;
+      qv[nq] = F;
+      qs[nq] = uF;
+      const fq = nq++;
+      const feed = role === 'feed';
+      const T = feed ? tin : tout;
+      const D = feed ? din : dout;
       for (let i = 0; i < nC; i++) {
         const value = fracValue[i];
         const q = fracQ[i];
         if (value === 0 && q < 0) continue;
-        for (let e = 0; e < elements.length; e++) {
-          const a = env.atoms[e][i];
-          if (a) side[e].push(q >= 0 ? { coefficient: a, factors: [fq, q] } : { coefficient: a * value, factors: [fq] });
+        for (let e = 0; e <= nE; e++) {
+          // The mass (e = nE) takes every component, weighted by its molar mass.
+          const a = e < nE ? env.atoms[e][i] : model.components[i].MW;
+          if (e < nE && !a) continue;
+          if (feed) nin[e]++;
+          const o = e * maxQ;
+          if (q >= 0) {
+            T[e] += a * qv[fq] * qv[q];
+            D[o + fq] += a * qv[q];
+            D[o + q] += a * qv[fq];
+          } else {
+            const c = a * value;
+            if (!Number.isFinite(c)) valid = false;
+            T[e] += c * qv[fq];
+            D[o + fq] += c;
+          }
         }
-        const mw = model.components[i].MW;
-        mside.push(q >= 0 ? { coefficient: mw, factors: [fq, q] } : { coefficient: mw * value, factors: [fq] });
       }
     }
     const out: PlantReport['closure'] = { elements: {}, mass: null };
@@ -619,21 +658,67 @@ export class PlantReconciliation {
       out.note = `no raw closure: no flow reading on ${missing.map((m) => `\`${m}\``).join(', ')} (the plant's envelope needs a reading on every feed and product)`;
       return out;
     }
-    const entry = (terms: ClosureTerm[], outTerms: ClosureTerm[]): ClosureEntry | null => {
-      const c = rawClosure({ quantities, inflow: terms, outflow: outTerms }, { contributions: false });
-      if (c.status !== 'ok') return null;
-      return { in: c.inflow, out: c.outflow, relative: c.relative, uncertainty: c.relativeExpanded };
+    for (let q = 0; q < nq; q++) if (!Number.isFinite(qv[q]) || !(Number.isFinite(qs[q]) && qs[q] >= 0)) valid = false;
+    // ... and a positive inflow.
+    const entry = (e: number): ClosureEntry | null => {
+      const I = tin[e];
+      const O = tout[e];
+      if (!valid || !(I > 0)) return null;
+      const o = e * maxQ;
+      let varRel = 0;
+      for (let q = 0; q < nq; q++) {
+        const u2 = qs[q] ** 2;
+        const sens = (O * din[o + q] - I * dout[o + q]) / (I * I);
+        varRel += sens * sens * u2;
+      }
+      return { in: I, out: O, relative: (I - O) / I, uncertainty: 2 * Math.sqrt(varRel) };
     };
-    for (let e = 0; e < elements.length; e++) {
-      if (inflow[e].length === 0) continue;
-      const c = entry(inflow[e], outflow[e]);
+    for (let e = 0; e < nE; e++) {
+      if (nin[e] === 0) continue;
+      const c = entry(e);
       if (c) out.elements[elements[e]] = c;
     }
-    out.mass = entry(massIn, massOut);
+    out.mass = entry(nE);
     if (assumed.length) out.note = `compositions from the design solve (no analyzer reads them) for: ${assumed.join('; ')}`;
     void res;
     return out;
   }
+
+  /** Work space of closure, sized by the envelope (made on first use). */
+  private closureWork?: {
+    maxQ: number;
+    qv: Float64Array;
+    qs: Float64Array;
+    din: Float64Array;
+    dout: Float64Array;
+    tin: Float64Array;
+    tout: Float64Array;
+    nin: Int32Array;
+    fracValue: Float64Array;
+    fracQ: Int32Array;
+  };
+
+  private closureWorkFor(env: NonNullable<PlantReconciliation['envelope']>): NonNullable<PlantReconciliation['closureWork']> {
+    if (!this.closureWork) {
+      const nC = this.model.ids.length;
+      const maxQ = Math.max(1, env.streams.length * (nC + 1));
+      const nE1 = env.elements.length + 1;
+      this.closureWork = {
+        maxQ,
+        qv: new Float64Array(maxQ),
+        qs: new Float64Array(maxQ),
+        din: new Float64Array(nE1 * maxQ),
+        dout: new Float64Array(nE1 * maxQ),
+        tin: new Float64Array(nE1),
+        tout: new Float64Array(nE1),
+        nin: new Int32Array(nE1),
+        fracValue: new Float64Array(nC),
+        fracQ: new Int32Array(nC),
+      };
+    }
+    return this.closureWork;
+  }
+
 }
 
 /** Why a reading cannot be used (negative, outside its range, not a fraction), or undefined. */

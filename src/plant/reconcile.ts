@@ -67,9 +67,18 @@
  * the Jacobian is analytic, the same step and statistics are computed on smaller matrices
  * (structured.ts: the linear unit balances factorised once per problem, each instrument's own
  * equation solved for its reading); a step with a bound held takes the whole factorisation.
+ * Second order (options.secondOrder, default true): the step above minimises |zeta|^2 alone, which
+ * leaves out the curvature of the bilinear balances weighted by their multipliers and converges
+ * linearly (about 1e-2 per step on the ammonia demo). Where the balances are quadratic
+ * (PlantConstraints.products, or found by differencing an analytic Jacobian), each step larger
+ * than the step tolerance is corrected in the null space of the linearised balances that its
+ * factorisation gives (curvature.ts: the SQP step with the exact Hessian of the Lagrangian), and
+ * the convergence is quadratic. The statistics at the solution are those of the linearisation
+ * there, as above.
  */
 import { applyQ, applyQt, newQrWork, qrPivoted, solveUpper, solveUpperTransposed, type QrWork } from './dense.js';
 import { StructuredSteps, type StructuredState, type StructuredSummary } from './structured.js';
+import { CurvatureStep } from './curvature.js';
 import { chiSquareCritical, chiSquarePValue, normalCritical, sidakLevel } from './statistics.js';
 import type {
   GlobalTest,
@@ -91,6 +100,7 @@ export const RECONCILE_DEFAULTS: Required<ReconcileOptions> = {
   zeroTolerance: 1e-8,
   confidence: 0.95,
   structured: true,
+  secondOrder: true,
 };
 
 const SQRT_EPS = Math.sqrt(Number.EPSILON);
@@ -102,6 +112,13 @@ const CHORD_STEP = 1e-4;
 /** Reconciles one snapshot: prepareReconciliation(problem, options).solve(). */
 export function reconcile(problem: ReconciliationProblem, options: ReconcileOptions = {}, snapshot?: Snapshot): ReconcileResult {
   return prepareReconciliation(problem, options).solve(snapshot);
+}
+
+/** No variable left out of a snapshot. */
+const NONE: ReadonlySet<number> = new Set<number>();
+
+function sizeIssue(issues: string[], key: string, arr: ArrayLike<number> | undefined, n: number): void {
+  if (arr && arr.length !== n) issues.push(`snapshot: ${key} has ${arr.length} entries, the problem has ${n} variables`);
 }
 
 /** Checks the problem's shape once and allocates the work space for many snapshots. */
@@ -178,11 +195,15 @@ export class PreparedReconciliation {
   private readonly qrG: QrWork;
   private evaluations = 0;
   private jacobians = 0;
+  /** residualNorms at the last iterate of the current solve. */
+  private lastNorms: { abs: number; scaled: number; worst: number } | undefined;
   /** Which variables each balance involves, when the constraints say (and the Jacobian is analytic). */
   private readonly pattern: ConstraintPattern | undefined;
   /** The problem's structure (structured.ts), when it has one to use. */
   private readonly structure: StructuredSteps | undefined;
   private readonly structuredState: StructuredState;
+  /** The balances' products for second-order steps (curvature.ts), when they state them. */
+  private readonly curvature: CurvatureStep | undefined;
   /** Whether the factorisation in the buffers is the structured one (else the whole one). */
   private lastStructured = false;
   /** The confidence as the messages print it (the options are fixed). */
@@ -240,11 +261,18 @@ export class PreparedReconciliation {
     this.scaleWork = new Float64Array(n);
     this.qrB = newQrWork(n);
     this.qrG = newQrWork(M);
+    this.nullWork = new Float64Array(Math.max(1, n * n));
+    this.followWork = new Float64Array(Math.max(1, n * n));
+    this.multiplierWork = new Float64Array(M);
+    this.basicWork = new Int32Array(n);
+    this.coordinateWork = new Float64Array(M);
     for (let j = 0; j < n; j++) {
       this.lower[j] = vars[j].lower ?? -Infinity;
       this.upper[j] = vars[j].upper ?? Infinity;
     }
     this.structure = this.issues.length === 0 && this.options.structured !== false ? StructuredSteps.build(problem, this.options.rankTolerance) : undefined;
+    this.curvature = this.issues.length === 0 && this.options.secondOrder !== false ? CurvatureStep.build(problem, n) : undefined;
+    if (this.curvature) this.curvature.below = this.options.stepTolerance;
     const pat = this.issues.length === 0 && cons.jacobian && cons.pattern ? cons.pattern() : undefined;
     this.pattern = pat && pat.start.length === m + 1 && pat.index.every((j) => j >= 0 && j < n) ? pat : undefined;
     const self = this;
@@ -269,6 +297,7 @@ export class PreparedReconciliation {
   solve(snapshot: Snapshot = {}): ReconcileResult {
     this.evaluations = 0;
     this.jacobians = 0;
+    this.lastNorms = undefined;
     const issues = [...this.issues];
     this.load(snapshot, issues);
     if (issues.length > 0) return this.invalid(issues);
@@ -353,7 +382,9 @@ export class PreparedReconciliation {
         x.set(this.xBase);
         return this.notConverged(iterations, history, this.nonFiniteMessage(`after iteration ${iterations}`));
       }
-      const { scaled } = this.residualNorms();
+      const norms = this.residualNorms();
+      this.lastNorms = norms;
+      const { scaled } = norms;
       let activeCount = 0;
       for (let j = 0; j < n; j++) if (active[j] !== 0) activeCount++;
       history.push({ iteration: iterations, objective, residual: scaled, step: info.step, stepLength: alpha, activeBounds: activeCount });
@@ -394,13 +425,13 @@ export class PreparedReconciliation {
     const vars = this.problem.variables;
     const { n } = this;
     const before = issues.length;
-    const unmeasured = new Set(snapshot.unmeasured ?? []);
+    const unmeasured = snapshot.unmeasured && snapshot.unmeasured.length > 0 ? new Set(snapshot.unmeasured) : NONE;
     for (const j of unmeasured) {
       if (!Number.isInteger(j) || j < 0 || j >= n) issues.push(`snapshot: unmeasured index ${j} is not a variable index (0..${n - 1})`);
     }
-    for (const [key, arr] of [['values', snapshot.values], ['sigmas', snapshot.sigmas], ['start', snapshot.start]] as const) {
-      if (arr && arr.length !== n) issues.push(`snapshot: ${key} has ${arr.length} entries, the problem has ${n} variables`);
-    }
+    sizeIssue(issues, 'values', snapshot.values, n);
+    sizeIssue(issues, 'sigmas', snapshot.sigmas, n);
+    sizeIssue(issues, 'start', snapshot.start, n);
     if (issues.length > before) return;
     let p = 0;
     let q = 0;
@@ -493,7 +524,7 @@ export class PreparedReconciliation {
    */
   private linearStep(): StepInfo {
     if (this.structure && this.p > 0 && !this.anyActive()) {
-      const s = this.structure.step(this.structuredState, this.options.rankTolerance);
+      const s = this.structure.step(this.structuredState, this.options.rankTolerance, this.trialStep ? undefined : this.curvature);
       if (s) {
         this.lastStructured = true;
         return { rows: this.m, ...s };
@@ -570,6 +601,8 @@ export class PreparedReconciliation {
       for (let k = 0; k < rho; k++) s += Gt[i * ldG + k] * t[k];
       inconsistency = Math.max(inconsistency, Math.abs(s));
     }
+    // R_G's coordinates of zeta_GN, kept for the second-order step (this.vec is reused below).
+    if (this.curvature) for (let i = 0; i < rho; i++) this.coordinateWork[i] = t[i];
     const dx = this.dx;
     const zNew = this.QG; // scratch: first p entries (QG is formed later, in summarise)
     for (let k = 0; k < p; k++) zNew[k] = k < rho ? t[k] : 0;
@@ -590,6 +623,29 @@ export class PreparedReconciliation {
     }
     solveUpper(B, R, r, rhs);
     const permB = this.qrB.perm;
+    let stepGN = step;
+    for (let k = 0; k < r; k++) stepGN = Math.max(stepGN, Math.abs(rhs[k]));
+    if (this.curvature && !this.trialStep && p > rho && this.curvature.applies(stepGN) && this.wholeSecondOrder(M, r, rho, rhs, this.coordinateWork)) {
+      // dz = dz_GN + N u, dv_B = dv_GN - (R11^-1 Q1'A N) u.
+      const { u } = this.curvature;
+      const k = p - rho;
+      const { nullWork: N, followWork: X } = this;
+      for (let l = 0; l < p; l++) {
+        let s = 0;
+        for (let c = 0; c < k; c++) s += N[c * p + l] * u[c];
+        z[l] += s;
+      }
+      for (let b = 0; b < r; b++) {
+        let s = 0;
+        for (let c = 0; c < k; c++) s += X[c * r + b] * u[c];
+        rhs[b] -= s;
+      }
+      step = 0;
+      for (let l = 0; l < p; l++) {
+        step = Math.max(step, Math.abs(z[l]));
+        dx[meas[l]] = z[l] * sigma[meas[l]];
+      }
+    }
     for (let k = 0; k < q; k++) dx[unmeas[permB[k]]] = 0;
     for (let k = 0; k < r; k++) {
       const j = unmeas[permB[k]];
@@ -597,6 +653,87 @@ export class PreparedReconciliation {
       step = Math.max(step, Math.abs(rhs[k]));
     }
     return { rows: M, rankB: r, rankG: rho, step, inconsistency, gScale };
+  }
+
+  /** Null space of G (N, p x (p - rho), column c at c * p) and R11^-1 Q1'A N (r x (p - rho), column c at c * r). */
+  private readonly nullWork: Float64Array;
+  private readonly followWork: Float64Array;
+  private readonly multiplierWork: Float64Array;
+  private readonly basicWork: Int32Array;
+  private readonly coordinateWork: Float64Array;
+
+  /**
+   * The second-order correction (curvature.ts) of the whole step just made, into curvature.u:
+   * the steps that meet the linearised balances are dz = dz_GN + N u with N an orthonormal basis
+   * of the null space of G (the last p - rho columns of Q_G), the basic unmeasured variables
+   * following by R11 dv_B = -(Q1'c + Q1'A dz); |zeta|^2 = |zeta_GN|^2 + |u|^2, so H0 = I.
+   * Multipliers (scaled rows): lambda~ = Q_B [0; eta] with G' eta = -zeta_GN (from G' P = Q_G R_G:
+   * R11 (P' eta)[0:rho] = -t, the rest zero), lambda_i = lambda~_i / rowScale_i.
+   * dvB: the basic unmeasured steps (r entries); t: R_G's coordinates of zeta_GN (rho entries;
+   * overwritten). z holds dz_GN.
+   */
+  private wholeSecondOrder(M: number, r: number, rho: number, dvB: Float64Array, t: Float64Array): boolean {
+    const cv = this.curvature!;
+    const { n, m, p, A, B, Gt, z, sigma, typical, isMeasured, position, rowScale } = this;
+    const R = this.maxRows;
+    const ldG = n;
+    const k = p - rho;
+    const { nullWork: N, followWork: X, multiplierWork: lt } = this;
+    // Multipliers.
+    for (let i = 0; i < rho; i++) t[i] = -t[i];
+    solveUpper(Gt, ldG, rho, t);
+    lt.fill(0, 0, M);
+    const permG = this.qrG.perm;
+    for (let i = 0; i < rho; i++) lt[r + permG[i]] = t[i];
+    applyQ(B, M, R, this.qrB.beta, r, lt);
+    const lambda = cv.lambda;
+    for (let i = 0; i < m; i++) lambda[i] = lt[i] / rowScale[i];
+    // N and X = R11^-1 (Q1'A) N.
+    for (let c = 0; c < k; c++) {
+      const o = c * p;
+      N.fill(0, o, o + p);
+      N[o + rho + c] = 1;
+      applyQ(Gt, p, ldG, this.qrG.beta, rho, N, o);
+      const ox = c * r;
+      X.fill(0, ox, ox + r);
+      for (let l = 0; l < p; l++) {
+        const nl = N[o + l];
+        if (nl === 0) continue;
+        const ol = l * R;
+        for (let b = 0; b < r; b++) X[ox + b] += A[ol + b] * nl;
+      }
+      solveUpper(B, R, r, X, ox);
+    }
+    // Rows of E, steps and scales of the variables in a product.
+    const basicOf = this.basicWork;
+    basicOf.fill(-1, 0, this.q);
+    const permB = this.qrB.perm;
+    for (let b = 0; b < r; b++) basicOf[permB[b]] = b;
+    const { E, alpha, scale, ld, curved } = cv;
+    for (let sl = 0; sl < curved.length; sl++) {
+      const v = curved[sl];
+      const o = sl * ld;
+      const pos = position[v];
+      if (isMeasured[v]) {
+        for (let c = 0; c < k; c++) E[o + c] = N[c * p + pos];
+        alpha[sl] = z[pos];
+        scale[sl] = sigma[v];
+      } else {
+        const b = basicOf[pos];
+        scale[sl] = typical[v];
+        if (b < 0) {
+          E.fill(0, o, o + k);
+          alpha[sl] = 0;
+        } else {
+          for (let c = 0; c < k; c++) E[o + c] = -X[c * r + b];
+          alpha[sl] = dvB[b];
+        }
+      }
+    }
+    const H = cv.H;
+    H.fill(0, 0, k * k);
+    for (let c = 0; c < k; c++) H[c * k + c] = 1;
+    return cv.solve(k);
   }
 
   /**
@@ -611,6 +748,22 @@ export class PreparedReconciliation {
    * are consistent, the single release whose variable moves furthest inside (or least outside).
    */
   private releaseBounds(forConsistency = false): number {
+    this.trialStep = true;
+    try {
+      return this.releaseTrials(forConsistency);
+    } finally {
+      this.trialStep = false;
+    }
+  }
+
+  /**
+   * Whether the steps made now are trials of releaseBounds: they take no second-order correction
+   * (they only tell which way a released variable would move, and whether the system is
+   * consistent; the iteration then steps with the correction).
+   */
+  private trialStep = false;
+
+  private releaseTrials(forConsistency: boolean): number {
     const { n, active, options } = this;
     this.saveStep();
     let best = -1;
@@ -986,7 +1139,8 @@ export class PreparedReconciliation {
         }
       }
     }
-    const norms = this.residualNorms();
+    // The residual at this x, as the last iteration measured it (c, J and x have not changed since).
+    const norms = this.lastNorms ?? this.residualNorms();
     const status = rho === 0 ? 'not-redundant' : 'reconciled';
     const pct = (this.confidenceText ??= `${+(confidence * 100).toPrecision(4)} %`);
     const message =

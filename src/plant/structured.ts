@@ -40,7 +40,8 @@
  * Cost on the ammonia demo (49 variables, 41 balances, 15 readings): QR of 25 x 18 and 15 x 8 per
  * step, against 41 x 34 plus Q' applied to 15 columns for the whole one.
  */
-import { applyQ, applyQt, newQrWork, qrPivoted, solveUpper, type QrWork } from './dense.js';
+import { applyQ, applyQt, newQrWork, qrPivoted, solveUpper, solveUpperTransposed, type QrWork } from './dense.js';
+import type { CurvatureStep } from './curvature.js';
 import type { ReconciliationProblem } from './types.js';
 
 /** What a step reads from the engine (its per-solve buffers; the engine owns them). */
@@ -127,6 +128,21 @@ export class StructuredSteps {
   private readonly followWork: Float64Array;
   private readonly sizeWork: Float64Array;
   private readonly nvWork: Float64Array;
+  // Second-order steps (curvature.ts): the row of each reading's equation and its coefficient
+  // a_j, the rows of S and their scales, C~ before its factorisation, positions in the pivots.
+  private readonly rowI: Int32Array;
+  private readonly aI: Float64Array;
+  private readonly rowS: Int32Array;
+  private readonly scaleS: Float64Array;
+  private readonly CtCopy: Float64Array;
+  private readonly posS: Int32Array;
+  private readonly posC: Int32Array;
+  private readonly mu: Float64Array;
+  private readonly eWork: Float64Array;
+  private readonly unitWork: Int32Array;
+  private readonly kCol: Int32Array;
+  private readonly lnF: Int32Array;
+  private readonly kVal: Float64Array;
   // Shape of the last step.
   private f = 0;
   private rS = 0;
@@ -251,6 +267,19 @@ export class StructuredSteps {
     this.followWork = new Float64Array(Math.max(1, n * n));
     this.sizeWork = new Float64Array(n);
     this.nvWork = new Float64Array(n);
+    this.rowI = new Int32Array(n);
+    this.aI = new Float64Array(n);
+    this.rowS = new Int32Array(m);
+    this.scaleS = new Float64Array(m);
+    this.CtCopy = new Float64Array(n * n);
+    this.posS = new Int32Array(n);
+    this.posC = new Int32Array(n);
+    this.mu = new Float64Array(Math.max(m, n));
+    this.eWork = new Float64Array(n * n);
+    this.unitWork = new Int32Array(n);
+    this.kCol = new Int32Array(n);
+    this.lnF = new Int32Array(n);
+    this.kVal = new Float64Array(n);
   }
 
   /** Rows eliminated once per problem (the linear balances), for the record. */
@@ -263,7 +292,7 @@ export class StructuredSteps {
    * row with a zero coefficient on its own variable): the caller then factorises the whole system.
    * The caller makes sure that no bound is held and that p >= 1.
    */
-  step(st: StructuredState, rankTolerance: number): StructuredStepInfo | undefined {
+  step(st: StructuredState, rankTolerance: number, curvature?: CurvatureStep): StructuredStepInfo | undefined {
     const { n, m, mL, rL, nLN, Lrows, Lscale, QL, KL, lbOf, lnVar, lbVar, owner, rowStart, rowIndex, F, colF, vAll, S, rhsS, C, d, Ct } = this;
     const { p, q, J, c, x, y, sigma, typical, meas, unmeas, isMeasured, position, dx } = st;
     // L: the particular solution of the linear rows.
@@ -284,6 +313,8 @@ export class StructuredSteps {
     }
     for (let k = 0; k < p; k++) colF[meas[k]] = -1;
     // Rows I (into C, column-major, leading dimension n) and S (into S, leading dimension m).
+    const lnF = this.lnF;
+    for (let cc = 0; cc < nLN; cc++) lnF[cc] = colF[lnVar[cc]];
     C.fill(0, 0, f * n);
     S.fill(0, 0, f * m);
     let mS = 0;
@@ -312,7 +343,7 @@ export class StructuredSteps {
           const kb = b * nLN;
           for (let cc = 0; cc < nLN; cc++) {
             const kv = KL[kb + cc];
-            if (kv !== 0) target[colF[lnVar[cc]] * ld + r] -= e * kv;
+            if (kv !== 0) target[lnF[cc] * ld + r] -= e * kv;
           }
         } else target[colF[v] * ld + r] += e;
       }
@@ -320,12 +351,16 @@ export class StructuredSteps {
         if (!(a !== 0 && Number.isFinite(a))) return undefined;
         for (let col = 0; col < f; col++) C[col * n + r] /= a;
         d[r] = (x[j] - y[j]) / sigma[j] + rhs / a;
+        this.rowI[r] = i;
+        this.aI[r] = a;
       } else {
         let s = 0;
         for (let col = 0; col < f; col++) s = Math.max(s, Math.abs(S[col * m + r]));
         if (s === 0) s = 1;
         for (let col = 0; col < f; col++) S[col * m + r] /= s;
         rhsS[r] = rhs / s;
+        this.rowS[r] = i;
+        this.scaleS[r] = s;
       }
     }
     // S: pivoted QR, particular solution and K_S = R11^-1 R12 (column c at c * n).
@@ -348,15 +383,25 @@ export class StructuredSteps {
       solveUpper(S, m, rS, KS, o);
     }
     // C~ = C[:, SN] - C[:, SB] K_S and d~ = d - C[:, SB] p_S.
+    // Entry by entry, the non-zero terms of K_S's column in order (the same sums as column by column).
+    const kCol = this.kCol;
+    const kVal = this.kVal;
+    const copy = curvature ? this.CtCopy : undefined;
     for (let cc = 0; cc < kN; cc++) {
       const o = cc * n;
       const src = permS[rS + cc] * n;
-      for (let k = 0; k < p; k++) Ct[o + k] = C[src + k];
+      let nk = 0;
       for (let b = 0; b < rS; b++) {
         const ks = KS[o + b];
         if (ks === 0) continue;
-        const cb = permS[b] * n;
-        for (let k = 0; k < p; k++) Ct[o + k] -= C[cb + k] * ks;
+        kCol[nk] = permS[b] * n;
+        kVal[nk++] = ks;
+      }
+      for (let k = 0; k < p; k++) {
+        let v = C[src + k];
+        for (let t = 0; t < nk; t++) v -= C[kCol[t] + k] * kVal[t];
+        Ct[o + k] = v;
+        if (copy) copy[o + k] = v;
       }
     }
     for (let b = 0; b < rS; b++) {
@@ -383,6 +428,35 @@ export class StructuredSteps {
     const vFN = this.vFN;
     vFN.fill(0, 0, kN);
     for (let k = 0; k < rC; k++) vFN[permC[k]] = w[k];
+    this.f = f;
+    this.rS = rS;
+    this.kN = kN;
+    this.rC = rC;
+    this.p = p;
+    let step = this.back(st);
+    if (curvature && rC > 0 && curvature.applies(step) && this.secondOrder(st, curvature, mS)) {
+      // zeta = Q_C [w1 - R11 (u_GN + du) ; w2] = zeta_GN - C~_B du, and the unmeasured from u_GN + du.
+      const du = curvature.u;
+      for (let k = 0; k < rC; k++) {
+        let s = 0;
+        for (let l = k; l < rC; l++) s += Ct[l * n + k] * du[l];
+        zeta[k] = -s;
+        vFN[permC[k]] += du[k];
+      }
+      for (let k = rC; k < p; k++) zeta[k] = w[k];
+      applyQ(Ct, p, n, this.qrC.beta, rC, zeta);
+      step = this.back(st);
+    }
+    return { rankB: rL + rS + rC, rankG: p - rC, step, inconsistency, gScale };
+  }
+
+  /** vAll and st.dx from vFN (the basic columns of C~; the free ones zero) and zeta; returns the largest scaled step. */
+  private back(st: StructuredState): number {
+    const { n, rL, nLN, KL, lnVar, lbVar, F, vAll, KS, vFN, zeta } = this;
+    const { rS, kN, p } = this;
+    const { q, x, y, sigma, typical, meas, unmeas, dx } = st;
+    const { pS, pL } = this;
+    const permS = this.qrS.perm;
     for (let cc = 0; cc < kN; cc++) vAll[F[permS[rS + cc]]] = vFN[cc];
     for (let b = 0; b < rS; b++) {
       let s = pS[b];
@@ -407,12 +481,104 @@ export class StructuredSteps {
       dx[u] = vAll[u] * typical[u];
       step = Math.max(step, Math.abs(vAll[u]));
     }
-    this.f = f;
-    this.rS = rS;
-    this.kN = kN;
-    this.rC = rC;
-    this.p = p;
-    return { rankB: rL + rS + rC, rankG: p - rC, step, inconsistency, gScale };
+    return step;
+  }
+
+  /**
+   * The second-order correction of the last Gauss-Newton step (curvature.ts) into cv.u, in the
+   * coordinates of the basic columns of C~; false when there is none to take.
+   * Multipliers: an instrument's row from its reading's stationarity, zeta_j + lambda_i a_j = 0;
+   * the rows of S from that of the free unmeasured columns, S' mu = C' zeta (min-norm mu by the
+   * QR of S), lambda_i = mu_r / s_r. Null space: u moves the basic columns of C~; the basic ones
+   * of S and L follow through K_S and K_L, the readings through -C~. H0 = R11' R11.
+   */
+  private secondOrder(st: StructuredState, cv: CurvatureStep, mS: number): boolean {
+    const { n, m, nLN, KL, lnVar, lbOf, colF, C, Ct, CtCopy, KS, zeta, vAll, posS, posC, mu, eWork } = this;
+    const { f, rS, kN, rC, p } = this;
+    const { x, y, sigma, typical, isMeasured, position } = st;
+    const permS = this.qrS.perm;
+    const permC = this.qrC.perm;
+    const lambda = cv.lambda;
+    lambda.fill(0);
+    for (let k = 0; k < p; k++) lambda[this.rowI[k]] = -zeta[k] / this.aI[k];
+    if (mS > 0 && rS > 0) {
+      for (let b = 0; b < rS; b++) {
+        const o = permS[b] * n;
+        let s = 0;
+        for (let k = 0; k < p; k++) s += C[o + k] * zeta[k];
+        mu[b] = s;
+      }
+      solveUpperTransposed(this.S, m, rS, mu);
+      for (let r = rS; r < mS; r++) mu[r] = 0;
+      applyQ(this.S, mS, m, this.qrS.beta, rS, mu);
+      for (let r = 0; r < mS; r++) lambda[this.rowS[r]] = mu[r] / this.scaleS[r];
+    }
+    for (let b = 0; b < f; b++) posS[permS[b]] = b;
+    for (let k = 0; k < kN; k++) posC[permC[k]] = k;
+    const { E, alpha, scale, ld, curved } = cv;
+    // Rows of E of the unmeasured columns of S's stage (column c at c * rC): a basic column of C~
+    // moves with its own u, a free one is held, a basic one of S follows through -K_S.
+    // unitOf: the basic column of C~ a column of S's stage is (its row of E is e_k), -2 a free
+    // one (zero), -1 a basic one of S (a row of -K_S).
+    const EF = eWork;
+    const unitOf = this.unitWork;
+    for (let c = 0; c < f; c++) {
+      const b = posS[c];
+      const o = c * rC;
+      unitOf[c] = -1;
+      if (b >= rS) {
+        EF.fill(0, o, o + rC);
+        const k = posC[b - rS];
+        if (k < rC) EF[o + k] = 1;
+        unitOf[c] = k < rC ? k : -2;
+      } else {
+        for (let k = 0; k < rC; k++) EF[o + k] = -KS[permC[k] * n + b];
+      }
+    }
+    for (let sl = 0; sl < curved.length; sl++) {
+      const v = curved[sl];
+      const o = sl * ld;
+      if (isMeasured[v]) {
+        const r = position[v];
+        for (let k = 0; k < rC; k++) E[o + k] = -CtCopy[permC[k] * n + r];
+        alpha[sl] = zeta[r] - (x[v] - y[v]) / sigma[v];
+        scale[sl] = sigma[v];
+        continue;
+      }
+      alpha[sl] = vAll[v];
+      scale[sl] = typical[v];
+      const b = lbOf[v];
+      if (b < 0) {
+        const of = colF[v] * rC;
+        for (let k = 0; k < rC; k++) E[o + k] = EF[of + k];
+        continue;
+      }
+      E.fill(0, o, o + rC);
+      for (let cc = 0; cc < nLN; cc++) {
+        const kv = KL[b * nLN + cc];
+        if (kv === 0) continue;
+        const c = colF[lnVar[cc]];
+        const unit = unitOf[c];
+        if (unit >= 0) {
+          E[o + unit] -= kv;
+          continue;
+        }
+        if (unit === -2) continue;
+        const of = c * rC;
+        for (let k = 0; k < rC; k++) E[o + k] -= kv * EF[of + k];
+      }
+    }
+    // H0 = R11' R11 (row-major, leading dimension rC).
+    const H = cv.H;
+    for (let a = 0; a < rC; a++) {
+      for (let b = 0; b <= a; b++) {
+        let s = 0;
+        for (let i = 0; i <= b; i++) s += Ct[a * n + i] * Ct[b * n + i];
+        H[a * rC + b] = s;
+        H[b * rC + a] = s;
+      }
+    }
+    return cv.solve(rC);
   }
 
   /**

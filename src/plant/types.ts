@@ -52,6 +52,21 @@ export interface PlantConstraints {
    * (reconcile.ts, structured.ts); without it every step is factorised whole.
    */
   pattern?(): ConstraintPattern;
+  /**
+   * Optional second-order terms: row[t] holds coef[t] x a[t] x x b[t] (a[t] may equal b[t]), and
+   * every other term of every row is linear, so that these give the balances' second
+   * derivatives exactly. With them (and an analytic Jacobian) each step includes the curvature of
+   * the balances weighted by their multipliers (reconcile.ts, curvature.ts); without them each
+   * step is Gauss-Newton.
+   */
+  products?(): ConstraintProducts;
+}
+
+export interface ConstraintProducts {
+  row: Int32Array;
+  a: Int32Array;
+  b: Int32Array;
+  coef: Float64Array;
 }
 
 export interface ConstraintPattern {
@@ -83,7 +98,7 @@ export interface Snapshot {
 }
 
 export interface ReconcileOptions {
-  /** Gauss-Newton iterations (default 50). */
+  /** Iterations, each a linearised step (default 50). */
   maxIterations?: number;
   /** Converged when the last step is at most this, measured in sigmas for measured variables
    *  and in typical magnitudes for unmeasured ones (default 1e-8)... */
@@ -105,6 +120,14 @@ export interface ReconcileOptions {
    * step whole (the reference the structured steps are tested against).
    */
   structured?: boolean;
+  /**
+   * Second-order steps where the balances state their products (PlantConstraints.products;
+   * default true): each step minimises the quadratic model of the Lagrangian (the curvature of
+   * the bilinear balances weighted by their multipliers) instead of the readings' term alone, so
+   * that a bilinear problem converges quadratically rather than linearly. The answer is the same
+   * to the step tolerance; false takes Gauss-Newton steps.
+   */
+  secondOrder?: boolean;
 }
 
 export type ReconcileStatus = 'reconciled' | 'not-redundant' | 'not-converged' | 'invalid';
