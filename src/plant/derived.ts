@@ -37,14 +37,22 @@ interface ResultScratch {
 }
 
 /**
- * One work space, for the result last asked about (estimates of one result come together); made
- * again, in the same buffers, for another result.
+ * The caller's work space for derived figures (a plant keeps one): it serves the result last
+ * asked about (estimates of one result come together) and is made again, in the same buffers,
+ * for another result.
  */
-let scratch: (ResultScratch & { result: ReconcileResult | undefined }) | undefined;
+export interface DerivedWork {
+  scratch: (ResultScratch & { result: ReconcileResult | undefined }) | undefined;
+}
 
-function scratchFor(result: ReconcileResult): ResultScratch {
+export function newDerivedWork(): DerivedWork {
+  return { scratch: undefined };
+}
+
+function scratchFor(result: ReconcileResult, work: DerivedWork): ResultScratch {
   const n = result.x.length;
   const N = result.covariance.indices.length;
+  let scratch = work.scratch;
   if (scratch && scratch.result === result) return scratch;
   if (!scratch || scratch.x.length < n || scratch.sd.length < N) {
     const nn = Math.max(n, scratch?.x.length ?? 0);
@@ -53,6 +61,7 @@ function scratchFor(result: ReconcileResult): ResultScratch {
       result: undefined, x: new Float64Array(nn), positionOf: new Int32Array(nn), sd: new Float64Array(NN), sdDone: new Uint8Array(NN),
       grad: new Float64Array(NN), positions: new Int32Array(NN), nz: new Int32Array(NN),
     };
+    work.scratch = scratch;
   }
   const s = scratch;
   s.result = undefined;
@@ -71,14 +80,14 @@ function scratchFor(result: ReconcileResult): ResultScratch {
  * Value and standard uncertainty of f(x) at a reconciled result (status reconciled or not-redundant).
  * `reads`, when given, holds every variable index f can read (more is harmless): the derivatives
  * of the others are exactly zero (f cannot tell their change), so they are not differenced, and
- * the answer is the same to the last bit.
+ * the answer is the same to the last bit. `work`: the caller's work space (a fresh one when absent).
  */
-export function derivedEstimate(result: ReconcileResult, f: (x: Float64Array) => number, reads?: ArrayLike<number>): DerivedEstimate {
+export function derivedEstimate(result: ReconcileResult, f: (x: Float64Array) => number, reads?: ArrayLike<number>, work: DerivedWork = newDerivedWork()): DerivedEstimate {
   if (result.status !== 'reconciled' && result.status !== 'not-redundant') {
     return { value: null, uncertainty: null, sensitivities: [], note: `no estimate: the reconciliation is ${result.status}` };
   }
   const grad = new Float64Array(result.covariance.indices.length);
-  const r = estimate(result, f, reads, grad);
+  const r = estimate(result, f, reads, grad, work);
   if (r.value === null) {
     return { value: null, uncertainty: null, sensitivities: [], note: 'not determined: it depends on an unobservable variable (or is not finite at the solution)' };
   }
@@ -93,14 +102,14 @@ export function derivedEstimate(result: ReconcileResult, f: (x: Float64Array) =>
  * The value and standard uncertainty of derivedEstimate, the same figures, without the
  * sensitivities (for the many figures of every row of a historian export).
  */
-export function derivedFigure(result: ReconcileResult, f: (x: Float64Array) => number, reads?: ArrayLike<number>): { value: number | null; uncertainty: number | null } {
+export function derivedFigure(result: ReconcileResult, f: (x: Float64Array) => number, reads: ArrayLike<number> | undefined, work: DerivedWork): { value: number | null; uncertainty: number | null } {
   if (result.status !== 'reconciled' && result.status !== 'not-redundant') return { value: null, uncertainty: null };
-  return estimate(result, f, reads, scratchFor(result).grad);
+  return estimate(result, f, reads, scratchFor(result, work).grad, work);
 }
 
 /** f and its uncertainty; grad (one entry per covariance position) receives the derivatives of the positions differenced. */
-function estimate(result: ReconcileResult, f: (x: Float64Array) => number, reads: ArrayLike<number> | undefined, grad: Float64Array): { value: number | null; uncertainty: number | null } {
-  const scratch = scratchFor(result);
+function estimate(result: ReconcileResult, f: (x: Float64Array) => number, reads: ArrayLike<number> | undefined, grad: Float64Array, work: DerivedWork): { value: number | null; uncertainty: number | null } {
+  const scratch = scratchFor(result, work);
   const x = scratch.x;
   const value = f(x);
   if (!Number.isFinite(value)) return { value: null, uncertainty: null };

@@ -29,7 +29,7 @@ import type { StandardRef } from '../units/index.js';
 import { meterFlowBudget, type FlowBudget, type FlowBudgetResult } from './budget.js';
 import { meterEosFor } from '../thermo/meter-eos.js';
 import { standardUncertainty, type InstrumentDecl } from './declarations.js';
-import { derivedFigure } from './derived.js';
+import { derivedFigure, newDerivedWork } from './derived.js';
 import { buildNetwork, flowOf, streamVariables, totalOf, type Network, type StreamVars } from './network.js';
 import { prepareReconciliation, type PreparedReconciliation } from './reconcile.js';
 import { serialElimination } from './serial.js';
@@ -168,6 +168,8 @@ export class PlantReconciliation {
 
   /** The figures that are parameters of the file: their value in the file. */
   private readonly fileParameters = new Map<string, { value: number; unit: string }>();
+  /** Work space of the derived figures (totals, fitted figures) of the row being described. */
+  private readonly derivedWork = newDerivedWork();
 
   /** Mole fractions of a stream at x (the design's where x does not determine them). */
   composition(s: StreamVars, x: Float64Array | undefined): Float64Array {
@@ -414,7 +416,7 @@ export class PlantReconciliation {
           const comp = this.composition(s, x && Number.isFinite(totalOf(s, x)) ? x : undefined);
           let MW = 0;
           for (let i = 0; i < comp.length; i++) MW += comp[i] * this.model.components[i].MW;
-          const tot = ok ? derivedFigure(res, (xx) => totalOf(s, xx), this.variablesOf(s)) : { value: null, uncertainty: null };
+          const tot = ok ? derivedFigure(res, (xx) => totalOf(s, xx), this.variablesOf(s), this.derivedWork) : { value: null, uncertainty: null };
           rep.molarFlow = { measured: measured === null ? null : measured / MW, reconciled: tot.value, sigma: sigma === null ? null : sigma / MW, reconciledSigma: tot.uncertainty };
         } else {
           rep.molarFlow = { measured, reconciled: recon, sigma, reconciledSigma: rsig };
@@ -468,7 +470,7 @@ export class PlantReconciliation {
       const isParameter = fp !== undefined;
       const unit = fp ? fp.unit : fig.unit;
       // Differenced only in the variables the figure reads at the solution (the others' derivatives are exactly zero).
-      const d = ok ? derivedFigure(res, (x) => fig.value(x), fig.readsAt(res.x)) : { value: null, uncertainty: null };
+      const d = ok ? derivedFigure(res, (x) => fig.value(x), fig.readsAt(res.x), this.derivedWork) : { value: null, uncertainty: null };
       // A figure of a component that is not there at all (0 / 0) is left out.
       if (d.value === null && !isParameter && ok && !Number.isFinite(fig.value(Float64Array.from(this.network.start)))) continue;
       // Two literal shapes rather than a spread (the same keys in the same order).
@@ -483,7 +485,7 @@ export class PlantReconciliation {
     }
     for (const [name, s] of this.network.streams) {
       if (metered.has(name)) continue;
-      const d = ok ? derivedFigure(res, (x) => totalOf(s, x), this.variablesOf(s)) : { value: null, uncertainty: null };
+      const d = ok ? derivedFigure(res, (x) => totalOf(s, x), this.variablesOf(s), this.derivedWork) : { value: null, uncertainty: null };
       report.unmeasured[this.totalKey(name)] = d.value !== null
         ? { value: d.value, sigma: d.uncertainty, observable: true }
         : { value: d.value, sigma: d.uncertainty, observable: false, reason: ok ? 'not observable: the readings and balances do not determine it' : `no reconciliation (${res.status})` };
