@@ -241,8 +241,9 @@ export const compressor: BlockDef<CompressorSpec> = {
  */
 function vaporAtEntropy(eos: Eos, P: number, s: number, T0: number, z: Float64Array): { T: number; h: number } | undefined {
   let T = T0;
+  const props = eosWork(eos, 'compressorIsentropic', newPhaseProperties);
   for (let k = 0; k < 30; k++) {
-    const p = phasePropertiesInto(eos, T, P, z, 'vapor', true, eosWork(eos, 'compressorIsentropic', newPhaseProperties));
+    const p = phasePropertiesInto(eos, T, P, z, 'vapor', true, props);
     if (p.root !== 'vapor' || !(p.Cp > 0)) return undefined;
     const r = p.S - s;
     if (Math.abs(r) <= 1e-10 * 8.314462618) return { T, h: p.H };

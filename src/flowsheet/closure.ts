@@ -91,7 +91,7 @@ export function closeBalance(
       // followed the path (on the generated 20-component trains, a separator's cold flash near
       // its dew point has been seen not to converge where the warm one does). The caller starts
       // again that way.
-      const energyLate = deferred && first.status === 'converged' && (result.status !== 'converged' || conditions.some((c) => c.failure.kind === 'not-converged'));
+      const energyLate = deferred && first.status === 'converged' && (result.status !== 'converged' || flashFailed);
       return { result, balance, conditions, energyLate };
     }
     const tighter = 10 ** -(k + 1);

@@ -25,6 +25,7 @@
  * Gauss-Newton step is kept. The statistics at the solution (covariances, tests) are those of the
  * linearised balances as before: the second-order term changes only the path to the solution.
  */
+import { choleskySolve } from '../solve/linear.js';
 import type { ConstraintProducts, ReconciliationProblem } from './types.js';
 
 export class CurvatureStep {
@@ -168,31 +169,10 @@ export class CurvatureStep {
         for (let j = 0; j <= i; j++) H[o + j] += ai * g[j] + gi2 * E[ea + j];
       }
     }
-    // Cholesky H = L L' in place (lower triangle), then L L' u = rhs.
-    for (let j = 0; j < k; j++) {
-      let d = H[j * k + j];
-      for (let l = 0; l < j; l++) d -= H[j * k + l] * H[j * k + l];
-      if (!(d > 0)) {
-        u.fill(0, 0, k);
-        return false;
-      }
-      d = Math.sqrt(d);
-      H[j * k + j] = d;
-      for (let i = j + 1; i < k; i++) {
-        let s = H[i * k + j];
-        for (let l = 0; l < j; l++) s -= H[i * k + l] * H[j * k + l];
-        H[i * k + j] = s / d;
-      }
-    }
-    for (let i = 0; i < k; i++) {
-      let s = u[i];
-      for (let l = 0; l < i; l++) s -= H[i * k + l] * u[l];
-      u[i] = s / H[i * k + i];
-    }
-    for (let i = k - 1; i >= 0; i--) {
-      let s = u[i];
-      for (let l = i + 1; l < k; l++) s -= H[l * k + i] * u[l];
-      u[i] = s / H[i * k + i];
+    // H = L L' in place (lower triangle), then L L' u = rhs
+    if (!choleskySolve(H, k, u)) {
+      u.fill(0, 0, k);
+      return false;
     }
     for (let i = 0; i < k; i++) {
       if (!Number.isFinite(u[i])) {

@@ -191,3 +191,34 @@ export function solveDense(A: Float64Array, b: Float64Array, n: number, minPivot
   }
   return true;
 }
+
+/**
+ * Solves H u = b for a symmetric positive definite H (k x k, row-major, its lower triangle read),
+ * u holding b on entry: H is overwritten by its Cholesky factor L (H = L L', lower triangle).
+ * False, with u left as it was part-way, when a pivot is not positive (H not positive definite).
+ */
+export function choleskySolve(H: Float64Array, k: number, u: Float64Array): boolean {
+  for (let j = 0; j < k; j++) {
+    let d = H[j * k + j];
+    for (let l = 0; l < j; l++) d -= H[j * k + l] * H[j * k + l];
+    if (!(d > 0)) return false;
+    d = Math.sqrt(d);
+    H[j * k + j] = d;
+    for (let i = j + 1; i < k; i++) {
+      let s = H[i * k + j];
+      for (let l = 0; l < j; l++) s -= H[i * k + l] * H[j * k + l];
+      H[i * k + j] = s / d;
+    }
+  }
+  for (let i = 0; i < k; i++) {
+    let s = u[i];
+    for (let l = 0; l < i; l++) s -= H[i * k + l] * u[l];
+    u[i] = s / H[i * k + i];
+  }
+  for (let i = k - 1; i >= 0; i--) {
+    let s = u[i];
+    for (let l = i + 1; l < k; l++) s -= H[l * k + i] * u[l];
+    u[i] = s / H[i * k + i];
+  }
+  return true;
+}

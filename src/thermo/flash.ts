@@ -507,24 +507,15 @@ export function flashTPInto(eos: Eos, T: number, P: number, z: ArrayLike<number>
       return out;
     default:
       out.status = 'not-converged';
-      out.phase = 'two-phase';
-      out.beta = s.beta;
-      out.x.set(s.x);
-      out.y.set(s.y);
-      out.K.set(s.K);
-      out.iterations = iterations;
-      out.residual = o.residual;
-      out.evaluations = s.evaluations;
-      out.method = 'stability+split';
+      writeSplit(out, s, 'stability+split', o.residual, iterations);
       out.tpd = tpd;
       out.note = `the phase split did not converge in ${iterations} iterations (fugacity residual ${o.residual.toExponential(2)})`;
       return out;
   }
 }
 
-/** A converged two-phase answer from the work arrays. */
-function twoPhase(eos: Eos, T: number, P: number, out: FlashResult, s: SplitState, method: FlashResult['method'], residual: number, iterations: number): FlashResult {
-  out.status = 'converged';
+/** The split in the work arrays written into out: phase, beta, compositions, K and the counts. */
+function writeSplit(out: FlashResult, s: SplitState, method: FlashResult['method'], residual: number, iterations: number): void {
   out.phase = 'two-phase';
   out.beta = s.beta;
   out.x.set(s.x);
@@ -533,8 +524,14 @@ function twoPhase(eos: Eos, T: number, P: number, out: FlashResult, s: SplitStat
   out.iterations = iterations;
   out.residual = residual;
   out.method = method;
-  s.evaluations += 2;
   out.evaluations = s.evaluations;
+}
+
+/** A converged two-phase answer from the work arrays. */
+function twoPhase(eos: Eos, T: number, P: number, out: FlashResult, s: SplitState, method: FlashResult['method'], residual: number, iterations: number): FlashResult {
+  out.status = 'converged';
+  s.evaluations += 2;
+  writeSplit(out, s, method, residual, iterations);
   if (stableRootOf(eos, T, P, s.y) === 'liquid' && stableRootOf(eos, T, P, s.x) === 'liquid') {
     out.liquidLiquid = true;
     out.note = 'both phases are liquid-like: the model predicts a liquid-liquid split (check the k_ij of polar pairs such as water-methanol)';
