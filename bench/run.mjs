@@ -13,7 +13,7 @@ import { spawnSync } from 'node:child_process';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { cpus, loadavg, tmpdir } from 'node:os';
-import { fmt, logLogSlope, measure, median, processTime, table } from './timing.mjs';
+import { fmt, interleaved, linearSlope, logLogSlope, measure, median, processTime, table } from './timing.mjs';
 import { generateFlowsheet } from './generate.mjs';
 import { GERG_HEADER, measureGerg } from './gerg.mjs';
 import { EQUILIBRIUM_HEADER, measureEquilibrium } from './equilibrium.mjs';
@@ -188,25 +188,25 @@ if (only.has('energy') && lib.createRuntime) {
       }
     }
     const opts = quick ? reps : { ...reps, warmupMs: 1000 };
-    // interleaved: with, without, with, without... each figure the median over the rounds
-    const rounds = quick ? 1 : 5;
-    const a = [];
-    const b = [];
+    const withIt = () => lib.solveFlowsheet(model, {});
     let r;
     let r0;
-    for (let k = 0; k < rounds; k++) {
-      const w = measure(() => lib.solveFlowsheet(model, {}), k === 0 ? opts : { ...reps, warmupMs: 0 });
+    let ms;
+    let ms0 = Number.NaN;
+    let ratio = Number.NaN;
+    if (decoupled) {
+      // interleaved batches: with, without, with, without...; the ratio the median of theirs
+      const timed = interleaved(withIt, () => lib.solveFlowsheet(twin, {}), opts);
+      ({ ms } = timed.a);
+      r = timed.a.last;
+      r0 = timed.b.last;
+      ms0 = timed.b.ms;
+      ratio = 1 / timed.ratio;
+    } else {
+      const w = measure(withIt, opts);
+      ms = w.ms;
       r = w.last;
-      a.push(w.ms);
-      if (decoupled) {
-        const o = measure(() => lib.solveFlowsheet(twin, {}), k === 0 ? opts : { ...reps, warmupMs: 0 });
-        r0 = o.last;
-        b.push(o.ms);
-      }
     }
-    const ms = median(a);
-    const ms0 = decoupled ? median(b) : Number.NaN;
-    const ratio = decoupled ? ms / ms0 : Number.NaN;
     const same = decoupled && r0.status === r.status;
     out.energy.push({ flowsheet: d, status: r.status, passes: r.passes, ms, decoupled, without: decoupled ? { status: r0.status, passes: r0.passes, ms: ms0 } : undefined, ratio, met: decoupled ? ratio <= 3 && same : undefined });
     rows.push([d.replace('.yaml', ''), `${r.status} ${r.passes}`, fmt(ms), decoupled ? `${r0.status} ${r0.passes}` : '-', decoupled ? fmt(ms0) : '-',
@@ -262,27 +262,13 @@ if (only.has('equilibrium') && lib.prepareEquilibrium) {
     // per-batch ratios, so that the machine's drift cancels.
     const solveEq = () => lib.solveFlowsheet(eqModel);
     const solveFx = () => lib.solveFlowsheet(fixedModel, coupled ? { energyEveryPass: true } : {});
-    const warmA = measure(solveEq, { ...reps, batches: 1, warmupMs: quick ? 50 : 1000 });
-    const warmB = measure(solveFx, { ...reps, batches: 1, warmupMs: quick ? 50 : 1000 });
-    const e = warmA.last;
-    const f = warmB.last;
-    const tEq = [];
-    const tFx = [];
-    const ratios = [];
-    for (let b = 0; b < reps.batches; b++) {
-      let s = performance.now();
-      for (let k = 0; k < warmA.perBatch; k++) solveEq();
-      const a = (performance.now() - s) / warmA.perBatch;
-      s = performance.now();
-      for (let k = 0; k < warmB.perBatch; k++) solveFx();
-      const c = (performance.now() - s) / warmB.perBatch;
-      tEq.push(a);
-      tFx.push(c);
-      ratios.push(a / e.passes / (c / f.passes));
-    }
-    const msEq = median(tEq);
-    const msFx = median(tFx);
-    const ratio = median(ratios);
+    const timed = interleaved(solveEq, solveFx, { ...reps, warmupMs: quick ? 50 : 1000 });
+    const e = timed.a.last;
+    const f = timed.b.last;
+    const msEq = timed.a.ms;
+    const msFx = timed.b.ms;
+    // per pass, equilibrium over fixed: the passes are the same in every batch
+    const ratio = (1 / timed.ratio) * (f.passes / e.passes);
     const perPassEq = (msEq * 1000) / e.passes;
     const perPassFx = (msFx * 1000) / f.passes;
     out.equilibrium.loops.push({ flowsheet: pair.label, equilibrium: { status: e.status, passes: e.passes, ms: msEq, usPerPass: perPassEq }, fixed: { status: f.status, passes: f.passes, ms: msFx, usPerPass: perPassFx }, perPassRatio: ratio });
@@ -328,26 +314,11 @@ if (only.has('flash') && lib.flashPH) {
     };
     // Interleaved batches (TP, PH, TP, ...): the ratio is the median of the per-batch ratios,
     // so that the load of a shared machine cancels.
-    const tp = measure(tpCall, { ...reps, batches: 1 });
-    const ph = measure(phCall, { ...reps, batches: 1 });
-    const tTp = [];
-    const tPh = [];
-    const ratios = [];
-    for (let b = 0; b < reps.batches; b++) {
-      let s0 = performance.now();
-      for (let q = 0; q < tp.perBatch; q++) tpCall();
-      const a = (performance.now() - s0) / tp.perBatch;
-      s0 = performance.now();
-      for (let q = 0; q < ph.perBatch; q++) phCall();
-      const p = (performance.now() - s0) / ph.perBatch;
-      tTp.push(a);
-      tPh.push(p);
-      ratios.push(p / a);
-    }
-    const tpMs = median(tTp);
-    const phMs = median(tPh);
-    const ratio = median(ratios);
-    const r = ph.last;
+    const timed = interleaved(tpCall, phCall, reps);
+    const tpMs = timed.a.ms;
+    const phMs = timed.b.ms;
+    const ratio = timed.ratio;
+    const r = timed.b.last;
     out.flash.push({ label: c.label, tpMs, phMs, ratio, flashes: r.flashes, iterations: r.iterations });
     rows.push([c.label, fmt(tpMs * 1000), fmt(phMs * 1000), fmt(ratio), r.flashes, r.iterations, Math.abs(r.T - c.T) < 1e-3 ? 'same T' : `T off by ${fmt(r.T - c.T)} K`]);
   }
@@ -423,20 +394,8 @@ if (only.has('scaling')) {
   for (const method of seriesMethods) {
     series[method] = seriesN.map((N) => out.scaling.find((e) => e.N === N && e.C === 5 && e.method === method && e.condenser === 'split') ?? run(N, 5, 'split', method, { table: false }));
   }
-  const fitLogN = (es) => {
-    // passes = a + b ln N, least squares.
-    const lx = es.map((e) => Math.log(e.N));
-    const y = es.map((e) => e.passes);
-    const mx = lx.reduce((p, q) => p + q, 0) / lx.length;
-    const my = y.reduce((p, q) => p + q, 0) / y.length;
-    let num = 0;
-    let den = 0;
-    for (let k = 0; k < lx.length; k++) {
-      num += (lx[k] - mx) * (y[k] - my);
-      den += (lx[k] - mx) ** 2;
-    }
-    return num / den;
-  };
+  // passes = a + b ln N, least squares: b
+  const fitLogN = (es) => linearSlope(es.map((e) => Math.log(e.N)), es.map((e) => e.passes));
   const passRows = [];
   out.scalingPasses = {};
   for (const method of seriesMethods) {

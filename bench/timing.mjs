@@ -57,19 +57,47 @@ export function processTime(cmd, args, { runs = 11, warmup = 2, cwd } = {}) {
   return { ms: median(samples), samples, status };
 }
 
-/** Least-squares slope of log(y) against log(x). */
-export function logLogSlope(xs, ys) {
-  const lx = xs.map(Math.log);
-  const ly = ys.map(Math.log);
-  const mx = lx.reduce((a, b) => a + b, 0) / lx.length;
-  const my = ly.reduce((a, b) => a + b, 0) / ly.length;
+/**
+ * Two functions timed in interleaved batches (a, b, a, b...), each batch sized by its own
+ * warm-up, so that the load of a shared machine falls on both alike. Returns each one's median
+ * time per call (ms) and last value, and the median of the per-batch ratios b / a.
+ */
+export function interleaved(fa, fb, { warmupMs = 300, batchMs = 100, batches = 7 } = {}) {
+  const wa = measure(fa, { warmupMs, batchMs, batches: 1 });
+  const wb = measure(fb, { warmupMs, batchMs, batches: 1 });
+  const ta = [];
+  const tb = [];
+  const ratios = [];
+  for (let k = 0; k < batches; k++) {
+    let s = performance.now();
+    for (let q = 0; q < wa.perBatch; q++) fa();
+    const a = (performance.now() - s) / wa.perBatch;
+    s = performance.now();
+    for (let q = 0; q < wb.perBatch; q++) fb();
+    const b = (performance.now() - s) / wb.perBatch;
+    ta.push(a);
+    tb.push(b);
+    ratios.push(b / a);
+  }
+  return { a: { ms: median(ta), last: wa.last }, b: { ms: median(tb), last: wb.last }, ratio: median(ratios) };
+}
+
+/** Least-squares slope of y against x. */
+export function linearSlope(xs, ys) {
+  const mx = xs.reduce((a, b) => a + b, 0) / xs.length;
+  const my = ys.reduce((a, b) => a + b, 0) / ys.length;
   let num = 0;
   let den = 0;
-  for (let k = 0; k < lx.length; k++) {
-    num += (lx[k] - mx) * (ly[k] - my);
-    den += (lx[k] - mx) ** 2;
+  for (let k = 0; k < xs.length; k++) {
+    num += (xs[k] - mx) * (ys[k] - my);
+    den += (xs[k] - mx) ** 2;
   }
   return num / den;
+}
+
+/** Least-squares slope of log(y) against log(x). */
+export function logLogSlope(xs, ys) {
+  return linearSlope(xs.map(Math.log), ys.map(Math.log));
 }
 
 /** A number for a table: 3 significant digits, exponent form outside 1e-3..1e6. */
