@@ -531,7 +531,7 @@ console.log(JSON.stringify([t1 - t0, t2 - t1, t3 - t2, performance.now() - t4]))
 // 6. Plant data: one snapshot in-process (bench/reconcile.mjs: the engine on a 5-stream,
 //    4-element methanol loop; and the ammonia demo's rows through the plant layer, per row), and
 //    the demo's year of hourly rows (8,760) through the CLI, whole process: serial (wall and the
-//    process's CPU time, bench/cli-cpu.mjs) and with --jobs 2.
+//    process's CPU time, bench/cli-cpu.mjs), the same confined to one core, and with --jobs 2.
 // ---------------------------------------------------------------------------------------------
 if (only.has('plant')) {
   say('\n6. Plant data (reconciliation)');
@@ -557,13 +557,17 @@ if (only.has('plant')) {
   if (existsSync(year) && ammonia) {
     const runs = quick ? 1 : 3;
     const cpuScript = join(here, 'cli-cpu.mjs');
-    const timeYear = (extra) => {
+    // `pin`: the process confined to one core (taskset -c 0, where the system has it), so that
+    // V8's own threads (the collector's helpers, the optimising compiler) share that core with the
+    // rows instead of running beside them on the other: the aim's "on one core" taken literally.
+    const timeYear = (extra, pin = false) => {
       const wall = [];
       const cpu = [];
       let status = 0;
       for (let k = 0; k < runs; k++) {
         const t0 = performance.now();
-        const r = spawnSync(process.execPath, [cpuScript, cliPath, 'reconcile', demo, '--readings', year, ...extra], { stdio: ['ignore', 'ignore', 'pipe'], encoding: 'utf8' });
+        const argv = [cpuScript, cliPath, 'reconcile', demo, '--readings', year, ...extra];
+        const r = pin ? spawnSync('taskset', ['-c', '0', process.execPath, ...argv], { stdio: ['ignore', 'ignore', 'pipe'], encoding: 'utf8' }) : spawnSync(process.execPath, argv, { stdio: ['ignore', 'ignore', 'pipe'], encoding: 'utf8' });
         wall.push(performance.now() - t0);
         cpu.push(Number(/cpu-ms ([\d.]+)/.exec(r.stderr ?? '')?.[1]));
         status = r.status ?? -1;
@@ -571,6 +575,8 @@ if (only.has('plant')) {
       return { ms: median(wall), cpuMs: median(cpu), status };
     };
     const serial = timeYear([]);
+    const canPin = spawnSync('taskset', ['-c', '0', 'true']).status === 0;
+    const pinned = canPin ? timeYear([], true) : undefined;
     const jobs2 = timeYear(['--jobs', '2']);
     out.plant.yearMs = serial.ms;
     out.plant.yearCpuMs = serial.cpuMs;
@@ -578,8 +584,14 @@ if (only.has('plant')) {
     out.plant.yearJobs2Ms = jobs2.ms;
     out.plant.yearJobs2CpuMs = jobs2.cpuMs;
     rows.push(['8760 hourly rows of ammonia-loop-year.csv, whole process, serial (CSV to a pipe)', fmt(serial.ms, 5), fmt(serial.cpuMs, 5), '<= 5000', verdict(serial.ms, serial.cpuMs, 5000)]);
+    if (pinned) {
+      out.plant.yearOneCoreMs = pinned.ms;
+      out.plant.yearOneCoreCpuMs = pinned.cpuMs;
+      rows.push(['the same confined to one core (taskset -c 0)', fmt(pinned.ms, 5), fmt(pinned.cpuMs, 5), '<= 5000', verdict(pinned.ms, pinned.cpuMs, 5000)]);
+    } else rows.push(['the same confined to one core', 'not measured: no taskset on this system', '', '<= 5000', '']);
     rows.push(['the same with --jobs 2', fmt(jobs2.ms, 5), fmt(jobs2.cpuMs, 5), '', '']);
-    out.plant.yearAimMet = serial.ms <= 5000;
+    // The aim says "on one core": judged on the confined run where there is one.
+    out.plant.yearAimMet = (pinned ?? serial).ms <= 5000;
   }
   say(table(['case', 'wall ms', 'cpu ms', 'aim ms', 'aim'], rows));
   say(`load average ${loadavg()[0].toFixed(1)} on ${cpus().length} cores (wall times grow with the other processes' load)`);
