@@ -271,6 +271,20 @@ describe('distribution values wired to the stdlib packages', () => {
     expect(chiSquarePValue(7.8147, 3)).toBeCloseTo(0.05, 5);
   });
 
+  it('a gross error\'s tiny p-value keeps its digits: the even-dof chi-square tail in closed form', () => {
+    // For an even number of degrees of freedom 2m the upper tail is exp(-x/2) sum_{i<m} (x/2)^i / i!
+    // (Abramowitz and Stegun, Handbook of Mathematical Functions, 1964, eq. 26.4.21). 1 - cdf
+    // gives 0 for both and a multiple of 2^-52 near 1e-15.
+    expect(chiSquarePValue(100, 2) / Math.exp(-50)).toBeCloseTo(1, 12);
+    const h = 45;
+    const tail8 = Math.exp(-h) * (1 + h + (h * h) / 2 + (h * h * h) / 6);
+    expect(chiSquarePValue(90, 8) / tail8).toBeCloseTo(1, 12);
+    const h2 = 36;
+    const tail6 = Math.exp(-h2) * (1 + h2 + (h2 * h2) / 2);
+    expect(chiSquarePValue(72, 6) / tail6).toBeCloseTo(1, 12);
+    expect(chiSquarePValue(0, 4)).toBe(1);
+  });
+
   it('two-sided normal critical value at 5 % is 1.960 (NIST/SEMATECH e-Handbook, Sec. 1.3.6.7.1, normal table)', () => {
     expect(normalCritical(0.05)).toBeCloseTo(1.95996, 5);
   });
