@@ -157,8 +157,17 @@ export const compressor: BlockDef<CompressorSpec> = {
         let M = 0;
         for (let i = 0; i < n; i++) M += inState.z[i] * comps[i].MW;
         // The isentropic outlet: Newton on S(T) along the vapor root at P2 (a compressed gas
-        // is superheated); flashPS from scratch when that does not settle.
+        // is superheated, as a rule); flashPS from scratch when that does not settle, or when the
+        // vapor found there would condense. Compressed from its dew point, a vapor whose
+        // saturated-vapor entropy rises with T (n-hexane, the heavier hydrocarbons) lands inside
+        // the two-phase region: the isentropic state is then the equilibrium split at P2 with the
+        // inlet's entropy, not the supersaturated vapor of the vapor root.
         let iso = vaporAtEntropy(eos, P2, s1, s.T * Math.pow(P2 / P1, 0.25), inState.z);
+        if (iso) {
+          fail = isState.atTP(iso.T, P2, false);
+          if (fail || isState.found.phase !== 'vapor') iso = undefined;
+          fail = null;
+        }
         if (!iso) {
           const ps = isState.atPS(P2, s1, s.T * Math.pow(P2 / P1, 0.25));
           if (ps.failure) return ps.failure;

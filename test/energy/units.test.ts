@@ -14,6 +14,9 @@ import { parameter, withValues } from '../../src/study/parameters.js';
 import { parseOutput, outputValue } from '../../src/study/outputs.js';
 import { parseTarget, solvePoint } from '../../src/study/point.js';
 import { ROOT } from '../helpers/cli.js';
+import { findComponent } from '../../src/thermo/components.js';
+import { makeEos } from '../../src/thermo/eos.js';
+import { streamState } from '../../src/thermo/enthalpy.js';
 
 function solve(text: string): FlowsheetResult {
   return solveFlowsheet(validateText('energy.yaml', text).model);
@@ -149,6 +152,38 @@ describe('a loop with a recycle compressor and a reactor held three ways', () =>
     expect(r.status).toBe('invalid');
     expect(r.failure?.unit).toBe('circulator');
     expect(r.message).toMatch(/the inlet of compressor `circulator` is not all vapor: vapor fraction 0 /);
+  });
+
+  it('a vapor that compresses into its two-phase region: the isentropic outlet is the equilibrium split with the inlet\'s entropy, not a supersaturated vapor', () => {
+    // n-Hexane (0.1 % N2) at 80 degC and 1.2 bar, all vapor near its dew point, compressed 3:1. Its
+    // saturated vapor's entropy rises with T (a "dry" fluid), so the isentropic state at 3.6 bar is
+    // wet: by definition the state at P2 whose equilibrium entropy is the inlet's. Checked here with
+    // the TP flash of that state (streamState), independent of the compressor's own search. (An
+    // independent PR calculation made for this check gives 388.75 K, vapor fraction 0.909, and
+    // dh_s 3029.9 J/mol; the supersaturated vapor root had 375.79 K and 3069.3 J/mol.)
+    const text = `
+components: { nC6H14: {}, N2: {} }
+thermo: { eos: PR }
+feeds:
+  gas: { composition: { nC6H14: 0.999, N2: 0.001 }, molar-flow: 1 mol/s, T: 80 degC, P: 1.2 bar }
+units:
+  c: { type: compressor, in: gas, out: hp, ratio: 3, isentropic-efficiency: 0.75 }
+`;
+    const r = solve(text);
+    expect(r.status, r.message).toBe('converged');
+    const gas = r.streams.get('gas')!;
+    const eos = makeEos('PR', ['nC6H14', 'N2'].map((id) => findComponent(id)!));
+    const z = [0.999, 0.001];
+    const inlet = streamState(eos, gas.T, gas.P, z);
+    if (inlet.status === 'invalid') throw new Error(inlet.message);
+    expect(inlet.phase).toBe('vapor');
+    const T2s = figure(r, 'c', 'isentropicT');
+    const iso = streamState(eos, T2s, 3 * gas.P, z);
+    if (iso.status === 'invalid') throw new Error(iso.message);
+    expect(iso.phase).toBe('two-phase');
+    expect(Math.abs(iso.S - inlet.S)).toBeLessThan(1e-6);
+    expect(Math.abs(figure(r, 'c', 'power') - (iso.H - inlet.H) / 0.75)).toBeLessThan(1e-6 * figure(r, 'c', 'power'));
+    expect(Math.abs(T2s - 388.75)).toBeLessThan(0.01);
   });
 
   it('a compressor given an outlet pressure below its inlet is invalid, naming the unit', () => {
