@@ -211,7 +211,7 @@ export interface EquilibriumResult {
   blocked: Uint8Array;
   /** 1 for each component held at zero: absent from the inlet and formed by no feasible combination of the reactions. */
   zero: Uint8Array;
-  /** Largest |ln(Q_r/K_r)| at the extents returned. */
+  /** Largest |ln(Q_r/K_r)| at the extents returned (0 for a reaction held at its inlet, see solve()). */
   residual: number;
   /** Newton iterations, residual evaluations (each one equation-of-state call per equilibrium temperature), Jacobians with differenced fugacity coefficients. */
   iterations: number;
@@ -571,7 +571,8 @@ export class EquilibriumSolver {
    * that side: a reaction running backwards has the heat of the reverse reaction, so an exothermic
    * reaction as written that runs backwards is held at the equilibrium of T - approach. Either way
    * its outlet stays short of the equilibrium of T, on the side it came from (Q_r/K_r(T) below 1
-   * forward, above 1 backward), never beyond it.
+   * forward, above 1 backward), never beyond it. A single reaction whose inlet lies within its
+   * approach of the equilibrium of T does not run (extent 0, with a note).
    */
   solve(state: EquilibriumState, out: EquilibriumResult = this.newResult()): EquilibriumResult {
     const m = this.m;
@@ -602,6 +603,20 @@ export class EquilibriumSolver {
     if (out.status !== 'converged') return out;
     for (let r = 0; r < m; r++) this.dir[r] = out.extents[r] < 0 ? -1 : 1;
     again();
+    if (out.status !== 'converged') return out;
+    // One reaction fed at, or within its approach of, the equilibrium of T (the gas of a bed at
+    // equilibrium passed to a second bed at the same T): the equilibrium of T +/- approach lies on
+    // the far side of its inlet, and reaching it would take the reaction against the direction it
+    // runs at T, past that equilibrium. It does not run: extent 0. (With several reactions the
+    // same case is not held; their extents are those of the equilibrium temperatures.)
+    if (m === 1 && this.approach[0] > 0 && out.extents[0] * this.dir[0] < 0) {
+      out.extents[0] = 0;
+      out.conversion[0] = 0;
+      out.flows.set(this.b);
+      out.residual = 0;
+      out.message = joinNotes(out.message,
+        `${this.labels[0]} reaches the reactor within its approach of the equilibrium of ${fmt(state.T)} K (the equilibrium of ${fmt(out.Teq[0])} K lies on the other side of its inlet), so it does not run: extent 0`);
+    }
     return out;
   }
 

@@ -353,6 +353,34 @@ describe('approach to equilibrium', () => {
     expect(Math.abs(out.flows[2] / (1 - a700) - 1)).toBeLessThan(2e-3);
   });
 
+  it('a gas fed at the equilibrium of T (the outlet of a bed at equilibrium, to a second bed at T) does not react, whatever the approach', () => {
+    // At the equilibrium of T the Gibbs energy of the gas at T is at its minimum (the criterion of
+    // chemical equilibrium, e.g. Smith, Van Ness and Abbott, 7th ed., Sec. 13.2): a catalyst at T moves
+    // it neither way. Held at the equilibrium of T + 20 K it would crack ammonia (and, had the
+    // direction come out backwards by rounding, at T - 20 K it would make more than the equilibrium).
+    const T = 723.15;
+    const P = 150 * ATM;
+    const plain = prepared('SRK', NH3_IDS, [NH3_RX]).solver;
+    const held = prepared('SRK', NH3_IDS, [{ ...NH3_RX, approach: 20 }]).solver;
+    const bed1 = Float64Array.from(plain.solve({ T, P, flows: [1, 3, 0] }).flows);
+    const out = held.solve({ T, P, flows: bed1 });
+    expect(out.status, out.message).toBe('converged');
+    expect(out.extents[0]).toBe(0);
+    for (let i = 0; i < 3; i++) expect(out.flows[i]).toBe(bed1[i]);
+    expect(out.message).toMatch(/within its approach of the equilibrium of 723.15 K/);
+    // Slightly short of that equilibrium (1 % of the ammonia taken out), still within 20 K: no reaction.
+    const near = Float64Array.from(bed1);
+    near[2] *= 0.99;
+    expect(held.solve({ T, P, flows: near }).extents[0]).toBe(0);
+    // Far short of it (half the ammonia taken out): the reaction runs forward to the equilibrium of T + 20 K.
+    const far = Float64Array.from(bed1);
+    far[2] *= 0.5;
+    const a = held.solve({ T, P, flows: far });
+    const b = plain.solve({ T: T + 20, P, flows: far });
+    expect(a.extents[0]).toBeGreaterThan(0);
+    expect(Math.abs(a.extents[0] - b.extents[0])).toBeLessThan(1e-12);
+  });
+
   it('an approach that leaves no temperature is refused at solve time; a negative approach when prepared', () => {
     const ids = ['CH4', 'H2O', 'CO', 'H2'] as const;
     const rx = { nu: nu(ids, { CH4: -1, H2O: -1, CO: 1, H2: 3 }), approach: 400, label: 'reforming' };
