@@ -262,6 +262,35 @@ units:
   });
 });
 
+describe('a reactor with several inlets and none of T, duty and adiabatic', () => {
+  it('is isothermal at the temperature of its inlets mixed: where nothing reacts it takes no duty', () => {
+    // The first law: inlets that are only mixed exchange no heat with the surroundings, so the
+    // reactor's duty is zero when nothing reacts and its outlet is at the temperature an adiabatic
+    // mixer finds (here 483.14 K by an independent SRK calculation made for this check; the
+    // molar mean of the inlet temperatures, 450 K, took a duty of -2.43 kW).
+    const text = (unit: string) => `
+components: { CO2: {}, H2: {}, CO: {}, H2O: {} }
+thermo: { eos: SRK }
+feeds:
+  a: { composition: { CO2: 1 }, molar-flow: 1 mol/s, T: 600 K, P: 10 bar }
+  b: { composition: { H2: 1 }, molar-flow: 1 mol/s, T: 300 K, P: 10 bar }
+units:
+  ${unit}
+`;
+    const r = solve(text('r: { type: reactor, in: [a, b], out: p, reactions: [ { equation: "CO2 + H2 -> CO + H2O", key: CO2, conversion: 0 } ] }'));
+    expect(r.status, r.message).toBe('converged');
+    expect(Math.abs(figure(r, 'r', 'duty'))).toBeLessThan(1e-6);
+    const m = solve(text('m: { type: mixer, in: [a, b], out: p }'));
+    expect(Math.abs(r.streams.get('p')!.T - m.streams.get('p')!.T)).toBeLessThan(1e-6);
+    expect(Math.abs(r.streams.get('p')!.T - 483.14)).toBeLessThan(0.01);
+    expect(r.units.get('r')!.notes.join(' ')).toMatch(/inlets mixed adiabatically/);
+    // Where it reacts, the duty is that of the reaction at that temperature (within the real-gas part).
+    const q = solve(text('r: { type: reactor, in: [a, b], out: p, reactions: [ { equation: "CO2 + H2 -> CO + H2O", key: CO2, conversion: 0.1 } ] }'));
+    const heat = q.units.get('r')!.reactions![0].heatOfReaction!;
+    expect(Math.abs(figure(q, 'r', 'duty') - 0.1 * heat)).toBeLessThan(0.01 * 0.1 * Math.abs(heat));
+  });
+});
+
 describe('a file whose components have no thermal data', () => {
   const text = `
 components:
