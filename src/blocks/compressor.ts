@@ -14,9 +14,10 @@
  *    Schultz's polytropic head factor f = (h2s - h1) / [n_s/(n_s - 1) (P2 v2s - P1 v1)];
  *  - the polytropic head along the actual path is H_p = f n/(n - 1) (P2 v2 - P1 v1), with
  *    n = ln(P2/P1) / ln(v1/v2) from the actual outlet's molar volume v2;
- *  - the actual rise is dh = H_p / eta_p. Since v2 depends on the outlet state, the outlet
- *    temperature is iterated (a contraction: a few PH flashes) until it changes by less than
- *    1e-9 of itself.
+ *  - the actual rise is dh = H_p / eta_p. Since v2 depends on the outlet state, the rise is
+ *    iterated (a contraction: a few PH flashes) until it changes by less than 1e-9 of itself.
+ *  - the volumes are those of the states found: a state that is a split (an isentropic or
+ *    actual outlet inside the two-phase region) has the volume of its two phases together.
  * In the ideal-gas limit with a constant heat capacity f = 1 and the outlet follows
  * T2/T1 = (P2/P1)^(R / (eta_p cp)) exactly (the textbook relation the tests check).
  *
@@ -28,7 +29,7 @@ import type { EvaluationFailure } from '../solve/types.js';
 import { energyThisPass, type BlockDef, type Stream, type UnitFigure, type UnitSummary } from './types.js';
 import { eosWork, type Eos } from '../thermo/types.js';
 import { newPhaseProperties, phasePropertiesInto } from '../thermo/enthalpy.js';
-import { lackingData, missingEnergyKeys, OutletState, phaseH, phaseS, powerFigure, setFromState } from './energy.js';
+import { lackingData, missingEnergyKeys, OutletState, phaseH, phaseS, powerFigure, setFromState, type StateFound } from './energy.js';
 
 export interface CompressorSpec extends UnitSpecBase {
   type: 'compressor';
@@ -157,8 +158,17 @@ export const compressor: BlockDef<CompressorSpec> = {
         let M = 0;
         for (let i = 0; i < n; i++) M += inState.z[i] * comps[i].MW;
         // The isentropic outlet: Newton on S(T) along the vapor root at P2 (a compressed gas
-        // is superheated); flashPS from scratch when that does not settle.
+        // is superheated, as a rule); flashPS from scratch when that does not settle, or when the
+        // vapor found there would condense. Compressed from its dew point, a vapor whose
+        // saturated-vapor entropy rises with T (n-hexane, the heavier hydrocarbons) lands inside
+        // the two-phase region: the isentropic state is then the equilibrium split at P2 with the
+        // inlet's entropy, not the supersaturated vapor of the vapor root.
         let iso = vaporAtEntropy(eos, P2, s1, s.T * Math.pow(P2 / P1, 0.25), inState.z);
+        if (iso) {
+          fail = isState.atTP(iso.T, P2, false);
+          if (fail || isState.found.phase !== 'vapor') iso = undefined;
+          fail = null;
+        }
         if (!iso) {
           const ps = isState.atPS(P2, s1, s.T * Math.pow(P2 / P1, 0.25));
           if (ps.failure) return ps.failure;
@@ -173,8 +183,10 @@ export const compressor: BlockDef<CompressorSpec> = {
           fail = outState.atPH(P2, s.h + dh, T2s);
         } else {
           const ep = spec.polytropic!;
+          // Volumes of the states found (the isentropic state may be a split: see above; so may
+          // the outlet), each phase on its own root.
           const v1 = eos.molarVolume(s.T, P1, inState.z, 'vapor');
-          const v2s = eos.molarVolume(T2s, P2, inState.z, 'vapor');
+          const v2s = stateVolume(eos, isState.found, inState.z);
           const lnr = Math.log(P2 / P1);
           if (!(lnr > 0)) {
             // no pressure rise: no head
@@ -187,19 +199,25 @@ export const compressor: BlockDef<CompressorSpec> = {
             let T2 = s.T + (T2s - s.T) / ep;
             dh = dhs / ep;
             fail = null;
+            // The outlet volume of the last state found (at first, the vapor at the estimate T2);
+            // a contraction on the rise dh, which settles when it changes by 1e-9 of itself (the
+            // temperature alone would stop too soon inside a narrow two-phase region, where it
+            // hardly moves while the vapor fraction does).
+            let v2 = eos.molarVolume(T2, P2, inState.z, 'vapor');
+            let dhLast = Number.NaN;
             let k = 0;
             for (; k < POLY_MAX; k++) {
-              const v2 = eos.molarVolume(T2, P2, inState.z, 'vapor');
               polyN = lnr / Math.log(v1 / v2);
               const Hp = factor * (polyN / (polyN - 1)) * (P2 * v2 - P1 * v1);
               dh = Hp / ep;
               head = Hp / M;
               fail = outState.atPH(P2, s.h + dh, T2);
               if (fail) break;
-              const T2n = outState.found.T;
-              const done = Math.abs(T2n - T2) <= POLY_TOL * T2;
-              T2 = T2n;
+              T2 = outState.found.T;
+              const done = Math.abs(dh - dhLast) <= POLY_TOL * Math.abs(dh);
+              dhLast = dh;
               if (done) break;
+              v2 = stateVolume(eos, outState.found, inState.z);
             }
             if (!fail && k === POLY_MAX) {
               fail = { kind: 'not-converged', unit: spec.name, message: `compressor \`${spec.name}\`: the polytropic outlet temperature did not settle in ${POLY_MAX} steps`, help: 'use `isentropic-efficiency`, or check the pressures' };
@@ -253,6 +271,12 @@ function vaporAtEntropy(eos: Eos, P: number, s: number, T0: number, z: Float64Ar
     T = Tn;
   }
   return undefined;
+}
+
+/** Molar volume of a state found: of the split, each phase on its own root, or of the one phase. */
+function stateVolume(eos: Eos, f: StateFound, z: Float64Array): number {
+  if (f.phase === 'two-phase') return f.beta * eos.molarVolume(f.T, f.P, f.y, 'vapor') + (1 - f.beta) * eos.molarVolume(f.T, f.P, f.x, 'liquid');
+  return eos.molarVolume(f.T, f.P, z, f.phase);
 }
 
 function fmt(v: number): string {

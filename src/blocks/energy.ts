@@ -444,9 +444,23 @@ export class OutletState {
     return f.beta * phaseS(this.eos, f.T, f.P, f.y) + (1 - f.beta) * phaseS(this.eos, f.T, f.P, f.x);
   }
 
-  /** State at P with molar entropy s (PS flash). */
+  /** State at P with molar entropy s (PS flash); a converged state is also left in `found` (its split, T, P and h). */
   atPS(P: number, s: number, T0: number): { failure: EvaluationFailure | null; T: number; h: number } {
     const r = flashPS(this.eos, P, s, this.z, { T0, tol: STATE_TOL });
+    if (r.status === 'converged') {
+      const f = this.found;
+      f.T = r.T;
+      f.P = P;
+      f.phase = r.phase;
+      f.beta = r.beta;
+      f.x.set(r.x);
+      f.y.set(r.y);
+      f.h = r.H;
+      f.hV = f.hL = Number.NaN;
+      f.flashes = r.flashes;
+      f.liquidLiquid = false;
+      this.verified = false;
+    }
     if (r.status === 'invalid') {
       return { failure: { kind: 'invalid', unit: this.unit, message: `\`${this.unit}\`: ${r.message}`, help: 'add `cp:`, `hf:` and `gf:` to those components under `components:`' }, T: NaN, h: NaN };
     }

@@ -19,7 +19,8 @@
  * conversion of its first reactant is reported without one).
  *
  * Energy: `T:` holds the outlet at T (isothermal; the duty that takes is reported), and so does
- * a reactor with none of `T`, `adiabatic` and `duty`, at its inlet temperature; `adiabatic: true`
+ * a reactor with none of `T`, `adiabatic` and `duty`, at its inlet temperature (with several
+ * inlets, that of the inlets mixed adiabatically at the inlet pressure); `adiabatic: true`
  * or `duty:` (W, heat into the reactor's material) finds the outlet T from the enthalpy
  * balance with a PH flash. Enthalpies are on the formation basis (src/thermo/enthalpy.ts), so
  * the heat of reaction is in them; each reaction's heat at the outlet temperature is reported
@@ -200,6 +201,8 @@ export const reactor: BlockDef<ReactorSpec> = {
     const keys = keyComponents(spec);
     const energy = ctx.energy;
     const state = new OutletState(ctx.eos, spec.name, ctx.checks);
+    /** The inlets mixed (several inlets, no T, duty or adiabatic). */
+    const mixState = new OutletState(ctx.eos, spec.name, ctx.checks);
     const heat = new Float64Array(R).fill(Number.NaN);
     let duty = 0;
     const comps = ctx.model.components;
@@ -315,6 +318,7 @@ export const reactor: BlockDef<ReactorSpec> = {
       spec,
       reset() {
         state.reset();
+        mixState.reset();
         eqWarm = false;
         lastSlope = Number.NaN;
       },
@@ -323,7 +327,7 @@ export const reactor: BlockDef<ReactorSpec> = {
         const f = o.flows;
         combineInlets(ins, o);
         inlet.set(f);
-        const inletT = o.T;
+        let inletT = o.T;
         const inletP = o.P;
         let problem: EvaluationFailure | null = null;
         gen.fill(0);
@@ -399,6 +403,19 @@ export const reactor: BlockDef<ReactorSpec> = {
           problem ??= pressureBelowZero(spec.name, inletP, spec.dp ?? 0);
         }
         const fixedT = !spec.adiabatic && spec.duty === undefined;
+        // With none of `T`, `duty` and `adiabatic` the reactor is isothermal at its inlet
+        // temperature; with several inlets, at that of the inlets mixed adiabatically at the inlet
+        // pressure (the flow-weighted mean of their temperatures is only a start: a reactor where
+        // nothing reacts would report the duty of taking the mixture to it).
+        const mixedInlets = fixedT && spec.T === undefined && ins.length > 1;
+        if (mixedInlets && energyThisPass(ctx)) {
+          const Fm = mixState.setFlows(inlet);
+          if (Fm > 0) {
+            const fl = mixState.atPH(inletP, enthalpyIn(ins) / Fm, inletT);
+            if (fl) return problem ?? fl;
+            inletT = mixState.found.T;
+          }
+        }
         if (eqSolver && fixedT) {
           // The equilibrium at the outlet temperature, on what the fixed reactions leave.
           const Tout = spec.T ?? inletT;
@@ -410,7 +427,7 @@ export const reactor: BlockDef<ReactorSpec> = {
           // (an adiabatic reactor of fixed extents, in a pass without the energy balance: its
           // outlet stands at the inlet temperature until the final pass finds it)
           if (spec.T !== undefined) o.standIn = false;
-          else if (!fixedT) o.standIn = true;
+          else if (!fixedT || (mixedInlets && energy)) o.standIn = true;
           o.T = spec.T ?? inletT;
           o.vf = Number.NaN;
           o.h = Number.NaN;
@@ -471,7 +488,11 @@ export const reactor: BlockDef<ReactorSpec> = {
         const figures: UnitFigure[] = spec.reactions.map((rx, r) => ({ label: `extent of ${rx.equation}`, value: ext[r], kind: 'molarFlow' as const, key: `extent.${r}` }));
         if (energy) figures.push(powerFigure('duty', spec.adiabatic ? 'duty (adiabatic)' : 'duty', duty));
         const notes: string[] = [];
-        if (spec.T === undefined && !spec.adiabatic && spec.duty === undefined) notes.push(energy ? 'isothermal at the inlet temperature (no `T`, `duty` or `adiabatic` given)' : 'outlet T carried from the inlet; no energy balance');
+        if (spec.T === undefined && !spec.adiabatic && spec.duty === undefined) {
+          notes.push(energy
+            ? `isothermal at the ${spec.inlets.length > 1 ? 'temperature of its inlets mixed adiabatically' : 'inlet temperature'} (no \`T\`, \`duty\` or \`adiabatic\` given)`
+            : 'outlet T carried from the inlet; no energy balance');
+        }
         if (spec.adiabatic) notes.push('adiabatic');
         for (const r of eqIdx) {
           const rx = spec.reactions[r];

@@ -59,9 +59,10 @@
  * solver is prepared (their extents are not unique, and their equilibrium holds already).
  *
  * Approach to equilibrium. A reaction with an approach dT (K) is held at the equilibrium of
- * T + dT when it is exothermic and of T - dT when it is endothermic, judged by the sign of its
- * ideal-gas heat of reaction at the reactor's T: in both cases the conversion stays below the
- * equilibrium one. The whole condition of that reaction (K and the fugacity coefficients) is
+ * T + dT when it is exothermic and of T - dT when it is endothermic in the direction it runs,
+ * judged by the sign of its ideal-gas heat of reaction at the reactor's T and, when it runs
+ * backwards (a negative extent at the equilibrium of T), reversed: in every case the reaction
+ * stops short of the equilibrium of T, on the side it came from (see solve()). The whole condition of that reaction (K and the fugacity coefficients) is
  * taken at its equilibrium temperature, so that with one reaction, or with several sharing one
  * equilibrium temperature, the outlet is exactly the equilibrium mixture of that temperature; it
  * leaves at the reactor's T.
@@ -210,7 +211,7 @@ export interface EquilibriumResult {
   blocked: Uint8Array;
   /** 1 for each component held at zero: absent from the inlet and formed by no feasible combination of the reactions. */
   zero: Uint8Array;
-  /** Largest |ln(Q_r/K_r)| at the extents returned. */
+  /** Largest |ln(Q_r/K_r)| at the extents returned (0 for a reaction held at its inlet, see solve()). */
   residual: number;
   /** Newton iterations, residual evaluations (each one equation-of-state call per equilibrium temperature), Jacobians with differenced fugacity coefficients. */
   iterations: number;
@@ -429,6 +430,13 @@ export class EquilibriumSolver {
   private readonly lnPhiT: Float64Array[];
   private readonly lnPhiD: Float64Array[];
   private readonly phiScratch: Float64Array;
+  /**
+   * Per reaction, the direction it runs in the current solve, which decides the side of its
+   * approach: 1 forward (as written), -1 backward, 0 held at the reactor's own T (no approach).
+   */
+  private readonly dir: Int8Array;
+  /** The extents of one pass of solve() as the start of the next. */
+  private readonly passStart: Float64Array;
   private lnP = 0;
   /** Largest |G| found by the last merit() call. */
   private maxAbs = 0;
@@ -515,6 +523,8 @@ export class EquilibriumSolver {
     this.lnPhiT = rows();
     this.lnPhiD = rows();
     this.phiScratch = new Float64Array(n);
+    this.dir = new Int8Array(m).fill(1);
+    this.passStart = new Float64Array(m);
   }
 
   /** A result object sized for this solver, to pass to solve() again and again. */
@@ -551,8 +561,66 @@ export class EquilibriumSolver {
     return this.hVal[r];
   }
 
-  /** Solves the equilibrium of `state` into `out` (a newResult() object) and returns it. */
+  /**
+   * Solves the equilibrium of `state` into `out` (a newResult() object) and returns it.
+   *
+   * The side of an approach follows the direction the reaction runs: a reaction with an approach
+   * is first taken to run forward (as written). When one of them comes out with a negative extent,
+   * the direction of each reaction is that of its extent at the equilibrium of the reactor's own T
+   * (a second solve without approaches), and the equilibrium is solved again with each approach on
+   * that side: a reaction running backwards has the heat of the reverse reaction, so an exothermic
+   * reaction as written that runs backwards is held at the equilibrium of T - approach. Either way
+   * its outlet stays short of the equilibrium of T, on the side it came from (Q_r/K_r(T) below 1
+   * forward, above 1 backward), never beyond it. A single reaction whose inlet lies within its
+   * approach of the equilibrium of T does not run (extent 0, with a note).
+   */
   solve(state: EquilibriumState, out: EquilibriumResult = this.newResult()): EquilibriumResult {
+    const m = this.m;
+    this.dir.fill(1);
+    this.solveOnce(state, out);
+    if (out.status !== 'converged') return out;
+    let backward = false;
+    for (let r = 0; r < m; r++) if (this.approach[r] > 0 && out.extents[r] < 0) backward = true;
+    if (!backward) return out;
+    const warm = out.warm;
+    let iterations = out.iterations;
+    let evaluations = out.evaluations;
+    let jacobians = out.jacobians;
+    const again = (): void => {
+      this.passStart.set(out.extents);
+      this.solveOnce({ T: state.T, P: state.P, flows: state.flows, generation: state.generation, start: this.passStart }, out);
+      iterations += out.iterations;
+      evaluations += out.evaluations;
+      jacobians += out.jacobians;
+      out.iterations = iterations;
+      out.evaluations = evaluations;
+      out.jacobians = jacobians;
+      out.warm = warm;
+    };
+    // The direction each reaction runs: its extent at the equilibrium of T.
+    this.dir.fill(0);
+    again();
+    if (out.status !== 'converged') return out;
+    for (let r = 0; r < m; r++) this.dir[r] = out.extents[r] < 0 ? -1 : 1;
+    again();
+    if (out.status !== 'converged') return out;
+    // One reaction fed at, or within its approach of, the equilibrium of T (the gas of a bed at
+    // equilibrium passed to a second bed at the same T): the equilibrium of T +/- approach lies on
+    // the far side of its inlet, and reaching it would take the reaction against the direction it
+    // runs at T, past that equilibrium. It does not run: extent 0. (With several reactions the
+    // same case is not held; their extents are those of the equilibrium temperatures.)
+    if (m === 1 && this.approach[0] > 0 && out.extents[0] * this.dir[0] < 0) {
+      out.extents[0] = 0;
+      out.conversion[0] = 0;
+      out.flows.set(this.b);
+      out.residual = 0;
+      out.message = joinNotes(out.message,
+        `${this.labels[0]} reaches the reactor within its approach of the equilibrium of ${fmt(state.T)} K (the equilibrium of ${fmt(out.Teq[0])} K lies on the other side of its inlet), so it does not run: extent 0`);
+    }
+    return out;
+  }
+
+  private solveOnce(state: EquilibriumState, out: EquilibriumResult): EquilibriumResult {
     const n = this.n;
     const m = this.m;
     const { T, P } = state;
@@ -612,11 +680,12 @@ export class EquilibriumSolver {
       const h = this.heatAt(r, T);
       out.heat[r] = h;
       const a = this.approach[r];
-      const Te = a === 0 ? T : h < 0 ? T + a : T - a;
+      const d = this.dir[r];
+      const Te = a === 0 || d === 0 ? T : h * d < 0 ? T + a : T - a;
       out.Teq[r] = Te;
       if (!(Te > 0)) {
         return this.fail(out, 'invalid', 'no-temperature',
-          `${this.labels[r]} is endothermic at ${fmt(T)} K, so its approach of ${fmt(a)} K would hold it at the equilibrium of ${fmt(Te)} K, which is not a temperature`);
+          `${this.labels[r]} is endothermic${d < 0 ? ' in the direction it runs here (backwards)' : ''} at ${fmt(T)} K, so its approach of ${fmt(a)} K would hold it at the equilibrium of ${fmt(Te)} K, which is not a temperature`);
       }
       this.lnK[r] = this.lnKAt(r, Te);
       out.lnK[r] = this.lnK[r];

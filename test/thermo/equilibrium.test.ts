@@ -290,19 +290,95 @@ describe('approach to equilibrium', () => {
     expect(a.conversion[0]).toBeGreaterThan(0);
   });
 
-  it('methanol synthesis (exothermic) and reverse shift (endothermic) with 10 K each: each condition holds at its own temperature', () => {
+  it('methanol synthesis and the shift with 10 K each, the shift running backwards on a CO-rich gas: both held at T + 10 K, each short of the equilibrium of T', () => {
     const ids = ['H2', 'CO', 'CO2', 'H2O', 'CH3OH'] as const;
     const synth = { nu: nu(ids, { CO2: -1, H2: -3, CH3OH: 1, H2O: 1 }), approach: 10 };
     const shift = { nu: nu(ids, { CO2: -1, H2: -1, CO: 1, H2O: 1 }), approach: 10 };
     const { eos, solver } = prepared('SRK', ids, [synth, shift]);
     const T = 513.15;
     const P = 80 * BAR;
-    const out = solver.solve({ T, P, flows: [0.7, 0.08, 0.1, 0.005, 0.01] });
+    const inlet = [0.7, 0.08, 0.1, 0.005, 0.01];
+    const out = solver.solve({ T, P, flows: inlet });
     expect(out.status, out.message).toBe('converged');
+    // On this CO-rich gas the shift runs backwards (CO + H2O -> CO2 + H2, exothermic that way): its
+    // extent at the equilibrium of T is negative, so its approach holds it at T + 10 K as well.
+    const atT = prepared('SRK', ids, [{ ...synth, approach: 0 }, { ...shift, approach: 0 }]).solver.solve({ T, P, flows: inlet });
+    expect(atT.extents[0]).toBeGreaterThan(0);
+    expect(atT.extents[1]).toBeLessThan(0);
+    expect(out.heat[1]).toBeGreaterThan(0);
     expect(out.Teq[0]).toBe(T + 10);
-    expect(out.Teq[1]).toBe(T - 10);
+    expect(out.Teq[1]).toBe(T + 10);
     expect(Math.abs(conditionResidual(eos, T + 10, P, synth.nu, out.flows))).toBeLessThan(1e-10);
-    expect(Math.abs(conditionResidual(eos, T - 10, P, shift.nu, out.flows))).toBeLessThan(1e-10);
+    expect(Math.abs(conditionResidual(eos, T + 10, P, shift.nu, out.flows))).toBeLessThan(1e-10);
+    // Each stops short of the equilibrium of T on the side it came from: ln(Q/K(T)) < 0 for the
+    // synthesis (forward), > 0 for the shift (backward); and each extent is smaller in size.
+    expect(conditionResidual(eos, T, P, synth.nu, out.flows)).toBeLessThan(0);
+    expect(conditionResidual(eos, T, P, shift.nu, out.flows)).toBeGreaterThan(0);
+    expect(out.extents[0]).toBeLessThan(atT.extents[0]);
+    expect(out.extents[1]).toBeGreaterThan(atT.extents[1]);
+  });
+
+  it('a reaction running backwards (ammonia cracked, written as the synthesis) stops short of equilibrium: held at T - approach', () => {
+    // NIST-JANAF Thermochemical Tables, 4th ed. (Chase 1998), Delta_f G(NH3, g) at 700 K = 27.190 kJ/mol
+    // (from memory): K of N2 + 3 H2 -> 2 NH3 at 700 K (1 bar standard state) = exp(-2 x 27190 / (R 700)).
+    // Ideal gas at 10 bar, 1 mol/s NH3 cracked by a fraction a: NH3 1 - a, N2 a/2, H2 3a/2, total 1 + a,
+    // and K (P/1 bar)^2 = y_NH3^2 / (y_N2 y_H2^3), solved for a here by bisection.
+    // The reactor is at 750 K with an approach of 50 K. Written as the synthesis, the reaction is
+    // exothermic as written but runs backwards (endothermic that way), so it is held at the equilibrium of
+    // 700 K, where less ammonia is cracked than at 750 K; T + 50 K would crack more than the
+    // equilibrium of the reactor's own temperature allows.
+    const P = 10 * BAR;
+    const Kjanaf = Math.exp((-2 * 27190) / (R * 700));
+    const resid = (a: number) => {
+      const N = 1 + a;
+      const yA = (1 - a) / N;
+      const yN = a / 2 / N;
+      const yH = (1.5 * a) / N;
+      return Math.log(yN * yH ** 3 * Kjanaf * (P / BAR) ** 2) - 2 * Math.log(yA); // increasing in a
+    };
+    const a700 = bisect(resid, 1e-9, 1 - 1e-12);
+    const plain = prepared('ideal', NH3_IDS, [NH3_RX]).solver;
+    const held = prepared('ideal', NH3_IDS, [{ ...NH3_RX, approach: 50 }]).solver;
+    const inlet = [0, 0, 1]; // N2, H2, NH3
+    const out = held.solve({ T: 750, P, flows: inlet });
+    const eq = plain.solve({ T: 750, P, flows: inlet });
+    expect(out.status, out.message).toBe('converged');
+    expect(out.heat[0]).toBeLessThan(0);
+    expect(eq.extents[0]).toBeLessThan(0);
+    expect(out.Teq[0]).toBe(700);
+    expect(out.extents[0]).toBeLessThan(0);
+    expect(out.extents[0]).toBeGreaterThan(eq.extents[0]); // less cracked than at equilibrium
+    // Against JANAF: the ammonia left equals 1 - a at 700 K within 0.2 % (the formation data here and
+    // JANAF's differ by about 0.01 kJ/mol in Delta_f G of NH3 at 700 K).
+    expect(Math.abs(out.flows[2] / (1 - a700) - 1)).toBeLessThan(2e-3);
+  });
+
+  it('a gas fed at the equilibrium of T (the outlet of a bed at equilibrium, to a second bed at T) does not react, whatever the approach', () => {
+    // At the equilibrium of T the Gibbs energy of the gas at T is at its minimum (the criterion of
+    // chemical equilibrium, e.g. Smith, Van Ness and Abbott, 7th ed., Sec. 13.2): a catalyst at T moves
+    // it neither way. Held at the equilibrium of T + 20 K it would crack ammonia (and, had the
+    // direction come out backwards by rounding, at T - 20 K it would make more than the equilibrium).
+    const T = 723.15;
+    const P = 150 * ATM;
+    const plain = prepared('SRK', NH3_IDS, [NH3_RX]).solver;
+    const held = prepared('SRK', NH3_IDS, [{ ...NH3_RX, approach: 20 }]).solver;
+    const bed1 = Float64Array.from(plain.solve({ T, P, flows: [1, 3, 0] }).flows);
+    const out = held.solve({ T, P, flows: bed1 });
+    expect(out.status, out.message).toBe('converged');
+    expect(out.extents[0]).toBe(0);
+    for (let i = 0; i < 3; i++) expect(out.flows[i]).toBe(bed1[i]);
+    expect(out.message).toMatch(/within its approach of the equilibrium of 723.15 K/);
+    // Slightly short of that equilibrium (1 % of the ammonia taken out), still within 20 K: no reaction.
+    const near = Float64Array.from(bed1);
+    near[2] *= 0.99;
+    expect(held.solve({ T, P, flows: near }).extents[0]).toBe(0);
+    // Far short of it (half the ammonia taken out): the reaction runs forward to the equilibrium of T + 20 K.
+    const far = Float64Array.from(bed1);
+    far[2] *= 0.5;
+    const a = held.solve({ T, P, flows: far });
+    const b = plain.solve({ T: T + 20, P, flows: far });
+    expect(a.extents[0]).toBeGreaterThan(0);
+    expect(Math.abs(a.extents[0] - b.extents[0])).toBeLessThan(1e-12);
   });
 
   it('an approach that leaves no temperature is refused at solve time; a negative approach when prepared', () => {
