@@ -555,7 +555,11 @@ export class PlantReconciliation {
     // quantities (readings) in order, and for each element (and the mass, at nE) and side the
     // total and its derivative in each quantity, in the order rawClosure adds them, so that the
     // figures are the same to the bit. A term is coef x F x w (a component an analyzer reads:
-    // F its stream's flow, w the reading) or (coef x w_design) x F.
+    // F its stream's flow, w the reading) or (coef x w_design) x F. Two dependences that
+    // closure.ts's products cannot state are added to the derivatives (not to the totals): the
+    // unread rest of a `normalized: false` analyzer, and a mass reading's molar flow m / MW(x),
+    // both moving with the analyzer's readings (without them a weighed product read by an
+    // analyzer had its closure uncertainty wrong: test/plant/closure.test.ts).
     const work = this.closureWorkFor(env);
     const { qv, qs, din, dout, tin, tout, nin } = work;
     let nq = 0;
@@ -571,6 +575,7 @@ export class PlantReconciliation {
     let valid = true;
     const fracValue = work.fracValue;
     const fracQ = work.fracQ;
+    const { restCoef, readQ, dFdq } = work;
     for (const { name, s, role, tags, analyzers, design } of env.streams) {
       let flowTag: string | undefined;
       for (const t of tags) {
@@ -587,6 +592,14 @@ export class PlantReconciliation {
       // Composition: the file's (a feed), an analyzer's reading, or the design solve's.
       fracValue.set(design);
       fracQ.fill(-1);
+      // What the composition and the molar flow owe to the analyzer's readings beyond their own
+      // appearance: with `normalized: false` the components it does not read share the rest,
+      // x_i = c_i (1 - sum_k w_k), c_i = design_i / (the design's sum over them), so each reading
+      // w_k enters x_i with -c_i; and a mass reading m is the molar flow m / MW(x) of that
+      // composition, which moves with every reading, dF/dw_k = -(F / MW) dMW/dw_k.
+      restCoef.fill(0);
+      let nRead = 0;
+      let anyRest = false;
       let an: InstrumentDecl | undefined;
       for (const d of analyzers) {
         if (usable.has(d.tag)) {
@@ -611,6 +624,7 @@ export class PlantReconciliation {
           qv[nq] = r.fractions![k] * scale;
           qs[nq] = sig * scale;
           fracValue[k] = r.fractions![k] * scale;
+          readQ[nRead++] = nq;
           fracQ[k] = nq++;
         }
         if (an.normalized === false) {
@@ -618,6 +632,8 @@ export class PlantReconciliation {
           for (const i of unread) {
             fracValue[i] = dRest > 0 ? (design[i] * rest) / dRest : 0;
             fracQ[i] = -1;
+            restCoef[i] = dRest > 0 ? design[i] / dRest : 0;
+            if (restCoef[i] !== 0 && nRead > 0) anyRest = true;
           }
         }
         if (unread.some((i) => design[i] > 0)) assumed.push(`${name} (${unread.filter((i) => design[i] > 0).map((i) => ids[i]).join(', ')})`);
@@ -629,13 +645,24 @@ export class PlantReconciliation {
       qv[nq] = F;
       qs[nq] = uF;
       const fq = nq++;
+      // dF/dw_k of a mass reading (zero for a molar one): dMW/dw_k = MW_k - sum_i MW_i c_i.
+      const massDependent = b.basis === 'mass' && nRead > 0;
+      if (massDependent) {
+        let restMW = 0;
+        for (let i = 0; i < nC; i++) restMW += restCoef[i] * model.components[i].MW;
+        for (let r = 0; r < nRead; r++) {
+          let k = 0;
+          while (fracQ[k] !== readQ[r]) k++;
+          dFdq[r] = (-F / MW) * (model.components[k].MW - restMW);
+        }
+      }
       const feed = role === 'feed';
       const T = feed ? tin : tout;
       const D = feed ? din : dout;
       for (let i = 0; i < nC; i++) {
         const value = fracValue[i];
         const q = fracQ[i];
-        if (value === 0 && q < 0) continue;
+        if (value === 0 && q < 0 && restCoef[i] === 0) continue;
         for (let e = 0; e <= nE; e++) {
           // The mass (e = nE) takes every component, weighted by its molar mass.
           const a = e < nE ? env.atoms[e][i] : model.components[i].MW;
@@ -652,6 +679,8 @@ export class PlantReconciliation {
             T[e] += c * qv[fq];
             D[o + fq] += c;
           }
+          if (anyRest && restCoef[i] !== 0) for (let r = 0; r < nRead; r++) D[o + readQ[r]] -= a * restCoef[i] * qv[fq];
+          if (massDependent) for (let r = 0; r < nRead; r++) D[o + readQ[r]] += a * value * dFdq[r];
         }
       }
     }
@@ -698,6 +727,11 @@ export class PlantReconciliation {
     nin: Int32Array;
     fracValue: Float64Array;
     fracQ: Int32Array;
+    /** Per component: c_i of an unread component's share of the rest (`normalized: false`), else 0. */
+    restCoef: Float64Array;
+    /** The quantity indices of a stream's analyzer readings, and dF/dw of a mass reading in each. */
+    readQ: Int32Array;
+    dFdq: Float64Array;
   };
 
   private closureWorkFor(env: NonNullable<PlantReconciliation['envelope']>): NonNullable<PlantReconciliation['closureWork']> {
@@ -716,6 +750,9 @@ export class PlantReconciliation {
         nin: new Int32Array(nE1),
         fracValue: new Float64Array(nC),
         fracQ: new Int32Array(nC),
+        restCoef: new Float64Array(nC),
+        readQ: new Int32Array(nC),
+        dFdq: new Float64Array(nC),
       };
     }
     return this.closureWork;
