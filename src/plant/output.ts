@@ -143,6 +143,11 @@ export function rowSaid(report: PlantReport | undefined, said: readonly string[]
     for (const [tag, r] of Object.entries(report.instruments)) {
       if (r.use === 'left-out' && !said.some((s) => s.startsWith(`${tag}:`) || s.startsWith(`${tag}.`))) parts.push(`${tag}: left out: ${r.reason}`);
     }
+    // An analyzer's component the run left out (a 0 read with a relative uncertainty) is a note.
+    for (const note of report.notes) {
+      const m = /^"([^"]+)": (left out: .*)$/.exec(note);
+      if (m) parts.push(`${m[1]}: ${m[2]}`);
+    }
   }
   return parts.join('; ');
 }

@@ -234,6 +234,28 @@ export class PlantReconciliation {
         rep.reason = why;
         continue;
       }
+      // An analyzer's component read as exactly 0 with a relative uncertainty (ZERO_RELATIVE) is
+      // not read; the analyzer goes on with its other components.
+      const zeroRelative = d.kind === 'analyzer'
+        ? d.components!.filter((k, pos) => {
+            const u = d.componentUncertainty?.[pos] ?? d.uncertainty!;
+            return r.fractions![k] === 0 && 'relative' in u;
+          })
+        : [];
+      if (zeroRelative.length > 0) {
+        const fractions = Float64Array.from(r.fractions!);
+        for (const k of zeroRelative) {
+          fractions[k] = Number.NaN;
+          notes.push(`"${d.tag}.${ids[k]}": left out: ${ZERO_RELATIVE}`);
+        }
+        if (!d.components!.some((k) => Number.isFinite(fractions[k]))) {
+          rep.use = 'left-out';
+          rep.reason = ZERO_RELATIVE;
+          continue;
+        }
+        usable.set(d.tag, { ...r, fractions });
+        continue;
+      }
       usable.set(d.tag, r);
     }
     // A meter needs its line pressure and temperature.
@@ -760,6 +782,14 @@ export class PlantReconciliation {
 
 }
 
+/**
+ * A reading of exactly 0 whose uncertainty is a percentage of the reading has a standard
+ * uncertainty of 0: weighed as exact, it would pin the balances and push every disagreement onto
+ * the other readings (a trace analyzer reading 0 made the purge analyzer the suspect). It is left
+ * out instead, with what to write.
+ */
+const ZERO_RELATIVE = 'a reading of 0 with an uncertainty in % of the reading would count as exact; state an absolute uncertainty';
+
 /** Why a reading cannot be used (negative, outside its range, not a fraction), or undefined. */
 export function readingProblem(d: InstrumentDecl, r: RowReading, ids: readonly string[]): string | undefined {
   if (d.kind === 'analyzer') {
@@ -774,6 +804,7 @@ export function readingProblem(d: InstrumentDecl, r: RowReading, ids: readonly s
   const v = r.value!;
   if ((d.kind === 'pressure' || d.kind === 'temperature') && !(v > 0)) return `the reading is ${v} (SI), not above absolute zero`;
   if (v < 0) return `negative reading (${fmt(v)} ${SI_UNIT[d.kind]})`;
+  if (v === 0 && d.uncertainty && 'relative' in d.uncertainty) return ZERO_RELATIVE;
   if (d.range?.min !== undefined && v < d.range.min) return `out of range: ${fmt(v)} ${SI_UNIT[d.kind]} below ${fmt(d.range.min)}`;
   if (d.range?.max !== undefined && v > d.range.max) return `out of range: ${fmt(v)} ${SI_UNIT[d.kind]} above ${fmt(d.range.max)}`;
   return undefined;

@@ -5,9 +5,12 @@
  * (test/plant/flowsheets/bypass.yaml), and its redundancy and observability cases.
  */
 import { inverse, Matrix } from 'ml-matrix';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
 import { loadFlowsheet } from '../../src/flowsheet/load.js';
+import { rowSaid } from '../../src/plant/output.js';
 import { preparePlant, type RowReading } from '../../src/plant/plant.js';
 
 const FILE = join(__dirname, 'flowsheets', 'bypass.yaml');
@@ -107,5 +110,75 @@ describe('Narasimhan and Jordache (2000), Example 1.1: redundancy and observabil
     expect(r.status).toBe('not-redundant');
     expect(r.globalTest.passed).toBeNull();
     expect(r.closure.note).toMatch(/no flow reading on `s6`/);
+  });
+});
+
+describe('a reading of exactly 0 with an uncertainty in % of the reading', () => {
+  // Its standard uncertainty would be 0: weighed as exact, it pins the balances. It is left out,
+  // so the check value is the Lagrange closed form without it (Narasimhan and Jordache 2000,
+  // Example 1.1 network; x = y - V A'(A V A')^-1 A y with F3 eliminated: F1 - F2 - F5 = 0,
+  // F2 - F4 = 0, F4 + F5 - F6 = 0; readings invented, sigma 1).
+  const text = readFileSync(FILE, 'utf8')
+    .replace('F3: { stream: s3, kind: molar, uncertainty: 2 mol/s }', 'F3: { stream: s3, kind: molar, uncertainty: 2 %, unit: mol/s }');
+  const dir = mkdtempSync(join(tmpdir(), 'loopclose-zero-'));
+  const file = join(dir, 'bypass-zero.yaml');
+  writeFileSync(file, text);
+  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+  const zeroPlant = preparePlant(loadFlowsheet(file).model);
+  const y = [101.91, 99.0, 0, 101.0, 1.0, 98.88];
+  const readings = new Map<string, RowReading>(TAGS.map((t, k) => [t, { value: y[k] }]));
+  const r = zeroPlant.run({ readings }).report;
+
+  it('is left out with what to write, and the others reconcile as without it (redundancy 3)', () => {
+    expect(r.instruments.F3.use).toBe('left-out');
+    expect(r.instruments.F3.reason).toMatch(/absolute uncertainty/);
+    const A = new Matrix([
+      [1, -1, 0, -1, 0],
+      [0, 1, -1, 0, 0],
+      [0, 0, 1, 1, -1],
+    ]);
+    const yy = Matrix.columnVector([y[0], y[1], y[3], y[4], y[5]]);
+    const K = A.transpose().mmul(inverse(A.mmul(A.transpose())));
+    const x = yy.clone().sub(K.mmul(A.mmul(yy))).to1DArray();
+    expect(r.redundancy).toBe(3);
+    expect(r.globalTest.dof).toBe(3);
+    ['F1', 'F2', 'F4', 'F5', 'F6'].forEach((t, k) => expect(r.instruments[t].molarFlow!.reconciled!).toBeCloseTo(x[k], 8));
+    const gamma = x.reduce((s, v, k) => s + (v - yy.get(k, 0)) ** 2, 0);
+    expect(r.globalTest.statistic!).toBeCloseTo(gamma, 8);
+  });
+});
+
+describe('an analyzer component read as exactly 0 with an uncertainty in % of the reading', () => {
+  // The ammonia demo's product analyzer AI-310 states 5 % of the reading. Its argon read as 0
+  // (a trace below what the cell shows) would be exact and pin argon in the liquid at zero;
+  // the argon balance then named the purge analyzer AI-205 as the suspect. The component is left
+  // out instead: the same figures as with no argon reading at all (an empty cell).
+  const { model: demo } = loadFlowsheet(join(__dirname, '..', '..', 'flowsheets', 'ammonia-loop.yaml'));
+  const demoPlant = preparePlant(demo);
+  const ar = demo.ids.indexOf('Ar');
+  const rowWith = (arValue: number) => {
+    const readings = new Map<string, RowReading>();
+    for (const [tag, rd] of demo.readings) {
+      const fractions = rd.fractions ? Float64Array.from(rd.fractions) : undefined;
+      if (tag === 'AI-310') fractions![ar] = arValue;
+      readings.set(tag, { value: rd.value, fractions, reference: rd.reference });
+    }
+    // FI-101 at its unbiased reading (the demo's snapshot reads it 6 % high).
+    readings.set('FI-101', { value: readings.get('FI-101')!.value! / 1.053 });
+    return demoPlant.run({ readings }).report;
+  };
+  const zero = rowWith(0);
+  const missing = rowWith(Number.NaN);
+
+  it('is left out, said in a note, and the row reconciles as without it', () => {
+    expect(missing.status).toBe('reconciled');
+    expect(zero.status).toBe('reconciled');
+    expect(zero.suspects).toEqual([]);
+    expect(zero.instruments['AI-310'].fractions!.Ar.measured).toBeNull();
+    expect(zero.notes.some((n) => n.startsWith('"AI-310.Ar": left out:'))).toBe(true);
+    expect(rowSaid(zero, [])).toMatch(/^AI-310\.Ar: left out: /);
+    expect(zero.redundancy).toBe(missing.redundancy);
+    expect(zero.globalTest.statistic!).toBeCloseTo(missing.globalTest.statistic!, 10);
+    expect(zero.instruments['AI-205'].fractions!.Ar.reconciled!).toBeCloseTo(missing.instruments['AI-205'].fractions!.Ar.reconciled!, 10);
   });
 });
