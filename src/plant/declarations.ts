@@ -31,8 +31,12 @@ export type InstrumentKind = (typeof INSTRUMENT_KINDS)[number];
 /** Coverage factor of every stated uncertainty (JCGM 100:2008, Sec. 6.3: about 95 % for a normal distribution). */
 export const COVERAGE = 2;
 
-/** An expanded uncertainty as written: relative to the reading, or absolute in SI. */
-export type Expanded = { relative: number } | { absolute: number };
+/**
+ * An expanded uncertainty as written: relative to the reading, or absolute in SI. An absolute
+ * standard volume flow keeps the reference its unit named (`20 Nm3/h`): it is m3/s at that
+ * reference, which need not be the reading's.
+ */
+export type Expanded = { relative: number } | { absolute: number; reference?: StandardRef };
 
 /** The dimension of an instrument's reading. */
 export function readingDimension(kind: InstrumentKind): Dimension {
@@ -92,7 +96,16 @@ export interface ReadingDecl {
   span?: SourceSpan;
 }
 
-/** Standard uncertainty (U / k) of a reading. */
-export function standardUncertainty(u: Expanded, reading: number): number {
-  return 'relative' in u ? (u.relative * Math.abs(reading)) / COVERAGE : u.absolute / COVERAGE;
+/**
+ * Standard uncertainty (U / k) of a reading. For a standard volume flow read at reference `at`,
+ * an absolute uncertainty stated at another reference is first taken to `at`: the same amount of
+ * gas, Q_at = Q_u (P_u T_at) / (T_u P_at) (ideal molar volumes; the real-gas ratio differs by
+ * the compressibility's change between the references, a few parts in 10^4 at most for gases
+ * near 1 atm, negligible in an uncertainty).
+ */
+export function standardUncertainty(u: Expanded, reading: number, at?: StandardRef): number {
+  if ('relative' in u) return (u.relative * Math.abs(reading)) / COVERAGE;
+  const ref = u.reference;
+  const scale = ref && at && ref.name !== at.name ? (ref.P * at.T) / (ref.T * at.P) : 1;
+  return (u.absolute * scale) / COVERAGE;
 }

@@ -312,7 +312,7 @@ export class PlantReconciliation {
             }
           : undefined;
         const b = this.budget({
-          tag, kind: d.kind as 'meter', reading: r.value!, instrument: standardUncertainty(d.uncertainty!, r.value!),
+          tag, kind: d.kind as 'meter', reading: r.value!, instrument: standardUncertainty(d.uncertainty!, r.value!, d.kind === 'standard' ? r.reference ?? d.reference : undefined),
           composition: this.composition(s, x), eos: this.eos, line, design: d.design, reference: r.reference ?? d.reference, realGas: d.realGas,
         });
         const j = iv.variable!;

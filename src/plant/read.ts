@@ -294,7 +294,7 @@ function expandedAt(r: Reader, node: Node | null, kind: InstrumentKind, ctx: Fie
       if (dim === 'temperature' || dim === 'pressure') {
         value -= parseQuantity(`0 ${q.unit}`, dim, { atmosphere: ctx.atmosphere }).value;
       }
-      out = { absolute: value };
+      out = q.standard ? { absolute: value, reference: q.standard } : { absolute: value };
     }
   } catch (err) {
     if (err instanceof UnitError) {

@@ -182,3 +182,26 @@ describe('an analyzer component read as exactly 0 with an uncertainty in % of th
     expect(zero.instruments['AI-205'].fractions!.Ar.reconciled!).toBeCloseTo(missing.instruments['AI-205'].fractions!.Ar.reconciled!, 10);
   });
 });
+
+describe('a standard volume meter whose absolute uncertainty is stated at another reference', () => {
+  // F1 reads in Sm3/h (15 degC, 101.325 kPa, ISO 13443) and states U = 7.2 Nm3/h (0 degC,
+  // 101.325 kPa, DIN 1343): the same amount of gas whichever unit carries it, so the standard
+  // uncertainty of the molar flow is (7.2 / 2) / 3600 m3/s x P / (R T) at 0 degC (ideal basis;
+  // R = 8.314462618 J/(mol K), CODATA 2018, exact).
+  const text = readFileSync(FILE, 'utf8')
+    .replace('F1: { stream: s1, kind: molar, uncertainty: 2 mol/s }', 'F1: { stream: s1, kind: standard, basis: ideal, unit: Sm3/h, uncertainty: 7.2 Nm3/h }')
+    .replace('F1: 101.91 mol/s', 'F1: 8626.4 Sm3/h');
+  const dir = mkdtempSync(join(tmpdir(), 'loopclose-ref-'));
+  const file = join(dir, 'bypass-standard.yaml');
+  writeFileSync(file, text);
+  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+  const { model: m } = loadFlowsheet(file);
+  const r = preparePlant(m).run({ readings: new Map([...m.readings].map(([t, rd]) => [t, { value: rd.value, reference: rd.reference }])) }).report;
+
+  it('takes the uncertainty to the reading\'s reference before converting it', () => {
+    const R = 8.314462618;
+    const f1 = r.instruments.F1.molarFlow!;
+    expect(f1.measured!).toBeCloseTo(((8626.4 / 3600) * 101325) / (R * 288.15), 10);
+    expect(f1.sigma! / ((3.6 / 3600) * 101325 / (R * 273.15))).toBeCloseTo(1, 12);
+  });
+});
