@@ -458,13 +458,23 @@ export function buildNetwork(model: Model, design?: FlowsheetResult): Network {
       const basis = d.normalized === false ? model.ids.map((_, i) => i) : d.components!;
       let bsum = 0;
       for (const i of basis) bsum += df[i];
+      // A splitter's outlet has its inlets' composition: the analyzer's equations are written on
+      // those inlets (followed through splitters in series). On the outlet's own flows they would
+      // hold for any reading once the outlet's fraction reaches 0, and the solve could empty an
+      // unmetered outlet to wave its analyzer's readings through.
+      let from = [s];
+      for (let hop = 0; hop < units.length && from.length === 1; hop++) {
+        const up = units.find((uv) => uv.decl.law === 'split' && uv.outlets.includes(from[0].name));
+        if (!up) break;
+        from = up.inlets.map((nm) => streams.get(nm)!);
+      }
       const fr: number[] = [];
       for (const k of d.components!) {
         const w0 = bsum > 0 ? df[k] / bsum : 0;
         const j = add({ name: `${d.tag}.${model.ids[k]}`, start: w0, lower: 0, upper: 1, typical: Math.max(w0, 1e-6), measured: { value: w0, sigma: 1 } });
         const terms: Term[] = [];
-        for (const i of basis) terms.push(...flowTerms(s, i, 1, j));
-        terms.push(...flowTerms(s, k, -1));
+        for (const src of from) for (const i of basis) terms.push(...flowTerms(src, i, 1, j));
+        for (const src of from) terms.push(...flowTerms(src, k, -1));
         rows.push({ name: `${d.tag}: fraction of ${model.ids[k]} in ${d.stream}`, terms });
         fr.push(j);
       }

@@ -205,3 +205,31 @@ describe('a standard volume meter whose absolute uncertainty is stated at anothe
     expect(f1.sigma! / ((3.6 / 3600) * 101325 / (R * 273.15))).toBeCloseTo(1, 12);
   });
 });
+
+describe('analyzers on the outlets of a splitter that no meter reads', () => {
+  // test/plant/flowsheets/split-analyzers.yaml. By the balances alone (no fit needed): AE reads
+  // CH4 / (CH4 + NH3) of the mixer's gas, which only the feed b brings, so it must be 0.5 / 0.8 =
+  // 0.625 (and NH3 0.375) whatever the flows; its readings 0.632 and 0.368 are adjusted by -/+0.007,
+  // each (0.007 / 0.005)^2 = 1.96 of gamma, and their tests are 0.007 / sqrt(0.005^2 - 0) = 1.4.
+  // The split is not observable: nothing reads a flow after the mixer. The readings: 5 values,
+  // 2 unknown flows (a, b): redundancy 3. Before, the solve emptied the outlet e (split 1 : 0,
+  // "observable", sigma 0) so that AE's equations held for any reading: redundancy 1, AE non-redundant.
+  const { model: m } = loadFlowsheet(join(__dirname, 'flowsheets', 'split-analyzers.yaml'));
+  const p = preparePlant(m);
+  const all = new Map<string, RowReading>([...m.readings].map(([t, rd]) => [t, { value: rd.value, fractions: rd.fractions }]));
+  const r = p.run({ readings: all }).report;
+  const withoutAE = p.run({ readings: new Map([...all].filter(([t]) => t !== 'AE')) }).report;
+
+  it('checks the outlet\'s analyzer against the inlets\' composition and leaves the split unobservable', () => {
+    expect(r.status).toBe('reconciled');
+    expect(r.redundancy).toBe(3);
+    const ae = r.instruments.AE;
+    expect(ae.classification).toBe('redundant');
+    expect(ae.fractions!.CH4.reconciled!).toBeCloseTo(0.625, 8);
+    expect(ae.fractions!.NH3.reconciled!).toBeCloseTo(0.375, 8);
+    expect(ae.test!).toBeCloseTo(1.4, 6);
+    expect(r.globalTest.statistic!).toBeCloseTo(withoutAE.globalTest.statistic! + 2 * 1.96, 6);
+    expect(r.parameters['split.out.d'].observable).toBe(false);
+    expect(r.unmeasured['streams.e.total'].observable).toBe(false);
+  });
+});
