@@ -233,3 +233,22 @@ describe('analyzers on the outlets of a splitter that no meter reads', () => {
     expect(r.unmeasured['streams.e.total'].observable).toBe(false);
   });
 });
+
+describe('what the status line claims when nothing is left to test', () => {
+  it('flows 1 and 6 (redundancy 1) disagree: serial elimination takes one out and says no redundancy is left, not that the test still fails', () => {
+    // gamma = (101.91 - 98.88)^2 / (1 + 1) = 4.59 > 3.841 (chi-square, 1 dof, 95 %): it fails;
+    // without either reading nothing checks the other.
+    const r = run([0, 5]);
+    expect(r.status).toBe('gross-error');
+    expect(r.globalTest.statistic!).toBeCloseTo((101.91 - 98.88) ** 2 / 2, 8);
+    expect(r.message).toMatch(/no redundancy is left/);
+    expect(r.message).not.toMatch(/still fails/);
+  });
+
+  it('flow 1 alone, no reading on the product: the message claims no raw closure', () => {
+    const r = run([0]);
+    expect(r.status).toBe('not-redundant');
+    expect(r.closure.elements).toEqual({});
+    expect(r.message).not.toMatch(/raw closure stands alone/);
+  });
+});
