@@ -79,8 +79,9 @@ export interface InstrumentDecl {
   realGas?: boolean;
   /** The unit of its column in a historian export when the export has no unit row. */
   unit?: string;
-  /** Readings outside [min, max] (SI) are left out of a row as out of range. */
-  range?: { min?: number; max?: number };
+  /** Readings outside [min, max] (SI) are left out of a row as out of range; a standard volume
+   * flow's range is at `reference` (its unit's), which need not be the reading's. */
+  range?: { min?: number; max?: number; reference?: StandardRef };
   span?: SourceSpan;
 }
 
@@ -105,7 +106,10 @@ export interface ReadingDecl {
  */
 export function standardUncertainty(u: Expanded, reading: number, at?: StandardRef): number {
   if ('relative' in u) return (u.relative * Math.abs(reading)) / COVERAGE;
-  const ref = u.reference;
-  const scale = ref && at && ref.name !== at.name ? (ref.P * at.T) / (ref.T * at.P) : 1;
-  return (u.absolute * scale) / COVERAGE;
+  return atReference(u.absolute, u.reference, at) / COVERAGE;
+}
+
+/** A standard volume (flow) at reference `from` as the same amount of gas at `to` (ideal molar volumes); unchanged when either is not known. */
+export function atReference(v: number, from: StandardRef | undefined, to: StandardRef | undefined): number {
+  return from && to && from.name !== to.name ? (v * from.P * to.T) / (from.T * to.P) : v;
 }

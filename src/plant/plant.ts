@@ -28,7 +28,7 @@ import type { Eos } from '../thermo/types.js';
 import type { StandardRef } from '../units/index.js';
 import { meterFlowBudget, type FlowBudget, type FlowBudgetResult } from './budget.js';
 import { meterEosFor } from '../thermo/meter-eos.js';
-import { standardUncertainty, type InstrumentDecl } from './declarations.js';
+import { atReference, standardUncertainty, type InstrumentDecl } from './declarations.js';
 import { derivedFigure, newDerivedWork } from './derived.js';
 import { buildNetwork, flowOf, streamVariables, totalOf, type Network, type StreamVars } from './network.js';
 import { prepareReconciliation, type PreparedReconciliation } from './reconcile.js';
@@ -805,8 +805,10 @@ export function readingProblem(d: InstrumentDecl, r: RowReading, ids: readonly s
   if ((d.kind === 'pressure' || d.kind === 'temperature') && !(v > 0)) return `the reading is ${v} (SI), not above absolute zero`;
   if (v < 0) return `negative reading (${fmt(v)} ${SI_UNIT[d.kind]})`;
   if (v === 0 && d.uncertainty && 'relative' in d.uncertainty) return ZERO_RELATIVE;
-  if (d.range?.min !== undefined && v < d.range.min) return `out of range: ${fmt(v)} ${SI_UNIT[d.kind]} below ${fmt(d.range.min)}`;
-  if (d.range?.max !== undefined && v > d.range.max) return `out of range: ${fmt(v)} ${SI_UNIT[d.kind]} above ${fmt(d.range.max)}`;
+  // A standard volume flow is compared at its range's reference (the same amount of gas).
+  const vr = d.kind === 'standard' ? atReference(v, r.reference ?? d.reference, d.range?.reference) : v;
+  if (d.range?.min !== undefined && vr < d.range.min) return `out of range: ${fmt(vr)} ${SI_UNIT[d.kind]} below ${fmt(d.range.min)}`;
+  if (d.range?.max !== undefined && vr > d.range.max) return `out of range: ${fmt(vr)} ${SI_UNIT[d.kind]} above ${fmt(d.range.max)}`;
   return undefined;
 }
 

@@ -198,6 +198,20 @@ describe('a standard volume meter whose absolute uncertainty is stated at anothe
   const { model: m } = loadFlowsheet(file);
   const r = preparePlant(m).run({ readings: new Map([...m.readings].map(([t, rd]) => [t, { value: rd.value, reference: rd.reference }])) }).report;
 
+  it('compares the reading with a range stated at another reference as the same amount of gas', () => {
+    // 8626.4 Sm3/h is 8626.4 x 273.15 / 288.15 = 8177.3 Nm3/h (ideal gas, 101.325 kPa both).
+    const at = (range: string) => {
+      const f = join(dir, `bypass-range-${range.replace(/\W+/g, '-')}.yaml`);
+      writeFileSync(f, text.replace('uncertainty: 7.2 Nm3/h }', `uncertainty: 7.2 Nm3/h, range: ${range} }`));
+      const { model: mr } = loadFlowsheet(f);
+      return preparePlant(mr).run({ readings: new Map([...mr.readings].map(([t, rd]) => [t, { value: rd.value, reference: rd.reference }])) }).report.instruments.F1;
+    };
+    expect(at('[0 Nm3/h, 8300 Nm3/h]').use).toBe('used');
+    const out = at('[0 Nm3/h, 8100 Nm3/h]');
+    expect(out.use).toBe('left-out');
+    expect(out.reason).toMatch(/out of range/);
+  });
+
   it('takes the uncertainty to the reading\'s reference before converting it', () => {
     const R = 8.314462618;
     const f1 = r.instruments.F1.molarFlow!;
