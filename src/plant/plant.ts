@@ -330,7 +330,15 @@ export class PlantReconciliation {
     // A meter on a stream of unknown composition: convert again with the reconciled composition.
     const compositionDependent = flowTags.some(readsComposition);
     for (let pass = 0; compositionDependent && pass < 3 && (initial.status === 'reconciled' || initial.status === 'not-redundant'); pass++) {
-      if (convert(initial.x, true) <= CONVERSION_SETTLED) break;
+      // Settled: the readings stay as this reconciliation took them, so that what is reported as
+      // measured (and its sigma and budget) is what was reconciled and tested.
+      const kept = { values: Float64Array.from(values), sigmas: Float64Array.from(sigmas), budgets: new Map(budgets) };
+      if (convert(initial.x, true) <= CONVERSION_SETTLED) {
+        values.set(kept.values);
+        sigmas.set(kept.sigmas);
+        for (const [tag, b] of kept.budgets) budgets.set(tag, b);
+        break;
+      }
       for (let j = 0; j < n; j++) if (Number.isFinite(initial.x[j])) start[j] = initial.x[j];
       initial = this.prepared.solve({ values, sigmas, start });
     }
