@@ -458,15 +458,24 @@ export function buildNetwork(model: Model, design?: FlowsheetResult): Network {
       const basis = d.normalized === false ? model.ids.map((_, i) => i) : d.components!;
       let bsum = 0;
       for (const i of basis) bsum += df[i];
-      // A splitter's outlet has its inlets' composition: the analyzer's equations are written on
-      // those inlets (followed through splitters in series). On the outlet's own flows they would
-      // hold for any reading once the outlet's fraction reaches 0, and the solve could empty an
+      // A splitter's outlet has its inlets' composition, and so has the outlet of a unit with one
+      // inlet and one outlet that keeps every component (a heater, a cooler, a compressor, a
+      // one-inlet mixer): the analyzer's equations are written on the inlets of the splitter
+      // upstream (through such units and splitters in series). On a splitter outlet's own flows
+      // they would hold for any reading once its fraction reaches 0, and the solve could empty an
       // unmetered outlet to wave its analyzer's readings through.
       let from = [s];
-      for (let hop = 0; hop < units.length && from.length === 1; hop++) {
-        const up = units.find((uv) => uv.decl.law === 'split' && uv.outlets.includes(from[0].name));
+      let walk = [s];
+      for (let hop = 0; hop < units.length && walk.length === 1; hop++) {
+        const name = walk[0].name;
+        const up = units.find((uv) => uv.outlets.includes(name));
         if (!up) break;
-        from = up.inlets.map((nm) => streams.get(nm)!);
+        if (up.decl.law === 'split') {
+          walk = up.inlets.map((nm) => streams.get(nm)!);
+          from = walk;
+        } else if (up.decl.law === 'components' && up.inlets.length === 1 && up.outlets.length === 1) {
+          walk = [streams.get(up.inlets[0])!];
+        } else break;
       }
       const fr: number[] = [];
       for (const k of d.components!) {

@@ -246,6 +246,25 @@ describe('analyzers on the outlets of a splitter that no meter reads', () => {
     expect(r.parameters['split.out.d'].observable).toBe(false);
     expect(r.unmeasured['streams.e.total'].observable).toBe(false);
   });
+
+  it('the same with a cooler between the splitter and the analyzer (one inlet, one outlet: the same gas)', () => {
+    const text = readFileSync(join(__dirname, 'flowsheets', 'split-analyzers.yaml'), 'utf8')
+      .replace('  split: { type: splitter, in: c, out: { d: 0.3, e: rest } }', '  split: { type: splitter, in: c, out: { d: 0.3, e: rest } }\n  cool: { type: cooler, in: e, out: e2, T: 280 K }')
+      .replace('AE: { stream: e, kind', 'AE: { stream: e2, kind');
+    const dir = mkdtempSync(join(tmpdir(), 'loopclose-split-'));
+    try {
+      const file = join(dir, 'split-cooler.yaml');
+      writeFileSync(file, text);
+      const { model: mc } = loadFlowsheet(file);
+      const rc = preparePlant(mc).run({ readings: new Map([...mc.readings].map(([t, rd]) => [t, { value: rd.value, fractions: rd.fractions }])) }).report;
+      expect(rc.redundancy).toBe(3);
+      expect(rc.instruments.AE.fractions!.CH4.reconciled!).toBeCloseTo(0.625, 8);
+      expect(rc.globalTest.statistic!).toBeCloseTo(r.globalTest.statistic!, 8);
+      expect(rc.parameters['split.out.d'].observable).toBe(false);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
 });
 
 describe('what the status line claims when nothing is left to test', () => {
