@@ -33,7 +33,10 @@
  *   mass                     m (kg/s) = sum of M_i x component flow i;
  *   analyzer                 for each listed component k: w_k x (sum over the basis of the
  *                            stream's component flows) = flow of k, the basis being the listed
- *                            components (normalized, the default) or every component;
+ *                            components (normalized, the default) or every component; on a
+ *                            splitter outlet (or after a one-inlet, one-outlet unit on one), the
+ *                            flows of the splitter's inlets, the same gas, so that emptying the
+ *                            outlet cannot satisfy the equations for any reading;
  *   pressure, temperature    no variable (line conditions of meters).
  * Every equation is a sum of terms c, c x_j or c x_j x_l, so c(x) and its Jacobian are exact and
  * cheap (BilinearConstraints).

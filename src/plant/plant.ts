@@ -5,11 +5,12 @@
  *   const plant = preparePlant(model, { budget })      // the network, its balances, start values
  *   const { report, x } = plant.run(row, warm)         // one row; x starts the next row
  *
- * For a row: each reading is checked (present, not negative, inside its instrument's range; a
- * meter needs its line pressure and temperature), flow readings are converted to what the
- * balances take with their uncertainty budget (budget.ts; a meter on a stream of unknown
- * composition is converted with the composition the reconciliation finds, again until it no
- * longer moves), then:
+ * For a row: each reading is checked (present, not negative, inside its instrument's range, not
+ * a 0 under an uncertainty in % of the reading; a meter needs its line pressure and temperature),
+ * flow readings are converted to what the balances take with their uncertainty budget
+ * (budget.ts; a meter on a stream of unknown composition is converted with the composition the
+ * reconciliation finds, again until it no longer moves, and reported with the conversion the
+ * reconciliation took), then:
  *  1. the raw closure of each element and of the total mass over the plant's envelope (feeds in,
  *     products out) from the readings alone, with its uncertainty (closure.ts, GUM, k = 2);
  *  2. the reconciliation (reconcile.ts) of the network's balances (network.ts);
