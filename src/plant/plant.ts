@@ -404,7 +404,7 @@ export class PlantReconciliation {
       report.message = `not redundant: no reading is checked by another, so nothing can be tested; ${closure.note?.startsWith('no raw closure') ? 'nor is there a raw closure (a boundary stream has no flow reading)' : 'the raw closure stands alone'}`;
     } else if (initial.globalTest?.status === 'failed') {
       report.status = 'gross-error';
-      const names = report.suspects.map((s) => `${s.tag}${s.component ? ` ${s.component}` : ''} (bias ${pct(s.bias)} of its reading)`);
+      const names = report.suspects.map((s) => `${s.tag}${s.component ? ` ${s.component}` : ''} (${Number.isFinite(s.bias) ? `bias ${pct(s.bias)} of its reading` : 'its reading is 0'})`);
       report.message = `gross error: the global test fails (gamma ${fmt(initial.objective)} > ${fmt(initial.globalTest.critical)}, p = ${initial.globalTest.pValue.toPrecision(2)})` +
         (names.length ? `; suspect${names.length > 1 ? 's' : ''}: ${names.join(', ')}; ${serial.status === 'suspects-found' ? 'the global test passes without them' : serial.stopReason === 'no-redundancy' ? 'without them no redundancy is left to test' : `the global test still fails (${serial.stopReason})`}` : `; no suspect can be named (${serial.stopReason})`);
     } else {

@@ -310,3 +310,33 @@ describe('the ammonia demo\'s snapshot: what is reported as measured is what was
     expect(gamma / r.globalTest.statistic!).toBeCloseTo(1, 9);
   });
 });
+
+describe('a line meter reading 0 with an absolute uncertainty', () => {
+  // Its molar flow is F = Q P / (Z R T) (ideal gas here, Z = 1): at Q = 0 it is 0, with the
+  // standard uncertainty u(Q) P / (R T) and nothing from the line pressure and temperature (their
+  // sensitivities are proportional to Q). Before, the run stopped with an internal error.
+  const text = readFileSync(FILE, 'utf8')
+    .replace('F3: { stream: s3, kind: molar, uncertainty: 2 mol/s }', [
+      'P3: { stream: s3, kind: pressure, uncertainty: 0.1 bar, unit: bar }',
+      '  T3: { stream: s3, kind: temperature, uncertainty: 1 K, unit: K }',
+      '  F3: { stream: s3, kind: meter, pressure: P3, temperature: T3, uncertainty: 0.72 m3/h, unit: m3/h }',
+    ].join('\n'))
+    .replace('F3: 34.65 mol/s', 'P3: 5 bar\n  T3: 300 K\n  F3: 0 m3/h');
+  const dir = mkdtempSync(join(tmpdir(), 'loopclose-meter0-'));
+  const file = join(dir, 'bypass-meter-zero.yaml');
+  writeFileSync(file, text);
+  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+  it('is a reading of 0 mol/s with u(Q) P / (R T), and the row is answered', () => {
+    const { model: mz } = loadFlowsheet(file);
+    const r = preparePlant(mz).run({ readings: new Map([...mz.readings].map(([t, rd]) => [t, { value: rd.value }])) }).report;
+    const f3 = r.instruments.F3;
+    expect(f3.use).toBe('used');
+    expect(f3.molarFlow!.measured).toBe(0);
+    const R = 8.314462618; // CODATA 2018, exact
+    expect(f3.molarFlow!.sigma! / ((0.36 / 3600) * 5e5 / (R * 300))).toBeCloseTo(1, 10);
+    expect(['reconciled', 'gross-error']).toContain(r.status);
+    expect(r.suspects.every((s) => s.tag !== 'F3' || !Number.isFinite(s.bias))).toBe(true);
+    expect(r.message).not.toMatch(/Infinity|NaN/);
+  });
+});
