@@ -72,7 +72,8 @@ export function quantityAt(r: Reader, node: Node | null, dim: Dimension | readon
   return q?.value;
 }
 
-function parsedQuantityAt(r: Reader, node: Node | null, dim: Dimension | readonly Dimension[], what: string, rule: NumberRule, ctx: { atmosphere: number; standards?: ReadonlyMap<string, StandardRef> }) {
+/** quantityAt with what was parsed: the value, its unit and, for a standard volume flow, its reference. */
+export function parsedQuantityAt(r: Reader, node: Node | null, dim: Dimension | readonly Dimension[], what: string, rule: NumberRule, ctx: { atmosphere: number; standards?: ReadonlyMap<string, StandardRef> }) {
   const v = r.scalar(node, what);
   if (v === undefined) return undefined;
   if (v === null) {

@@ -131,14 +131,20 @@ export function meterFlowBudget(meter: MeterEos): FlowBudget {
       const zc = d.composition ?? x;
       designDensity = d.density ?? molarMass(input.eos, zc) / meter.molarVolume(d.T!, d.P!, zc);
     }
-    const b = meterBudget(meter, { flow: reading, T: line.T, P: line.P, x, designDensity }, {
-      flow: reading > 0 ? instrument / reading : undefined, pressure: line.uP, temperature: line.uT,
+    // The molar flow is the reading times a factor of the line state, F = k Q. A reading of 0 (a
+    // line shut) is taken at Q = 1 and scaled: F = 0, the instrument's term k u(Q), and every
+    // other term (each proportional to F) 0.
+    const zero = reading === 0;
+    const Q = zero ? 1 : reading;
+    const b = meterBudget(meter, { flow: Q, T: line.T, P: line.P, x, designDensity }, {
+      flow: Q > 0 ? instrument / Q : undefined, pressure: line.uP, temperature: line.uT,
     });
     const terms: BudgetTerm[] = b.lines.map((l) => ({
       source: l.input === 'pressure' ? `line pressure (${line.pressureTag})` : l.input === 'temperature' ? `line temperature (${line.temperatureTag})` : l.input === 'flow' ? 'instrument' : l.label,
-      sigma: l.contribution,
+      sigma: zero && l.input !== 'flow' ? 0 : l.contribution,
       ...(l.input === 'equation-of-state' || l.input === 'reference-equation' ? { note: l.source } : {}),
     }));
+    if (zero) return { value: 0, basis: 'molar', sigma: instrument * b.molarFlow, terms, notes: b.notes };
     return { value: b.molarFlow, basis: 'molar', sigma: b.combined, terms, notes: b.notes };
   };
 }

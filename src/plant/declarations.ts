@@ -31,8 +31,12 @@ export type InstrumentKind = (typeof INSTRUMENT_KINDS)[number];
 /** Coverage factor of every stated uncertainty (JCGM 100:2008, Sec. 6.3: about 95 % for a normal distribution). */
 export const COVERAGE = 2;
 
-/** An expanded uncertainty as written: relative to the reading, or absolute in SI. */
-export type Expanded = { relative: number } | { absolute: number };
+/**
+ * An expanded uncertainty as written: relative to the reading, or absolute in SI. An absolute
+ * standard volume flow keeps the reference its unit named (`20 Nm3/h`): it is m3/s at that
+ * reference, which need not be the reading's.
+ */
+export type Expanded = { relative: number } | { absolute: number; reference?: StandardRef };
 
 /** The dimension of an instrument's reading. */
 export function readingDimension(kind: InstrumentKind): Dimension {
@@ -75,8 +79,9 @@ export interface InstrumentDecl {
   realGas?: boolean;
   /** The unit of its column in a historian export when the export has no unit row. */
   unit?: string;
-  /** Readings outside [min, max] (SI) are left out of a row as out of range. */
-  range?: { min?: number; max?: number };
+  /** Readings outside [min, max] (SI) are left out of a row as out of range; a standard volume
+   * flow's range is at `reference` (its unit's), which need not be the reading's. */
+  range?: { min?: number; max?: number; reference?: StandardRef };
   span?: SourceSpan;
 }
 
@@ -92,7 +97,19 @@ export interface ReadingDecl {
   span?: SourceSpan;
 }
 
-/** Standard uncertainty (U / k) of a reading. */
-export function standardUncertainty(u: Expanded, reading: number): number {
-  return 'relative' in u ? (u.relative * Math.abs(reading)) / COVERAGE : u.absolute / COVERAGE;
+/**
+ * Standard uncertainty (U / k) of a reading. For a standard volume flow read at reference `at`,
+ * an absolute uncertainty stated at another reference is first taken to `at`: the same amount of
+ * gas, Q_at = Q_u (P_u T_at) / (T_u P_at) (ideal molar volumes; the real-gas ratio differs by
+ * the compressibility's change between the references, a few parts in 10^4 at most for gases
+ * near 1 atm, negligible in an uncertainty).
+ */
+export function standardUncertainty(u: Expanded, reading: number, at?: StandardRef): number {
+  if ('relative' in u) return (u.relative * Math.abs(reading)) / COVERAGE;
+  return atReference(u.absolute, u.reference, at) / COVERAGE;
+}
+
+/** A standard volume (flow) at reference `from` as the same amount of gas at `to` (ideal molar volumes); unchanged when either is not known. */
+export function atReference(v: number, from: StandardRef | undefined, to: StandardRef | undefined): number {
+  return from && to && from.name !== to.name ? (v * from.P * to.T) / (from.T * to.P) : v;
 }

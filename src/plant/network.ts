@@ -33,7 +33,10 @@
  *   mass                     m (kg/s) = sum of M_i x component flow i;
  *   analyzer                 for each listed component k: w_k x (sum over the basis of the
  *                            stream's component flows) = flow of k, the basis being the listed
- *                            components (normalized, the default) or every component;
+ *                            components (normalized, the default) or every component; on a
+ *                            splitter outlet (or after a one-inlet, one-outlet unit on one), the
+ *                            flows of the splitter's inlets, the same gas, so that emptying the
+ *                            outlet cannot satisfy the equations for any reading;
  *   pressure, temperature    no variable (line conditions of meters).
  * Every equation is a sum of terms c, c x_j or c x_j x_l, so c(x) and its Jacobian are exact and
  * cheap (BilinearConstraints).
@@ -458,13 +461,32 @@ export function buildNetwork(model: Model, design?: FlowsheetResult): Network {
       const basis = d.normalized === false ? model.ids.map((_, i) => i) : d.components!;
       let bsum = 0;
       for (const i of basis) bsum += df[i];
+      // A splitter's outlet has its inlets' composition, and so has the outlet of a unit with one
+      // inlet and one outlet that keeps every component (a heater, a cooler, a compressor, a
+      // one-inlet mixer): the analyzer's equations are written on the inlets of the splitter
+      // upstream (through such units and splitters in series). On a splitter outlet's own flows
+      // they would hold for any reading once its fraction reaches 0, and the solve could empty an
+      // unmetered outlet to wave its analyzer's readings through.
+      let from = [s];
+      let walk = [s];
+      for (let hop = 0; hop < units.length && walk.length === 1; hop++) {
+        const name = walk[0].name;
+        const up = units.find((uv) => uv.outlets.includes(name));
+        if (!up) break;
+        if (up.decl.law === 'split') {
+          walk = up.inlets.map((nm) => streams.get(nm)!);
+          from = walk;
+        } else if (up.decl.law === 'components' && up.inlets.length === 1 && up.outlets.length === 1) {
+          walk = [streams.get(up.inlets[0])!];
+        } else break;
+      }
       const fr: number[] = [];
       for (const k of d.components!) {
         const w0 = bsum > 0 ? df[k] / bsum : 0;
         const j = add({ name: `${d.tag}.${model.ids[k]}`, start: w0, lower: 0, upper: 1, typical: Math.max(w0, 1e-6), measured: { value: w0, sigma: 1 } });
         const terms: Term[] = [];
-        for (const i of basis) terms.push(...flowTerms(s, i, 1, j));
-        terms.push(...flowTerms(s, k, -1));
+        for (const src of from) for (const i of basis) terms.push(...flowTerms(src, i, 1, j));
+        for (const src of from) terms.push(...flowTerms(src, k, -1));
         rows.push({ name: `${d.tag}: fraction of ${model.ids[k]} in ${d.stream}`, terms });
         fr.push(j);
       }

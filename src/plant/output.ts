@@ -64,7 +64,8 @@ export function plantText(report: PlantReport, model: Model, opts: { flowUnit?: 
   if (report.suspects.length) {
     out.push('Suspects (serial elimination, in the order taken out):');
     for (const s of report.suspects) {
-      out.push(`  ${s.tag}${s.component ? ` ${s.component}` : ''}: bias ${pctpm(s.bias, 2 * s.biasSigma)} of its reading (95 %), test ${num(s.statistic, 3)}${s.indistinguishableFrom.length ? `; the data cannot tell it from ${s.indistinguishableFrom.join(', ')}` : ''}`);
+      // A reading of 0 has no bias as a fraction of it (JSON null, an empty CSV field).
+      out.push(`  ${s.tag}${s.component ? ` ${s.component}` : ''}: ${Number.isFinite(s.bias) ? `bias ${pctpm(s.bias, 2 * s.biasSigma)} of its reading (95 %)` : 'its reading is 0: no bias as a fraction of it'}, test ${num(s.statistic, 3)}${s.indistinguishableFrom.length ? `; the data cannot tell it from ${s.indistinguishableFrom.join(', ')}` : ''}`);
     }
     const a = report.afterRemoving!;
     out.push(`  without ${a.tags.join(', ')}: global test ${a.globalTest.passed === null ? 'not possible (no redundancy left)' : `${a.globalTest.passed ? 'passes' : 'still fails'} (gamma ${num(a.globalTest.statistic!, 4)}, critical ${num(a.globalTest.critical!, 4)})`}`);
@@ -143,6 +144,11 @@ export function rowSaid(report: PlantReport | undefined, said: readonly string[]
     for (const [tag, r] of Object.entries(report.instruments)) {
       if (r.use === 'left-out' && !said.some((s) => s.startsWith(`${tag}:`) || s.startsWith(`${tag}.`))) parts.push(`${tag}: left out: ${r.reason}`);
     }
+    // An analyzer's component the run left out (a 0 read with a relative uncertainty) is a note.
+    for (const note of report.notes) {
+      const m = /^"([^"]+)": (left out: .*)$/.exec(note);
+      if (m) parts.push(`${m[1]}: ${m[2]}`);
+    }
   }
   return parts.join('; ');
 }
@@ -193,7 +199,7 @@ export function rowCsv(cols: RowColumns, point: number, timestamp: string, repor
   let figures = JSON.stringify(f);
   figures = figures.slice(1, -1);
   if (figures.includes('null')) figures = figures.replace(/null/g, '');
-  const suspects = report.suspects.map((x) => `${x.tag}${x.component ? `.${x.component}` : ''}:${x.bias}`).join(' ');
+  const suspects = report.suspects.map((x) => `${x.tag}${x.component ? `.${x.component}` : ''}:${Number.isFinite(x.bias) ? x.bias : ''}`).join(' ');
   return `${n(point)},${csvField(timestamp)},${csvField(status)},${figures},${csvField(suspects)},${csvField(rowSaid(report, said))},${csvField(message ?? (report.status === 'reconciled' ? '' : report.message))}`;
 }
 

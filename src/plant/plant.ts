@@ -5,11 +5,12 @@
  *   const plant = preparePlant(model, { budget })      // the network, its balances, start values
  *   const { report, x } = plant.run(row, warm)         // one row; x starts the next row
  *
- * For a row: each reading is checked (present, not negative, inside its instrument's range; a
- * meter needs its line pressure and temperature), flow readings are converted to what the
- * balances take with their uncertainty budget (budget.ts; a meter on a stream of unknown
- * composition is converted with the composition the reconciliation finds, again until it no
- * longer moves), then:
+ * For a row: each reading is checked (present, not negative, inside its instrument's range, not
+ * a 0 under an uncertainty in % of the reading; a meter needs its line pressure and temperature),
+ * flow readings are converted to what the balances take with their uncertainty budget
+ * (budget.ts; a meter on a stream of unknown composition is converted with the composition the
+ * reconciliation finds, again until it no longer moves, and reported with the conversion the
+ * reconciliation took), then:
  *  1. the raw closure of each element and of the total mass over the plant's envelope (feeds in,
  *     products out) from the readings alone, with its uncertainty (closure.ts, GUM, k = 2);
  *  2. the reconciliation (reconcile.ts) of the network's balances (network.ts);
@@ -28,7 +29,7 @@ import type { Eos } from '../thermo/types.js';
 import type { StandardRef } from '../units/index.js';
 import { meterFlowBudget, type FlowBudget, type FlowBudgetResult } from './budget.js';
 import { meterEosFor } from '../thermo/meter-eos.js';
-import { standardUncertainty, type InstrumentDecl } from './declarations.js';
+import { atReference, standardUncertainty, type InstrumentDecl } from './declarations.js';
 import { derivedFigure, newDerivedWork } from './derived.js';
 import { buildNetwork, flowOf, streamVariables, totalOf, type Network, type StreamVars } from './network.js';
 import { prepareReconciliation, type PreparedReconciliation } from './reconcile.js';
@@ -234,6 +235,28 @@ export class PlantReconciliation {
         rep.reason = why;
         continue;
       }
+      // An analyzer's component read as exactly 0 with a relative uncertainty (ZERO_RELATIVE) is
+      // not read; the analyzer goes on with its other components.
+      const zeroRelative = d.kind === 'analyzer'
+        ? d.components!.filter((k, pos) => {
+            const u = d.componentUncertainty?.[pos] ?? d.uncertainty!;
+            return r.fractions![k] === 0 && 'relative' in u;
+          })
+        : [];
+      if (zeroRelative.length > 0) {
+        const fractions = Float64Array.from(r.fractions!);
+        for (const k of zeroRelative) {
+          fractions[k] = Number.NaN;
+          notes.push(`"${d.tag}.${ids[k]}": left out: ${ZERO_RELATIVE}`);
+        }
+        if (!d.components!.some((k) => Number.isFinite(fractions[k]))) {
+          rep.use = 'left-out';
+          rep.reason = ZERO_RELATIVE;
+          continue;
+        }
+        usable.set(d.tag, { ...r, fractions });
+        continue;
+      }
       usable.set(d.tag, r);
     }
     // A meter needs its line pressure and temperature.
@@ -290,7 +313,7 @@ export class PlantReconciliation {
             }
           : undefined;
         const b = this.budget({
-          tag, kind: d.kind as 'meter', reading: r.value!, instrument: standardUncertainty(d.uncertainty!, r.value!),
+          tag, kind: d.kind as 'meter', reading: r.value!, instrument: standardUncertainty(d.uncertainty!, r.value!, d.kind === 'standard' ? r.reference ?? d.reference : undefined),
           composition: this.composition(s, x), eos: this.eos, line, design: d.design, reference: r.reference ?? d.reference, realGas: d.realGas,
         });
         const j = iv.variable!;
@@ -308,7 +331,15 @@ export class PlantReconciliation {
     // A meter on a stream of unknown composition: convert again with the reconciled composition.
     const compositionDependent = flowTags.some(readsComposition);
     for (let pass = 0; compositionDependent && pass < 3 && (initial.status === 'reconciled' || initial.status === 'not-redundant'); pass++) {
-      if (convert(initial.x, true) <= CONVERSION_SETTLED) break;
+      // Settled: the readings stay as this reconciliation took them, so that what is reported as
+      // measured (and its sigma and budget) is what was reconciled and tested.
+      const kept = { values: Float64Array.from(values), sigmas: Float64Array.from(sigmas), budgets: new Map(budgets) };
+      if (convert(initial.x, true) <= CONVERSION_SETTLED) {
+        values.set(kept.values);
+        sigmas.set(kept.sigmas);
+        for (const [tag, b] of kept.budgets) budgets.set(tag, b);
+        break;
+      }
       for (let j = 0; j < n; j++) if (Number.isFinite(initial.x[j])) start[j] = initial.x[j];
       initial = this.prepared.solve({ values, sigmas, start });
     }
@@ -370,12 +401,12 @@ export class PlantReconciliation {
     const pct = (v: number) => `${v >= 0 ? '+' : ''}${(v * 100).toFixed(1)} %`;
     if (initial.status === 'not-redundant') {
       report.status = 'not-redundant';
-      report.message = 'not redundant: no reading is checked by another, so nothing can be tested; the raw closure stands alone';
+      report.message = `not redundant: no reading is checked by another, so nothing can be tested; ${closure.note?.startsWith('no raw closure') ? 'nor is there a raw closure (a boundary stream has no flow reading)' : 'the raw closure stands alone'}`;
     } else if (initial.globalTest?.status === 'failed') {
       report.status = 'gross-error';
-      const names = report.suspects.map((s) => `${s.tag}${s.component ? ` ${s.component}` : ''} (bias ${pct(s.bias)} of its reading)`);
+      const names = report.suspects.map((s) => `${s.tag}${s.component ? ` ${s.component}` : ''} (${Number.isFinite(s.bias) ? `bias ${pct(s.bias)} of its reading` : 'its reading is 0'})`);
       report.message = `gross error: the global test fails (gamma ${fmt(initial.objective)} > ${fmt(initial.globalTest.critical)}, p = ${initial.globalTest.pValue.toPrecision(2)})` +
-        (names.length ? `; suspect${names.length > 1 ? 's' : ''}: ${names.join(', ')}; ${serial.status === 'suspects-found' ? 'the global test passes without them' : `the global test still fails (${serial.stopReason})`}` : `; no suspect can be named (${serial.stopReason})`);
+        (names.length ? `; suspect${names.length > 1 ? 's' : ''}: ${names.join(', ')}; ${serial.status === 'suspects-found' ? 'the global test passes without them' : serial.stopReason === 'no-redundancy' ? 'without them no redundancy is left to test' : `the global test still fails (${serial.stopReason})`}` : `; no suspect can be named (${serial.stopReason})`);
     } else {
       report.status = 'reconciled';
       report.message = `reconciled: redundancy ${initial.redundancy}; the global test passes (gamma ${fmt(initial.objective)} <= ${fmt(initial.globalTest!.critical)}, p = ${initial.globalTest!.pValue.toPrecision(2)})`;
@@ -555,7 +586,11 @@ export class PlantReconciliation {
     // quantities (readings) in order, and for each element (and the mass, at nE) and side the
     // total and its derivative in each quantity, in the order rawClosure adds them, so that the
     // figures are the same to the bit. A term is coef x F x w (a component an analyzer reads:
-    // F its stream's flow, w the reading) or (coef x w_design) x F.
+    // F its stream's flow, w the reading) or (coef x w_design) x F. Two dependences that
+    // closure.ts's products cannot state are added to the derivatives (not to the totals): the
+    // unread rest of a `normalized: false` analyzer, and a mass reading's molar flow m / MW(x),
+    // both moving with the analyzer's readings (without them a weighed product read by an
+    // analyzer had its closure uncertainty wrong: test/plant/closure.test.ts).
     const work = this.closureWorkFor(env);
     const { qv, qs, din, dout, tin, tout, nin } = work;
     let nq = 0;
@@ -571,6 +606,7 @@ export class PlantReconciliation {
     let valid = true;
     const fracValue = work.fracValue;
     const fracQ = work.fracQ;
+    const { restCoef, readQ, dFdq } = work;
     for (const { name, s, role, tags, analyzers, design } of env.streams) {
       let flowTag: string | undefined;
       for (const t of tags) {
@@ -587,6 +623,14 @@ export class PlantReconciliation {
       // Composition: the file's (a feed), an analyzer's reading, or the design solve's.
       fracValue.set(design);
       fracQ.fill(-1);
+      // What the composition and the molar flow owe to the analyzer's readings beyond their own
+      // appearance: with `normalized: false` the components it does not read share the rest,
+      // x_i = c_i (1 - sum_k w_k), c_i = design_i / (the design's sum over them), so each reading
+      // w_k enters x_i with -c_i; and a mass reading m is the molar flow m / MW(x) of that
+      // composition, which moves with every reading, dF/dw_k = -(F / MW) dMW/dw_k.
+      restCoef.fill(0);
+      let nRead = 0;
+      let anyRest = false;
       let an: InstrumentDecl | undefined;
       for (const d of analyzers) {
         if (usable.has(d.tag)) {
@@ -611,6 +655,7 @@ export class PlantReconciliation {
           qv[nq] = r.fractions![k] * scale;
           qs[nq] = sig * scale;
           fracValue[k] = r.fractions![k] * scale;
+          readQ[nRead++] = nq;
           fracQ[k] = nq++;
         }
         if (an.normalized === false) {
@@ -618,6 +663,8 @@ export class PlantReconciliation {
           for (const i of unread) {
             fracValue[i] = dRest > 0 ? (design[i] * rest) / dRest : 0;
             fracQ[i] = -1;
+            restCoef[i] = dRest > 0 ? design[i] / dRest : 0;
+            if (restCoef[i] !== 0 && nRead > 0) anyRest = true;
           }
         }
         if (unread.some((i) => design[i] > 0)) assumed.push(`${name} (${unread.filter((i) => design[i] > 0).map((i) => ids[i]).join(', ')})`);
@@ -629,13 +676,24 @@ export class PlantReconciliation {
       qv[nq] = F;
       qs[nq] = uF;
       const fq = nq++;
+      // dF/dw_k of a mass reading (zero for a molar one): dMW/dw_k = MW_k - sum_i MW_i c_i.
+      const massDependent = b.basis === 'mass' && nRead > 0;
+      if (massDependent) {
+        let restMW = 0;
+        for (let i = 0; i < nC; i++) restMW += restCoef[i] * model.components[i].MW;
+        for (let r = 0; r < nRead; r++) {
+          let k = 0;
+          while (fracQ[k] !== readQ[r]) k++;
+          dFdq[r] = (-F / MW) * (model.components[k].MW - restMW);
+        }
+      }
       const feed = role === 'feed';
       const T = feed ? tin : tout;
       const D = feed ? din : dout;
       for (let i = 0; i < nC; i++) {
         const value = fracValue[i];
         const q = fracQ[i];
-        if (value === 0 && q < 0) continue;
+        if (value === 0 && q < 0 && restCoef[i] === 0) continue;
         for (let e = 0; e <= nE; e++) {
           // The mass (e = nE) takes every component, weighted by its molar mass.
           const a = e < nE ? env.atoms[e][i] : model.components[i].MW;
@@ -652,6 +710,8 @@ export class PlantReconciliation {
             T[e] += c * qv[fq];
             D[o + fq] += c;
           }
+          if (anyRest && restCoef[i] !== 0) for (let r = 0; r < nRead; r++) D[o + readQ[r]] -= a * restCoef[i] * qv[fq];
+          if (massDependent) for (let r = 0; r < nRead; r++) D[o + readQ[r]] += a * value * dFdq[r];
         }
       }
     }
@@ -698,6 +758,11 @@ export class PlantReconciliation {
     nin: Int32Array;
     fracValue: Float64Array;
     fracQ: Int32Array;
+    /** Per component: c_i of an unread component's share of the rest (`normalized: false`), else 0. */
+    restCoef: Float64Array;
+    /** The quantity indices of a stream's analyzer readings, and dF/dw of a mass reading in each. */
+    readQ: Int32Array;
+    dFdq: Float64Array;
   };
 
   private closureWorkFor(env: NonNullable<PlantReconciliation['envelope']>): NonNullable<PlantReconciliation['closureWork']> {
@@ -716,12 +781,23 @@ export class PlantReconciliation {
         nin: new Int32Array(nE1),
         fracValue: new Float64Array(nC),
         fracQ: new Int32Array(nC),
+        restCoef: new Float64Array(nC),
+        readQ: new Int32Array(nC),
+        dFdq: new Float64Array(nC),
       };
     }
     return this.closureWork;
   }
 
 }
+
+/**
+ * A reading of exactly 0 whose uncertainty is a percentage of the reading has a standard
+ * uncertainty of 0: weighed as exact, it would pin the balances and push every disagreement onto
+ * the other readings (a trace analyzer reading 0 made the purge analyzer the suspect). It is left
+ * out instead, with what to write.
+ */
+const ZERO_RELATIVE = 'a reading of 0 with an uncertainty in % of the reading would count as exact; state an absolute uncertainty';
 
 /** Why a reading cannot be used (negative, outside its range, not a fraction), or undefined. */
 export function readingProblem(d: InstrumentDecl, r: RowReading, ids: readonly string[]): string | undefined {
@@ -737,8 +813,11 @@ export function readingProblem(d: InstrumentDecl, r: RowReading, ids: readonly s
   const v = r.value!;
   if ((d.kind === 'pressure' || d.kind === 'temperature') && !(v > 0)) return `the reading is ${v} (SI), not above absolute zero`;
   if (v < 0) return `negative reading (${fmt(v)} ${SI_UNIT[d.kind]})`;
-  if (d.range?.min !== undefined && v < d.range.min) return `out of range: ${fmt(v)} ${SI_UNIT[d.kind]} below ${fmt(d.range.min)}`;
-  if (d.range?.max !== undefined && v > d.range.max) return `out of range: ${fmt(v)} ${SI_UNIT[d.kind]} above ${fmt(d.range.max)}`;
+  if (v === 0 && d.uncertainty && 'relative' in d.uncertainty) return ZERO_RELATIVE;
+  // A standard volume flow is compared at its range's reference (the same amount of gas).
+  const vr = d.kind === 'standard' ? atReference(v, r.reference ?? d.reference, d.range?.reference) : v;
+  if (d.range?.min !== undefined && vr < d.range.min) return `out of range: ${fmt(vr)} ${SI_UNIT[d.kind]} below ${fmt(d.range.min)}`;
+  if (d.range?.max !== undefined && vr > d.range.max) return `out of range: ${fmt(vr)} ${SI_UNIT[d.kind]} above ${fmt(d.range.max)}`;
   return undefined;
 }
 

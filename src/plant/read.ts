@@ -8,9 +8,9 @@ import type { Node } from 'yaml';
 import { didYouMean } from '../diagnostics.js';
 import type { MeterDesign } from '../flowsheet/model.js';
 import type { Entry, Reader } from '../flowsheet/source.js';
-import { quantityAt, reportUnitError, type FieldContext } from '../flowsheet/yaml-fields.js';
+import { parsedQuantityAt, quantityAt, reportUnitError, type FieldContext } from '../flowsheet/yaml-fields.js';
 import { parseQuantity, UnitError, type Dimension } from '../units/index.js';
-import { INSTRUMENT_KINDS, readingDimension, type Expanded, type InstrumentDecl, type InstrumentKind, type ReadingDecl } from './declarations.js';
+import { atReference, INSTRUMENT_KINDS, readingDimension, type Expanded, type InstrumentDecl, type InstrumentKind, type ReadingDecl } from './declarations.js';
 
 export interface PlantSections {
   instruments: InstrumentDecl[];
@@ -258,12 +258,16 @@ function readInstrument(
       if (parts) r.bag.error(`\`range\` of ${what} needs two values, low and high`, r.at(rangeE.value), `for example \`range: [0 ${kind === 'meter' ? 'm3/h' : kind === 'mass' ? 't/h' : 'kmol/h'}, 3000 ${kind === 'meter' ? 'm3/h' : kind === 'mass' ? 't/h' : 'kmol/h'}]\``);
       ok = false;
     } else {
-      const [lo, hi] = parts.map((p, k) => quantityAt(r, p, dim, `the ${k === 0 ? 'low' : 'high'} end of \`range\` of ${what}`, {}, ctx));
+      const ends = parts.map((p, k) => parsedQuantityAt(r, p, dim, `the ${k === 0 ? 'low' : 'high'} end of \`range\` of ${what}`, {}, ctx));
+      // A standard volume flow's ends may name references: both are taken to the first one's.
+      const refs = ends.map((q) => (kind === 'standard' ? q?.standard ?? decl.reference : undefined));
+      const reference = refs[0] ?? refs[1];
+      const [lo, hi] = ends.map((q, k) => (q === undefined ? undefined : atReference(q.value, refs[k], reference)));
       if (lo === undefined || hi === undefined) ok = false;
       else if (!(lo < hi)) {
         r.bag.error(`\`range\` of ${what} runs from ${lo} to ${hi} (SI): the low end must be below the high end`, r.at(rangeE.value));
         ok = false;
-      } else decl.range = { min: lo, max: hi };
+      } else decl.range = reference ? { min: lo, max: hi, reference } : { min: lo, max: hi };
     }
   }
   return ok ? decl : undefined;
@@ -294,7 +298,7 @@ function expandedAt(r: Reader, node: Node | null, kind: InstrumentKind, ctx: Fie
       if (dim === 'temperature' || dim === 'pressure') {
         value -= parseQuantity(`0 ${q.unit}`, dim, { atmosphere: ctx.atmosphere }).value;
       }
-      out = { absolute: value };
+      out = q.standard ? { absolute: value, reference: q.standard } : { absolute: value };
     }
   } catch (err) {
     if (err instanceof UnitError) {

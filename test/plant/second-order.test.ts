@@ -72,8 +72,11 @@ describe('second-order steps', () => {
           if (e.role === 'measured') expect(Math.abs(e.value! - f.value!), e.name).toBeLessThanOrEqual(1e-6 * e.sigma!);
         }
         expect(Math.abs(ra.objective - rb.objective)).toBeLessThanOrEqual(1e-6 * Math.max(1, rb.objective));
-        // Steps below 0.1 (in sigmas): the next is within 0.05 x its square (second order), or it falls
-        // by at least 100x less than that (first order; the Gauss-Newton steps here fall by about 1e-2).
+        // Steps below 0.1 (in sigmas): the next is within 0.1 x its square (second order), or it falls
+        // by at least 100x less than that (first order; the Gauss-Newton steps here fall by about 1e-2,
+        // a ratio to the square of 1e-2 / step, above 0.1 for every step below 0.1). The constant of
+        // the second order depends on how the balances are written: with the analyzers on the purge
+        // written on the splitter's inlet the largest seen is 0.061 (9.5e-3, 5.5e-6, 2.0e-13).
         const ratio = (h: ReconcileResult['history']) => {
           for (let i = 1; i + 1 < h.length; i++) if (h[i].step < 0.1 && h[i].step > 1e-5) return h[i + 1].step / h[i].step ** 2;
           return NaN;
@@ -81,7 +84,7 @@ describe('second-order steps', () => {
         const qa = ratio(ra.history);
         const qb = ratio(rb.history);
         if (Number.isFinite(qa)) {
-          expect(qa).toBeLessThan(0.05);
+          expect(qa).toBeLessThan(0.1);
           quadratic++;
         }
         if (Number.isFinite(qb) && qb > 0.05) linear++;
