@@ -22,7 +22,7 @@ export { derivedEstimate } from './derived.js';
 export type { DerivedEstimate } from './derived.js';
 export { closure } from './closure.js';
 export type { ClosureInput, ClosureQuantity, ClosureResult, ClosureTerm } from './closure.js';
-export { chiSquareCritical, chiSquarePValue, normalCritical, sidakLevel } from './statistics.js';
+export { chiSquareCritical, chiSquarePValue, normalCritical, pValueText, sidakLevel } from './statistics.js';
 export type * from './types.js';
 // Plant data on a flowsheet (instruments and readings of the file, its balances, one row at a time).
 export { preparePlant, PlantReconciliation, PLANT_RECONCILE_DEFAULTS, readingProblem } from './plant.js';

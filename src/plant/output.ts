@@ -7,6 +7,7 @@ import type { Model } from '../flowsheet/model.js';
 import { CAUTION, csvField, csvLine, num, table, toJson } from '../report/format.js';
 import { toUnit } from '../units/index.js';
 import type { PlantReconciliation, PlantReport } from './plant.js';
+import { pValueText } from './statistics.js';
 
 export const PLANT_CAUTION = `${CAUTION} Reconciled values are estimates under the stated assumptions; custody transfer and environmental reporting follow their own codes.`;
 
@@ -59,7 +60,7 @@ export function plantText(report: PlantReport, model: Model, opts: { flowUnit?: 
   out.push('');
   const g = report.globalTest;
   if (g.passed === null) out.push('Global test: none (no redundancy: nothing checks the readings)');
-  else out.push(`Global test: gamma ${num(g.statistic!, 4)}, degrees of freedom ${g.dof}, critical ${num(g.critical!, 4)} at 95 %, p = ${g.pValue!.toPrecision(2)}: ${g.passed ? 'passes' : 'FAILS'}`);
+  else out.push(`Global test: gamma ${num(g.statistic!, 4)}, degrees of freedom ${g.dof}, critical ${num(g.critical!, 4)} at 95 %, ${pValueText(g.pValue!, 2)}: ${g.passed ? 'passes' : 'FAILS'}`);
   if (report.measurementTest) out.push(`Measurement tests: ${report.measurementTest.count}, each at the Sidak level ${report.measurementTest.level.toPrecision(3)} (critical ${num(report.measurementTest.critical, 4)})`);
   if (report.suspects.length) {
     out.push('Suspects (serial elimination, in the order taken out):');

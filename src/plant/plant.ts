@@ -35,6 +35,7 @@ import { buildNetwork, flowOf, streamVariables, totalOf, type Network, type Stre
 import { prepareReconciliation, type PreparedReconciliation } from './reconcile.js';
 import { serialElimination } from './serial.js';
 import type { ReconcileOptions, ReconcileResult } from './types.js';
+import { pValueText } from './statistics.js';
 
 export type PlantStatus = 'reconciled' | 'gross-error' | 'not-redundant' | 'not-converged' | 'invalid';
 
@@ -405,11 +406,11 @@ export class PlantReconciliation {
     } else if (initial.globalTest?.status === 'failed') {
       report.status = 'gross-error';
       const names = report.suspects.map((s) => `${s.tag}${s.component ? ` ${s.component}` : ''} (${Number.isFinite(s.bias) ? `bias ${pct(s.bias)} of its reading` : 'its reading is 0'})`);
-      report.message = `gross error: the global test fails (gamma ${fmt(initial.objective)} > ${fmt(initial.globalTest.critical)}, p = ${initial.globalTest.pValue.toPrecision(2)})` +
+      report.message = `gross error: the global test fails (gamma ${fmt(initial.objective)} > ${fmt(initial.globalTest.critical)}, ${pValueText(initial.globalTest.pValue, 2)})` +
         (names.length ? `; suspect${names.length > 1 ? 's' : ''}: ${names.join(', ')}; ${serial.status === 'suspects-found' ? 'the global test passes without them' : serial.stopReason === 'no-redundancy' ? 'without them no redundancy is left to test' : `the global test still fails (${serial.stopReason})`}` : `; no suspect can be named (${serial.stopReason})`);
     } else {
       report.status = 'reconciled';
-      report.message = `reconciled: redundancy ${initial.redundancy}; the global test passes (gamma ${fmt(initial.objective)} <= ${fmt(initial.globalTest!.critical)}, p = ${initial.globalTest!.pValue.toPrecision(2)})`;
+      report.message = `reconciled: redundancy ${initial.redundancy}; the global test passes (gamma ${fmt(initial.objective)} <= ${fmt(initial.globalTest!.critical)}, ${pValueText(initial.globalTest!.pValue, 2)})`;
     }
     for (const note of final.notes) if (!note.includes('unobservable')) notes.push(note);
     return { report, x: final.status === 'reconciled' || final.status === 'not-redundant' ? final.x : initial.x };

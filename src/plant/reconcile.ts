@@ -79,7 +79,7 @@
 import { applyQ, applyQt, newQrWork, qrPivoted, solveUpper, solveUpperTransposed, type QrWork } from './dense.js';
 import { StructuredSteps, type StructuredState, type StructuredSummary } from './structured.js';
 import { CurvatureStep } from './curvature.js';
-import { chiSquareCritical, chiSquarePValue, normalCritical, sidakLevel } from './statistics.js';
+import { chiSquareCritical, chiSquarePValue, normalCritical, pValueText, sidakLevel } from './statistics.js';
 import type {
   GlobalTest,
   MeasurementTestInfo,
@@ -1146,7 +1146,7 @@ export class PreparedReconciliation {
     const message =
       status === 'not-redundant'
         ? 'not redundant: no reading is checked by another (redundancy 0); the readings pass through unadjusted and no gross-error test is possible'
-        : `reconciled: redundancy ${rho}; global test ${globalTest.status} at ${pct} (gamma ${objective.toPrecision(4)}, critical ${globalTest.critical.toPrecision(4)}, p = ${globalTest.pValue.toPrecision(3)})`;
+        : `reconciled: redundancy ${rho}; global test ${globalTest.status} at ${pct} (gamma ${objective.toPrecision(4)}, critical ${globalTest.critical.toPrecision(4)}, ${pValueText(globalTest.pValue, 3)})`;
     return {
       status,
       message,

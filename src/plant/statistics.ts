@@ -27,6 +27,14 @@ export function chiSquarePValue(statistic: number, dof: number): number {
   return gammainc(statistic / 2, dof / 2, true, true);
 }
 
+/**
+ * "p = 2.2e-6" for a message; a p-value below 1e-300 (the tail of a huge gamma, where the double
+ * underflows towards 0) as "p < 1e-300" rather than "p = 0.0", which would claim certainty.
+ */
+export function pValueText(p: number, digits: number): string {
+  return p < 1e-300 && p >= 0 ? 'p < 1e-300' : `p = ${p.toPrecision(digits)}`;
+}
+
 /** Sidak level of each of `count` tests whose family has the given confidence: 1 - confidence^(1/count). */
 export function sidakLevel(confidence: number, count: number): number {
   // -expm1(log(confidence) / count) keeps the digits that 1 - confidence^(1/count) would lose.

@@ -5,6 +5,7 @@ import {
   chiSquarePValue,
   normalCritical,
   prepareReconciliation,
+  pValueText,
   reconcile,
   serialElimination,
   sidakLevel,
@@ -283,6 +284,18 @@ describe('distribution values wired to the stdlib packages', () => {
     const tail6 = Math.exp(-h2) * (1 + h2 + (h2 * h2) / 2);
     expect(chiSquarePValue(72, 6) / tail6).toBeCloseTo(1, 12);
     expect(chiSquarePValue(0, 4)).toBe(1);
+  });
+
+  it('a p-value below the smallest double is said as p < 1e-300, never p = 0', () => {
+    // The bypass network read with sigma 0.01 instead of 1: gamma grows 1e4-fold (to about 8e4),
+    // and its chi-square tail underflows (exp(-4e4) is far below 1e-308).
+    const r = reconcile(hxProblem(ALL, { sigma: 0.01 }));
+    expect(r.globalTest!.statistic).toBeGreaterThan(1e4);
+    expect(r.globalTest!.pValue).toBeLessThan(1e-300);
+    expect(r.message).toContain('p < 1e-300');
+    expect(r.message).not.toMatch(/p = 0/);
+    expect(pValueText(2.2e-6, 2)).toBe('p = 0.0000022');
+    expect(pValueText(0, 2)).toBe('p < 1e-300');
   });
 
   it('two-sided normal critical value at 5 % is 1.960 (NIST/SEMATECH e-Handbook, Sec. 1.3.6.7.1, normal table)', () => {
