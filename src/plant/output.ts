@@ -37,7 +37,7 @@ export function plantText(report: PlantReport, model: Model, opts: { flowUnit?: 
   }
   if (report.closure.note) out.push(`  ${report.closure.note}`);
   out.push('');
-  out.push(`Instruments (flows in ${fu}; sigma is the standard uncertainty; test: |adjustment| / its sigma)`);
+  out.push(`Instruments (flows in ${fu}; sigma is the standard uncertainty; test: |adjustment| / its sigma, an analyzer's for each component)`);
   const rows: string[][] = [];
   for (const [tag, r] of Object.entries(report.instruments)) {
     if (r.use === 'context') {
@@ -52,7 +52,7 @@ export function plantText(report: PlantReport, model: Model, opts: { flowUnit?: 
     } else if (r.fractions) {
       const fr = Object.entries(r.fractions);
       fr.forEach(([id, e], k) => {
-        rows.push([k === 0 ? tag : '', k === 0 ? r.kind : '', k === 0 ? r.stream : '', `${id} ${e.measured === null ? '-' : num(e.measured, 4)}`, e.reconciled === null ? '-' : num(e.reconciled, 4), e.sigma === null ? '-' : num(e.sigma, 3), e.reconciledSigma === null ? '-' : num(e.reconciledSigma, 3), k === 0 ? test : '', k === 0 ? state : '']);
+        rows.push([k === 0 ? tag : '', k === 0 ? r.kind : '', k === 0 ? r.stream : '', `${id} ${e.measured === null ? '-' : num(e.measured, 4)}`, e.reconciled === null ? '-' : num(e.reconciled, 4), e.sigma === null ? '-' : num(e.sigma, 3), e.reconciledSigma === null ? '-' : num(e.reconciledSigma, 3), e.test === undefined ? (k === 0 ? test : '') : e.test === null ? '-' : num(e.test, 3), k === 0 ? state : '']);
       });
     } else rows.push([tag, r.kind, r.stream, '-', '-', '-', '-', test, state]);
   }

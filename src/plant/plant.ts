@@ -68,6 +68,8 @@ export interface Estimate {
   reconciled: number | null;
   sigma: number | null;
   reconciledSigma: number | null;
+  /** An analyzer's component: its own measurement test (|adjustment| / its sigma), null when untested. */
+  test?: number | null;
 }
 
 export interface InstrumentReport {
@@ -465,6 +467,7 @@ export class PlantReconciliation {
             reconciled: e && e.value !== null ? e.value : null,
             sigma: e?.sigma ?? null,
             reconciledSigma: e && e.uncertainty !== null ? e.uncertainty : null,
+            test: e?.test ? e.test.statistic : null,
           };
         });
         rep.fractions = fr;

@@ -109,6 +109,15 @@ describe('the ammonia demo against an independent fit of the same loop', () => {
       tests.set(tags[i], Math.max(tests.get(tags[i]) ?? 0, z));
     });
     for (const [t, z] of tests) expect(ins[t].test!, t).toBeCloseTo(z, 2);
+    // And each analyzer component carries its own (the text table prints it on that component's line).
+    everything.forEach((i) => {
+      const f = figures[i];
+      if (f.test === undefined) return;
+      const z = Math.abs(y[i] - full.hp[i]) / Math.sqrt(s[i] ** 2 - full.C.get(i, i));
+      expect(f.test!, tags[i]).toBeCloseTo(z, 2);
+    });
+    expect(frac('AI-205', 'CH4').test!).toBeCloseTo(ins['AI-205'].test!, 12);
+    expect(frac('AI-205', 'H2').test!).toBeLessThan(ins['AI-205'].test! / 2);
   });
 
   it('without the suspect FI-101: the same gamma, conversion and purge fraction with their sigmas', () => {
