@@ -240,7 +240,13 @@ export const compressor: BlockDef<CompressorSpec> = {
           figures.push({ label: 'polytropic exponent n', value: polyN, kind: 'number', key: 'polytropicExponent' });
           figures.push({ label: 'Schultz head factor f', value: factor, kind: 'number', key: 'schultzFactor' });
         }
-        return { figures, notes: [] };
+        const notes: string[] = [];
+        // A discharge with liquid: the energy balance stands, but the machine would be wet.
+        const vf = outs[0]?.vf;
+        if (vf !== undefined && vf < 1 - DEW_POINT_LIQUID) {
+          notes.push(`the discharge is not all vapor (vapor fraction ${fmt(vf)} at ${fmt(outs[0].T - 273.15)} degC): liquid would form inside the machine; the power is that of the equilibrium states, and a compressor handles gas only`);
+        }
+        return { figures, notes };
       },
     };
   },

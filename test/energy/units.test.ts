@@ -236,6 +236,8 @@ units:
     const power = figure(r, 'c', 'power');
     expect(Math.abs(power / exact - 1)).toBeLessThan(0.01);
     expect(Math.abs(power - 4129.7)).toBeLessThan(1);
+    // The wet discharge is said, not left to the stream table's vapor fraction.
+    expect(r.units.get('c')!.notes.join(' ')).toMatch(/the discharge is not all vapor \(vapor fraction 0\.\d+ at 115\.\d+ degC\)/);
   });
 
   it('a compressor given an outlet pressure below its inlet is invalid, naming the unit', () => {
