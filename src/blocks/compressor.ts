@@ -124,7 +124,7 @@ export const compressor: BlockDef<CompressorSpec> = {
         if (P2 < P1 * (1 - 1e-12)) {
           return {
             kind: 'invalid', unit: spec.name,
-            message: `compressor \`${spec.name}\`: the outlet pressure ${fmt(P2 / 1e5)} bar is below the inlet's, ${fmt(P1 / 1e5)} bar`,
+            message: `compressor \`${spec.name}\`: the outlet pressure ${fmt(P2 / 1e5)} bar abs is below the inlet's, ${fmt(P1 / 1e5)} bar abs`,
             help: 'raise `P` above the inlet pressure, or let the pressure down with a `valve`',
           };
         }

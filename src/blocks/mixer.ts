@@ -89,7 +89,7 @@ export const mixer: BlockDef<MixerSpec> = {
         if (Number.isFinite(P)) {
           const let_down = spec.inlets.filter((_, k) => ins[k] && totalFlow(ins[k]) > 0 && ins[k].P > P * (1 + LETDOWN_REL));
           if (let_down.length) {
-            notes.push(`${let_down.map((s) => `\`${s}\``).join(', ')} ${let_down.length > 1 ? 'are' : 'is'} let down to the ${spec.P === undefined ? 'lowest inlet pressure' : 'set pressure'}, ${fmt(P / 1e5)} bar`);
+            notes.push(`${let_down.map((s) => `\`${s}\``).join(', ')} ${let_down.length > 1 ? 'are' : 'is'} let down to the ${spec.P === undefined ? 'lowest inlet pressure' : 'set pressure'}, ${fmt(P / 1e5)} bar abs`);
           }
         }
         return { figures, notes };

@@ -630,7 +630,7 @@ export function pressureBelowZero(unit: string, inletP: number, dp: number) {
   return {
     kind: 'invalid' as const,
     unit,
-    message: `\`${unit}\`: the pressure drop ${fmt(dp / 1e5)} bar is more than the inlet pressure ${fmt(inletP / 1e5)} bar`,
+    message: `\`${unit}\`: the pressure drop ${fmt(dp / 1e5)} bar is more than the inlet pressure ${fmt(inletP / 1e5)} bar abs`,
     help: 'lower `dp`, or set the outlet pressure `P:`',
   };
 }
