@@ -72,4 +72,25 @@ describe('loopclose meter', () => {
     expect(r.stderr).toMatch(/`1` has no unit/);
     expect(r.stderr).toMatch(/2 errors/);
   });
+
+  // psi = 0.45359237 kg * 9.80665 m/s2 / (0.0254 m)^2 = 6894.757293168 Pa (NIST SP 811 (2008),
+  // Appendix B.8, exact definitions): 10 psig at a local atmosphere of 14.7 psia is 24.7 psia.
+  it('reads gauge pressures with --atmosphere, which must be absolute (a gauge atmosphere would add 101.325 kPa twice)', () => {
+    const args = ['meter', '--gas', 'CH4=1', '--eos', 'ideal', '--flow', '100 m3/h', '--pressure', '10 psig', '--temperature', '0 degC', '--json'];
+    const ok = cli([...args, '--atmosphere', '14.7 psia']);
+    expect(ok.code).toBe(0);
+    expect(JSON.parse(ok.stdout).feeds.reading.P).toBeCloseTo(24.7 * 6894.757293168, 6);
+    const gauge = cli([...args.slice(0, -1), '--atmosphere', '14.7 psig']);
+    expect(gauge.code).toBe(2);
+    expect(gauge.stderr).toMatch(/--atmosphere: `14\.7 psig` is a gauge pressure/);
+    expect(gauge.stdout).toBe('');
+  });
+
+  it('refuses --atmosphere with a file rather than ignoring it (the file sets thermo.atmosphere)', () => {
+    const f = tempFile('atm.yaml', 'components: { CH4: {} }\nfeeds:\n  a:\n    composition: { CH4: 1 }\n    meter: { flow: 100 m3/h, pressure: 10 barg, temperature: 20 degC }\n');
+    const r = cli(['meter', f, '--atmosphere', '0.8 bar']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/--atmosphere is for one reading/);
+    expect(r.stderr).toMatch(/thermo: \{ atmosphere/);
+  });
 });
