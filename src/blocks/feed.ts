@@ -444,13 +444,14 @@ function readUncertainty(m: FieldReader, what: string, Pline: number | undefined
   if (statedAs) out.statedAs = statedAs as MeterUncertainty['statedAs'];
   const flow = u.quantity('flow', 'dimensionless', { min: 0, max: 0.5, example: '1.5 %' });
   if (flow !== undefined) out.flow = flow;
-  const p = u.quantity('pressure', 'pressure', { min: 0, example: '0.1 bar' });
+  // A difference: a gauge unit (barg, psig), which would add the atmosphere, is refused.
+  const p = u.quantity('pressure', 'pressure', { min: 0, example: '0.1 bar', difference: true });
   if (p !== undefined) {
-    // A gauge unit (barg, psig) adds the atmosphere: an uncertainty above a tenth of the reading
-    // is no meter reading at all, and usually that mistake.
+    // An uncertainty above a tenth of the reading is no meter reading at all (a wrong unit, mbar
+    // for bar, say).
     if (Pline !== undefined && p > 0.1 * Pline) {
       u.error('pressure', `the pressure uncertainty of ${what} reads as ${fmt(p)} Pa, more than a tenth of the line pressure (${fmt(Pline)} Pa absolute)`,
-        'write it as a difference in bar, kPa or psi (`0.1 bar`): a gauge unit such as barg or psig adds the atmosphere');
+        'write it as a difference in bar, kPa or psi (`0.1 bar`), and check the number and the unit');
     } else out.pressure = p;
   }
   const t = u.quantity('temperature', 'temperature', { min: 0, example: '0.5 K' });
