@@ -47,8 +47,15 @@ export interface FeedResult {
   flows: Float64Array;
   /** Mole fractions. */
   composition: Float64Array;
+  /** Stream temperature (K) and pressure (Pa): where the feed enters the flowsheet. */
   T: number;
   P: number;
+  /**
+   * Where Z, molarVolume, density and phase hold: the meter's temperature (K) and pressure (Pa) for
+   * a metered feed (which may differ from the stream's T and P, a meter upstream of a compressor
+   * or a heater), else the stream's.
+   */
+  conditions: { T: number; P: number };
   /** kg/mol of the mixture. */
   molarMass: number;
   /** kg/m3 at the feed conditions. */
@@ -187,7 +194,7 @@ export function computeFeed(spec: FeedSpec, eos: Eos, meter: MeterEos = makeMete
     fallback: converts && fallback ? fallback : undefined,
     sensitivity: b.kind === 'meter' ? { pressure: dlnvdlnP, temperature: dlnvdlnT, nearCritical } : undefined,
     uncertainty: b.kind === 'meter' ? b.uncertainty : undefined,
-    flows, composition: z, T: spec.T, P: spec.P, molarMass: MW, density: rho, basis: b.kind, reference, densityCorrection, warnings,
+    flows, composition: z, T: spec.T, P: spec.P, conditions: { T, P }, molarMass: MW, density: rho, basis: b.kind, reference, densityCorrection, warnings,
   };
 }
 

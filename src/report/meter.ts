@@ -38,6 +38,7 @@ export function meterJson(r: MeterReport): string {
       flows,
       T: f.T,
       P: f.P,
+      conditions: f.conditions,
       basis: f.basis,
       molarMass: f.molarMass,
       density: f.density,
@@ -74,8 +75,9 @@ export function meterText(r: MeterReport): string {
   const rows = r.feeds.map((f) => [
     f.name,
     f.basis,
-    num(toUnit(f.T, 'temperature', d.temperatureUnit, ctx), 5),
-    num(toUnit(f.P, 'pressure', d.pressureUnit, ctx), 5),
+    // The state of the Z, v and phase beside it: the meter's for a metered feed.
+    num(toUnit(f.conditions.T, 'temperature', d.temperatureUnit, ctx), 5),
+    num(toUnit(f.conditions.P, 'pressure', d.pressureUnit, ctx), 5),
     num(f.Z, 5),
     num(f.molarVolume * 1e6, 5),
     num(toUnit(f.molarFlow, 'molarFlow', d.flowUnit, ctx), 5),
@@ -94,6 +96,11 @@ export function meterText(r: MeterReport): string {
     ['left', 'left', 'right', 'right', 'right', 'right', 'right', 'right', 'left', 'left']));
   const refs = r.feeds.filter((f) => f.reference);
   for (const f of refs) out.push(`  ${f.name}: standard volume at ${f.reference!.label}, ${f.reference!.basis === 'real' ? 'real-gas volume at the reference' : 'ideal-gas volume at the reference'}`);
+  const T = (v: number) => `${num(toUnit(v, 'temperature', d.temperatureUnit, ctx), 5)} ${d.temperatureUnit}`;
+  const P = (v: number) => `${num(toUnit(v, 'pressure', d.pressureUnit, ctx), 5)} ${d.pressureUnit}`;
+  for (const f of r.feeds) {
+    if (f.conditions.T !== f.T || f.conditions.P !== f.P) out.push(`  ${f.name}: T and P above are the meter's; the feed enters the flowsheet at ${T(f.T)}, ${P(f.P)}`);
+  }
   for (const f of r.feeds) if (f.densityCorrection !== undefined) out.push(`  ${f.name}: differential-pressure reading corrected by sqrt(design density / actual density) = ${num(f.densityCorrection, 6)}`);
   for (const f of r.feeds) {
     const b = r.budgets?.get(f.name);

@@ -93,4 +93,21 @@ describe('loopclose meter', () => {
     expect(r.stderr).toMatch(/--atmosphere is for one reading/);
     expect(r.stderr).toMatch(/thermo: \{ atmosphere/);
   });
+
+  it('shows a metered feed\'s Z and v beside the meter\'s T and P, not the stream\'s (a meter upstream of a compressor)', () => {
+    const f = tempFile('upstream.yaml', 'components: { CH4: {} }\nthermo: { eos: SRK }\nfeeds:\n  a:\n    composition: { CH4: 1 }\n    meter: { flow: 1000 m3/h, pressure: 5 barg, temperature: 20 degC }\n    T: 80 degC\n    P: 60 barg\n');
+    const j = JSON.parse(cli(['meter', f, '--json']).stdout).feeds.a;
+    expect(j.T).toBeCloseTo(353.15, 9); // the stream, as before
+    expect(j.conditions.T).toBeCloseTo(293.15, 9);
+    expect(j.conditions.P).toBeCloseTo(601325, 3);
+    expect(j.Z).toBeCloseTo((j.conditions.P * j.molarVolume) / (8.314462618 * j.conditions.T), 12);
+    // Methane at 20 degC and 6 bar: Z = 1 + B P / (R T) with B about -45 cm3/mol at 293 K
+    // (Dymond and Smith, The Virial Coefficients of Pure Gases and Mixtures, 1980, methane; from memory): 0.989.
+    expect(j.Z).toBeCloseTo(1 - (45e-6 * 601325) / (8.314462618 * 293.15), 3);
+    const r = cli(['meter', f]);
+    expect(r.code).toBe(0);
+    const row = r.stdout.split('\n').find((l) => /^a\s+meter/.test(l))!;
+    expect(row.split(/\s+/).slice(2, 5)).toEqual(['20.000', '6.0133', '0.98913']);
+    expect(r.stdout).toMatch(/a: T and P above are the meter's; the feed enters the flowsheet at 80\.000 degC, 61\.013 bar/);
+  });
 });
