@@ -127,7 +127,8 @@ function budgetText(name: string, b: MeterBudget, r: MeterReport): string[] {
     ]), ['left', 'right', 'left', 'right', 'right', 'right', 'right']));
     for (const l of b.lines) if (l.input === 'equation-of-state' || l.input === 'reference-equation') out.push(`  ${l.label}: ${l.source}`);
   }
-  out.push(`  molar flow ${F(b.molarFlow)} ${d.flowUnit}; combined standard uncertainty ${F(b.combined)} ${d.flowUnit} (${pct(b.combinedRelative, 3).replace('+', '')}); expanded (k = 2) ${F(b.expanded)} ${d.flowUnit} (${pct(b.expandedRelative, 3).replace('+', '')})`);
+  if (!b.lines.length) out.push(`  molar flow ${F(b.molarFlow)} ${d.flowUnit}; no input has a figure, so no uncertainty can be combined (it is not zero)`);
+  else out.push(`  molar flow ${F(b.molarFlow)} ${d.flowUnit}; combined standard uncertainty ${F(b.combined)} ${d.flowUnit} (${pct(b.combinedRelative, 3).replace('+', '')}); expanded (k = 2) ${F(b.expanded)} ${d.flowUnit} (${pct(b.expandedRelative, 3).replace('+', '')})`);
   for (const note of b.notes) out.push(`  note: ${note}`);
   return out;
 }

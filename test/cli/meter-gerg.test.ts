@@ -116,4 +116,14 @@ feeds:
     expect(r.stderr).toMatch(/scales with an offset/);
     expect(r.stderr).not.toMatch(/\n\s+at /);
   });
+
+  // GERG-2008's extended range ends at 70 MPa (Kunz and Wagner, J. Chem. Eng. Data 57 (2012) 3032,
+  // abstract): at 80 MPa the authors state no uncertainty, and with no instrument figures declared
+  // the budget has no line at all. That is an unknown uncertainty, not a zero one.
+  it('does not print a zero combined uncertainty when no input has a figure', () => {
+    const r = cli(['meter', '--gas', 'CH4=1', '--flow', '100 m3/h', '--pressure', '800 bar', '--temperature', '300 K', '--eos', 'GERG-2008']);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/no input has a figure, so no uncertainty can be combined/);
+    expect(r.stdout).not.toMatch(/combined standard uncertainty 0 /);
+  });
 });
