@@ -65,7 +65,10 @@ function budgetsOf(specs: readonly FeedSpec[], feeds: readonly FeedResult[], met
     if (b.kind !== 'meter') return;
     const f = feeds[k];
     const designDensity = f.densityCorrection !== undefined ? f.densityCorrection * f.densityCorrection * f.density : undefined;
-    out.set(spec.name, meterBudget(meter, { flow: b.flow, T: b.T, P: b.P, x: spec.composition, ...(designDensity !== undefined ? { designDensity } : {}) }, instrumentOf(b.uncertainty)));
+    // A design density computed at a design state with the meter EOS carries its error (meter-budget.ts).
+    const d = b.design;
+    const design = designDensity !== undefined && d && d.density === undefined && d.T !== undefined && d.P !== undefined ? { T: d.T, P: d.P, x: d.composition ?? spec.composition } : undefined;
+    out.set(spec.name, meterBudget(meter, { flow: b.flow, T: b.T, P: b.P, x: spec.composition, ...(designDensity !== undefined ? { designDensity } : {}), ...(design ? { design } : {}) }, instrumentOf(b.uncertainty)));
   });
   return out;
 }
