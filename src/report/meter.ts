@@ -90,7 +90,10 @@ export function meterText(r: MeterReport): string {
   out.push('');
   const byModel = meterEos !== r.eos;
   rows.forEach((row, k) => {
-    if (byModel) row.push(r.feeds[k].model);
+    const f = r.feeds[k];
+    // A mass, molar or ideal-basis standard flow goes through no equation; its Z still comes from one.
+    const converted = f.basis === 'meter' || (f.basis === 'standard-flow' && f.reference?.basis === 'real');
+    if (byModel) row.push(converted ? f.model : `none (Z: ${f.model})`);
   });
   out.push(table(['feed', 'basis', `T ${d.temperatureUnit}`, `P ${d.pressureUnit}`, 'Z', 'v cm3/mol', `flow ${d.flowUnit}`, 'ideal-gas error', 'phase', ...(byModel ? ['converted by'] : [])], rows,
     ['left', 'left', 'right', 'right', 'right', 'right', 'right', 'right', 'left', 'left']));
