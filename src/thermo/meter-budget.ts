@@ -156,9 +156,13 @@ export function meterBudget(meter: MeterEos, reading: BudgetReading, instrument:
       add('equation-of-state', `equation of state (${mu.model})`, Math.abs(dn) / Math.sqrt(3), '1', 'rectangular', n,
         `measured: ${mu.model} differs from GERG-2008 by ${pctText(mu.deviation)} in molar volume at the line and ${pctText(muD.deviation)} at the design state, which gave the design density; `
         + `n goes with sqrt(rho_d rho), so by ${pctText(-dn)}: a known correction not applied, taken as the half-width of a rectangular distribution (JCGM 100:2008, 4.3.7): u = |difference| / sqrt(3)`);
-    } else {
+    } else if (muD.model === mu.model) {
       add('equation-of-state', `equation of state (${mu.model})`, (mu.relative + muD.relative) / 2, '1', mu.distribution, n,
         `${mu.source}; at the design state, which gave the design density: ${pctText(muD.relative, false)}; the same equation at both states, taken as fully correlated: u = (u_line + u_design) / 2 on n`);
+    } else {
+      // Different equations at the two states (a design gas GERG-2008 does not cover): independent errors.
+      add('equation-of-state', `equation of state (${mu.model}; design: ${muD.model})`, Math.hypot(mu.relative, muD.relative) / 2, '1', mu.relative >= muD.relative ? mu.distribution : muD.distribution, n,
+        `${mu.source}; at the design state, which gave the design density, ${muD.model}: ${pctText(muD.relative, false)} (${muD.source}); different equations, taken as uncorrelated: u = sqrt(u_line^2 + u_design^2) / 2 on n`);
     }
     const r = mu.reference;
     const rD = muD.reference;

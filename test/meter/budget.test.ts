@@ -149,6 +149,22 @@ describe('meterBudget against a hand calculation by the GUM', () => {
     expect(given.lines.find((l) => l.input === 'equation-of-state')!.relativeSensitivity).toBeCloseTo(0.5, 12);
   });
 
+  it('a design gas GERG-2008 does not cover: the two states\' equations differ, and their errors are combined as independent', () => {
+    const m = meterFor('GERG-2008', ['H2', 'N2', 'NH3']);
+    const x = [0.75, 0.25, 0];
+    const design = { T: 313.15, P: 151.01325e5, x: [0.7, 0.25, 0.05] };
+    const M = (y: number[]) => y[0] * findComponent('H2')!.MW + y[1] * findComponent('N2')!.MW + y[2] * findComponent('NH3')!.MW;
+    const b = meterBudget(m, { flow: 0.3, T: 313.15, P: 151.01325e5, x, designDensity: M(design.x) / m.molarVolume(design.T, design.P, design.x), design });
+    const line = b.lines.find((l) => l.input === 'equation-of-state')!;
+    expect(line.label).toBe('equation of state (GERG-2008; design: SRK)');
+    // GERG-2008's 0.1 % (k = 2; Kunz and Wagner 2012, from memory) at the line; at the design
+    // state SRK's |1 - Z| as a rectangular half-width (the project's bound, README); independent.
+    const zD = m.eos.z(design.T, design.P, design.x).Z;
+    expect(line.u).toBeCloseTo(Math.hypot(0.0005, Math.abs(1 - zD) / Math.sqrt(3)) / 2, 12);
+    expect(line.distribution).toBe('rectangular');
+    expect(line.source).toMatch(/different equations, taken as uncorrelated/);
+  });
+
   it('with GERG-2008: the authors\' stated figure only, and says what is missing', () => {
     const b = meterBudget(meterFor('GERG-2008', ['CH4', 'N2']), { flow: 0.05, T: 288.15, P: 50e5, x: [0.95, 0.05] });
     expect(b.model).toBe('GERG-2008');
