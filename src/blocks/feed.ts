@@ -47,8 +47,15 @@ export interface FeedResult {
   flows: Float64Array;
   /** Mole fractions. */
   composition: Float64Array;
+  /** Stream temperature (K) and pressure (Pa): where the feed enters the flowsheet. */
   T: number;
   P: number;
+  /**
+   * Where Z, molarVolume, density and phase hold: the meter's temperature (K) and pressure (Pa) for
+   * a metered feed (which may differ from the stream's T and P, a meter upstream of a compressor
+   * or a heater), else the stream's.
+   */
+  conditions: { T: number; P: number };
   /** kg/mol of the mixture. */
   molarMass: number;
   /** kg/m3 at the feed conditions. */
@@ -187,7 +194,7 @@ export function computeFeed(spec: FeedSpec, eos: Eos, meter: MeterEos = makeMete
     fallback: converts && fallback ? fallback : undefined,
     sensitivity: b.kind === 'meter' ? { pressure: dlnvdlnP, temperature: dlnvdlnT, nearCritical } : undefined,
     uncertainty: b.kind === 'meter' ? b.uncertainty : undefined,
-    flows, composition: z, T: spec.T, P: spec.P, molarMass: MW, density: rho, basis: b.kind, reference, densityCorrection, warnings,
+    flows, composition: z, T: spec.T, P: spec.P, conditions: { T, P }, molarMass: MW, density: rho, basis: b.kind, reference, densityCorrection, warnings,
   };
 }
 
@@ -444,13 +451,14 @@ function readUncertainty(m: FieldReader, what: string, Pline: number | undefined
   if (statedAs) out.statedAs = statedAs as MeterUncertainty['statedAs'];
   const flow = u.quantity('flow', 'dimensionless', { min: 0, max: 0.5, example: '1.5 %' });
   if (flow !== undefined) out.flow = flow;
-  const p = u.quantity('pressure', 'pressure', { min: 0, example: '0.1 bar' });
+  // A difference: a gauge unit (barg, psig), which would add the atmosphere, is refused.
+  const p = u.quantity('pressure', 'pressure', { min: 0, example: '0.1 bar', difference: true });
   if (p !== undefined) {
-    // A gauge unit (barg, psig) adds the atmosphere: an uncertainty above a tenth of the reading
-    // is no meter reading at all, and usually that mistake.
+    // An uncertainty above a tenth of the reading is no meter reading at all (a wrong unit, mbar
+    // for bar, say).
     if (Pline !== undefined && p > 0.1 * Pline) {
       u.error('pressure', `the pressure uncertainty of ${what} reads as ${fmt(p)} Pa, more than a tenth of the line pressure (${fmt(Pline)} Pa absolute)`,
-        'write it as a difference in bar, kPa or psi (`0.1 bar`): a gauge unit such as barg or psig adds the atmosphere');
+        'write it as a difference in bar, kPa or psi (`0.1 bar`), and check the number and the unit');
     } else out.pressure = p;
   }
   const t = u.quantity('temperature', 'temperature', { min: 0, example: '0.5 K' });

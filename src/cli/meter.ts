@@ -27,7 +27,7 @@ export interface MeterOptions {
   flowUnit?: string;
 }
 
-const ONE_READING_OPTIONS = ['flowUncertainty', 'pressureUncertainty', 'temperatureUncertainty', 'uncertaintyStatedAs', 'fallbackEos'] as const;
+const ONE_READING_OPTIONS = ['flowUncertainty', 'pressureUncertainty', 'temperatureUncertainty', 'uncertaintyStatedAs', 'fallbackEos', 'atmosphere'] as const;
 
 export function runMeter(file: string | undefined, o: MeterOptions): string {
   if (file && o.gas) throw new InputError([{ severity: 'error', message: 'give a flowsheet file or `--gas` with one reading, not both', help: 'drop the file to convert one reading' }]);
@@ -37,7 +37,9 @@ export function runMeter(file: string | undefined, o: MeterOptions): string {
     const given = ONE_READING_OPTIONS.filter((k) => o[k] !== undefined);
     if (given.length) {
       throw new InputError(given.map((k) => ({ severity: 'error' as const, message: `--${k.replace(/[A-Z]/g, (c) => `-${c.toLowerCase()}`)} is for one reading (\`--gas\`), not for a file`,
-        help: k === 'fallbackEos' ? 'a file gives its own equation in `thermo.eos`' : 'declare the uncertainties of a feed in the file: `meter: { ..., uncertainty: { flow: 1.5 %, pressure: 0.1 bar, temperature: 0.5 K } }`' })));
+        help: k === 'fallbackEos' ? 'a file gives its own equation in `thermo.eos`'
+          : k === 'atmosphere' ? 'a file gives its local atmosphere in `thermo: { atmosphere: 0.95 bar }`; its gauge readings are read with it'
+          : 'declare the uncertainties of a feed in the file: `meter: { ..., uncertainty: { flow: 1.5 %, pressure: 0.1 bar, temperature: 0.5 K } }`' })));
     }
     const { model } = loadFlowsheet(file);
     const choice = o.eos ? eosOption(o.eos) : undefined;
@@ -63,7 +65,10 @@ function budgetsOf(specs: readonly FeedSpec[], feeds: readonly FeedResult[], met
     if (b.kind !== 'meter') return;
     const f = feeds[k];
     const designDensity = f.densityCorrection !== undefined ? f.densityCorrection * f.densityCorrection * f.density : undefined;
-    out.set(spec.name, meterBudget(meter, { flow: b.flow, T: b.T, P: b.P, x: spec.composition, ...(designDensity !== undefined ? { designDensity } : {}) }, instrumentOf(b.uncertainty)));
+    // A design density computed at a design state with the meter EOS carries its error (meter-budget.ts).
+    const d = b.design;
+    const design = designDensity !== undefined && d && d.density === undefined && d.T !== undefined && d.P !== undefined ? { T: d.T, P: d.P, x: d.composition ?? spec.composition } : undefined;
+    out.set(spec.name, meterBudget(meter, { flow: b.flow, T: b.T, P: b.P, x: spec.composition, ...(designDensity !== undefined ? { designDensity } : {}), ...(design ? { design } : {}) }, instrumentOf(b.uncertainty)));
   });
   return out;
 }
@@ -93,7 +98,7 @@ function eosOption(v: string): MeterEosName {
 
 function singleReading(o: MeterOptions): MeterReport {
   const bag = new DiagnosticBag();
-  const atmosphere = o.atmosphere ? opt(bag, '--atmosphere', o.atmosphere, 'pressure', 101325) ?? 101325 : 101325;
+  const atmosphere = o.atmosphere !== undefined ? atmosphereOption(bag, o.atmosphere) : 101325;
   const ids: string[] = [];
   const fr: number[] = [];
   for (const part of (o.gas ?? '').split(',').map((s) => s.trim()).filter(Boolean)) {
@@ -207,6 +212,20 @@ function uncertaintyOptions(bag: DiagnosticBag, o: MeterOptions): MeterUncertain
     if (v !== undefined) out.temperature = v;
   }
   return out;
+}
+
+/** --atmosphere: an absolute pressure above zero (a gauge unit would add the default atmosphere to it). */
+function atmosphereOption(bag: DiagnosticBag, v: string): number {
+  try {
+    const q = parseQuantity(v, 'pressure');
+    if (q.gauge) bag.error(`--atmosphere: \`${v}\` is a gauge pressure; the local atmosphere is an absolute pressure`, undefined, 'write it in bar, kPa, psia or mmHg, e.g. `0.95 bar`');
+    else if (!(q.value > 0)) bag.error('--atmosphere must be above zero', undefined, 'for example `0.95 bar`');
+    else return q.value;
+  } catch (e) {
+    if (!(e instanceof UnitError)) throw e;
+    bag.error(`--atmosphere: ${e.message}`, undefined, e.help);
+  }
+  return 101325;
 }
 
 function sig(v: number): string {

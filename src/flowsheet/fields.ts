@@ -19,7 +19,10 @@ export interface NumberRule {
   /** Exclusive lower bound. */
   above?: number;
   example?: string;
-  /** A temperature difference (an approach): in K, never in a unit with an offset such as degC. */
+  /**
+   * A difference (an approach, an uncertainty): a temperature in K, never in a unit with an offset
+   * such as degC; a pressure never in a gauge unit (barg, psig add the atmosphere).
+   */
   difference?: boolean;
 }
 

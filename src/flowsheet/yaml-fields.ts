@@ -52,7 +52,7 @@ export function offsetUnit(unit: string, dim: Dimension): boolean {
 
 /** Why a value breaks a rule, or undefined. `dim` words the message for pressures and temperatures. */
 export function ruleProblem(what: string, v: number, rule: NumberRule, dim?: Dimension | readonly Dimension[]): string | undefined {
-  const abs = dim === 'pressure' ? ' (absolute, after any gauge conversion)' : dim === 'temperature' && !rule.difference ? ' (absolute)' : '';
+  const abs = dim === 'pressure' && !rule.difference ? ' (absolute, after any gauge conversion)' : dim === 'temperature' && !rule.difference ? ' (absolute)' : '';
   const si = dim === 'pressure' ? `${fmt(v)} Pa` : dim === 'temperature' ? `${fmt(v)} K` : fmt(v);
   if (rule.above !== undefined && !(v > rule.above)) return `${what} is ${si}${abs}; it must be above ${rule.above === 0 && dim ? 'zero' : rule.above}`;
   if (rule.min !== undefined && v < rule.min) return `${what} is ${si}; it must be at least ${rule.min}`;
@@ -94,6 +94,10 @@ export function parsedQuantityAt(r: Reader, node: Node | null, dim: Dimension | 
   }
   if (rule.difference && offsetUnit(unitText(String(v)), q.dimension)) {
     r.bag.error(`${what} is a temperature difference, but \`${unitText(String(v))}\` reads a temperature (it has an offset)`, r.at(node), `write the difference in K, e.g. ${rule.example ? `\`${rule.example}\`` : '`20 K`'} (a difference of 1 degC is 1 K)`);
+    return undefined;
+  }
+  if (rule.difference && q.gauge) {
+    r.bag.error(`${what} is a pressure difference, but \`${unitText(String(v))}\` reads a gauge pressure (it adds the atmosphere)`, r.at(node), `write the difference in bar, kPa or psi, e.g. ${rule.example ? `\`${rule.example}\`` : '`0.1 bar`'}: a gauge unit such as barg or psig adds the atmosphere`);
     return undefined;
   }
   if (!checkRule(r, node, what, q.value, rule, dim)) return undefined;

@@ -126,17 +126,20 @@ export function meterFlowBudget(meter: MeterEos): FlowBudget {
     // A meter at line conditions.
     const line = input.line!;
     let designDensity: number | undefined;
+    let design: { T: number; P: number; x: ArrayLike<number> } | undefined;
     if (input.design) {
       const d = input.design;
       const zc = d.composition ?? x;
       designDensity = d.density ?? molarMass(input.eos, zc) / meter.molarVolume(d.T!, d.P!, zc);
+      // Computed at the design state with the meter EOS: its error goes into the budget (meter-budget.ts).
+      if (d.density === undefined) design = { T: d.T!, P: d.P!, x: zc };
     }
     // The molar flow is the reading times a factor of the line state, F = k Q. A reading of 0 (a
     // line shut) is taken at Q = 1 and scaled: F = 0, the instrument's term k u(Q), and every
     // other term (each proportional to F) 0.
     const zero = reading === 0;
     const Q = zero ? 1 : reading;
-    const b = meterBudget(meter, { flow: Q, T: line.T, P: line.P, x, designDensity }, {
+    const b = meterBudget(meter, { flow: Q, T: line.T, P: line.P, x, designDensity, ...(design ? { design } : {}) }, {
       flow: Q > 0 ? instrument / Q : undefined, pressure: line.uP, temperature: line.uT,
     });
     const terms: BudgetTerm[] = b.lines.map((l) => ({

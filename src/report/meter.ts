@@ -38,6 +38,7 @@ export function meterJson(r: MeterReport): string {
       flows,
       T: f.T,
       P: f.P,
+      conditions: f.conditions,
       basis: f.basis,
       molarMass: f.molarMass,
       density: f.density,
@@ -74,8 +75,9 @@ export function meterText(r: MeterReport): string {
   const rows = r.feeds.map((f) => [
     f.name,
     f.basis,
-    num(toUnit(f.T, 'temperature', d.temperatureUnit, ctx), 5),
-    num(toUnit(f.P, 'pressure', d.pressureUnit, ctx), 5),
+    // The state of the Z, v and phase beside it: the meter's for a metered feed.
+    num(toUnit(f.conditions.T, 'temperature', d.temperatureUnit, ctx), 5),
+    num(toUnit(f.conditions.P, 'pressure', d.pressureUnit, ctx), 5),
     num(f.Z, 5),
     num(f.molarVolume * 1e6, 5),
     num(toUnit(f.molarFlow, 'molarFlow', d.flowUnit, ctx), 5),
@@ -88,12 +90,20 @@ export function meterText(r: MeterReport): string {
   out.push('');
   const byModel = meterEos !== r.eos;
   rows.forEach((row, k) => {
-    if (byModel) row.push(r.feeds[k].model);
+    const f = r.feeds[k];
+    // A mass, molar or ideal-basis standard flow goes through no equation; its Z still comes from one.
+    const converted = f.basis === 'meter' || (f.basis === 'standard-flow' && f.reference?.basis === 'real');
+    if (byModel) row.push(converted ? f.model : `none (Z: ${f.model})`);
   });
   out.push(table(['feed', 'basis', `T ${d.temperatureUnit}`, `P ${d.pressureUnit}`, 'Z', 'v cm3/mol', `flow ${d.flowUnit}`, 'ideal-gas error', 'phase', ...(byModel ? ['converted by'] : [])], rows,
     ['left', 'left', 'right', 'right', 'right', 'right', 'right', 'right', 'left', 'left']));
   const refs = r.feeds.filter((f) => f.reference);
   for (const f of refs) out.push(`  ${f.name}: standard volume at ${f.reference!.label}, ${f.reference!.basis === 'real' ? 'real-gas volume at the reference' : 'ideal-gas volume at the reference'}`);
+  const T = (v: number) => `${num(toUnit(v, 'temperature', d.temperatureUnit, ctx), 5)} ${d.temperatureUnit}`;
+  const P = (v: number) => `${num(toUnit(v, 'pressure', d.pressureUnit, ctx), 5)} ${d.pressureUnit}`;
+  for (const f of r.feeds) {
+    if (f.conditions.T !== f.T || f.conditions.P !== f.P) out.push(`  ${f.name}: T and P above are the meter's; the feed enters the flowsheet at ${T(f.T)}, ${P(f.P)}`);
+  }
   for (const f of r.feeds) if (f.densityCorrection !== undefined) out.push(`  ${f.name}: differential-pressure reading corrected by sqrt(design density / actual density) = ${num(f.densityCorrection, 6)}`);
   for (const f of r.feeds) {
     const b = r.budgets?.get(f.name);
@@ -120,7 +130,8 @@ function budgetText(name: string, b: MeterBudget, r: MeterReport): string[] {
     ]), ['left', 'right', 'left', 'right', 'right', 'right', 'right']));
     for (const l of b.lines) if (l.input === 'equation-of-state' || l.input === 'reference-equation') out.push(`  ${l.label}: ${l.source}`);
   }
-  out.push(`  molar flow ${F(b.molarFlow)} ${d.flowUnit}; combined standard uncertainty ${F(b.combined)} ${d.flowUnit} (${pct(b.combinedRelative, 3).replace('+', '')}); expanded (k = 2) ${F(b.expanded)} ${d.flowUnit} (${pct(b.expandedRelative, 3).replace('+', '')})`);
+  if (!b.lines.length) out.push(`  molar flow ${F(b.molarFlow)} ${d.flowUnit}; no input has a figure, so no uncertainty can be combined (it is not zero)`);
+  else out.push(`  molar flow ${F(b.molarFlow)} ${d.flowUnit}; combined standard uncertainty ${F(b.combined)} ${d.flowUnit} (${pct(b.combinedRelative, 3).replace('+', '')}); expanded (k = 2) ${F(b.expanded)} ${d.flowUnit} (${pct(b.expandedRelative, 3).replace('+', '')})`);
   for (const note of b.notes) out.push(`  note: ${note}`);
   return out;
 }

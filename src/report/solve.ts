@@ -44,7 +44,7 @@ export function resultObject(r: FlowsheetResult): Record<string, unknown> {
       Z: f.Z, molarVolume: f.molarVolume, molarFlow: f.molarFlow,
       ...(f.idealMolarFlow !== undefined ? { idealMolarFlow: f.idealMolarFlow, idealError: f.idealError } : {}),
       phase: f.phase, model: f.model, ...(f.fallback ? { fallback: f.fallback } : {}), ...(f.sensitivity ? { sensitivity: f.sensitivity } : {}),
-      flows: record(ids, f.flows), T: f.T, P: f.P, basis: f.basis,
+      flows: record(ids, f.flows), T: f.T, P: f.P, conditions: f.conditions, basis: f.basis,
       ...(f.reference ? { reference: f.reference } : {}),
     }])),
   };

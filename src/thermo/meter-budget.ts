@@ -20,8 +20,14 @@
  *   the reference equation:   c = p n, GERG-2008's own stated figure when SRK/PR was measured against it.
  * The inputs are taken as uncorrelated (separate transmitters; the model's error does not depend on
  * the instruments'). u_c(n)^2 = sum (c_i u_i)^2; U = 2 u_c. The design density of a differential-
- * pressure meter is a constant of its set-up, taken as exact. The composition is taken as known
- * (its uncertainty is not part of this budget).
+ * pressure meter given as a density is a constant of its set-up, taken as exact. One computed by
+ * this equation at a design state (BudgetReading.design) carries the equation's error too, and
+ * that error goes with the line density's (the same equation): with relative errors d_l and d_d of
+ * v at the line and at the design state, n = Q sqrt(rho_d rho) / M is off by -(d_l + d_d) / 2.
+ * So the equation-of-state line is then taken on n directly (c = n): measured against GERG-2008,
+ * the half-width |d_l + d_d| / 2 of a rectangular distribution; a stated or bound figure, the two
+ * states' figures as fully correlated, u = (u_l + u_d) / 2 (GERG-2008's own line likewise). The
+ * composition is taken as known (its uncertainty is not part of this budget).
  *
  * API (SI: m3/s, K, Pa, mol/s; relative figures as fractions):
  *   meterBudget(meter: MeterEos, reading: BudgetReading, instrument?: InstrumentUncertainty): MeterBudget
@@ -41,6 +47,12 @@ export interface BudgetReading {
   x: ArrayLike<number>;
   /** A differential-pressure meter set up for this density (kg/m3): n = Q sqrt(rho_d rho) / M. */
   designDensity?: number;
+  /**
+   * The design state designDensity was computed at with this same meter EOS (T K, P Pa, mole
+   * fractions in meter.ids order). Given, the equation's error enters through both densities
+   * (see the file header); left out, the design density is a figure of the set-up, taken as exact.
+   */
+  design?: { T: number; P: number; x: ArrayLike<number> };
 }
 
 /** Standard uncertainties (k = 1) of the instruments; leave out what is not known. */
@@ -134,9 +146,37 @@ export function meterBudget(meter: MeterEos, reading: BudgetReading, instrument:
   if (instrument.temperature !== undefined) add('temperature', 'line temperature', instrument.temperature, 'K', dist, (-p * n * dlnvdlnT) / T, 'declared for the temperature sensor');
   else missing.push('temperature');
   const mu = meter.modelUncertainty(T, P, x, s);
-  if (mu.relative !== null) add('equation-of-state', `equation of state (${mu.model})`, mu.relative, '1', mu.distribution, p * n, mu.source);
-  else missing.push('equation-of-state');
-  if (mu.reference && mu.reference.relative !== null) add('reference-equation', 'reference equation (GERG-2008)', mu.reference.relative, '1', mu.reference.distribution, p * n, mu.reference.source);
+  // A design density the equation computed at a design state: its error at both states (s, the
+  // meter EOS's scratch, is not read after this point).
+  const design = dp && reading.design ? reading.design : undefined;
+  const muD = design ? meter.modelUncertainty(design.T, design.P, design.x, phaseForBudget(meter, design.T, design.P, design.x)) : undefined;
+  if (muD && mu.relative !== null && muD.relative !== null) {
+    if (mu.deviation !== undefined && muD.deviation !== undefined) {
+      const dn = (mu.deviation + muD.deviation) / 2;
+      add('equation-of-state', `equation of state (${mu.model})`, Math.abs(dn) / Math.sqrt(3), '1', 'rectangular', n,
+        `measured: ${mu.model} differs from GERG-2008 by ${pctText(mu.deviation)} in molar volume at the line and ${pctText(muD.deviation)} at the design state, which gave the design density; `
+        + `n goes with sqrt(rho_d rho), so by ${pctText(-dn)}: a known correction not applied, taken as the half-width of a rectangular distribution (JCGM 100:2008, 4.3.7): u = |difference| / sqrt(3)`);
+    } else if (muD.model === mu.model) {
+      add('equation-of-state', `equation of state (${mu.model})`, (mu.relative + muD.relative) / 2, '1', mu.distribution, n,
+        `${mu.source}; at the design state, which gave the design density: ${pctText(muD.relative, false)}; the same equation at both states, taken as fully correlated: u = (u_line + u_design) / 2 on n`);
+    } else {
+      // Different equations at the two states (a design gas GERG-2008 does not cover): independent errors.
+      add('equation-of-state', `equation of state (${mu.model}; design: ${muD.model})`, Math.hypot(mu.relative, muD.relative) / 2, '1', mu.relative >= muD.relative ? mu.distribution : muD.distribution, n,
+        `${mu.source}; at the design state, which gave the design density, ${muD.model}: ${pctText(muD.relative, false)} (${muD.source}); different equations, taken as uncorrelated: u = sqrt(u_line^2 + u_design^2) / 2 on n`);
+    }
+    const r = mu.reference;
+    const rD = muD.reference;
+    if (r && r.relative !== null) {
+      const both = rD && rD.relative !== null;
+      add('reference-equation', 'reference equation (GERG-2008)', both ? (r.relative + rD.relative!) / 2 : r.relative, '1', r.distribution, both ? n : p * n,
+        both ? `${r.source}; at the design state: ${pctText(rD.relative!, false)}; taken as fully correlated: u = (u_line + u_design) / 2 on n` : r.source);
+    }
+  } else {
+    if (mu.relative !== null) add('equation-of-state', `equation of state (${mu.model})`, mu.relative, '1', mu.distribution, p * n, mu.source);
+    else missing.push('equation-of-state');
+    if (mu.reference && mu.reference.relative !== null) add('reference-equation', 'reference equation (GERG-2008)', mu.reference.relative, '1', mu.reference.distribution, p * n, mu.reference.source);
+    if (muD) notes.push('the equation of state has no figure at the design state: the design density is taken as exact');
+  }
   let variance = 0;
   for (const l of lines) variance += l.contribution * l.contribution;
   const combined = Math.sqrt(variance);
@@ -144,11 +184,19 @@ export function meterBudget(meter: MeterEos, reading: BudgetReading, instrument:
   if (fallback) notes.push(`${meter.name} was not used: ${fallback}; ${model} converted this reading`);
   for (const note of mu.notes) if (!notes.includes(note)) notes.push(note);
   if (mu.reference) for (const note of mu.reference.notes) if (!notes.includes(note)) notes.push(note);
+  if (muD) {
+    const seen = [...mu.notes, ...(mu.reference?.notes ?? [])];
+    for (const note of [...muD.notes, ...(muD.reference?.notes ?? [])]) {
+      if (!seen.includes(note) && !note.startsWith('GERG-2008 covers this gas') && !notes.includes(`design state: ${note}`)) notes.push(`design state: ${note}`);
+    }
+  }
   const instrumentsMissing = missing.filter((m) => m !== 'equation-of-state');
   if (instrumentsMissing.length === 3) notes.push('no instrument uncertainties declared: the budget holds the equation of state\'s part only; declare the meter\'s, the pressure\'s and the temperature\'s uncertainties to complete it');
   else if (instrumentsMissing.length > 0) notes.push(`not declared, so left out of the budget: ${instrumentsMissing.map(inputWords).join(', ')}`);
   if (missing.includes('equation-of-state')) notes.push('the equation of state has no stated uncertainty at this state, so it is left out');
-  if (dp) notes.push('differential-pressure meter corrected to a design density: sensitivities to P, T and the equation of state are halved (n goes with the square root of the density); the design density is taken as exact');
+  if (dp && design && muD && mu.relative !== null && muD.relative !== null) {
+    notes.push('differential-pressure meter corrected to a design density computed at its design state: sensitivities to the line P and T are halved (n goes with the square root of the density); the equation of state\'s error enters through both densities');
+  } else if (dp) notes.push('differential-pressure meter corrected to a design density: sensitivities to P, T and the equation of state are halved (n goes with the square root of the density); the design density is taken as exact');
   return {
     molarFlow: n, model, lines, missing, combined, combinedRelative: combined / n, expanded: 2 * combined, expandedRelative: (2 * combined) / n, coverage: 2, notes,
   };
@@ -169,4 +217,9 @@ const NO_PHASE_TEST = { phase: false } as const;
 
 function inputWords(i: BudgetInput): string {
   return i === 'flow' ? 'the meter\'s own uncertainty' : i === 'pressure' ? 'the line pressure' : i === 'temperature' ? 'the line temperature' : i;
+}
+
+function pctText(v: number, sign = true): string {
+  const s = (v * 100).toPrecision(3);
+  return `${sign && v > 0 ? '+' : ''}${s} %`;
 }

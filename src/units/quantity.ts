@@ -224,6 +224,9 @@ const AMBIGUOUS: Readonly<Record<string, string>> = {
   tons: '`tons` may be short, long or metric; write `t` for the metric tonne (1000 kg) or `lb`',
   gal: '`gal` may be the US or the imperial gallon; write `L` or `m3`',
   gallon: '`gallon` may be the US or the imperial gallon; write `L` or `m3`',
+  // No plant meters in cubic nanometres or nanolitres: `nm3/h` is a normal cubic metre miswritten.
+  nm: '`nm` is the nanometre; a normal cubic metre (0 degC, 101.325 kPa) is `Nm3`, a standard volume (`Nm3/h`); an actual volume is `m3`',
+  nL: '`nL` is the nanolitre; a normal litre (0 degC, 101.325 kPa) is `NL`, a standard volume (`NL/min`); an actual volume is `L`',
 };
 
 const SUPERSCRIPT: Readonly<Record<string, string>> = { '²': '^2', '³': '^3', '⁻¹': '^-1' };

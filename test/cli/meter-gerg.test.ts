@@ -116,4 +116,31 @@ feeds:
     expect(r.stderr).toMatch(/scales with an offset/);
     expect(r.stderr).not.toMatch(/\n\s+at /);
   });
+
+  // GERG-2008's extended range ends at 70 MPa (Kunz and Wagner, J. Chem. Eng. Data 57 (2012) 3032,
+  // abstract): at 80 MPa the authors state no uncertainty, and with no instrument figures declared
+  // the budget has no line at all. That is an unknown uncertainty, not a zero one.
+  it('does not print a zero combined uncertainty when no input has a figure', () => {
+    const r = cli(['meter', '--gas', 'CH4=1', '--flow', '100 m3/h', '--pressure', '800 bar', '--temperature', '300 K', '--eos', 'GERG-2008']);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/no input has a figure, so no uncertainty can be combined/);
+    expect(r.stdout).not.toMatch(/combined standard uncertainty 0 /);
+  });
+
+  // An ideal-basis standard volume is n = P_ref V / (R T_ref), no equation of state (ISO 13443,
+  // ideal-gas basis): 1 SCF/s at 60 degF and 14.696 psia is 101325.353 x 0.028316846592 /
+  // (8.314462618 x 288.70556) mol/s (ft = 0.3048 m, psi from NIST SP 811 (2008), App. B.8). A mass
+  // flow goes through none either. The table must not say GERG-2008 converted them.
+  it('does not say an equation converted a mass flow or an ideal-basis standard volume', () => {
+    const f = tempFile('forms.yaml', 'components: { CH4: {} }\nthermo: { eos: SRK, meter-eos: GERG-2008 }\nfeeds:\n  ui: { composition: { CH4: 1 }, standard-flow: { flow: 60 SCFM, basis: ideal }, T: 20 degC, P: 40 barg }\n  m: { composition: { CH4: 1 }, mass-flow: 16.043 kg/h, T: 20 degC, P: 40 barg }\n  r: { composition: { CH4: 1 }, standard-flow: 60 SCFM, T: 20 degC, P: 40 barg }\n');
+    const j = JSON.parse(cli(['meter', f, '--json']).stdout);
+    const psi = (0.45359237 * 9.80665) / (0.0254 * 0.0254);
+    expect(j.feeds.ui.molarFlow).toBeCloseTo((14.696 * psi * 0.3048 ** 3) / (8.314462618 * ((60 + 459.67) / 1.8)), 12);
+    const r = cli(['meter', f]);
+    expect(r.code).toBe(0);
+    const row = (name: string) => r.stdout.split('\n').find((l) => l.startsWith(`${name} `))!;
+    expect(row('ui')).toMatch(/none \(Z: GERG-2008\)$/);
+    expect(row('m')).toMatch(/none \(Z: GERG-2008\)$/);
+    expect(row('r')).toMatch(/\sGERG-2008$/);
+  });
 });

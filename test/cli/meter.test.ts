@@ -72,4 +72,42 @@ describe('loopclose meter', () => {
     expect(r.stderr).toMatch(/`1` has no unit/);
     expect(r.stderr).toMatch(/2 errors/);
   });
+
+  // psi = 0.45359237 kg * 9.80665 m/s2 / (0.0254 m)^2 = 6894.757293168 Pa (NIST SP 811 (2008),
+  // Appendix B.8, exact definitions): 10 psig at a local atmosphere of 14.7 psia is 24.7 psia.
+  it('reads gauge pressures with --atmosphere, which must be absolute (a gauge atmosphere would add 101.325 kPa twice)', () => {
+    const args = ['meter', '--gas', 'CH4=1', '--eos', 'ideal', '--flow', '100 m3/h', '--pressure', '10 psig', '--temperature', '0 degC', '--json'];
+    const ok = cli([...args, '--atmosphere', '14.7 psia']);
+    expect(ok.code).toBe(0);
+    expect(JSON.parse(ok.stdout).feeds.reading.P).toBeCloseTo(24.7 * 6894.757293168, 6);
+    const gauge = cli([...args.slice(0, -1), '--atmosphere', '14.7 psig']);
+    expect(gauge.code).toBe(2);
+    expect(gauge.stderr).toMatch(/--atmosphere: `14\.7 psig` is a gauge pressure/);
+    expect(gauge.stdout).toBe('');
+  });
+
+  it('refuses --atmosphere with a file rather than ignoring it (the file sets thermo.atmosphere)', () => {
+    const f = tempFile('atm.yaml', 'components: { CH4: {} }\nfeeds:\n  a:\n    composition: { CH4: 1 }\n    meter: { flow: 100 m3/h, pressure: 10 barg, temperature: 20 degC }\n');
+    const r = cli(['meter', f, '--atmosphere', '0.8 bar']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/--atmosphere is for one reading/);
+    expect(r.stderr).toMatch(/thermo: \{ atmosphere/);
+  });
+
+  it('shows a metered feed\'s Z and v beside the meter\'s T and P, not the stream\'s (a meter upstream of a compressor)', () => {
+    const f = tempFile('upstream.yaml', 'components: { CH4: {} }\nthermo: { eos: SRK }\nfeeds:\n  a:\n    composition: { CH4: 1 }\n    meter: { flow: 1000 m3/h, pressure: 5 barg, temperature: 20 degC }\n    T: 80 degC\n    P: 60 barg\n');
+    const j = JSON.parse(cli(['meter', f, '--json']).stdout).feeds.a;
+    expect(j.T).toBeCloseTo(353.15, 9); // the stream, as before
+    expect(j.conditions.T).toBeCloseTo(293.15, 9);
+    expect(j.conditions.P).toBeCloseTo(601325, 3);
+    expect(j.Z).toBeCloseTo((j.conditions.P * j.molarVolume) / (8.314462618 * j.conditions.T), 12);
+    // Methane at 20 degC and 6 bar: Z = 1 + B P / (R T) with B about -45 cm3/mol at 293 K
+    // (Dymond and Smith, The Virial Coefficients of Pure Gases and Mixtures, 1980, methane; from memory): 0.989.
+    expect(j.Z).toBeCloseTo(1 - (45e-6 * 601325) / (8.314462618 * 293.15), 3);
+    const r = cli(['meter', f]);
+    expect(r.code).toBe(0);
+    const row = r.stdout.split('\n').find((l) => /^a\s+meter/.test(l))!;
+    expect(row.split(/\s+/).slice(2, 5)).toEqual(['20.000', '6.0133', '0.98913']);
+    expect(r.stdout).toMatch(/a: T and P above are the meter's; the feed enters the flowsheet at 80\.000 degC, 61\.013 bar/);
+  });
 });

@@ -296,6 +296,15 @@ feeds:
     expect(t.split('\n')[d.span!.line - 1].slice(d.span!.col - 1)).toMatch(/^0\.5 degC/);
     const p = base('{ eos: SRK }', '{ flow: 12.6 m3/h, pressure: 3 barg, temperature: 35 degC, uncertainty: { pressure: 0.1 barg } }');
     expect(errorOf(p)[0].help).toMatch(/gauge unit/);
+    // At a high line pressure too: 0.2 barg read as a gauge pressure would be 1.21 bar absolute
+    // (0.2 bar + 1.01325 bar, the standard atmosphere), under a tenth of 150 barg, and was taken as
+    // a 1.21 bar uncertainty. An uncertainty is a difference: a gauge unit is refused at any line pressure.
+    const hp = base('{ eos: SRK }', '{ flow: 12.6 m3/h, pressure: 150 barg, temperature: 35 degC, uncertainty: { pressure: 0.2 barg } }');
+    const dh = errorOf(hp)[0];
+    expect(dh.message).toMatch(/is a pressure difference, but `barg` reads a gauge pressure/);
+    expect(dh.help).toMatch(/gauge unit/);
+    expect(hp.split('\n')[dh.span!.line - 1].slice(dh.span!.col - 1)).toMatch(/^0\.2 barg/);
+    expect(errorOf(base('{ eos: SRK }', '{ flow: 12.6 m3/h, pressure: 150 barg, temperature: 35 degC, uncertainty: { pressure: 3 psig } }'))[0].message).toMatch(/gauge pressure/);
     expect(errorOf(base('{ eos: SRK, meter-eos: GERG-2004 }', M))[0].message).toMatch(/unknown equation of state `GERG-2004` for the meters/);
     expect(errorOf(base('{ eos: SRK, meter-eos: PR }', M))[0].help).toMatch(/GERG-2008/);
     expect(errorOf(base('{ eos: SRK }', '{ flow: 12.6 m3/h, pressure: 30 barg, temperature: 35 degC, uncertainty: { flow: 1.5 } }'))[0].message).toMatch(/at most 0\.5/);

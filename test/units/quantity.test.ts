@@ -227,6 +227,18 @@ describe('errors', () => {
     expect(errorOf(() => parseQuantity('5 gal/min', 'volumeFlow')).kind).toBe('unknown-unit');
   });
 
+  // nm3/h is 1e-27 m3/h (nm = 1e-9 m, SI prefix nano; NIST SP 811 (2008), Table 5): no plant meters
+  // in it, and it is the normal cubic metre (Nm3/h) miswritten. Before, 100 nm3/h went through as
+  // 4.5e-26 kmol/h of methane at 11 bar. Refused, with the spelling of the standard volume.
+  it('refuses nm3/h and nL/min (nanometres, nanolitres) with the normal cubic metre\'s spelling', () => {
+    const e = errorOf(() => parseQuantity('100 nm3/h', 'volumeFlow'));
+    expect(e.kind).toBe('unknown-unit');
+    expect(e.help).toContain('Nm3/h');
+    expect(errorOf(() => parseQuantity('100 nm3/h', 'standardFlow')).help).toContain('Nm3/h');
+    expect(errorOf(() => parseQuantity('5 nL/min', 'volumeFlow')).help).toContain('NL/min');
+    expect(parseQuantity('100 Nm3/h', 'standardFlow').value).toBeCloseTo(100 / 3600, 15);
+  });
+
   it('NaN, Infinity and text are not numbers', () => {
     for (const input of [NaN, Infinity, -Infinity, 'NaN bar', 'Infinity bar', '1e999 bar', 'bar', '', 'abc']) {
       expect(errorOf(() => parseQuantity(input, 'pressure')).kind).toBe('not-a-number');
