@@ -2,7 +2,8 @@
  * Loop figures of a solved flowsheet: the recycle ratio (total recycle over total fresh feed,
  * molar) and, for every key component a unit reports a conversion of, the single-pass
  * conversion in that unit (from its inlet and outlet flows) and the overall conversion from
- * fresh feed to products.
+ * fresh feed to products. Either is NaN (undefined) where the key has no flow in: a key that
+ * reaches the unit from no inlet, or that no fresh feed carries.
  */
 import type { UnitSummary } from '../blocks/types.js';
 import type { Balance } from './balance.js';
@@ -36,7 +37,9 @@ export function loopFigures(rt: Runtime, streams: ReadonlyMap<string, StreamResu
         continue;
       }
       const cb = balance.components[id];
-      conversions[id] = { unit: name, singlePass, overall: cb.in > 0 ? (cb.in - cb.out) / cb.in : 0 };
+      // A key no fresh feed carries (an intermediate formed upstream) has no overall conversion
+      // from fresh feed: NaN (JSON null, '-' in reports), never 0.
+      conversions[id] = { unit: name, singlePass, overall: cb.in > 0 ? (cb.in - cb.out) / cb.in : Number.NaN };
     }
   }
   return { recycles: rt.recycles, recycleRatio: feedTotal > 0 ? recycleTotal / feedTotal : 0, freshFeed: feedTotal, conversions };
