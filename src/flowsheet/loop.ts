@@ -9,6 +9,7 @@ import type { UnitSummary } from '../blocks/types.js';
 import type { Balance } from './balance.js';
 import type { StreamResult } from './result.js';
 import type { Runtime } from './runtime.js';
+import { ratioRecycles } from './recycles.js';
 
 export interface LoopFigures {
   /** Recycle streams (closing a loop into a unit that also takes fresh material). */
@@ -25,8 +26,10 @@ export interface LoopFigures {
 }
 
 export function loopFigures(rt: Runtime, streams: ReadonlyMap<string, StreamResult>, units: ReadonlyMap<string, UnitSummary>, balance: Balance, feedTotal: number): LoopFigures {
+  // The same circulating gas is counted once, where fresh material joins the loop at several points.
+  const recycles = ratioRecycles(rt.model.units, rt.plan, rt.recycles);
   let recycleTotal = 0;
-  for (const s of rt.recycles) recycleTotal += streams.get(s)?.total ?? 0;
+  for (const s of recycles) recycleTotal += streams.get(s)?.total ?? 0;
   const conversions: LoopFigures['conversions'] = {};
   for (const name of rt.plan.order) {
     for (const [id, singlePass] of Object.entries(units.get(name)?.conversions ?? {})) {
@@ -42,5 +45,5 @@ export function loopFigures(rt: Runtime, streams: ReadonlyMap<string, StreamResu
       conversions[id] = { unit: name, singlePass, overall: cb.in > 0 ? (cb.in - cb.out) / cb.in : Number.NaN };
     }
   }
-  return { recycles: rt.recycles, recycleRatio: feedTotal > 0 ? recycleTotal / feedTotal : 0, freshFeed: feedTotal, conversions };
+  return { recycles, recycleRatio: feedTotal > 0 ? recycleTotal / feedTotal : 0, freshFeed: feedTotal, conversions };
 }

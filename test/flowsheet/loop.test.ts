@@ -116,6 +116,39 @@ units:
     expect(Number.isNaN(r.loop.conversions.C2H6.overall)).toBe(true);
   });
 
+  it('fresh material joining one loop at two points: the circulating gas is counted once in the recycle ratio', () => {
+    // CO2 joins at the reactor's mixer, hydrogen (with N2) after the separator; X = 0.3, p = 0.05.
+    // Closed form as above, with F_C = 1, F_H = 3, F_N = 0.05 mol/s and a = (1-p)(1-X) = 0.665:
+    //   R_CO2 = a F_C / (1 - a) = 1.985075; CO2 into the reactor 1 / (1 - a) = 2.985075;
+    //   R_H2 = (1-p)(F_H - 3 X CO2_in) / p = 5.955224;  R_N2 = (1-p) F_N / p = 0.95;
+    //   recycle ratio = (R_CO2 + R_H2 + R_N2) / (F_C + F_H + F_N) = 8.890299 / 4.05 = 2.195136.
+    // The separator's gas, before the hydrogen joins it, is the same gas: summing it as well gave 3.75.
+    const text = `
+components: { CO2: {}, H2: {}, CH3OH: {}, H2O: {}, N2: {} }
+feeds:
+  co2: { flows: { CO2: 1 mol/s }, T: 500 K, P: 50 bar }
+  h2: { flows: { H2: 3 mol/s, N2: 0.05 mol/s }, T: 500 K, P: 50 bar }
+units:
+  mix: { type: mixer, in: [co2, recycle], out: r-in }
+  reactor: { type: reactor, in: r-in, out: r-out, T: 500 K, reactions: [ { equation: "CO2 + 3 H2 -> CH3OH + H2O", key: CO2, conversion: 0.3 } ] }
+  sep: { type: separator, in: r-out, out: { product: { CH3OH: 1, H2O: 1 }, gas: rest } }
+  mix2: { type: mixer, in: [gas, h2], out: gas2 }
+  purge-split: { type: splitter, in: gas2, out: { recycle: 0.95, purge: rest } }
+`;
+    const { model } = validateText('two-joins.yaml', text);
+    const r = solveFlowsheet(model);
+    expect(r.status).toBe('converged');
+    const a = 0.95 * 0.7;
+    const RC = a / (1 - a);
+    const RH = (0.95 * (3 - 3 * 0.3 / (1 - a))) / 0.05;
+    const RN = (0.95 * 0.05) / 0.05;
+    const rec = r.streams.get('recycle')!;
+    expect(rec.flows[0]).toBeCloseTo(RC, 8);
+    expect(rec.flows[1]).toBeCloseTo(RH, 8);
+    expect(r.loop.recycles).toEqual(['recycle']);
+    expect(r.loop.recycleRatio).toBeCloseTo((RC + RH + RN) / 4.05, 8);
+  });
+
   it('Wegstein needs far fewer passes than direct substitution at a high recycle ratio', () => {
     const { model } = validateText('loop.yaml', linearLoop(0.1, 0.01));
     const d = solveFlowsheet(model, { method: 'direct', maxPasses: 20000 });
