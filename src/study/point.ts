@@ -22,7 +22,7 @@ import { solveRoot } from '../solve/index.js';
 import type { EvaluationFailure, MethodName, RootProblem, SolveResult, Status } from '../solve/types.js';
 import { parseQuantity, toUnit, UnitError } from '../units/index.js';
 import { parseOutput, type OutputRef } from './outputs.js';
-import { assertVariable, checkUnit, checkValue, fromSI, parameter, toSI, withValues, type Parameter, type ParameterValue } from './parameters.js';
+import { assertVariable, checkUnit, checkValue, coupled, fromSI, parameter, toSI, withValues, type Parameter, type ParameterValue } from './parameters.js';
 
 export type { TargetReport } from '../flowsheet/result.js';
 
@@ -162,8 +162,9 @@ function solveTargets(model: Model, targets: readonly TargetSpec[], opts: PointO
   const k = targets.length;
   const rt = opts.runtime!;
   const rtol = opts.rtol ?? model.solver.rtol;
-  const byPaths = new Set(targets.map((t) => t.by.path));
-  if (byPaths.size < k) return { status: 'invalid', message: 'two targets adjust the same parameter; each target needs one of its own' };
+  if (targets.some((t, j) => targets.slice(0, j).some((o) => coupled(model, o.by, t.by)))) {
+    return { status: 'invalid', message: 'two targets adjust the same parameter (or two that set each other, as the outlets of a two-outlet splitter); each target needs one of its own' };
+  }
 
   // Start: adjusted parameters at their model values (clipped into bounds), or from the neighbour.
   const u0 = targets.map((t) => Math.min(t.upper, Math.max(t.lower, t.by.value)));
