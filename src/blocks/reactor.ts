@@ -484,7 +484,9 @@ export const reactor: BlockDef<ReactorSpec> = {
       summary(_ins, outs) {
         const out = outs[0]?.flows;
         const conversions: Record<string, number> = {};
-        for (const k of keys) conversions[ids[k]] = out && inlet[k] > 0 ? (inlet[k] - out[k]) / inlet[k] : 0;
+        // (in - out) / in of each key; undefined (NaN) for a key no inlet carries (formed and used
+        // within the reactor), not 0.
+        for (const k of keys) conversions[ids[k]] = out && inlet[k] > 0 ? (inlet[k] - out[k]) / inlet[k] : Number.NaN;
         const figures: UnitFigure[] = spec.reactions.map((rx, r) => ({ label: `extent of ${rx.equation}`, value: ext[r], kind: 'molarFlow' as const, key: `extent.${r}` }));
         if (energy) figures.push(powerFigure('duty', spec.adiabatic ? 'duty (adiabatic)' : 'duty', duty));
         const notes: string[] = [];

@@ -64,7 +64,12 @@ export function resultObject(r: FlowsheetResult): Record<string, unknown> {
       ...(u.reactions ? { reactions: u.reactions } : {}),
       ...(u.notes.length ? { notes: u.notes } : {}),
     }]));
-    base.loop = { recycleRatio: r.loop.recycleRatio, recycles: r.loop.recycles, freshFeed: r.loop.freshFeed, conversions: r.loop.conversions };
+    // A conversion of a key with no flow in is undefined: null.
+    const conversions = Object.fromEntries(Object.entries(r.loop.conversions).map(([id, c]) => [id, {
+      ...c, singlePass: orNull(c.singlePass), overall: orNull(c.overall),
+      ...(c.byUnit ? { byUnit: Object.fromEntries(Object.entries(c.byUnit).map(([u, x]) => [u, orNull(x)])) } : {}),
+    }]));
+    base.loop = { recycleRatio: r.loop.recycleRatio, recycles: r.loop.recycles, freshFeed: r.loop.freshFeed, conversions };
     base.balance = r.balance;
   } else {
     base.lastIterate = r.x;

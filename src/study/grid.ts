@@ -11,7 +11,7 @@
  */
 import { InputError, type Diagnostic } from '../diagnostics.js';
 import type { Model } from '../flowsheet/model.js';
-import { assertVariable, checkUnit, parameter, toSI, type Parameter } from './parameters.js';
+import { assertVariable, checkUnit, coupled, parameter, toSI, type Parameter } from './parameters.js';
 
 export interface AxisSpec {
   kind: 'grid' | 'values';
@@ -116,8 +116,9 @@ export function parseAxes(model: Model, specs: readonly AxisSpec[]): Axis[] {
   for (const s of specs) {
     try {
       const a = parseAxis(model, s);
-      const dup = axes.find((b) => b.parameter.path === a.parameter.path);
-      if (dup) diags.push({ severity: 'error', message: `\`${a.path}\` is swept twice (\`${dup.spec.text}\` and \`${a.spec.text}\`)`, help: 'give each input one --grid or --values' });
+      const dup = axes.find((b) => coupled(model, b.parameter, a.parameter));
+      if (dup && dup.parameter.path === a.parameter.path) diags.push({ severity: 'error', message: `\`${a.path}\` is swept twice (\`${dup.spec.text}\` and \`${a.spec.text}\`)`, help: 'give each input one --grid or --values' });
+      else if (dup) diags.push({ severity: 'error', message: `\`${dup.parameter.path}\` and \`${a.parameter.path}\` are one input (setting either sets the other): swept twice (\`${dup.spec.text}\` and \`${a.spec.text}\`)`, help: 'sweep one of them' });
       else axes.push(a);
     } catch (e) {
       if (e instanceof InputError) diags.push(...e.diagnostics);

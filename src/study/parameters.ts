@@ -297,3 +297,39 @@ function boundsHelp(p: Parameter): string | undefined {
 function fmt(v: number): string {
   return Number(v.toPrecision(10)).toString();
 }
+
+/** A number of an owner's settings as the block reads it (an outlet written `rest`: what the others leave). */
+function effectiveAt(settings: SettingMap, key: readonly string[]): number | undefined {
+  const v = getIn(settings, key);
+  if (typeof v === 'number') return v;
+  if (v !== 'rest') return undefined;
+  const outs = getIn(settings, key.slice(0, -1));
+  let sum = 0;
+  if (isSettingMap(outs)) for (const [k, x] of outs) if (k !== key[key.length - 1] && typeof x === 'number') sum += x;
+  return 1 - sum;
+}
+
+/** Whether setting `a` moves `b` (by the block's own edit), tried with one value of `a`. */
+function moves(model: Model, a: Parameter, b: Parameter): boolean {
+  const own = model.settings.get(a.owner);
+  if (!own) return false;
+  const def = blockOf(own);
+  if (!def.edit) return false;
+  const fraction = a.dimension === undefined && a.value >= 0 && a.value <= 1;
+  const trial = fraction ? (Math.abs(a.value - 0.5) > 0.1 ? 0.5 : 0.25) : a.value * 1.1 + 1;
+  const key = a.reference !== undefined ? [...a.key, 'value'] : a.key;
+  const e = def.edit(own.name, own.settings, key, trial);
+  if (!isSettingMap(e as SettingMap)) return false;
+  return effectiveAt(e as SettingMap, b.key) !== effectiveAt(own.settings, b.key);
+}
+
+/**
+ * Whether two inputs are one: setting either moves the other (the two outlets of a two-outlet
+ * splitter, an outlet and the one written `rest`, two fractions of one feed's composition). A
+ * study cannot sweep one and adjust the other: the last value set would win, unseen.
+ */
+export function coupled(model: Model, a: Parameter, b: Parameter): boolean {
+  if (a.path === b.path) return true;
+  if (a.owner !== b.owner) return false;
+  return moves(model, a, b) || moves(model, b, a);
+}

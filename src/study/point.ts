@@ -22,7 +22,7 @@ import { solveRoot } from '../solve/index.js';
 import type { EvaluationFailure, MethodName, RootProblem, SolveResult, Status } from '../solve/types.js';
 import { parseQuantity, toUnit, UnitError } from '../units/index.js';
 import { parseOutput, type OutputRef } from './outputs.js';
-import { assertVariable, checkUnit, checkValue, fromSI, parameter, toSI, withValues, type Parameter, type ParameterValue } from './parameters.js';
+import { assertVariable, checkUnit, checkValue, coupled, fromSI, parameter, toSI, withValues, type Parameter, type ParameterValue } from './parameters.js';
 
 export type { TargetReport } from '../flowsheet/result.js';
 
@@ -162,8 +162,9 @@ function solveTargets(model: Model, targets: readonly TargetSpec[], opts: PointO
   const k = targets.length;
   const rt = opts.runtime!;
   const rtol = opts.rtol ?? model.solver.rtol;
-  const byPaths = new Set(targets.map((t) => t.by.path));
-  if (byPaths.size < k) return { status: 'invalid', message: 'two targets adjust the same parameter; each target needs one of its own' };
+  if (targets.some((t, j) => targets.slice(0, j).some((o) => coupled(model, o.by, t.by)))) {
+    return { status: 'invalid', message: 'two targets adjust the same parameter (or two that set each other, as the outlets of a two-outlet splitter); each target needs one of its own' };
+  }
 
   // Start: adjusted parameters at their model values (clipped into bounds), or from the neighbour.
   const u0 = targets.map((t) => Math.min(t.upper, Math.max(t.lower, t.by.value)));
@@ -189,7 +190,25 @@ function solveTargets(model: Model, targets: readonly TargetSpec[], opts: PointO
   // A converged flowsheet at the start values gives the tear start and their tolerances.
   const m0 = modelAt(u0);
   if (!('units' in m0)) return { status: 'invalid', message: m0.message };
-  const first = solveFlowsheet(m0, { runtime: rt, start: xStart, method: opts.method, maxPasses: opts.maxPasses, rtol });
+  let first = solveFlowsheet(m0, { runtime: rt, start: xStart, method: opts.method, maxPasses: opts.maxPasses, rtol });
+  let startPasses = 0;
+  if (first.status !== 'converged') {
+    // No steady state at the start values (the file's own conversion beyond what a reactant
+    // allows, say) says nothing of the other values within the bounds: start from the first of
+    // the bounds' midpoint, lower and upper ends that has one.
+    for (const alt of [targets.map((t) => (t.lower + t.upper) / 2), targets.map((t) => t.lower), targets.map((t) => t.upper)]) {
+      const ma = modelAt(alt);
+      if (!('units' in ma)) continue;
+      const fa = solveFlowsheet(ma, { runtime: rt, method: opts.method, maxPasses: opts.maxPasses, rtol });
+      if (fa.status === 'converged') {
+        startPasses += first.passes;
+        first = fa;
+        alt.forEach((v, j) => (u0[j] = v));
+        break;
+      }
+      startPasses += fa.passes;
+    }
+  }
   const N = first.x.length;
   const tp = tearProblem(rt, first.x, freshFeed(rt));
   const n = N + k;
@@ -233,11 +252,13 @@ function solveTargets(model: Model, targets: readonly TargetSpec[], opts: PointO
   const mU = modelAt(u);
   if (!('units' in mU)) return { status: 'invalid', message: mU.message };
   const final = solveFlowsheet(mU, { runtime: rt, start: Float64Array.from(sol.x.subarray(0, N)), method: opts.method, maxPasses: opts.maxPasses, rtol });
-  const summary = { passes: final.passes + sol.passes + first.passes, iterations: final.iterations + sol.iterations, jacobians: final.jacobians + sol.jacobians,
+  const summary = { passes: final.passes + sol.passes + first.passes + startPasses, iterations: final.iterations + sol.iterations, jacobians: final.jacobians + sol.jacobians,
     method: `${first.method}, then newton on tears and targets${final.method ? ` (final solve: ${final.method})` : ''}` };
   const reports: TargetReport[] = targets.map((t, j) => {
     const y = t.output.read(final);
-    const met = Math.abs(y - t.value) <= tolerances[j];
+    // Met only on a steady state: an output read off a state that is not one (a reactor short of
+    // a reactant) reaches nothing.
+    const met = final.status === 'converged' && Math.abs(y - t.value) <= tolerances[j];
     const near = 1e-6 * (t.upper - t.lower);
     const atLower = u[j] <= t.lower + near;
     const atUpper = u[j] >= t.upper - near;

@@ -22,7 +22,7 @@ import { createRuntime, type Runtime } from '../flowsheet/runtime.js';
 import { fileTargets } from './file-targets.js';
 import { blocksOf, GridShape, parseAxes, type Axis, type AxisSpec } from './grid.js';
 import { outputValue, parseOutput, type OutputRef } from './outputs.js';
-import { withValues, type ParameterValue } from './parameters.js';
+import { coupled, withValues, type ParameterValue } from './parameters.js';
 import { parseTarget, solvePoint, type TargetSpec } from './point.js';
 
 /** Points per block when --block is not given. */
@@ -109,13 +109,16 @@ export function prepareSweep(spec: SweepSpec, opts: { checked?: boolean } = {}):
     if (ts) targets.push(ts);
   }
   for (const t of targets) {
-    const a = axes.find((x) => x.parameter.path === t.by.path);
-    if (a) diags.push({ severity: 'error', message: `\`${t.by.path}\` is swept by \`${a.spec.text}\` and adjusted by target \`${t.text}\``, help: 'a target must adjust an input that the sweep leaves free' });
+    const a = axes.find((x) => coupled(model, x.parameter, t.by));
+    if (a && a.parameter.path === t.by.path) diags.push({ severity: 'error', message: `\`${t.by.path}\` is swept by \`${a.spec.text}\` and adjusted by target \`${t.text}\``, help: 'a target must adjust an input that the sweep leaves free' });
+    else if (a) diags.push({ severity: 'error', message: `\`${t.by.path}\`, adjusted by target \`${t.text}\`, and \`${a.parameter.path}\`, swept by \`${a.spec.text}\`, are one input: setting either sets the other`, help: 'a target must adjust an input that the sweep leaves free' });
   }
-  const seen = new Set<string>();
+  const seen: TargetSpec[] = [];
   for (const t of targets) {
-    if (seen.has(t.by.path)) diags.push({ severity: 'error', message: `two targets adjust \`${t.by.path}\``, help: 'each target needs an input of its own' });
-    seen.add(t.by.path);
+    const o = seen.find((x) => coupled(model, x.by, t.by));
+    if (o && o.by.path === t.by.path) diags.push({ severity: 'error', message: `two targets adjust \`${t.by.path}\``, help: 'each target needs an input of its own' });
+    else if (o) diags.push({ severity: 'error', message: `two targets adjust one input: \`${o.by.path}\` and \`${t.by.path}\` set each other`, help: 'each target needs an input of its own' });
+    seen.push(t);
   }
   if (!Number.isInteger(spec.block) || spec.block < 1) diags.push({ severity: 'error', message: `--block must be a whole number >= 1, not ${spec.block}` });
   if (diags.length) throw new InputError(diags);

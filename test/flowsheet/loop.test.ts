@@ -57,6 +57,98 @@ describe('recycle loop against the closed-form recycle and purge relations', () 
     });
   }
 
+  it('an intermediate no fresh feed carries has no overall conversion (not 0); its single-pass one is (in - out) / in', () => {
+    // A -> B in the first bed (X1 = 0.9), B -> C in the second (X2 = 0.5), all B and C taken out,
+    // a fraction p = 0.1 of the gas purged. Closed form as above: R_A = a F_A / (1 - a) with
+    // a = (1-p)(1-X1); B reaches the second bed only from the first, so its overall conversion
+    // from fresh feed, (in - out) / in with in = 0, is undefined; the second bed converts
+    // X2 of the B that reaches it.
+    const text = `
+components:
+  A: { Tc: 308.3 K, Pc: 61.4 bar, omega: 0.19, formula: C2H2 }
+  B: { Tc: 282.3 K, Pc: 50.4 bar, omega: 0.087, formula: C2H4 }
+  C: { Tc: 305.3 K, Pc: 48.7 bar, omega: 0.1, formula: C2H6 }
+  H: { Tc: 33.2 K, Pc: 13 bar, omega: -0.216, formula: H2 }
+feeds:
+  fresh: { flows: { A: 10 mol/s, H: 30 mol/s }, T: 400 K, P: 20 bar }
+units:
+  mix: { type: mixer, in: [fresh, recycle], out: r-in, T: 400 K }
+  bed1: { type: reactor, in: r-in, out: mid, reactions: [ { equation: "A + H -> B", key: A, conversion: 0.9 } ] }
+  bed2: { type: reactor, in: mid, out: r-out, reactions: [ { equation: "B + H -> C", key: B, conversion: 0.5 } ] }
+  sep: { type: separator, in: r-out, out: { product: { B: 1, C: 1 }, gas: rest } }
+  split: { type: splitter, in: gas, out: { purge: 0.1, recycle: rest } }
+`;
+    const { model } = validateText('intermediate.yaml', text);
+    const r = solveFlowsheet(model);
+    expect(r.status).toBe('converged');
+    const a = 0.9 * 0.1;
+    expect(r.loop.conversions.A.overall).toBeCloseTo(0.9 / (1 - a), 9);
+    expect(r.loop.conversions.B.singlePass).toBeCloseTo(0.5, 12);
+    expect(Number.isNaN(r.loop.conversions.B.overall)).toBe(true);
+  });
+
+  it('a key formed and used within one reactor (sequence) reaches it from no inlet: its unit conversion is undefined, not 0', () => {
+    // Stoichiometry by hand: 8 mol/s of C2H6 formed by the first reaction (0.8 of 10 C2H4), half
+    // of it hydrogenolysed by the second: the reaction's own conversion is 0.5, but (in - out) / in
+    // of the unit has in = 0.
+    const text = `
+components: { C2H4: {}, H2: {}, C2H6: {}, CH4: {} }
+feeds:
+  fresh: { flows: { C2H4: 10 mol/s, H2: 30 mol/s }, T: 500 K, P: 10 bar }
+units:
+  reactor:
+    type: reactor
+    in: fresh
+    out: r-out
+    T: 500 K
+    sequence: true
+    reactions:
+      - { equation: "C2H4 + H2 -> C2H6", key: C2H4, conversion: 0.8 }
+      - { equation: "C2H6 + H2 -> 2 CH4", key: C2H6, conversion: 0.5 }
+`;
+    const { model } = validateText('sequence.yaml', text);
+    const r = solveFlowsheet(model);
+    expect(r.status).toBe('converged');
+    const u = r.units.get('reactor')!;
+    expect(u.reactions![1].conversion).toBeCloseTo(0.5, 12);
+    expect(u.conversions!.C2H4).toBeCloseTo(0.8, 12);
+    expect(Number.isNaN(u.conversions!.C2H6)).toBe(true);
+    expect(Number.isNaN(r.loop.conversions.C2H6.overall)).toBe(true);
+  });
+
+  it('fresh material joining one loop at two points: the circulating gas is counted once in the recycle ratio', () => {
+    // CO2 joins at the reactor's mixer, hydrogen (with N2) after the separator; X = 0.3, p = 0.05.
+    // Closed form as above, with F_C = 1, F_H = 3, F_N = 0.05 mol/s and a = (1-p)(1-X) = 0.665:
+    //   R_CO2 = a F_C / (1 - a) = 1.985075; CO2 into the reactor 1 / (1 - a) = 2.985075;
+    //   R_H2 = (1-p)(F_H - 3 X CO2_in) / p = 5.955224;  R_N2 = (1-p) F_N / p = 0.95;
+    //   recycle ratio = (R_CO2 + R_H2 + R_N2) / (F_C + F_H + F_N) = 8.890299 / 4.05 = 2.195136.
+    // The separator's gas, before the hydrogen joins it, is the same gas: summing it as well gave 3.75.
+    const text = `
+components: { CO2: {}, H2: {}, CH3OH: {}, H2O: {}, N2: {} }
+feeds:
+  co2: { flows: { CO2: 1 mol/s }, T: 500 K, P: 50 bar }
+  h2: { flows: { H2: 3 mol/s, N2: 0.05 mol/s }, T: 500 K, P: 50 bar }
+units:
+  mix: { type: mixer, in: [co2, recycle], out: r-in }
+  reactor: { type: reactor, in: r-in, out: r-out, T: 500 K, reactions: [ { equation: "CO2 + 3 H2 -> CH3OH + H2O", key: CO2, conversion: 0.3 } ] }
+  sep: { type: separator, in: r-out, out: { product: { CH3OH: 1, H2O: 1 }, gas: rest } }
+  mix2: { type: mixer, in: [gas, h2], out: gas2 }
+  purge-split: { type: splitter, in: gas2, out: { recycle: 0.95, purge: rest } }
+`;
+    const { model } = validateText('two-joins.yaml', text);
+    const r = solveFlowsheet(model);
+    expect(r.status).toBe('converged');
+    const a = 0.95 * 0.7;
+    const RC = a / (1 - a);
+    const RH = (0.95 * (3 - 3 * 0.3 / (1 - a))) / 0.05;
+    const RN = (0.95 * 0.05) / 0.05;
+    const rec = r.streams.get('recycle')!;
+    expect(rec.flows[0]).toBeCloseTo(RC, 8);
+    expect(rec.flows[1]).toBeCloseTo(RH, 8);
+    expect(r.loop.recycles).toEqual(['recycle']);
+    expect(r.loop.recycleRatio).toBeCloseTo((RC + RH + RN) / 4.05, 8);
+  });
+
   it('Wegstein needs far fewer passes than direct substitution at a high recycle ratio', () => {
     const { model } = validateText('loop.yaml', linearLoop(0.1, 0.01));
     const d = solveFlowsheet(model, { method: 'direct', maxPasses: 20000 });

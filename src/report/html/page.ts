@@ -227,9 +227,15 @@ function feedsSection(input: ReportInput, d: Display): string {
 function targetsSection(input: ReportInput): string {
   const targets = Array.isArray(input.result.targets) ? (input.result.targets as Obj[]) : [];
   if (!targets.length) return '';
-  return '<h2>Targets</h2>' + tableHtml(['target', 'reached', 'adjusted input', 'value', 'met'], targets.map((t) => [
-    String(t.text), num(t.output as number, 8), text(String(t.inputPath)), num(t.input as number, 8), text(t.met ? 'yes' : `no${t.bound ? ` (stopped by its ${String(t.bound)} bound)` : ''}`),
-  ]));
+  // As the text report says them: the output in the unit of the target's value (else the display
+  // unit), the input in the unit of its bounds; the SI numbers only where those are missing.
+  return '<h2>Targets</h2>' + tableHtml(['target', 'reached', 'adjusted input', 'value', 'met'], targets.map((t) => {
+    const shown = obj(t.shown);
+    return [
+      String(t.text), typeof shown?.output === 'string' ? shown.output : num(t.output as number, 8), text(String(t.inputPath)),
+      typeof shown?.input === 'string' ? shown.input : num(t.input as number, 8), text(t.met ? 'yes' : `no${t.bound ? ` (stopped by its ${String(t.bound)} bound)` : ''}`),
+    ];
+  }));
 }
 
 function notSolutionSection(input: ReportInput, d: Display): string {

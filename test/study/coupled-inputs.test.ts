@@ -1,0 +1,60 @@
+import { describe, expect, it } from 'vitest';
+import { cli, tempFile } from '../helpers/cli.js';
+import { loadFlowsheet } from '../../src/flowsheet/validate.js';
+import { coupled, parameter } from '../../src/study/parameters.js';
+
+// The recycle loop of test/flowsheet/loop.test.ts with built-in components: 100 mol/s of 95 %
+// n-butane and 5 % N2, isomerised at X = 0.3 per pass, all isobutane taken out, a fraction p of
+// the gas purged. Closed form: y_N2 of the recycle = R_I / (R_I + R_A) with R_I = (1-p) F z / p and
+// R_A = (1-p)(1-X) F (1-z) / (1 - (1-p)(1-X)); y_N2 = 0.25 at p = 0.0803571.
+const LOOP = `components: { nC4H10: {}, iC4H10: {}, N2: {} }
+feeds:
+  fresh: { composition: { nC4H10: 0.95, N2: 0.05 }, molar-flow: 100 mol/s, T: 400 K, P: 10 bar }
+units:
+  mix: { type: mixer, in: [fresh, recycle], out: r-in }
+  reactor: { type: reactor, in: r-in, out: r-out, T: 400 K, reactions: [ { equation: "nC4H10 -> iC4H10", key: nC4H10, conversion: 0.3 } ] }
+  sep: { type: separator, in: r-out, out: { product: { iC4H10: 1 }, gas: rest } }
+  purge-split: { type: splitter, in: gas, out: { recycle: 0.9, purge: rest } }
+  tee: { type: splitter, in: product, out: { a: 0.2, b: rest, c: 0.3 } }
+`;
+
+describe('inputs that set each other cannot be swept and adjusted apart', () => {
+  const file = tempFile('loop.yaml', LOOP);
+  const m = loadFlowsheet(file).model;
+
+  it('the two outlets of a two-outlet splitter, an outlet and `rest`, two fractions of one composition are one input; independent outlets are not', () => {
+    const P = (path: string) => parameter(m, path);
+    expect(coupled(m, P('purge-split.out.purge'), P('purge-split.out.recycle'))).toBe(true);
+    expect(coupled(m, P('tee.out.a'), P('tee.out.b'))).toBe(true);
+    expect(coupled(m, P('tee.out.a'), P('tee.out.c'))).toBe(false);
+    expect(coupled(m, P('feeds.fresh.composition.N2'), P('feeds.fresh.composition.nC4H10'))).toBe(true);
+    expect(coupled(m, P('feeds.fresh.composition.N2'), P('feeds.fresh.molar-flow'))).toBe(false);
+    expect(coupled(m, P('purge-split.out.purge'), P('reactor.reactions.0.conversion'))).toBe(false);
+  });
+
+  it('a sweep of the purge with a target adjusting the recycle share is refused (it wrote purge 0.1 and 0.2 for one state at p = 0.0804)', () => {
+    const r = cli(['sweep', file, '--grid', 'purge-split.out.purge=0.1:0.2:2', '--target', 'streams.recycle.fractions.N2 = 0.25', '--by', 'purge-split.out.recycle', '--within', '0.5:0.99', '--report', 'loop.recycle-ratio']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/are one input/);
+    expect(r.stdout).toBe('');
+  });
+
+  it('two axes on one composition are refused; a purge value with a target on the conversion runs (closed form X = 0.3)', () => {
+    const r = cli(['sweep', file, '--grid', 'feeds.fresh.composition.N2=0.05:0.1:2', '--grid', 'feeds.fresh.composition.nC4H10=0.8:0.9:2', '--report', 'loop.recycle-ratio']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/are one input/);
+    const ok = cli(['sweep', file, '--values', 'purge-split.out.purge=0.0803571428571429', '--target', 'streams.recycle.fractions.N2 = 0.25', '--by', 'reactor.reactions.0.conversion', '--within', '0.1:0.5', '--report', 'streams.recycle.fractions.N2']);
+    expect(ok.code).toBe(0);
+    const row = ok.stdout.trim().split('\n').pop()!.split(',');
+    // At p = 0.0803571 the closed form gives y_N2 = 0.25 at X = 0.3.
+    expect(Number(row[row.length - 2])).toBeCloseTo(0.3, 6);
+  });
+
+  it('solve: two targets adjusting the two outlets of one splitter are refused', () => {
+    const r = cli(['solve', file, '--target', 'streams.recycle.fractions.N2 = 0.25', '--by', 'purge-split.out.recycle', '--within', '0.5:0.99',
+      '--target', 'streams.purge.total = 20 mol/s', '--by', 'purge-split.out.purge', '--within', '0.01:0.5']);
+    expect(r.code).not.toBe(0);
+    expect(r.stdout + r.stderr).toMatch(/set each other/);
+    expect(r.stdout).not.toMatch(/^Streams/m);
+  });
+});
