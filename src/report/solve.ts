@@ -184,7 +184,12 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
   if (r.targets?.length) {
     out.push('');
     out.push('Targets');
-    for (const t of r.targets) out.push(`  ${t.text}: reached ${t.shown?.output ?? num(t.output, 8)} by ${t.inputPath} = ${t.shown?.input ?? num(t.input, 8)}${t.met ? '' : ` (not met${t.bound ? `: stopped by its ${t.bound} bound` : ''})`}`);
+    for (const t of r.targets) {
+      const input = t.shown?.input ?? num(t.input, 8);
+      // Without a steady state there is no output to speak of (a bound's state is one: it was solved).
+      if (r.status !== 'converged' && !t.met && !t.bound) out.push(`  ${t.text}: not met; no solution at ${t.inputPath} = ${input}, the last value tried`);
+      else out.push(`  ${t.text}: reached ${t.shown?.output ?? num(t.output, 8)} by ${t.inputPath} = ${input}${t.met ? '' : ` (not met${t.bound ? `: stopped by its ${t.bound} bound` : ''})`}`);
+    }
   }
   if (r.status !== 'converged') {
     out.push('');

@@ -78,4 +78,17 @@ describe('a target whose adjusted input starts where no steady state exists', ()
     expect(out.stdout).toMatch(/reached 18 kmol\/h by reactor\.reactions\.0\.conversion = 0\.266667\n/);
     expect(out.stdout).not.toMatch(/No steady state/);
   });
+
+  it('the CLI gives no output figure for a target whose last value tried has no steady state (CO2 out 30 mol/s needs X = 0.4)', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'loopclose-target-'));
+    const f = join(dir, 'short.yaml');
+    writeFileSync(f, text);
+    const out = cli(['solve', f, '--target', 'streams.r-out.flows.CO2 = 30 mol/s', '--by', 'reactor.reactions.0.conversion', '--within', '0.1:0.6']);
+    expect(out.code).toBe(4);
+    expect(out.stdout).toMatch(/streams\.r-out\.flows\.CO2 = 30 mol\/s: not met; no solution at reactor\.reactions\.0\.conversion = 0\.4, the last value tried/);
+    expect(out.stdout).not.toMatch(/reached/);
+    // Stopped by a bound, the state at the bound was solved: its figure is given.
+    const bound = cli(['solve', f, '--target', 'streams.r-out.flows.CO2 = 1 mol/s', '--by', 'reactor.reactions.0.conversion', '--within', '0.1:0.25']);
+    expect(bound.stdout).toMatch(/reached 37\.5 mol\/s by reactor\.reactions\.0\.conversion = 0\.25 \(not met: stopped by its upper bound\)/);
+  });
 });
