@@ -231,8 +231,10 @@ function targetsSection(input: ReportInput): string {
   // unit), the input in the unit of its bounds; the SI numbers only where those are missing.
   return '<h2>Targets</h2>' + tableHtml(['target', 'reached', 'adjusted input', 'value', 'met'], targets.map((t) => {
     const shown = obj(t.shown);
+    // Without a steady state there is no output to give (a bound's state was solved: it has one).
+    const noState = input.status !== 'converged' && !t.met && !t.bound;
     return [
-      String(t.text), typeof shown?.output === 'string' ? shown.output : num(t.output as number, 8), text(String(t.inputPath)),
+      String(t.text), noState ? 'no solution at the last value tried' : typeof shown?.output === 'string' ? shown.output : num(t.output as number, 8), text(String(t.inputPath)),
       typeof shown?.input === 'string' ? shown.input : num(t.input as number, 8), text(t.met ? 'yes' : `no${t.bound ? ` (stopped by its ${String(t.bound)} bound)` : ''}`),
     ];
   }));
