@@ -52,3 +52,9 @@ export function csvField(v: string | number): string {
 export function csvLine(fields: (string | number)[]): string {
   return fields.map(csvField).join(',');
 }
+
+/** "another method (--method A or --method B), " naming only the methods this solve did not use. */
+export function otherMethods(used: string): string {
+  const others = ['newton', 'wegstein', 'direct'].filter((m) => !used.includes(m));
+  return others.length ? `another method (${others.map((m) => `--method ${m}`).join(' or ')}), ` : '';
+}

@@ -5,7 +5,7 @@
  */
 import type { FlowsheetResult } from '../flowsheet/solve.js';
 import { standardOfFlowUnit, toUnit } from '../units/index.js';
-import { CAUTION, csvLine, num, pct, table, toJson } from './format.js';
+import { CAUTION, csvLine, num, otherMethods, pct, table, toJson } from './format.js';
 
 export interface SolveReportOptions {
   flowUnit?: string;
@@ -216,7 +216,7 @@ export function solveText(r: FlowsheetResult, opts: SolveReportOptions = {}): st
       const pick = hist.length <= 8 ? hist : [...hist.slice(0, 4), ...hist.slice(-4)];
       out.push(`  residual history (pass: scaled residual): ${pick.map((h) => `${h.pass}: ${num(h.scaled, 3)}`).join(', ')}`);
     }
-    if (r.status === 'not-converged') out.push('  try: another method (--method newton or --method direct), more passes (--max-passes), or check the specifications');
+    if (r.status === 'not-converged') out.push(`  try: ${otherMethods(r.method)}more passes (--max-passes), or check the specifications`);
     for (const w of r.warnings) out.push(`warning: ${w}`);
     out.push(`note: ${CAUTION}`);
     return out.join('\n');

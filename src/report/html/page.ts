@@ -4,7 +4,7 @@
  * on A4 and letter. The status comes first; a result that is not a solution is shown as a
  * diagnosis with its last iterate labelled as such, never as a stream table.
  */
-import { num } from '../format.js';
+import { num, otherMethods } from '../format.js';
 import { drawFlowsheet } from './drawing.js';
 import type { ReportInput } from './input.js';
 import { esc, scriptJson } from './markup.js';
@@ -261,7 +261,7 @@ function notSolutionSection(input: ReportInput, d: Display): string {
     rows.push([`P [${d.pressureUnit}]`, ...names.map((n) => d.P(obj(tears[n])?.P))]);
     out.push('<h3>Last iterate of the tear streams (NOT A SOLUTION)</h3>' + tableHtml(['tear stream (last iterate)', ...names], rows));
   }
-  if (input.status === 'not-converged') out.push('<p>to try: another method (--method newton or --method direct), more passes (--max-passes), or check the specifications.</p>');
+  if (input.status === 'not-converged') out.push(`<p>to try: ${esc(otherMethods(String(r.method ?? '')))}more passes (--max-passes), or check the specifications.</p>`);
   out.push('</section>');
   return out.join('');
 }
