@@ -12,7 +12,8 @@ import type { FieldReader } from '../flowsheet/fields.js';
 import type { FeedBasis, FeedSpec, MeterDesign, MeterUncertainty } from '../flowsheet/model.js';
 import { getIn, isSettingMap, setIn } from '../flowsheet/settings.js';
 import { R } from '../thermo/constants.js';
-import type { Eos } from '../thermo/types.js';
+import { eosWork, type Eos } from '../thermo/types.js';
+import { makeEos } from '../thermo/eos.js';
 import { makeMeterEos, meterEosFor, type MeterEos, type MeterEosName, type MeterPhase } from '../thermo/meter-eos.js';
 import type { BlockDef, Stream, UnitSummary } from './types.js';
 
@@ -86,6 +87,20 @@ export function phaseAt(eos: Eos, T: number, P: number, x: ArrayLike<number>): F
 }
 
 /**
+ * SRK over the components of an ideal-gas equation of state, for the phase of a gas meter's state
+ * (kept in the equation's work area); undefined when a component lacks Tc, Pc or omega.
+ */
+function idealPhaseCheck(eos: Eos): MeterEos | undefined {
+  return eosWork<{ m: MeterEos | undefined }>(eos, 'idealPhaseCheck', () => {
+    try {
+      return { m: makeMeterEos('SRK', makeEos('SRK', eos.components)) };
+    } catch {
+      return { m: undefined };
+    }
+  }).m;
+}
+
+/**
  * A feed's reading -> molar flow. `meter` chooses the equation for every meter and standard-volume
  * conversion (and the Z, density and phase the feed reports); without it, the file's EOS `eos`.
  * Pass the runtime's meter EOS: making one per call costs time (and, for GERG-2008, a model).
@@ -100,7 +115,16 @@ export function computeFeed(spec: FeedSpec, eos: Eos, meter: MeterEos = makeMete
   const st = meter.state(T, P, z);
   const Z = st.Z;
   const v = st.v;
-  const phase = st.phase;
+  let phase = st.phase;
+  if (st.model === 'ideal') {
+    // The ideal-gas law has no liquid, so it calls every state a gas: a gas meter's reading is
+    // checked with SRK over the same components instead (propane at 21 bar and 20 degC is a liquid).
+    const srk = idealPhaseCheck(eos);
+    if (srk) {
+      phase = srk.state(T, P, z).phase;
+      if (phase !== 'vapor') warnings.push(`feed \`${spec.name}\`: the ideal-gas law has no liquid; tested with SRK, this state is ${phase === 'dense' ? 'a dense fluid' : phase}`);
+    }
+  }
   let model = st.model;
   let fallback = st.fallback;
   const nearCritical = st.nearCritical;

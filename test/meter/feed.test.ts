@@ -149,5 +149,22 @@ feeds:
     expect(f.Z).toBe(1);
     expect(f.idealError).toBe(0);
     expect(f.molarFlow).toBeCloseTo(1e6 / (R * 300), 10);
+    expect(f.phase).toBe('vapor');
+    expect(f.warnings).toEqual([]);
+  });
+
+  it('the ideal-gas equation of state does not call a liquid a gas: the phase is tested with SRK', () => {
+    // Propane at 20 degC boils at about 8.4 bar (NIST Chemistry WebBook, propane saturation
+    // properties (from memory)): at 21 bar it is liquid, at 3 bar a gas.
+    const eos = makeEos('ideal', [findComponent('C3H8')!]);
+    const at = (P: number) => computeFeed({ name: 'x', type: 'feed', inlets: [], outlets: ['x'], composition: Float64Array.of(1), basis: { kind: 'meter', flow: 1, T: 293.15, P }, T: 293.15, P }, eos);
+    const liquid = at(21e5);
+    expect(liquid.Z).toBe(1);
+    expect(liquid.phase).toBe('liquid');
+    expect(liquid.warnings.join(' ')).toMatch(/the ideal-gas law has no liquid; tested with SRK, this state is liquid/);
+    expect(liquid.warnings.join(' ')).toMatch(/a gas-meter reading is not valid there/);
+    const gas = at(3e5);
+    expect(gas.phase).toBe('vapor');
+    expect(gas.warnings).toEqual([]);
   });
 });
