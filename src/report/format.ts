@@ -18,7 +18,9 @@ export function num(v: number, sig = 5): string {
 
 export function pct(v: number, digits = 2): string {
   if (!Number.isFinite(v)) return '-';
+  // A value that rounds to zero prints without a sign ('-0.00 %' claimed a direction it has not).
   const s = (v * 100).toFixed(digits);
+  if (Number(s) === 0) return `${(0).toFixed(digits)} %`;
   return `${v > 0 ? '+' : ''}${s} %`;
 }
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { otherMethods } from '../../src/report/format.js';
+import { otherMethods, pct } from '../../src/report/format.js';
 import { cli } from '../helpers/cli.js';
 
 describe('what a solve that did not converge suggests', () => {
@@ -16,5 +16,14 @@ describe('what a solve that did not converge suggests', () => {
     expect(r.stdout).toMatch(/status: not-converged {2}\(direct:/);
     expect(r.stdout).toMatch(/try: another method \(--method newton or --method wegstein\), more passes/);
     expect(r.stdout).not.toMatch(/--method direct/);
+  });
+});
+
+describe('percentages in the text reports', () => {
+  it('a value that rounds to zero has no sign', () => {
+    expect(pct(-1e-17)).toBe('0.00 %');
+    expect(pct(-4e-5)).toBe('0.00 %');
+    expect(pct(-6e-5)).toBe('-0.01 %');
+    expect(pct(0.0004)).toBe('+0.04 %');
   });
 });
