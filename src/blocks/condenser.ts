@@ -13,6 +13,7 @@ import type { EvaluationFailure } from '../solve/types.js';
 import { energyThisPass, type BlockDef, type BlockRuntime, type BuildContext, type Stream, type UnitFigure, type UnitSummary } from './types.js';
 import { checkCorrelationRange, enthalpyIn, hasEnergyData, OutletState, phaseH, powerFigure } from './energy.js';
 import { pressureBelowZero, readEnergyMode } from './reactor.js';
+import { stableRootOf } from '../thermo/flash-eos.js';
 
 export interface CondenserSpec extends UnitSpecBase {
   type: 'condenser' | 'flash';
@@ -234,12 +235,26 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
       return problem;
     },
     energy: () => ({ duty, power: 0 }),
-    summary() {
+    summary(_ins, outs) {
       const figures: UnitFigure[] = [{ label: 'vapor fraction', value: lastBeta, kind: 'fraction', key: 'vaporFraction' }];
+      const notes: string[] = note ? [note] : [];
+      // A split condenser takes its liquid as given; say when the equation of state finds no liquid
+      // there (supercritical methane "condensed" at 250 K has the density of a gas).
+      const liquid = outs?.[1];
+      if (spec.model === 'split' && liquid && ctx.eos.name !== 'ideal') {
+        let L = 0;
+        for (let i = 0; i < n; i++) L += liquid.flows[i];
+        if (L > 0 && Number.isFinite(liquid.T) && liquid.P > 0) {
+          for (let i = 0; i < n; i++) zl[i] = liquid.flows[i] / L;
+          if (stableRootOf(ctx.eos, liquid.T, liquid.P, zl) !== 'liquid') {
+            notes.push(`the liquid outlet \`${spec.outlets[1]}\` is not a liquid by ${ctx.eos.name} at its T and P (its only or stable root is a gas): the split condenses what the equation of state leaves as gas; check the split fractions against the condenser's T and P`);
+          }
+        }
+      }
       if (spec.model === 'equilibrium') figures.push({ label: 'flash iterations in the last pass (from the previous K-values)', value: lastIterations, kind: 'count', key: 'flashIterations' });
       if (energy) figures.push(powerFigure('duty', spec.adiabatic ? 'duty (adiabatic)' : 'duty', duty));
       if (findsT) figures.push({ label: 'temperature found', value: lastT, kind: 'temperature', key: 'T' });
-      return { figures, notes: note ? [note] : [] };
+      return { figures, notes };
     },
   };
 }

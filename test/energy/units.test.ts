@@ -387,3 +387,26 @@ units:
     expect(() => validateText('n.yaml', base('{ Tc: 305 K, Pc: 49 bar, omega: 0.1, formula: C2H6, cp: { over-R: [1.0, -0.01], Tmin: 200 K, Tmax: 1000 K }, hf: -84 kJ/mol }'))).toThrow(/the polynomial gives Cp\/R = -1 at 200 K, inside its range; a heat capacity is positive/);
   });
 });
+
+describe('a split condenser whose liquid the equation of state calls a gas', () => {
+  // 90 % methane, 10 % n-butane at 250 K and 29 bar. Methane's critical temperature is 190.6 K
+  // (Poling, Prausnitz and O'Connell, The Properties of Gases and Liquids, 5th ed., Appendix A
+  // (from memory)): half the methane and 99 % of the butane sent to the liquid make a "liquid" of
+  // 82 % methane, which at 250 K has the density of a gas. With 2 % of the methane (15 % methane in
+  // the liquid) it is a butane-rich liquid.
+  const text = (ch4: number) => `
+components: { CH4: {}, nC4H10: {} }
+thermo: { eos: SRK }
+feeds:
+  gas: { composition: { CH4: 0.9, nC4H10: 0.1 }, molar-flow: 1 mol/s, T: 300 K, P: 30 bar }
+units:
+  cond: { type: condenser, in: gas, T: 250 K, P: 29 bar, model: split, split: { CH4: ${ch4}, nC4H10: 0.99 }, vapor: v, liquid: l }
+`;
+  it('says so in the unit\'s notes, and not for a true liquid', () => {
+    const wrong = solve(text(0.5));
+    expect(wrong.status).toBe('converged');
+    expect(wrong.units.get('cond')!.notes.join(' ')).toMatch(/the liquid outlet `l` is not a liquid by SRK at its T and P/);
+    const right = solve(text(0.02));
+    expect(right.units.get('cond')!.notes.join(' ')).not.toMatch(/is not a liquid/);
+  });
+});
