@@ -145,3 +145,21 @@ describe('structural checks through the library', () => {
     expect(d[0].help).toMatch(/recovery above zero to the outlet `liquid-ammonia`/);
   });
 });
+
+describe('a suggested fix works when written', () => {
+  it('a condenser with no pressure is told of `P` and of `dp`, and either makes a valid file', () => {
+    const text = readFileSync(join(DIR, 'condenser-no-temperature.yaml'), 'utf8').replace('    P: 145 bar\n', '    T: -10 degC\n');
+    let err: InputError | undefined;
+    try {
+      validateText('x.yaml', text);
+    } catch (e) {
+      err = e as InputError;
+    }
+    expect(err).toBeInstanceOf(InputError);
+    const d = err!.diagnostics.filter((x) => x.severity === 'error');
+    expect(d.map((x) => x.message)).toEqual(['unit `chiller` has no `P`']);
+    expect(d[0].help).toBe('add `P: 29 barg` or the drop from the inlet, `dp: 0.2 bar`');
+    expect(() => validateText('x.yaml', text.replace('    T: -10 degC\n', '    T: -10 degC\n    P: 29 barg\n'))).not.toThrow();
+    expect(() => validateText('x.yaml', text.replace('    T: -10 degC\n', '    T: -10 degC\n    dp: 0.2 bar\n'))).not.toThrow();
+  });
+});

@@ -40,7 +40,7 @@ function makeDef(type: 'condenser' | 'flash'): BlockDef<CondenserSpec> {
       const mode = readEnergyMode(name, f, type);
       const found = mode && (mode.adiabatic || mode.duty !== undefined);
       const T = f.quantity('T', 'temperature', { required: !found && !f.has('duty'), above: 0, example: '40 degC' });
-      const P = f.quantity('P', 'pressure', { required: !f.has('dp'), above: 0, example: '29 barg' });
+      const P = f.quantity('P', 'pressure', { required: !f.has('dp'), above: 0, example: '29 barg` or the drop from the inlet, `dp: 0.2 bar' });
       const model = (f.string('model', { oneOf: ['equilibrium', 'split'] }) ?? 'equilibrium') as CondenserSpec['model'];
       if (!mode || !checkCorrelationRange(f, 'T', T, name)) return undefined;
       if (model === 'split' && found) {
