@@ -4,12 +4,13 @@
  * Layout: the first line names the columns: the first is the timestamp (ISO 8601; read as UTC
  * unless it carries a zone), every other one an instrument's tag (`FI-101`), or an analyzer's
  * tag and component (`AI-205.H2`). A second line may give the unit of each column (its first
- * cell empty, or anything that is not a timestamp); without it, a column takes the `unit:` of
+ * cell empty, or anything that is not a timestamp, and no reading in its cells); without it, a column takes the `unit:` of
  * its instrument (an analyzer's columns are mole fractions). Columns of other tags are ignored
  * (and listed as such).
  * Problems with the file itself (a column an instrument needs is missing, a unit that does not
  * fit its instrument, a column given twice) are located messages (FILE:LINE:COL), all at once.
- * Problems of one row are that row's own: a bad timestamp makes the row invalid; an empty cell
+ * Problems of one row are that row's own: a bad timestamp, or a count of fields other than the
+ * column line's (RFC 4180, sec. 2, rule 4), makes the row invalid; an empty cell
  * is no reading; a cell that is not a number, a negative or out-of-range reading (plant.ts) or a
  * frozen meter (the same value for `frozen` rows running) leaves that tag out of the row, said
  * in the row, and the row goes on.
@@ -41,6 +42,8 @@ export interface HistorianRow {
   /** ms since 1970 UTC; undefined when the timestamp is bad. */
   time?: number;
   cells: string[];
+  /** The line as written (for the column of a cell in a message). */
+  text: string;
 }
 
 export interface Historian {
@@ -51,6 +54,8 @@ export interface Historian {
   ignored: string[];
   /** Consecutive equal readings from which a tag counts as frozen. */
   frozen: number;
+  /** Fields of the column line: every row must have as many (RFC 4180, sec. 2, rule 4). */
+  width: number;
 }
 
 /** Default number of consecutive equal readings that mark a frozen instrument (common practice, no source). */
@@ -88,12 +93,16 @@ export function parseHistorian(text: string, file: string, model: Model, frozen 
   if (lines.length === 0) throw new InputError([{ severity: 'error', message: `\`${file}\` is empty`, span: at(file, 1), help: 'the first line names the columns: timestamp, then one column per tag' }]);
   const head = splitCsvLine(lines[0]).map((s) => s.trim());
   const byTag = new Map(model.instruments.map((d) => [d.tag, d]));
-  // Unit row: a second line whose first cell is not a timestamp.
+  // Unit row: a second line whose first cell is not a timestamp and that holds no reading (a
+  // number other than the unit `1`), with its first cell empty or some unit given. A first row
+  // of readings whose timestamp is bad or missing stays a row (said invalid in its place).
   let unitRow: string[] | undefined;
   let first = 1;
   if (lines.length > 1) {
     const second = splitCsvLine(lines[1]).map((s) => s.trim());
-    if (second[0] === '' || parseTime(second[0]) === undefined) {
+    const rest = second.slice(1);
+    const holdsReading = rest.some((c) => c !== '1' && NUMBER.test(c));
+    if ((second[0] === '' || parseTime(second[0]) === undefined) && !holdsReading && (second[0] === '' || rest.some((c) => c !== ''))) {
       unitRow = second;
       first = 2;
     }
@@ -171,9 +180,9 @@ export function parseHistorian(text: string, file: string, model: Model, frozen 
     if (line.trim() === '' || line.startsWith('#')) continue;
     const cells = splitCsvLine(line);
     const timestamp = cells[0].trim();
-    rows.push({ line: L(k), timestamp, time: parseTime(timestamp), cells });
+    rows.push({ line: L(k), timestamp, time: parseTime(timestamp), cells, text: line });
   }
-  return { file, columns, rows, ignored, frozen };
+  return { file, columns, rows, ignored, frozen, width: head.length };
 }
 
 /** SI = scale * value + offset for a unit of an instrument's dimension. */
@@ -243,6 +252,11 @@ export function rowInput(h: Historian, model: Model, r: number, frozen: Map<numb
   if (row.time === undefined) {
     return { input: { readings: new Map() }, said, invalid: `${h.file}:${row.line}:1: the timestamp \`${row.timestamp}\` is not an ISO 8601 date and time (e.g. 2024-01-01T00:00Z)` };
   }
+  // A row with more or fewer fields than the column line cannot say which cell is whose (an
+  // unquoted decimal comma, a dropped cell): none of its readings is used.
+  if (row.cells.length !== h.width) {
+    return { input: { readings: new Map() }, said, invalid: `${h.file}:${row.line}:1: the row has ${row.cells.length} fields, the column line ${h.width}: its cells cannot be matched to their columns (quote a cell that holds a comma, e.g. a decimal comma: "12,5")` };
+  }
   const readings = new Map<string, RowReading>();
   const leftOut = new Map<string, string>();
   const fz = frozen.get(r);
@@ -258,7 +272,7 @@ export function rowInput(h: Historian, model: Model, r: number, frozen: Map<numb
     }
     const v = Number(raw);
     if (!NUMBER.test(raw) || !Number.isFinite(v)) {
-      said.push(`${labelOf(c)}: left out: \`${raw}\` at ${h.file}:${row.line}:${columnOf(h.rows[r] ? rowText(row) : '', c.index)} is not a number`);
+      said.push(`${labelOf(c)}: left out: \`${raw}\` at ${h.file}:${row.line}:${columnOf(row.text, c.index)} is not a number`);
       if (c.component === undefined) leftOut.set(c.tag, `not a number (\`${raw}\`)`);
       continue;
     }
@@ -282,6 +296,3 @@ export function rowInput(h: Historian, model: Model, r: number, frozen: Map<numb
 /** A decimal number as a historian writes it (no hexadecimal, no Infinity, no blanks). */
 const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 
-function rowText(row: HistorianRow): string {
-  return row.cells.map((c) => (/[",]/.test(c) ? `"${c.replace(/"/g, '""')}"` : c)).join(',');
-}
