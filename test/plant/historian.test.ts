@@ -6,7 +6,7 @@
  * match the column line are refused (RFC 4180, sec. 2, rule 4: every line has the same number of
  * fields); a first row with a bad timestamp is a row, not a unit line; everything left out is said.
  */
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { cli, tempFile } from '../helpers/cli.js';
 
@@ -146,5 +146,23 @@ describe('rows of an export as a historian writes them', () => {
     expect(r.code, r.stderr).toBe(0);
     expect(rowsOf(r.stdout)[0]['left-out']).toContain('FI-101: left out: `I/O Timeout` at ');
     expect(rowsOf(r.stdout)[0]['left-out']).toMatch(/q\.csv:3:39 is not a number/);
+  });
+});
+
+describe('resume of a reconciliation over time', () => {
+  it('an export changed since the run started is refused, saying so (not "the command differs")', () => {
+    const { head, units, rows } = firstHours(4);
+    const readings = tempFile('hours.csv', [head, units, ...rows].join('\n') + '\n');
+    const out = tempFile('out.csv', '');
+    expect(cli(['reconcile', DEMO, '--readings', readings, '--out', out, '--overwrite']).code).toBe(0);
+    const lines = readFileSync(out, 'utf8').split('\n');
+    writeFileSync(out, `${lines.slice(0, 4 + 2).join('\n')}\n`);
+    // The same command, the same flowsheet; one reading of the last row changed.
+    writeFileSync(readings, [head, units, ...rows.slice(0, 3), rows[3].replace(/^([^,]*),([^,]*),/, '$1,150.5,')].join('\n') + '\n');
+    const r = cli(['reconcile', DEMO, '--readings', readings, '--out', out, '--resume']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).not.toMatch(/the command differs/);
+    expect(r.stderr).toMatch(/a file the command reads has changed since `[^`]*out\.csv` was started \(the command and the flowsheet are the same/);
+    expect(r.stderr).toMatch(/the --readings export/);
   });
 });
