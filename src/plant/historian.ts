@@ -44,6 +44,9 @@ export interface HistorianRow {
   cells: string[];
   /** The line as written (for the column of a cell in a message). */
   text: string;
+  /** A row whose instant was already seen (the line of its first), or that goes back in time (the line before). */
+  sameAs?: number;
+  before?: number;
 }
 
 export interface Historian {
@@ -182,6 +185,20 @@ export function parseHistorian(text: string, file: string, model: Model, frozen 
     const timestamp = cells[0].trim();
     rows.push({ line: L(k), timestamp, time: parseTime(timestamp), cells, text: line });
   }
+  // A repeated instant (a doubled row, overlapping exports, local time at a daylight-saving
+  // change) or a step back in time is said in its row; the row is still reconciled.
+  const firstAt = new Map<number, number>();
+  let last: HistorianRow | undefined;
+  for (const row of rows) {
+    if (row.time === undefined) continue;
+    const seen = firstAt.get(row.time);
+    if (seen !== undefined) row.sameAs = seen;
+    else {
+      firstAt.set(row.time, row.line);
+      if (last && row.time < last.time!) row.before = last.line;
+    }
+    last = row;
+  }
   return { file, columns, rows, ignored, frozen, width: head.length };
 }
 
@@ -257,6 +274,8 @@ export function rowInput(h: Historian, model: Model, r: number, frozen: Map<numb
   if (row.cells.length !== h.width) {
     return { input: { readings: new Map() }, said, invalid: `${h.file}:${row.line}:1: the row has ${row.cells.length} fields, the column line ${h.width}: its cells cannot be matched to their columns (quote a cell that holds a comma, e.g. a decimal comma: "12,5")` };
   }
+  if (row.sameAs !== undefined) said.push(`timestamp: the same instant as line ${row.sameAs} (a doubled row, or local time at a daylight-saving change?)`);
+  else if (row.before !== undefined) said.push(`timestamp: earlier than line ${row.before}, the row before it`);
   const readings = new Map<string, RowReading>();
   const leftOut = new Map<string, string>();
   const fz = frozen.get(r);

@@ -149,6 +149,23 @@ describe('rows of an export as a historian writes them', () => {
   });
 });
 
+describe('timestamps', () => {
+  it('a repeated instant (ISO 8601: 02:00+01:00 is 01:00Z) and a step back in time are said in their rows, which are still answered', () => {
+    const { head, units, rows } = firstHours(4);
+    const again = rows[1].replace(/^[^,]*/, '2024-01-01T02:00+01:00'); // the instant of rows[1] (2024-01-01T01:00Z)
+    const file = tempFile('times.csv', [head, units, rows[0], rows[1], again, rows[3], rows[2]].join('\n') + '\n');
+    const r = cli(['reconcile', DEMO, '--readings', file]);
+    expect(r.code, r.stderr).toBe(0);
+    const out = rowsOf(r.stdout);
+    expect(out).toHaveLength(5);
+    expect(out[2]['left-out']).toBe('timestamp: the same instant as line 4 (a doubled row, or local time at a daylight-saving change?)');
+    expect(out[4].timestamp).toBe('2024-01-01T02:00Z');
+    expect(out[4]['left-out']).toBe('timestamp: earlier than line 6, the row before it');
+    for (const k of [0, 1, 3]) expect(out[k]['left-out']).toBe('');
+    for (const row of out) expect(row.status).toMatch(/^(reconciled|gross-error)$/);
+  });
+});
+
 describe('resume of a reconciliation over time', () => {
   it('an export changed since the run started is refused, saying so (not "the command differs")', () => {
     const { head, units, rows } = firstHours(4);
