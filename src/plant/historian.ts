@@ -85,7 +85,8 @@ function columnOf(line: string, k: number): number {
 }
 
 export function parseHistorian(text: string, file: string, model: Model, frozen = DEFAULT_FROZEN): Historian {
-  const all = text.split(/\r?\n/);
+  // A byte order mark (as some tools start a UTF-8 file) is not part of the first line.
+  const all = (text.charCodeAt(0) === 0xfeff ? text.slice(1) : text).split(/\r?\n/);
   while (all.length && all[all.length - 1].trim() === '') all.pop();
   // Comment lines (`#`) before the column line are skipped; line numbers stay those of the file.
   let skipped = 0;
@@ -95,6 +96,12 @@ export function parseHistorian(text: string, file: string, model: Model, frozen 
   const diags: Diagnostic[] = [];
   if (lines.length === 0) throw new InputError([{ severity: 'error', message: `\`${file}\` is empty`, span: at(file, 1), help: 'the first line names the columns: timestamp, then one column per tag' }]);
   const head = splitCsvLine(lines[0]).map((s) => s.trim());
+  // A file separated by semicolons or tabs (as written where the comma is the decimal sign) has one
+  // column here: one message for it, not one per missing tag.
+  const other = /[;\t]/.exec(lines[0]);
+  if (head.length === 1 && other) {
+    throw new InputError([{ severity: 'error', message: `\`${file}\` is not comma-separated: its column line holds ${other[0] === ';' ? 'semicolons' : 'tabs'} and no comma`, span: at(file, L(0), other.index + 1), help: 'export the file as CSV with commas between cells and a decimal point in numbers (RFC 4180)' }]);
+  }
   const byTag = new Map(model.instruments.map((d) => [d.tag, d]));
   // Unit row: a second line whose first cell is not a timestamp and that holds no reading (a
   // number other than the unit `1`), with its first cell empty or some unit given. A first row

@@ -149,6 +149,29 @@ describe('rows of an export as a historian writes them', () => {
   });
 });
 
+describe('the layout of the file', () => {
+  it('a file separated by semicolons (or tabs) is one message saying so, not one per tag', () => {
+    const { head, units, rows } = firstHours(2);
+    for (const [sep, word] of [[';', 'semicolons'], ['\t', 'tabs']]) {
+      const text = [head, units, ...rows].map((l) => l.replaceAll(',', sep)).join('\n') + '\n';
+      const r = cli(['reconcile', DEMO, '--readings', tempFile('semi.csv', text)]);
+      expect(r.code).toBe(2);
+      expect(r.stderr).toMatch(new RegExp(`semi\\.csv:1:10: error: \`[^\`]*semi\\.csv\` is not comma-separated: its column line holds ${word} and no comma`));
+      expect(r.stderr).not.toMatch(/has no column/);
+    }
+  });
+
+  it('a byte order mark before a comment line and CRLF line ends (RFC 4180 sec. 2 rule 1) read as the plain file', () => {
+    const { head, units, rows } = firstHours(2);
+    const plain = cli(['reconcile', DEMO, '--readings', tempFile('plain.csv', ['# from the historian', head, units, ...rows].join('\n') + '\n')]);
+    expect(plain.code, plain.stderr).toBe(0);
+    const r = cli(['reconcile', DEMO, '--readings', tempFile('bom.csv', '\ufeff' + ['# from the historian', head, units, ...rows].join('\r\n') + '\r\n\r\n')]);
+    expect(r.code, r.stderr).toBe(0);
+    // The rows are the same (the header differs only in the export's digest and name).
+    expect(r.stdout.split('\n').slice(3)).toEqual(plain.stdout.split('\n').slice(3));
+  });
+});
+
 describe('timestamps', () => {
   it('a repeated instant (ISO 8601: 02:00+01:00 is 01:00Z) and a step back in time are said in their rows, which are still answered', () => {
     const { head, units, rows } = firstHours(4);
