@@ -239,7 +239,8 @@ function linearUnit(d: InstrumentDecl, unit: string, model: Model): { scale: num
 
 /**
  * For each row, the tags left out because they are frozen: the same value as in the
- * `frozen - 1` rows before it (rows whose cell is empty break a run).
+ * `frozen - 1` rows before it (rows whose cell is empty break a run; rows of the wrong width are
+ * passed over).
  */
 export function frozenTags(h: Historian): Map<number, Map<string, string>> {
   const out = new Map<number, Map<string, string>>();
@@ -248,6 +249,8 @@ export function frozenTags(h: Historian): Map<number, Map<string, string>> {
     let run = 0;
     let last = '';
     h.rows.forEach((row, r) => {
+      // A row whose cells cannot be matched to their columns (invalid) neither counts nor breaks a run.
+      if (row.cells.length !== h.width) return;
       const v = (row.cells[c.index] ?? '').trim();
       if (v === '') {
         run = 0;

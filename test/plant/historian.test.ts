@@ -109,6 +109,21 @@ describe('rows of an export as a historian writes them', () => {
     expect(out[2].status).toBe('reconciled');
   });
 
+  it('a row of the wrong width neither counts in nor breaks a frozen meter\'s run (--frozen 3)', () => {
+    const { head, units, rows } = firstHours(5);
+    const col = head.split(',').indexOf('FI-120');
+    const frozen = rows.map((l) => l.split(',').map((v, k) => (k === col ? '11000.0' : v)).join(','));
+    frozen[2] = frozen[2].replace(',148.8132,', ',148,8132,'); // shifts FI-120's cell by one
+    const r = cli(['reconcile', DEMO, '--readings', tempFile('fz.csv', [head, units, ...frozen].join('\n') + '\n'), '--frozen', '3', '--block', '2']);
+    expect(r.code).toBe(2);
+    const out = rowsOf(r.stdout);
+    expect(out.map((o) => o.status)).toEqual(['reconciled', 'reconciled', 'invalid', expect.stringMatching(/reconciled|gross-error/), expect.stringMatching(/reconciled|gross-error/)]);
+    expect(out[1]['left-out']).not.toMatch(/FI-120/);
+    // Rows 1, 2, 4 and 5 read 11000.0 (row 3 cannot be read): row 4 is the third readable row running, row 5 the fourth.
+    expect(out[3]['left-out']).toContain('FI-120: left out: frozen: the same value 11000.0 for 3 rows running');
+    expect(out[4]['left-out']).toContain('FI-120: left out: frozen: the same value 11000.0 for 4 rows running');
+  });
+
   it('a first row with a bad timestamp, and no unit line, is a row said invalid: not taken for the unit line', () => {
     const { head, rows } = firstHours(3);
     for (const first of ['01.01.2024 00:00', 'Shutdown']) {
