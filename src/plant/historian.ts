@@ -192,6 +192,9 @@ export function parseHistorian(text: string, file: string, model: Model, frozen 
     const timestamp = cells[0].trim();
     rows.push({ line: L(k), timestamp, time: parseTime(timestamp), cells, text: line });
   }
+  if (rows.length === 0) {
+    throw new InputError([{ severity: 'error', message: `\`${file}\` has no rows of readings, only its column line${unitRow ? ' and unit line' : ''}`, span: at(file, L(first - 1)), help: 'export the period to reconcile: one row per timestamp under the column line' }]);
+  }
   // A repeated instant (a doubled row, overlapping exports, local time at a daylight-saving
   // change) or a step back in time is said in its row; the row is still reconciled.
   const firstAt = new Map<number, number>();

@@ -176,6 +176,15 @@ describe('the layout of the file', () => {
     }
   });
 
+  it('an export with no rows (only its column and unit lines) is an error, exit 2, nothing written', () => {
+    const { head, units } = firstHours(0);
+    const out = tempFile('out.csv', '');
+    const r = cli(['reconcile', DEMO, '--readings', tempFile('none.csv', `${head}\n${units}\n`), '--out', out, '--overwrite']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/none\.csv:2:1: error: `[^`]*none\.csv` has no rows of readings, only its column line and unit line/);
+    expect(readFileSync(out, 'utf8')).toBe('');
+  });
+
   it('a byte order mark before a comment line and CRLF line ends (RFC 4180 sec. 2 rule 1) read as the plain file', () => {
     const { head, units, rows } = firstHours(2);
     const plain = cli(['reconcile', DEMO, '--readings', tempFile('plain.csv', ['# from the historian', head, units, ...rows].join('\n') + '\n')]);
