@@ -185,6 +185,13 @@ describe('the layout of the file', () => {
     expect(readFileSync(out, 'utf8')).toBe('');
   });
 
+  it('--frozen 1 is refused (it would leave out every reading; it was taken as never, unsaid)', () => {
+    const { head, units, rows } = firstHours(1);
+    const r = cli(['reconcile', DEMO, '--readings', tempFile('one.csv', [head, units, ...rows].join('\n') + '\n'), '--frozen', '1']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/--frozen 1 would leave out every reading: give 2 or more rows, or 0 for never/);
+  });
+
   it('a byte order mark before a comment line and CRLF line ends (RFC 4180 sec. 2 rule 1) read as the plain file', () => {
     const { head, units, rows } = firstHours(2);
     const plain = cli(['reconcile', DEMO, '--readings', tempFile('plain.csv', ['# from the historian', head, units, ...rows].join('\n') + '\n')]);
