@@ -67,9 +67,6 @@ export const separator: BlockDef<SeparatorSpec> = {
       } else if (Math.abs(s - 1) > 1e-9) {
         f.error('out', `the recoveries of \`${f.componentIds[i]}\` in separator \`${name}\` add up to ${Number(s.toPrecision(10))}, not 1`, 'make each component\'s recoveries add up to 1, or let one outlet take the `rest`');
         return undefined;
-      } else {
-        // Within 1e-9 of 1: scaled to 1, so that the separator neither makes nor loses material.
-        for (let k = 0; k < outs.length; k++) recovery[k][i] /= s;
       }
     }
     return { name, type: 'separator', inlets: [inlet], outlets: outs.map((o) => o.stream), recovery, T, P };
