@@ -4,12 +4,13 @@
  * Layout: the first line names the columns: the first is the timestamp (ISO 8601; read as UTC
  * unless it carries a zone), every other one an instrument's tag (`FI-101`), or an analyzer's
  * tag and component (`AI-205.H2`). A second line may give the unit of each column (its first
- * cell empty, or anything that is not a timestamp); without it, a column takes the `unit:` of
+ * cell empty, or anything that is not a timestamp, and no reading in its cells); without it, a column takes the `unit:` of
  * its instrument (an analyzer's columns are mole fractions). Columns of other tags are ignored
  * (and listed as such).
  * Problems with the file itself (a column an instrument needs is missing, a unit that does not
  * fit its instrument, a column given twice) are located messages (FILE:LINE:COL), all at once.
- * Problems of one row are that row's own: a bad timestamp makes the row invalid; an empty cell
+ * Problems of one row are that row's own: a bad timestamp, or a count of fields other than the
+ * column line's (RFC 4180, sec. 2, rule 4), makes the row invalid; an empty cell
  * is no reading; a cell that is not a number, a negative or out-of-range reading (plant.ts) or a
  * frozen meter (the same value for `frozen` rows running) leaves that tag out of the row, said
  * in the row, and the row goes on.
@@ -41,6 +42,11 @@ export interface HistorianRow {
   /** ms since 1970 UTC; undefined when the timestamp is bad. */
   time?: number;
   cells: string[];
+  /** The line as written (for the column of a cell in a message). */
+  text: string;
+  /** A row whose instant was already seen (the line of its first), or that goes back in time (the line before). */
+  sameAs?: number;
+  before?: number;
 }
 
 export interface Historian {
@@ -51,6 +57,8 @@ export interface Historian {
   ignored: string[];
   /** Consecutive equal readings from which a tag counts as frozen. */
   frozen: number;
+  /** Fields of the column line: every row must have as many (RFC 4180, sec. 2, rule 4). */
+  width: number;
 }
 
 /** Default number of consecutive equal readings that mark a frozen instrument (common practice, no source). */
@@ -77,7 +85,8 @@ function columnOf(line: string, k: number): number {
 }
 
 export function parseHistorian(text: string, file: string, model: Model, frozen = DEFAULT_FROZEN): Historian {
-  const all = text.split(/\r?\n/);
+  // A byte order mark (as some tools start a UTF-8 file) is not part of the first line.
+  const all = (text.charCodeAt(0) === 0xfeff ? text.slice(1) : text).split(/\r?\n/);
   while (all.length && all[all.length - 1].trim() === '') all.pop();
   // Comment lines (`#`) before the column line are skipped; line numbers stay those of the file.
   let skipped = 0;
@@ -87,13 +96,23 @@ export function parseHistorian(text: string, file: string, model: Model, frozen 
   const diags: Diagnostic[] = [];
   if (lines.length === 0) throw new InputError([{ severity: 'error', message: `\`${file}\` is empty`, span: at(file, 1), help: 'the first line names the columns: timestamp, then one column per tag' }]);
   const head = splitCsvLine(lines[0]).map((s) => s.trim());
+  // A file separated by semicolons or tabs (as written where the comma is the decimal sign) has one
+  // column here: one message for it, not one per missing tag.
+  const other = /[;\t]/.exec(lines[0]);
+  if (head.length === 1 && other) {
+    throw new InputError([{ severity: 'error', message: `\`${file}\` is not comma-separated: its column line holds ${other[0] === ';' ? 'semicolons' : 'tabs'} and no comma`, span: at(file, L(0), other.index + 1), help: 'export the file as CSV with commas between cells and a decimal point in numbers (RFC 4180)' }]);
+  }
   const byTag = new Map(model.instruments.map((d) => [d.tag, d]));
-  // Unit row: a second line whose first cell is not a timestamp.
+  // Unit row: a second line whose first cell is not a timestamp and that holds no reading (a
+  // number other than the unit `1`), with its first cell empty or some unit given. A first row
+  // of readings whose timestamp is bad or missing stays a row (said invalid in its place).
   let unitRow: string[] | undefined;
   let first = 1;
   if (lines.length > 1) {
     const second = splitCsvLine(lines[1]).map((s) => s.trim());
-    if (second[0] === '' || parseTime(second[0]) === undefined) {
+    const rest = second.slice(1);
+    const holdsReading = rest.some((c) => c !== '1' && NUMBER.test(c));
+    if ((second[0] === '' || parseTime(second[0]) === undefined) && !holdsReading && (second[0] === '' || rest.some((c) => c !== ''))) {
       unitRow = second;
       first = 2;
     }
@@ -171,9 +190,26 @@ export function parseHistorian(text: string, file: string, model: Model, frozen 
     if (line.trim() === '' || line.startsWith('#')) continue;
     const cells = splitCsvLine(line);
     const timestamp = cells[0].trim();
-    rows.push({ line: L(k), timestamp, time: parseTime(timestamp), cells });
+    rows.push({ line: L(k), timestamp, time: parseTime(timestamp), cells, text: line });
   }
-  return { file, columns, rows, ignored, frozen };
+  if (rows.length === 0) {
+    throw new InputError([{ severity: 'error', message: `\`${file}\` has no rows of readings, only its column line${unitRow ? ' and unit line' : ''}`, span: at(file, L(first - 1)), help: 'export the period to reconcile: one row per timestamp under the column line' }]);
+  }
+  // A repeated instant (a doubled row, overlapping exports, local time at a daylight-saving
+  // change) or a step back in time is said in its row; the row is still reconciled.
+  const firstAt = new Map<number, number>();
+  let last: HistorianRow | undefined;
+  for (const row of rows) {
+    if (row.time === undefined) continue;
+    const seen = firstAt.get(row.time);
+    if (seen !== undefined) row.sameAs = seen;
+    else {
+      firstAt.set(row.time, row.line);
+      if (last && row.time < last.time!) row.before = last.line;
+    }
+    last = row;
+  }
+  return { file, columns, rows, ignored, frozen, width: head.length };
 }
 
 /** SI = scale * value + offset for a unit of an instrument's dimension. */
@@ -206,7 +242,8 @@ function linearUnit(d: InstrumentDecl, unit: string, model: Model): { scale: num
 
 /**
  * For each row, the tags left out because they are frozen: the same value as in the
- * `frozen - 1` rows before it (rows whose cell is empty break a run).
+ * `frozen - 1` rows before it (rows whose cell is empty break a run; rows of the wrong width are
+ * passed over).
  */
 export function frozenTags(h: Historian): Map<number, Map<string, string>> {
   const out = new Map<number, Map<string, string>>();
@@ -215,6 +252,8 @@ export function frozenTags(h: Historian): Map<number, Map<string, string>> {
     let run = 0;
     let last = '';
     h.rows.forEach((row, r) => {
+      // A row whose cells cannot be matched to their columns (invalid) neither counts nor breaks a run.
+      if (row.cells.length !== h.width) return;
       const v = (row.cells[c.index] ?? '').trim();
       if (v === '') {
         run = 0;
@@ -243,6 +282,13 @@ export function rowInput(h: Historian, model: Model, r: number, frozen: Map<numb
   if (row.time === undefined) {
     return { input: { readings: new Map() }, said, invalid: `${h.file}:${row.line}:1: the timestamp \`${row.timestamp}\` is not an ISO 8601 date and time (e.g. 2024-01-01T00:00Z)` };
   }
+  // A row with more or fewer fields than the column line cannot say which cell is whose (an
+  // unquoted decimal comma, a dropped cell): none of its readings is used.
+  if (row.cells.length !== h.width) {
+    return { input: { readings: new Map() }, said, invalid: `${h.file}:${row.line}:1: the row has ${row.cells.length} fields, the column line ${h.width}: its cells cannot be matched to their columns (quote a cell that holds a comma, e.g. a decimal comma: "12,5")` };
+  }
+  if (row.sameAs !== undefined) said.push(`timestamp: the same instant as line ${row.sameAs} (a doubled row, or local time at a daylight-saving change?)`);
+  else if (row.before !== undefined) said.push(`timestamp: earlier than line ${row.before}, the row before it`);
   const readings = new Map<string, RowReading>();
   const leftOut = new Map<string, string>();
   const fz = frozen.get(r);
@@ -258,7 +304,7 @@ export function rowInput(h: Historian, model: Model, r: number, frozen: Map<numb
     }
     const v = Number(raw);
     if (!NUMBER.test(raw) || !Number.isFinite(v)) {
-      said.push(`${labelOf(c)}: left out: \`${raw}\` at ${h.file}:${row.line}:${columnOf(h.rows[r] ? rowText(row) : '', c.index)} is not a number`);
+      said.push(`${labelOf(c)}: left out: \`${raw}\` at ${h.file}:${row.line}:${columnOf(row.text, c.index)} is not a number`);
       if (c.component === undefined) leftOut.set(c.tag, `not a number (\`${raw}\`)`);
       continue;
     }
@@ -282,6 +328,3 @@ export function rowInput(h: Historian, model: Model, r: number, frozen: Map<numb
 /** A decimal number as a historian writes it (no hexadecimal, no Infinity, no blanks). */
 const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 
-function rowText(row: HistorianRow): string {
-  return row.cells.map((c) => (/[",]/.test(c) ? `"${c.replace(/"/g, '""')}"` : c)).join(',');
-}

@@ -143,7 +143,10 @@ export function rowSaid(report: PlantReport | undefined, said: readonly string[]
   const parts = [...said];
   if (report) {
     for (const [tag, r] of Object.entries(report.instruments)) {
-      if (r.use === 'left-out' && !said.some((s) => s.startsWith(`${tag}:`) || s.startsWith(`${tag}.`))) parts.push(`${tag}: left out: ${r.reason}`);
+      // What the export already said of this tag (a cell that is not a number, a frozen meter) is
+      // not said twice; what is said of one of an analyzer's components (`AI-205.H2: ...`) does not
+      // say why the whole analyzer was left out.
+      if (r.use === 'left-out' && !said.some((s) => s.startsWith(`${tag}:`))) parts.push(`${tag}: left out: ${r.reason}`);
     }
     // An analyzer's component the run left out (a 0 read with a relative uncertainty) is a note.
     for (const note of report.notes) {

@@ -2,8 +2,9 @@
  * Many snapshots of one plant: the rows of a historian export, each reconciled on its own.
  *
  * Rows are cut into blocks (`block` rows, default 500); the first row of a block starts from the
- * design solve's values, every later row of the block from the row before it (a warm start: the
- * same answer to the solver's tolerance, found faster). A block is thus always solved as the
+ * design solve's values, every later row of the block from the last row before it in the block
+ * that reconciled (global test passed), or from the design when none has (a warm start: the same
+ * answer to the solver's tolerance, found faster). A block is thus always solved as the
  * same sequence of solves, so a resumed run writes the same bytes as an uninterrupted one.
  * Frozen meters are found over the whole file first (they depend on the rows before).
  */
@@ -76,7 +77,10 @@ export function* rowsOfBlock(ctx: RowsContext, b: number, skip = 0): Generator<R
     } else {
       const { report, x } = ctx.plant.run(input, warm);
       status = report.status;
-      if (status === 'reconciled' || status === 'gross-error' || status === 'not-redundant') warm = x;
+      // Only a row whose readings agree with the balances starts the next: the solution of a row
+      // with a gross error (its suspects' flows free, perhaps at 0) or with nothing to check can
+      // lead the next row's solve to another local minimum of the bilinear balances.
+      if (status === 'reconciled') warm = x;
       line = ctx.spec.format === 'csv' ? rowCsv(ctx.columns, point, row.timestamp, report, status, said) : rowJson(point, row.timestamp, report, status, said);
     }
     if (w >= skip) yield { point, status, line };

@@ -277,6 +277,11 @@ export function columnOf(t: StudyTable, given: string, option: string): StudyCol
 export function parseTime(s: string): number | undefined {
   const m = /^(\d{4})-(\d{2})-(\d{2})(?:[T ](\d{2}):(\d{2})(?::(\d{2})(\.\d+)?)?)?\s*(Z|[+-]\d{2}:?\d{2})?$/.exec(s.trim());
   if (!m) return undefined;
+  // A day the month does not have (2024-02-30) is no date (ISO 8601 dates are of the Gregorian
+  // calendar), though Date.parse rolls it over into the next month.
+  const year = Number(m[1]);
+  const month = Number(m[2]);
+  if (month < 1 || month > 12 || Number(m[3]) < 1 || Number(m[3]) > new Date(Date.UTC(year, month, 0)).getUTCDate()) return undefined;
   const iso = `${m[1]}-${m[2]}-${m[3]}T${m[4] ?? '00'}:${m[5] ?? '00'}:${m[6] ?? '00'}${m[7] ?? ''}${m[8] ? (m[8] === 'Z' ? 'Z' : m[8].length === 5 ? `${m[8].slice(0, 3)}:${m[8].slice(3)}` : m[8]) : 'Z'}`;
   const t = Date.parse(iso);
   return Number.isFinite(t) ? t : undefined;

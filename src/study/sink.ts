@@ -158,6 +158,12 @@ function checkHeader(path: string, old: SweepHeader, now: SweepHeader): void {
     throw refuse(`the flowsheet file has changed since \`${path}\` was started (its digest was ${old.flowsheet.slice(0, 12)}, it is now ${now.flowsheet.slice(0, 12)}); --resume would mix results of two different files`,
       'restore the file as it was, or start the sweep again with --overwrite');
   }
+  if (old.digest !== now.digest && old.command === now.command) {
+    // The same command and flowsheet, other results: a file the command reads (a historian export
+    // given to --readings) has changed since.
+    throw refuse(`a file the command reads has changed since \`${path}\` was started (the command and the flowsheet are the same: ${now.command}); --resume would mix results of two different inputs`,
+      'restore the file as it was (for a reconciliation: the --readings export), or start again with --overwrite');
+  }
   if (old.digest !== now.digest) {
     throw refuse(`the command differs from the one that started \`${path}\`:\n    was: ${old.command}\n    now: ${now.command}`,
       'run the first command again with --resume, or start again with --overwrite');

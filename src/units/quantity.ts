@@ -367,6 +367,16 @@ function classify(unit: string): UnitInfo {
 
 /** The mathjs route of classify (every spelling the table does not answer). */
 function classifyByMathjs(unit: string): UnitInfo {
+  // mathjs reads some texts as a unit it then cannot scale (`2`, `2 m3/h`: a number inside the
+  // unit); such a text is no unit of ours, not an internal error.
+  try {
+    return classifyByMathjsOrThrow(unit);
+  } catch {
+    return { kind: 'unknown' };
+  }
+}
+
+function classifyByMathjsOrThrow(unit: string): UnitInfo {
   const syntax = toMathSyntax(unit);
   const parsed = mathUnit(syntax);
   const info = parsed ? classifyMath(parsed, syntax) : undefined;

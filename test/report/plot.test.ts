@@ -113,6 +113,9 @@ describe('reading study outputs', () => {
     expect(parseTime('2026-03-01 01:30')).toBe(Date.UTC(2026, 2, 1, 1, 30));
     expect(parseTime('2026-03-01T03:00:00+01:00')).toBe(Date.UTC(2026, 2, 1, 2));
     expect(parseTime('yesterday')).toBeUndefined();
+    // Days the month does not have are no dates (Gregorian calendar: 2024 is a leap year, 2023 not).
+    expect(parseTime('2024-02-29T00:00Z')).toBe(Date.UTC(2024, 1, 29));
+    for (const s of ['2024-02-30T00:00Z', '2023-02-29T00:00Z', '2024-04-31 12:00', '2024-00-10', '2024-01-00']) expect(parseTime(s)).toBeUndefined();
   });
 
   it('a file that is not a study output is refused at line 1, with what to give instead', () => {

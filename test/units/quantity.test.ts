@@ -195,6 +195,13 @@ describe('errors', () => {
     for (const u of ['bar', 'barg', 'psig', 'kPa', 'MPag']) expect(e.help).toContain(u);
   });
 
+  it('a number where the unit belongs (`1 2`) is an unknown unit, not an internal error', () => {
+    for (const [text, dim] of [['1 2', 'molarFlow'], ['1 148.7579', 'pressure']] as const) {
+      const e = errorOf(() => parseQuantity(text, dim));
+      expect(e.kind).toBe('unknown-unit');
+    }
+  });
+
   it('a unit of another dimension names its dimension and the one expected', () => {
     const e = errorOf(() => parseQuantity('30 kg/h', 'pressure'));
     expect(e.kind).toBe('wrong-dimension');
