@@ -116,6 +116,20 @@ describe('limits', () => {
     expect(b.stderr).toMatch(/is a folder, not a flowsheet file/);
   });
 
+  it('a folder given to report, plot or merge is an input error, not an internal one', () => {
+    const out = join(tempFile('x.txt', ''), '..');
+    for (const args of [
+      ['report', 'test/bad', '--out', join(out, 'r.html')],
+      ['plot', 'test/bad', '--x', 'a', '--y', 'b', '--out', join(out, 'p.svg')],
+      ['merge', 'test/bad', '--out', join(out, 'm.csv')],
+    ]) {
+      const r = cli(args);
+      expect(r.code, `${args[0]}: ${r.stderr}`).toBe(2);
+      expect(r.stderr).toMatch(/cannot read `test\/bad`: it is a folder/);
+      expect(r.stderr).not.toMatch(/internal error/);
+    }
+  });
+
   it('text that looks like code is only ever read as data', () => {
     const marker = join(tempFile('m.txt', ''), '..', 'pwned');
     const text = `title: "\${require('fs').writeFileSync('${marker}', 'x')}"

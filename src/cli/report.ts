@@ -27,19 +27,19 @@ export interface ReportCliOptions {
 
 /** The first line of a file (at most 4 kB read). */
 export function firstLine(path: string): string {
-  let fd: number;
+  // A folder opens on Linux and fails only when read (EISDIR): both steps give the message.
+  let fd: number | undefined;
   try {
     fd = openSync(path, 'r');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError([{ severity: 'error', message: `cannot read \`${path}\`${code === 'ENOENT' ? ': no such file' : code === 'EISDIR' ? ': it is a folder' : code ? ` (${code})` : ''}`, help: 'check the path' }]);
-  }
-  try {
     const buf = Buffer.alloc(4096);
     const n = readSync(fd, buf, 0, buf.length, 0);
     return buf.subarray(0, n).toString('utf8').split(/\r?\n/)[0];
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    if (!code) throw e;
+    throw new InputError([{ severity: 'error', message: `cannot read \`${path}\`${code === 'ENOENT' ? ': no such file' : code === 'EISDIR' ? ': it is a folder' : ` (${code})`}`, help: 'check the path' }]);
   } finally {
-    closeSync(fd);
+    if (fd !== undefined) closeSync(fd);
   }
 }
 
