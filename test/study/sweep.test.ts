@@ -127,6 +127,20 @@ describe('loopclose sweep', () => {
     expect(cli(['sweep', PILOT, '--grid', 'reactor.reactions.0.conversion=0.2:0.3:3', '--jobs', '0']).stderr).toMatch(/--jobs must be a whole number >= 1/);
   });
 
+  it('a pressure drop is swept and adjusted as a difference: in bar, never in a gauge unit that adds the atmosphere', () => {
+    // preheat: 30 barg in (31.01325 bar), dp 0.1 bar -> 30.91325 bar out.
+    const ok = cli(['sweep', PILOT, '--grid', 'preheat.dp=0.1:0.5:3 bar', '--report', 'streams.reactor-in.P[bar]', '--out', '-']);
+    expect(ok.code, ok.stderr).toBe(0);
+    const rows = ok.stdout.split('\n').filter((l) => /^\d+,/.test(l)).map((l) => Number(l.split(',')[3]));
+    expect(rows).toEqual([30.91325, 30.71325, 30.51325].map((p) => expect.closeTo(p, 6)));
+    const grid = cli(['sweep', PILOT, '--grid', 'preheat.dp=0.1:0.5:3 barg', '--report', 'streams.reactor-in.P[bar]', '--out', '-']);
+    expect(grid.code).toBe(2);
+    expect(grid.stderr).toMatch(/`preheat\.dp` is a pressure difference; `barg` reads a gauge pressure/);
+    const target = cli(['solve', PILOT, '--target', 'streams.reactor-in.P = 29.5 barg', '--by', 'preheat.dp', '--within', '0.1:1 psig']);
+    expect(target.code).toBe(2);
+    expect(target.stderr).toMatch(/`preheat\.dp` is a pressure difference; `psig` reads a gauge pressure/);
+  });
+
   it('will not write over an existing output unless told to resume or overwrite', () => {
     const out = tempFile('old.csv', 'someone else\'s data\n');
     const r = cli(['sweep', PILOT, '--out', out, '--grid', 'reactor.reactions.0.conversion=0.2:0.3:3']);
