@@ -27,7 +27,7 @@ export interface MeterOptions {
   flowUnit?: string;
 }
 
-const ONE_READING_OPTIONS = ['flowUncertainty', 'pressureUncertainty', 'temperatureUncertainty', 'uncertaintyStatedAs', 'fallbackEos', 'atmosphere'] as const;
+const ONE_READING_OPTIONS = ['flow', 'pressure', 'temperature', 'flowUncertainty', 'pressureUncertainty', 'temperatureUncertainty', 'uncertaintyStatedAs', 'fallbackEos', 'atmosphere'] as const;
 
 export function runMeter(file: string | undefined, o: MeterOptions): string {
   if (file && o.gas) throw new InputError([{ severity: 'error', message: 'give a flowsheet file or `--gas` with one reading, not both', help: 'drop the file to convert one reading' }]);
@@ -37,7 +37,8 @@ export function runMeter(file: string | undefined, o: MeterOptions): string {
     const given = ONE_READING_OPTIONS.filter((k) => o[k] !== undefined);
     if (given.length) {
       throw new InputError(given.map((k) => ({ severity: 'error' as const, message: `--${k.replace(/[A-Z]/g, (c) => `-${c.toLowerCase()}`)} is for one reading (\`--gas\`), not for a file`,
-        help: k === 'fallbackEos' ? 'a file gives its own equation in `thermo.eos`'
+        help: k === 'flow' || k === 'pressure' || k === 'temperature' ? 'a file gives each feed\'s reading in the feed: `meter: { flow: 12.6 m3/h, pressure: 30 barg, temperature: 35 degC }`'
+          : k === 'fallbackEos' ? 'a file gives its own equation in `thermo.eos`'
           : k === 'atmosphere' ? 'a file gives its local atmosphere in `thermo: { atmosphere: 0.95 bar }`; its gauge readings are read with it'
           : 'declare the uncertainties of a feed in the file: `meter: { ..., uncertainty: { flow: 1.5 %, pressure: 0.1 bar, temperature: 0.5 K } }`' })));
     }
