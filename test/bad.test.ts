@@ -116,6 +116,15 @@ describe('limits', () => {
     expect(b.stderr).toMatch(/is a folder, not a flowsheet file/);
   });
 
+  it('a YAML merge key is refused with a fix that works, not a nearby key name', () => {
+    const r = cli(['solve', 'test/bad/yaml-merge-key.yaml']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/to fix: merge keys \(`<<: \*anchor`\) are not read: write the keys out here/);
+    expect(r.stderr).not.toMatch(/did you mean/);
+    const fixed = readFileSync(join(DIR, 'yaml-merge-key.yaml'), 'utf8').replace('<<: { T: 40 degC, P: 150 bar }', 'T: 40 degC\n    P: 150 bar');
+    expect(cli(['solve', tempFile('fixed.yaml', fixed)]).code).toBe(0);
+  });
+
   it('a folder given to report, plot or merge is an input error, not an internal one', () => {
     const out = join(tempFile('x.txt', ''), '..');
     for (const args of [

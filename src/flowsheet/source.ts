@@ -272,7 +272,11 @@ export class Reader {
       if (!allowed.includes(e.key)) {
         found.push(e.key);
         const prefix = allowed.filter((a) => prefixPair(e.key, a));
-        const hint = didYouMean(e.key, allowed) ?? (prefix.length ? `did you mean ${prefix.map((a) => `\`${a}\``).join(' or ')}?` : undefined);
+        // `<<` is YAML 1.1's merge key, which this YAML 1.2 reader takes as a plain key: no
+        // allowed name is a fix for it.
+        const hint = e.key === '<<'
+          ? 'merge keys (`<<: *anchor`) are not read: write the keys out here (an alias such as `composition: *gas` may stand for a whole value)'
+          : didYouMean(e.key, allowed) ?? (prefix.length ? `did you mean ${prefix.map((a) => `\`${a}\``).join(' or ')}?` : undefined);
         this.bag.error(`unknown key \`${shown(e.key)}\` in ${what}`, this.at(e.keyNode),
           hint ?? `the keys of ${what} are: ${allowed.join(', ')}`);
       }
