@@ -116,6 +116,15 @@ describe('limits', () => {
     expect(b.stderr).toMatch(/is a folder, not a flowsheet file/);
   });
 
+  it('components written as a list: the fix names the mapping to write, and it works', () => {
+    const r = cli(['solve', 'test/bad/components-as-list.yaml']);
+    expect(r.code).toBe(2);
+    const fix = /to fix: write `(components: \{ H2: \{\}, N2: \{\}, CO2: \{\}, H2O: \{\}, CH3OH: \{\} \})`/.exec(r.stderr);
+    expect(fix, r.stderr).not.toBeNull();
+    const fixed = readFileSync(join(DIR, 'components-as-list.yaml'), 'utf8').replace('components: [H2, N2, CO2, H2O, CH3OH]', fix![1]);
+    expect(cli(['solve', tempFile('fixed.yaml', fixed)]).code).toBe(0);
+  });
+
   it('a YAML merge key is refused with a fix that works, not a nearby key name', () => {
     const r = cli(['solve', 'test/bad/yaml-merge-key.yaml']);
     expect(r.code).toBe(2);
