@@ -10,6 +10,7 @@ import { meterBudget, standardUncertainty, type MeterBudget } from '../thermo/me
 import { matchMeterEos, meterEosFor, type MeterEos, type MeterEosName } from '../thermo/meter-eos.js';
 import type { EosName } from '../thermo/types.js';
 import { parseQuantity, UnitError, type Dimension } from '../units/index.js';
+import { MAX_PRESSURE } from '../flowsheet/yaml-fields.js';
 
 export interface MeterOptions {
   json?: boolean;
@@ -147,6 +148,7 @@ function singleReading(o: MeterOptions): MeterReport {
   const instrument = uncertaintyOptions(bag, o);
   if (flow !== undefined && !(flow > 0)) bag.error('--flow must be above zero');
   if (P !== undefined && !(P > 0)) bag.error(`--pressure is ${sig(P)} Pa absolute after the gauge conversion; it must be above zero`, undefined, 'a gauge reading below the local atmosphere by more than the atmosphere is not possible: check the unit (barg or bar)');
+  if (P !== undefined && P > MAX_PRESSURE) bag.error(`--pressure is ${sig(P)} Pa absolute; loopclose computes pressures up to 1e9 Pa (10000 bar)`, undefined, 'check the number and the unit (barg, bar, kPa, Pa)');
   if (T !== undefined && !(T > 0)) bag.error(`--temperature is ${sig(T)} K; it must be above absolute zero`, undefined, 'check the number and the unit (degC, degF, K)');
   if (bag.hasErrors) throw new InputError(bag.items);
   const comps = ids.map((id) => ({ ...findComponent(id)!, id }));
