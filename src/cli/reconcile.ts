@@ -77,6 +77,8 @@ export function registerReconcile(program: Command, setCode: (code: number) => v
       };
       const block = whole('--block', o.block, DEFAULT_ROW_BLOCK, 1);
       const frozen = whole('--frozen', o.frozen, DEFAULT_FROZEN, 0);
+      // One row is no run: every reading would be frozen (frozenTags takes n < 2 as never).
+      if (frozen === 1) problems.push('--frozen 1 would leave out every reading: give 2 or more rows, or 0 for never');
       const jobs = whole('--jobs', o.jobs, 1, 1);
       if (problems.length) throw new InputError(problems.map((message) => ({ severity: 'error' as const, message })));
       if (!o.readings) {
