@@ -179,8 +179,13 @@ function yamlMessage(code: string, message: string): string {
 function keptErrors(errors: readonly YAMLError[], lineOf: (pos: number) => number): YAMLError[] {
   const out: YAMLError[] = [];
   let last = -Infinity;
+  let tab = false;
   for (const e of [...errors].sort((a, b) => a.pos[0] - b.pos[0])) {
     const line = lineOf(e.pos[0]);
+    // A line indented with a tab moves its mapping's column: every later item of that mapping is
+    // then "not at the same column", at lines with nothing wrong. The tab is the one problem.
+    if (tab && e.code === 'BAD_INDENT') continue;
+    if (e.code === 'TAB_AS_INDENT') tab = true;
     if (e.code !== 'DUPLICATE_KEY') {
       if (line <= last + 1) continue;
       last = line;
