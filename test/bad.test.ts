@@ -125,6 +125,18 @@ describe('limits', () => {
     expect(cli(['solve', tempFile('fixed.yaml', fixed)]).code).toBe(0);
   });
 
+  it('an analyzer\'s uncertainty: the absolute example in the fix is a value that can be written as it stands', () => {
+    const demo = readFileSync(join(ROOT, 'flowsheets', 'ammonia-loop.yaml'), 'utf8');
+    const bad = demo.replace('components: [NH3], normalized: false, uncertainty: 0.002 }', 'components: [NH3], normalized: false, uncertainty: -0.002 }');
+    expect(bad).not.toBe(demo);
+    const r = cli(['solve', tempFile('analyzer.yaml', bad)]);
+    expect(r.code).toBe(2);
+    const fix = /an absolute value such as `([^`]*)` \(a mole fraction\)/.exec(r.stderr);
+    expect(fix, r.stderr).not.toBeNull();
+    const fixed = bad.replace('uncertainty: -0.002 }', `uncertainty: ${fix![1]} }`);
+    expect(cli(['solve', tempFile('analyzer-fixed.yaml', fixed)]).code).toBe(0);
+  });
+
   it('a YAML merge key is refused with a fix that works, not a nearby key name', () => {
     const r = cli(['solve', 'test/bad/yaml-merge-key.yaml']);
     expect(r.code).toBe(2);
