@@ -116,6 +116,50 @@ describe('limits', () => {
     expect(b.stderr).toMatch(/is a folder, not a flowsheet file/);
   });
 
+  it('components written as a list: the fix names the mapping to write, and it works', () => {
+    const r = cli(['solve', 'test/bad/components-as-list.yaml']);
+    expect(r.code).toBe(2);
+    const fix = /to fix: write `(components: \{ H2: \{\}, N2: \{\}, CO2: \{\}, H2O: \{\}, CH3OH: \{\} \})`/.exec(r.stderr);
+    expect(fix, r.stderr).not.toBeNull();
+    const fixed = readFileSync(join(DIR, 'components-as-list.yaml'), 'utf8').replace('components: [H2, N2, CO2, H2O, CH3OH]', fix![1]);
+    expect(cli(['solve', tempFile('fixed.yaml', fixed)]).code).toBe(0);
+  });
+
+  it('an analyzer\'s uncertainty: the absolute example in the fix is a value that can be written as it stands', () => {
+    const demo = readFileSync(join(ROOT, 'flowsheets', 'ammonia-loop.yaml'), 'utf8');
+    const bad = demo.replace('components: [NH3], normalized: false, uncertainty: 0.002 }', 'components: [NH3], normalized: false, uncertainty: -0.002 }');
+    expect(bad).not.toBe(demo);
+    const r = cli(['solve', tempFile('analyzer.yaml', bad)]);
+    expect(r.code).toBe(2);
+    const fix = /an absolute value such as `([^`]*)` \(a mole fraction\)/.exec(r.stderr);
+    expect(fix, r.stderr).not.toBeNull();
+    const fixed = bad.replace('uncertainty: -0.002 }', `uncertainty: ${fix![1]} }`);
+    expect(cli(['solve', tempFile('analyzer-fixed.yaml', fixed)]).code).toBe(0);
+  });
+
+  it('a YAML merge key is refused with a fix that works, not a nearby key name', () => {
+    const r = cli(['solve', 'test/bad/yaml-merge-key.yaml']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/to fix: merge keys \(`<<: \*anchor`\) are not read: write the keys out here/);
+    expect(r.stderr).not.toMatch(/did you mean/);
+    const fixed = readFileSync(join(DIR, 'yaml-merge-key.yaml'), 'utf8').replace('<<: { T: 40 degC, P: 150 bar }', 'T: 40 degC\n    P: 150 bar');
+    expect(cli(['solve', tempFile('fixed.yaml', fixed)]).code).toBe(0);
+  });
+
+  it('a folder given to report, plot or merge is an input error, not an internal one', () => {
+    const out = join(tempFile('x.txt', ''), '..');
+    for (const args of [
+      ['report', 'test/bad', '--out', join(out, 'r.html')],
+      ['plot', 'test/bad', '--x', 'a', '--y', 'b', '--out', join(out, 'p.svg')],
+      ['merge', 'test/bad', '--out', join(out, 'm.csv')],
+    ]) {
+      const r = cli(args);
+      expect(r.code, `${args[0]}: ${r.stderr}`).toBe(2);
+      expect(r.stderr).toMatch(/cannot read `test\/bad`: it is a folder/);
+      expect(r.stderr).not.toMatch(/internal error/);
+    }
+  });
+
   it('text that looks like code is only ever read as data', () => {
     const marker = join(tempFile('m.txt', ''), '..', 'pwned');
     const text = `title: "\${require('fs').writeFileSync('${marker}', 'x')}"

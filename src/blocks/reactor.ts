@@ -604,7 +604,7 @@ export const reactor: BlockDef<ReactorSpec> = {
 export function readEnergyMode(name: string, f: import('../flowsheet/fields.js').FieldReader, what: string): { adiabatic: boolean; duty?: number; dp?: number } | undefined {
   const adiabatic = f.boolean('adiabatic') ?? false;
   const duty = f.quantity('duty', 'power', { example: '-1.2 MW' });
-  const dp = f.quantity('dp', 'pressure', { min: 0, example: '0.5 bar' });
+  const dp = f.quantity('dp', 'pressure', { min: 0, example: '0.5 bar', difference: true });
   let ok = true;
   if (f.has('T') && f.has('duty')) {
     f.errorAtKey('duty', `${what} \`${name}\` has both \`T\` and \`duty\`: give one (the other follows from the energy balance)`, 'keep `T:` to hold the outlet temperature (the duty is reported), or `duty:` to find the temperature');

@@ -25,7 +25,7 @@ export const valve: BlockDef<ValveSpec> = {
     const inlet = f.streams('in', { required: true });
     const out = f.stream('out', { required: true });
     const P = f.quantity('P', 'pressure', { above: 0, example: '5 barg' });
-    const dp = f.quantity('dp', 'pressure', { min: 0, example: '10 bar' });
+    const dp = f.quantity('dp', 'pressure', { min: 0, example: '10 bar', difference: true });
     if (f.has('P') === f.has('dp')) {
       f.error(null, `valve \`${name}\` needs exactly one of \`P\` (outlet pressure) and \`dp\` (pressure drop)`, 'for example `P: 5 barg`');
       return undefined;

@@ -21,7 +21,7 @@ export function registerMerge(program: Command, setCode: (code: number) => void)
           files.push({ path, text: readFileSync(path, 'utf8') });
         } catch (e) {
           const code = (e as NodeJS.ErrnoException).code;
-          problems.push({ severity: 'error', message: `cannot read \`${path}\`${code === 'ENOENT' ? ': no such file' : code ? ` (${code})` : ''}`, help: 'check the path' });
+          problems.push({ severity: 'error', message: `cannot read \`${path}\`${code === 'ENOENT' ? ': no such file' : code === 'EISDIR' ? ': it is a folder' : code ? ` (${code})` : ''}`, help: 'check the path' });
         }
       }
       if (problems.length) throw new InputError(problems);

@@ -10,6 +10,7 @@ import { meterBudget, standardUncertainty, type MeterBudget } from '../thermo/me
 import { matchMeterEos, meterEosFor, type MeterEos, type MeterEosName } from '../thermo/meter-eos.js';
 import type { EosName } from '../thermo/types.js';
 import { parseQuantity, UnitError, type Dimension } from '../units/index.js';
+import { MAX_PRESSURE } from '../flowsheet/yaml-fields.js';
 
 export interface MeterOptions {
   json?: boolean;
@@ -27,7 +28,7 @@ export interface MeterOptions {
   flowUnit?: string;
 }
 
-const ONE_READING_OPTIONS = ['flowUncertainty', 'pressureUncertainty', 'temperatureUncertainty', 'uncertaintyStatedAs', 'fallbackEos', 'atmosphere'] as const;
+const ONE_READING_OPTIONS = ['flow', 'pressure', 'temperature', 'flowUncertainty', 'pressureUncertainty', 'temperatureUncertainty', 'uncertaintyStatedAs', 'fallbackEos', 'atmosphere'] as const;
 
 export function runMeter(file: string | undefined, o: MeterOptions): string {
   if (file && o.gas) throw new InputError([{ severity: 'error', message: 'give a flowsheet file or `--gas` with one reading, not both', help: 'drop the file to convert one reading' }]);
@@ -37,7 +38,8 @@ export function runMeter(file: string | undefined, o: MeterOptions): string {
     const given = ONE_READING_OPTIONS.filter((k) => o[k] !== undefined);
     if (given.length) {
       throw new InputError(given.map((k) => ({ severity: 'error' as const, message: `--${k.replace(/[A-Z]/g, (c) => `-${c.toLowerCase()}`)} is for one reading (\`--gas\`), not for a file`,
-        help: k === 'fallbackEos' ? 'a file gives its own equation in `thermo.eos`'
+        help: k === 'flow' || k === 'pressure' || k === 'temperature' ? 'a file gives each feed\'s reading in the feed: `meter: { flow: 12.6 m3/h, pressure: 30 barg, temperature: 35 degC }`'
+          : k === 'fallbackEos' ? 'a file gives its own equation in `thermo.eos`'
           : k === 'atmosphere' ? 'a file gives its local atmosphere in `thermo: { atmosphere: 0.95 bar }`; its gauge readings are read with it'
           : 'declare the uncertainties of a feed in the file: `meter: { ..., uncertainty: { flow: 1.5 %, pressure: 0.1 bar, temperature: 0.5 K } }`' })));
     }
@@ -146,6 +148,7 @@ function singleReading(o: MeterOptions): MeterReport {
   const instrument = uncertaintyOptions(bag, o);
   if (flow !== undefined && !(flow > 0)) bag.error('--flow must be above zero');
   if (P !== undefined && !(P > 0)) bag.error(`--pressure is ${sig(P)} Pa absolute after the gauge conversion; it must be above zero`, undefined, 'a gauge reading below the local atmosphere by more than the atmosphere is not possible: check the unit (barg or bar)');
+  if (P !== undefined && P > MAX_PRESSURE) bag.error(`--pressure is ${sig(P)} Pa absolute; loopclose computes pressures up to 1e9 Pa (10000 bar)`, undefined, 'check the number and the unit (barg, bar, kPa, Pa)');
   if (T !== undefined && !(T > 0)) bag.error(`--temperature is ${sig(T)} K; it must be above absolute zero`, undefined, 'check the number and the unit (degC, degF, K)');
   if (bag.hasErrors) throw new InputError(bag.items);
   const comps = ids.map((id) => ({ ...findComponent(id)!, id }));

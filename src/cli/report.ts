@@ -27,19 +27,19 @@ export interface ReportCliOptions {
 
 /** The first line of a file (at most 4 kB read). */
 export function firstLine(path: string): string {
-  let fd: number;
+  // A folder opens on Linux and fails only when read (EISDIR): both steps give the message.
+  let fd: number | undefined;
   try {
     fd = openSync(path, 'r');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError([{ severity: 'error', message: `cannot read \`${path}\`${code === 'ENOENT' ? ': no such file' : code === 'EISDIR' ? ': it is a folder' : code ? ` (${code})` : ''}`, help: 'check the path' }]);
-  }
-  try {
     const buf = Buffer.alloc(4096);
     const n = readSync(fd, buf, 0, buf.length, 0);
     return buf.subarray(0, n).toString('utf8').split(/\r?\n/)[0];
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    if (!code) throw e;
+    throw new InputError([{ severity: 'error', message: `cannot read \`${path}\`${code === 'ENOENT' ? ': no such file' : code === 'EISDIR' ? ': it is a folder' : ` (${code})`}`, help: 'check the path' }]);
   } finally {
-    closeSync(fd);
+    if (fd !== undefined) closeSync(fd);
   }
 }
 
@@ -59,6 +59,12 @@ export function madeAt(): string {
 export async function runReport(file: string, o: ReportCliOptions): Promise<{ text: string; code: number }> {
   if (isStudyFile(file)) {
     if (o.svg) throw new InputError([{ severity: 'error', message: '--svg draws a flowsheet; this file is a study output', help: 'for one plot as SVG use `loopclose plot FILE --x PATH --y PATH --out plot.svg`' }]);
+    // Options of a solve would be ignored: the study's numbers are drawn as the file has them.
+    const unused = (['flowUnit', 'method', 'maxPasses'] as const).filter((k) => o[k] !== undefined);
+    if (unused.length) {
+      throw new InputError(unused.map((k) => ({ severity: 'error' as const, message: `--${k.replace(/[A-Z]/g, (c) => `-${c.toLowerCase()}`)} is for a flowsheet; this file is a study output`,
+        help: k === 'flowUnit' ? 'the plots show the units the study wrote: give them in the sweep\'s --report (e.g. `streams.purge.total[kmol/h]`)' : 'a study output is drawn, not solved: leave the option out' })));
+    }
     const table = readStudyTable(readFileSync(file, 'utf8'), file);
     return { text: await studyReportHtml(table), code: EXIT.ok };
   }

@@ -165,7 +165,7 @@ export function readSolver(r: Reader, e: Entry | undefined): SolverSpec {
   const t = r.find(f, 'tolerance');
   if (t) {
     const v = r.number(t.value, '`solver.tolerance`', '1e-10');
-    if (v !== undefined && !(v > 0 && v < 0.1)) r.bag.error('`solver.tolerance` must be between 0 and 0.1', r.at(t.value));
+    if (v !== undefined && !(v > 0 && v < 0.1)) r.bag.error(`\`solver.tolerance\` is ${v}; it must be above 0 and below 0.1`, r.at(t.value), 'for example `1e-10` (a relative tolerance)');
     else if (v !== undefined) solver.rtol = v;
   }
   const mp = r.find(f, 'max-passes');

@@ -179,8 +179,13 @@ function yamlMessage(code: string, message: string): string {
 function keptErrors(errors: readonly YAMLError[], lineOf: (pos: number) => number): YAMLError[] {
   const out: YAMLError[] = [];
   let last = -Infinity;
+  let tab = false;
   for (const e of [...errors].sort((a, b) => a.pos[0] - b.pos[0])) {
     const line = lineOf(e.pos[0]);
+    // A line indented with a tab moves its mapping's column: every later item of that mapping is
+    // then "not at the same column", at lines with nothing wrong. The tab is the one problem.
+    if (tab && e.code === 'BAD_INDENT') continue;
+    if (e.code === 'TAB_AS_INDENT') tab = true;
     if (e.code !== 'DUPLICATE_KEY') {
       if (line <= last + 1) continue;
       last = line;
@@ -272,7 +277,11 @@ export class Reader {
       if (!allowed.includes(e.key)) {
         found.push(e.key);
         const prefix = allowed.filter((a) => prefixPair(e.key, a));
-        const hint = didYouMean(e.key, allowed) ?? (prefix.length ? `did you mean ${prefix.map((a) => `\`${a}\``).join(' or ')}?` : undefined);
+        // `<<` is YAML 1.1's merge key, which this YAML 1.2 reader takes as a plain key: no
+        // allowed name is a fix for it.
+        const hint = e.key === '<<'
+          ? 'merge keys (`<<: *anchor`) are not read: write the keys out here (an alias such as `composition: *gas` may stand for a whole value)'
+          : didYouMean(e.key, allowed) ?? (prefix.length ? `did you mean ${prefix.map((a) => `\`${a}\``).join(' or ')}?` : undefined);
         this.bag.error(`unknown key \`${shown(e.key)}\` in ${what}`, this.at(e.keyNode),
           hint ?? `the keys of ${what} are: ${allowed.join(', ')}`);
       }

@@ -81,6 +81,17 @@ export function validateSource(src: SourceFile, bag = new DiagnosticBag()): Load
   const known = new Set<string>();
   if (!compEntry) {
     bag.error('the file has no `components:`', src.at(root), 'list the components, e.g. `components: { H2: {}, N2: {} }`');
+  } else if (r.isSeq(compEntry.value) && compEntry.value.items.every((n) => r.isScalar(n as Node) && typeof (n as { value: unknown }).value === 'string')) {
+    // A list of names: one message with the mapping to write; the names stand as placeholders,
+    // so that the feeds and units that name them do not each report them as unknown.
+    const names = compEntry.value.items.map((n) => String((n as { value: unknown }).value));
+    bag.error('`components` must be a mapping (`key: value` lines or `{ key: value }`)', r.at(compEntry.value),
+      `write \`components: { ${names.map((n) => `${n}: {}`).join(', ')} }\` (\`{}\` takes the built-in constants)`);
+    for (const id of names) {
+      if (known.has(id)) continue;
+      known.add(id);
+      components.push({ id, name: id, formula: '', MW: Number.NaN, Tc: Number.NaN, Pc: Number.NaN, omega: Number.NaN, source: 'not read' });
+    }
   } else {
     const list = r.entries(compEntry.value, '`components`', compEntry.keyNode);
     if (list && list.length === 0) bag.error('`components` is empty', r.at(compEntry.keyNode), 'name at least one component, e.g. `H2: {}`');

@@ -50,10 +50,18 @@ export function offsetUnit(unit: string, dim: Dimension): boolean {
   }
 }
 
+/**
+ * The highest absolute pressure read, Pa (10 000 bar): ten times the highest pressure any gas loop
+ * or meter here is checked at, and far past the cubic equations' support; above it (a reading in
+ * Pa written with bar, a slip of the exponent) the equations of state have no physical root.
+ */
+export const MAX_PRESSURE = 1e9;
+
 /** Why a value breaks a rule, or undefined. `dim` words the message for pressures and temperatures. */
 export function ruleProblem(what: string, v: number, rule: NumberRule, dim?: Dimension | readonly Dimension[]): string | undefined {
   const abs = dim === 'pressure' && !rule.difference ? ' (absolute, after any gauge conversion)' : dim === 'temperature' && !rule.difference ? ' (absolute)' : '';
   const si = dim === 'pressure' ? `${fmt(v)} Pa` : dim === 'temperature' ? `${fmt(v)} K` : fmt(v);
+  if (dim === 'pressure' && !rule.difference && v > MAX_PRESSURE) return `${what} is ${si}${abs}; loopclose computes pressures up to 1e9 Pa (10000 bar)`;
   if (rule.above !== undefined && !(v > rule.above)) return `${what} is ${si}${abs}; it must be above ${rule.above === 0 && dim ? 'zero' : rule.above}`;
   if (rule.min !== undefined && v < rule.min) return `${what} is ${si}; it must be at least ${rule.min}`;
   if (rule.max !== undefined && v > rule.max) return `${what} is ${si}; it must be at most ${rule.max}`;

@@ -41,7 +41,7 @@ const ABSOLUTE_EXAMPLE: Record<InstrumentKind, string> = {
   mass: '0.05 t/h',
   molar: '0.5 kmol/h',
   standard: '50 Nm3/h',
-  analyzer: '0.002 (a mole fraction)',
+  analyzer: '0.002',
   pressure: '0.5 bar',
   temperature: '1 K',
 };
@@ -277,7 +277,7 @@ function readInstrument(
 function expandedAt(r: Reader, node: Node | null, kind: InstrumentKind, ctx: FieldContext, what: string): Expanded | undefined {
   const v = r.scalar(node, what);
   if (v === undefined) return undefined;
-  const help = `write the expanded uncertainty at 95 % from the data sheet: a percentage of reading such as \`${UNCERTAINTY_EXAMPLE[kind] === '0.002' ? '2 %' : UNCERTAINTY_EXAMPLE[kind].includes('%') ? UNCERTAINTY_EXAMPLE[kind] : '1 %'}\`, or an absolute value such as \`${ABSOLUTE_EXAMPLE[kind]}\``;
+  const help = `write the expanded uncertainty at 95 % from the data sheet: a percentage of reading such as \`${UNCERTAINTY_EXAMPLE[kind] === '0.002' ? '2 %' : UNCERTAINTY_EXAMPLE[kind].includes('%') ? UNCERTAINTY_EXAMPLE[kind] : '1 %'}\`, or an absolute value such as \`${ABSOLUTE_EXAMPLE[kind]}\`${kind === 'analyzer' ? ' (a mole fraction)' : ''}`;
   if (v === null || typeof v === 'boolean') {
     r.bag.error(`${what} has no value`, r.at(node), help);
     return undefined;

@@ -261,8 +261,18 @@ function readJsonl(lines: string[], file: string, kind: StudyKind): StudyTable {
 
 /** The column named by a path given on the command line (`PATH` or `PATH[unit]`). */
 export function columnOf(t: StudyTable, given: string, option: string): StudyColumn {
-  const { path } = unlabel(given);
-  const c = t.columns.find((col) => col.path === path) ?? t.columns.find((col) => col.path === given.trim());
+  const { path, unit } = unlabel(given);
+  const exact = t.columns.find((col) => col.path === given.trim());
+  if (exact) return exact;
+  const c = t.columns.find((col) => col.path === path);
+  // A plot draws the file's numbers as written: a unit other than the file's is refused, not ignored.
+  if (c && unit !== '' && unit !== c.unit) {
+    throw new InputError([{
+      severity: 'error',
+      message: `${option}: \`${path}\` is written in ${c.unit ? `\`${c.unit}\`` : 'no unit'} in \`${t.file}\`, not in \`${unit}\`; a plot does not convert`,
+      help: `write \`${c.unit ? `${c.path}[${c.unit}]` : c.path}\`, or run the study again with \`--report '${path}[${unit}]'\``,
+    }]);
+  }
   if (c) return c;
   const plottable = t.columns.filter((col) => col.role !== 'message' && col.role !== 'status').map((col) => col.path);
   const hint = didYouMean(path, plottable);

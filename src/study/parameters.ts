@@ -140,6 +140,9 @@ export function toSI(model: Model, p: Parameter, value: number, unit?: string): 
   }
   try {
     const q = parseQuantity(`${value} ${u}`, p.dimension, { atmosphere: model.thermo.atmosphere, standards: model.thermo.standards as Map<string, never> });
+    if (p.bounds.difference && q.gauge) {
+      throw fail(`\`${p.path}\` is a pressure difference; \`${u}\` reads a gauge pressure (it adds the atmosphere)`, 'give the values in bar, kPa or psi');
+    }
     if (p.reference && q.standard && q.standard.name !== p.reference) {
       throw fail(`\`${p.path}\` is a standard volume flow at reference \`${p.reference}\` in the file; give values at the same reference, not at \`${q.standard.name}\``, `write the values in ${p.unit}`);
     }

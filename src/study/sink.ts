@@ -57,6 +57,18 @@ export class SweepSink {
    * this run's points in the order they are written).
    */
   static open(o: SinkOptions, header: SweepHeader, headerText: string, order: Int32Array): { sink: SweepSink; existing: ExistingRow[] } {
+    try {
+      return SweepSink.openOrThrow(o, header, headerText, order);
+    } catch (e) {
+      // A folder that does not exist, a folder given as the file, no permission: the user's to fix.
+      const code = (e as NodeJS.ErrnoException).code;
+      if (e instanceof InputError || !code || o.path === undefined) throw e;
+      const why = code === 'ENOENT' ? 'its folder does not exist' : code === 'EACCES' || code === 'EPERM' ? 'permission denied' : code === 'EISDIR' ? 'it is a folder' : code;
+      throw refuse(`--out: cannot write ${o.path}: ${why}`, 'give the path of a file in an existing folder that you may write to');
+    }
+  }
+
+  private static openOrThrow(o: SinkOptions, header: SweepHeader, headerText: string, order: Int32Array): { sink: SweepSink; existing: ExistingRow[] } {
     if (o.path === undefined) {
       if (o.resume) throw refuse('--resume needs --out FILE', 'a sweep written to the terminal or a pipe cannot be resumed; write it to a file with --out');
       process.stdout.write(headerText);

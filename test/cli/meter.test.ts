@@ -94,6 +94,23 @@ describe('loopclose meter', () => {
     expect(r.stderr).toMatch(/thermo: \{ atmosphere/);
   });
 
+  it('refuses a pressure above 10000 bar (a reading in Pa written in bar) instead of failing inside the equation of state', () => {
+    const r = cli(['meter', '--gas', 'H2=1', '--flow', '1 m3/h', '--pressure', '3e6 barg', '--temperature', '20 degC']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/--pressure is 300000000000 Pa absolute; loopclose computes pressures up to 1e9 Pa \(10000 bar\)/);
+    expect(r.stderr).not.toMatch(/internal error/);
+    expect(cli(['meter', '--gas', 'H2=1', '--flow', '1 m3/h', '--pressure', '1000 bar', '--temperature', '20 degC']).code).toBe(0);
+  });
+
+  it('refuses --flow, --pressure and --temperature with a file rather than ignoring them (each feed has its own reading)', () => {
+    const f = tempFile('reading.yaml', 'components: { CH4: {} }\nfeeds:\n  a:\n    composition: { CH4: 1 }\n    meter: { flow: 100 m3/h, pressure: 10 barg, temperature: 20 degC }\n');
+    const r = cli(['meter', f, '--flow', '50 m3/h', '--pressure', '20 barg', '--temperature', '5 degC']);
+    expect(r.code).toBe(2);
+    expect(r.stdout).toBe('');
+    for (const k of ['flow', 'pressure', 'temperature']) expect(r.stderr).toMatch(new RegExp(`--${k} is for one reading`));
+    expect(r.stderr).toMatch(/3 errors; nothing was computed/);
+  });
+
   it('shows a metered feed\'s Z and v beside the meter\'s T and P, not the stream\'s (a meter upstream of a compressor)', () => {
     const f = tempFile('upstream.yaml', 'components: { CH4: {} }\nthermo: { eos: SRK }\nfeeds:\n  a:\n    composition: { CH4: 1 }\n    meter: { flow: 1000 m3/h, pressure: 5 barg, temperature: 20 degC }\n    T: 80 degC\n    P: 60 barg\n');
     const j = JSON.parse(cli(['meter', f, '--json']).stdout).feeds.a;

@@ -179,3 +179,17 @@ describe('report paths are checked before the first point', () => {
     expect(r.stderr).toMatch(/reactor\.conversion\.CO2/);
   });
 });
+
+describe('fractions that add up to 1 within the accepted 1e-9', () => {
+  const pilot = readFileSync('flowsheets/methanol-pilot.yaml', 'utf8');
+  it('a splitter whose numbers add up to 1 + 5e-10 solves as the exact split does (it used to leave the N2 balance open and never converge)', () => {
+    const exact = solveFlowsheet(loadFlowsheet('flowsheets/methanol-pilot.yaml').model);
+    for (const out of ['out: { recycle: 0.97, purge: 0.0300000005 }', 'out: { recycle: 0.9699999995, purge: 0.03 }']) {
+      const text = pilot.replace('out: { recycle: 0.97, purge: rest }', out);
+      expect(text).not.toBe(pilot);
+      const r = solveFlowsheet(validateText('near.yaml', text).model);
+      expect(r.status, `${out}: ${r.message}`).toBe('converged');
+      expect(r.loop.recycleRatio).toBeCloseTo(exact.loop.recycleRatio, 6);
+    }
+  });
+});

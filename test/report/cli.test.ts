@@ -70,6 +70,11 @@ describe('loopclose report', () => {
     const svg = cli(['report', SWEEP, '--svg']);
     expect(svg.code).toBe(2);
     expect(svg.stderr).toContain('--svg draws a flowsheet');
+    // The options of a solve are refused with a study output, not ignored (nothing is written).
+    const unit = cli(['report', SWEEP, '--flow-unit', 'mol/s', '--out', join(dir, 'unit.html')]);
+    expect(unit.code).toBe(2);
+    expect(unit.stderr).toContain('--flow-unit is for a flowsheet; this file is a study output');
+    expect(existsSync(join(dir, 'unit.html'))).toBe(false);
   });
 
   it('says in --help how a sweep output is recognised', () => {

@@ -214,6 +214,13 @@ describe('plots', () => {
     expect(e.diagnostics[0].message).toContain('--heatmap: needs exactly one second axis');
     // A path given with its unit in brackets names the same column.
     expect(() => plotSpec(t, { x: 'reactor.reactions.0.conversion', y: ['streams.purge.total[kmol/h]'] })).not.toThrow();
+    // Another unit is refused, not ignored: the plot would show kmol/h for a request in mol/s.
+    e = inputErrorOf(() => plotSpec(t, { x: 'reactor.reactions.0.conversion', y: ['streams.purge.total[mol/s]', 'loop.recycle-ratio[%]'] }));
+    expect(e.diagnostics.map((d) => d.message)).toEqual([
+      '--y: `streams.purge.total` is written in `kmol/h` in `line.csv`, not in `mol/s`; a plot does not convert',
+      '--y: `loop.recycle-ratio` is written in no unit in `line.csv`, not in `%`; a plot does not convert',
+    ]);
+    expect(e.diagnostics[0].help).toContain('write `streams.purge.total[kmol/h]`');
   });
 
   it('the HTML page embeds the SVG, has no script and no outside reference, and is the same twice', async () => {

@@ -127,6 +127,33 @@ describe('loopclose sweep', () => {
     expect(cli(['sweep', PILOT, '--grid', 'reactor.reactions.0.conversion=0.2:0.3:3', '--jobs', '0']).stderr).toMatch(/--jobs must be a whole number >= 1/);
   });
 
+  it('an --out in a missing folder, or a folder, is an input error (exit 2), not an internal one; so for reconcile', () => {
+    const dir = dirname(tempFile('x', ''));
+    for (const [out, why] of [[join(dir, 'no-such-folder', 'o.csv'), 'its folder does not exist'], [dir, 'it is a folder']]) {
+      const r = cli(['sweep', PILOT, '--grid', 'reactor.reactions.0.conversion=0.2:0.3:2', '--out', out]);
+      expect(r.code, r.stderr).toBe(2);
+      expect(r.stderr).toContain(`--out: cannot write ${out}: ${why}`);
+      expect(r.stderr).not.toMatch(/internal error/);
+      const p = cli(['reconcile', 'flowsheets/ammonia-loop.yaml', '--readings', 'flowsheets/data/ammonia-loop-year.csv', '--out', out]);
+      expect(p.code, p.stderr).toBe(2);
+      expect(p.stderr).toContain(`--out: cannot write ${out}: ${why}`);
+    }
+  });
+
+  it('a pressure drop is swept and adjusted as a difference: in bar, never in a gauge unit that adds the atmosphere', () => {
+    // preheat: 30 barg in (31.01325 bar), dp 0.1 bar -> 30.91325 bar out.
+    const ok = cli(['sweep', PILOT, '--grid', 'preheat.dp=0.1:0.5:3 bar', '--report', 'streams.reactor-in.P[bar]', '--out', '-']);
+    expect(ok.code, ok.stderr).toBe(0);
+    const rows = ok.stdout.split('\n').filter((l) => /^\d+,/.test(l)).map((l) => Number(l.split(',')[3]));
+    expect(rows).toEqual([30.91325, 30.71325, 30.51325].map((p) => expect.closeTo(p, 6)));
+    const grid = cli(['sweep', PILOT, '--grid', 'preheat.dp=0.1:0.5:3 barg', '--report', 'streams.reactor-in.P[bar]', '--out', '-']);
+    expect(grid.code).toBe(2);
+    expect(grid.stderr).toMatch(/`preheat\.dp` is a pressure difference; `barg` reads a gauge pressure/);
+    const target = cli(['solve', PILOT, '--target', 'streams.reactor-in.P = 29.5 barg', '--by', 'preheat.dp', '--within', '0.1:1 psig']);
+    expect(target.code).toBe(2);
+    expect(target.stderr).toMatch(/`preheat\.dp` is a pressure difference; `psig` reads a gauge pressure/);
+  });
+
   it('will not write over an existing output unless told to resume or overwrite', () => {
     const out = tempFile('old.csv', 'someone else\'s data\n');
     const r = cli(['sweep', PILOT, '--out', out, '--grid', 'reactor.reactions.0.conversion=0.2:0.3:3']);
