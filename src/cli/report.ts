@@ -57,6 +57,11 @@ export function madeAt(): string {
 }
 
 export async function runReport(file: string, o: ReportCliOptions): Promise<{ text: string; code: number }> {
+  // The output's name and its contents agree, as for `plot`: an SVG drawing is not written into an
+  // .html file, nor an HTML page into an .svg one.
+  const ext = o.out ? extname(o.out).toLowerCase() : '';
+  if (o.svg && (ext === '.html' || ext === '.htm')) throw new InputError([{ severity: 'error', message: `--svg asks for the drawing as SVG, but --out \`${o.out}\` names an HTML page`, help: 'leave out --svg for the HTML report, or name the output loop.svg' }]);
+  if (!o.svg && ext === '.svg') throw new InputError([{ severity: 'error', message: `--out \`${o.out}\` names an SVG picture, but the report is an HTML page`, help: 'add --svg for the drawing alone, or name the output loop.html' }]);
   if (isStudyFile(file)) {
     if (o.svg) throw new InputError([{ severity: 'error', message: '--svg draws a flowsheet; this file is a study output', help: 'for one plot as SVG use `loopclose plot FILE --x PATH --y PATH --out plot.svg`' }]);
     // Options of a solve would be ignored: the study's numbers are drawn as the file has them.

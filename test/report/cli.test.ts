@@ -59,6 +59,22 @@ describe('loopclose report', () => {
     expect(bad.stderr).toContain('--flow-unit');
   });
 
+  it('the output\'s name and contents agree: no SVG into an .html file, no HTML page into an .svg one (nothing written)', () => {
+    const html = join(dir, 'drawing.html');
+    const a = cli(['report', 'flowsheets/benzene-hydrogenation.yaml', '--svg', '--out', html]);
+    expect(a.code).toBe(2);
+    expect(a.stderr).toContain('--svg asks for the drawing as SVG, but --out');
+    expect(existsSync(html)).toBe(false);
+    const svg = join(dir, 'page.svg');
+    const b = cli(['report', 'flowsheets/benzene-hydrogenation.yaml', '--out', svg]);
+    expect(b.code).toBe(2);
+    expect(b.stderr).toContain('names an SVG picture, but the report is an HTML page');
+    expect(existsSync(svg)).toBe(false);
+    const ok = cli(['report', 'flowsheets/benzene-hydrogenation.yaml', '--svg', '--out', svg]);
+    expect(ok.code).toBe(0);
+    expect(readFileSync(svg, 'utf8').startsWith('<?xml')).toBe(true);
+  });
+
   it('a sweep output gives the plots of the study (decided by the first line)', () => {
     const out = join(dir, 'sweep.html');
     const r = cli(['report', SWEEP, '--out', out]);
