@@ -207,3 +207,18 @@ describe('a suggested fix works when written', () => {
     expect(() => validateText('x.yaml', text.replace('    T: -10 degC\n', '    T: -10 degC\n    dp: 0.2 bar\n'))).not.toThrow();
   });
 });
+
+describe('a decimal comma in a flow mapping', () => {
+  it('the help writes the value back with a decimal point, and that fix is valid', () => {
+    const text = readFileSync(join(DIR, 'decimal-comma.yaml'), 'utf8');
+    let err: InputError | undefined;
+    try {
+      validateText('x.yaml', text);
+    } catch (e) {
+      err = e as InputError;
+    }
+    const d = err!.diagnostics.find((x) => x.message.startsWith('unknown key'))!;
+    expect(d.help).toBe('a decimal comma? In `{ ... }` a comma ends an entry, so `T: -23,5 degC` became two: write a decimal point (`T: -23.5 degC`)');
+    expect(() => validateText('x.yaml', text.replaceAll('T: -23,5 degC', 'T: -23.5 degC'))).not.toThrow();
+  });
+});

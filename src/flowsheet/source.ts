@@ -279,9 +279,13 @@ export class Reader {
         const prefix = allowed.filter((a) => prefixPair(e.key, a));
         // `<<` is YAML 1.1's merge key, which this YAML 1.2 reader takes as a plain key: no
         // allowed name is a fix for it.
+        // A key that starts with digits, such as `5 degC` of `{ T: 1,5 degC }`: a decimal comma,
+        // which a flow mapping reads as the end of one entry and the start of the next.
         const hint = e.key === '<<'
           ? 'merge keys (`<<: *anchor`) are not read: write the keys out here (an alias such as `composition: *gas` may stand for a whole value)'
-          : didYouMean(e.key, allowed) ?? (prefix.length ? `did you mean ${prefix.map((a) => `\`${a}\``).join(' or ')}?` : undefined);
+          : /^\d/.test(e.key)
+            ? decimalCommaHint(entries, e)
+            : didYouMean(e.key, allowed) ?? (prefix.length ? `did you mean ${prefix.map((a) => `\`${a}\``).join(' or ')}?` : undefined);
         this.bag.error(`unknown key \`${shown(e.key)}\` in ${what}`, this.at(e.keyNode),
           hint ?? `the keys of ${what} are: ${allowed.join(', ')}`);
       }
@@ -352,4 +356,13 @@ export class Reader {
     this.bag.error(`${what} must be a list (\`[a, b]\` or \`- a\` lines)`, this.at(n));
     return null;
   }
+}
+
+/** The help for a key that starts with digits: the number before it, written with a decimal point. */
+function decimalCommaHint(entries: readonly Entry[], e: Entry): string {
+  const prev = entries[entries.indexOf(e) - 1];
+  const v = prev && isScalar(prev.value) && typeof prev.value.value === 'number' && Number.isInteger(prev.value.value) ? String(prev.value.value) : undefined;
+  return v !== undefined
+    ? `a decimal comma? In \`{ ... }\` a comma ends an entry, so \`${prev.key}: ${v},${shown(e.key)}\` became two: write a decimal point (\`${prev.key}: ${v}.${shown(e.key)}\`)`
+    : `a decimal comma? In \`{ ... }\` a comma ends an entry: write numbers with a decimal point`;
 }
