@@ -85,6 +85,45 @@ describe('a model is frozen; a change is a new model', () => {
   });
 });
 
+describe('a reused runtime reports the figures of this solve only', () => {
+  // A branch that a split of 0 leaves without flow: its compressor and condenser then have no
+  // head and no vapor fraction. An invented test flowsheet; the check is the same model solved
+  // on a fresh runtime.
+  const text = [
+    'title: a branch that can be shut',
+    'components: { H2: {}, N2: {}, CO2: {} }',
+    'thermo: { eos: SRK }',
+    'feeds:',
+    '  gas: { composition: { H2: 0.7, N2: 0.05, CO2: 0.25 }, molar-flow: 10 mol/s, T: 40 degC, P: 20 bar }',
+    'units:',
+    '  split: { type: splitter, in: gas, out: { a: 0.5, b: rest } }',
+    '  comp: { type: compressor, in: a, out: a-hp, P: 40 bar, isentropic-efficiency: 0.75 }',
+    '  cond: { type: condenser, in: a-hp, T: 10 degC, dp: 0.1 bar, model: equilibrium, vapor: a-gas, liquid: a-liq }',
+    '',
+  ].join('\n');
+  const { model } = validateText('branch.yaml', text);
+  const p = parameter(model, 'split.out.a');
+  const figure = (r: ReturnType<typeof solveFlowsheet>, unit: string, key: string) => r.units.get(unit)!.figures.find((f) => f.key === key)?.value;
+
+  it('a unit left without flow has no head and no vapor fraction, after a solve where it had them', () => {
+    const rt = createRuntime(model);
+    const open = solveFlowsheet(withValues(model, [{ parameter: p, value: 0.5 }]), { runtime: rt });
+    expect(open.status).toBe('converged');
+    expect(figure(open, 'cond', 'vaporFraction')).toBeGreaterThan(0);
+    expect(Number.isFinite(figure(open, 'comp', 'isentropicHead'))).toBe(true);
+    const shutModel = withValues(model, [{ parameter: p, value: 0 }]);
+    const reused = solveFlowsheet(shutModel, { runtime: rt });
+    const fresh = solveFlowsheet(shutModel, { runtime: createRuntime(model) });
+    expect(fresh.status).toBe('converged');
+    expect(reused.status).toBe('converged');
+    for (const [unit, key] of [['cond', 'vaporFraction'], ['comp', 'isentropicHead'], ['comp', 'isentropicT'], ['comp', 'power']] as const) {
+      expect(figure(reused, unit, key), `${unit} ${key}`).toStrictEqual(figure(fresh, unit, key));
+    }
+    expect(figure(reused, 'cond', 'vaporFraction')).toBeNaN();
+    expect(figure(reused, 'comp', 'isentropicHead')).toBeNaN();
+  });
+});
+
 describe('parameters of every kind of feed reading', () => {
   it('a standard volume flow keeps its reference: doubled, the molar flow doubles', () => {
     const { model } = loadFlowsheet('flowsheets/ammonia-loop.yaml');
