@@ -124,6 +124,29 @@ describe('a reused runtime reports the figures of this solve only', () => {
   });
 });
 
+describe('results own their arrays', () => {
+  it('writing into a result changes neither the model nor another result (the feeds shared both)', () => {
+    const { model } = loadFlowsheet('flowsheets/methanol-pilot.yaml');
+    const p = parameter(model, 'purge-split.out.purge');
+    const rt = createRuntime(model);
+    const r1 = solveFlowsheet(withValues(model, [{ parameter: p, value: 0.01 }]), { runtime: rt });
+    const r2 = solveFlowsheet(withValues(model, [{ parameter: p, value: 0.05 }]), { runtime: rt });
+    const h2 = r2.feeds[0].flows[0];
+    const z2 = r2.feeds[0].composition[0];
+    expect(z2).toBe(0.985); // the file's fraction of H2 in `hydrogen`
+    r1.feeds[0].flows[0] = 1e6;
+    r1.feeds[0].composition[0] = 0.5;
+    r1.feeds[0].warnings.push('written by the caller');
+    expect(r2.feeds[0].flows[0]).toBe(h2);
+    expect(r2.feeds[0].composition[0]).toBe(z2);
+    expect(r2.feeds[0].warnings).not.toContain('written by the caller');
+    expect(model.feeds[0].composition[0]).toBe(0.985);
+    // the model still solves to the answer it gave before the writes, on a fresh runtime
+    const again = solveFlowsheet(withValues(model, [{ parameter: p, value: 0.05 }]), { runtime: createRuntime(model) });
+    expect(again.loop.recycleRatio).toBe(r2.loop.recycleRatio);
+  });
+});
+
 describe('parameters of every kind of feed reading', () => {
   it('a standard volume flow keeps its reference: doubled, the molar flow doubles', () => {
     const { model } = loadFlowsheet('flowsheets/ammonia-loop.yaml');
