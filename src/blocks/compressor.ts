@@ -116,6 +116,11 @@ export const compressor: BlockDef<CompressorSpec> = {
         o.hRule = s.hRule;
         o.standIn = s.standIn;
         power = 0;
+        // This pass's figures only (with no flow, or the energy left out, there are none).
+        head = Number.NaN;
+        T2s = Number.NaN;
+        polyN = Number.NaN;
+        factor = Number.NaN;
         const F = inState.setFlows(s.flows);
         if (!(F > 0)) {
           o.P = P2;

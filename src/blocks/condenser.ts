@@ -129,6 +129,11 @@ function buildCondenser(spec: CondenserSpec, ctx: BuildContext): BlockRuntime {
       const energyNow = energyThisPass(ctx);
       note = '';
       duty = 0;
+      // This pass's figures only: with no flow there is no split (a runtime reused across
+      // solves would otherwise report the last solve's).
+      lastBeta = Number.NaN;
+      lastT = Number.NaN;
+      lastIterations = 0;
       let P = spec.P ?? pIn - (spec.dp ?? 0);
       if (!(P > 0)) {
         problem = pressureBelowZero(spec.name, pIn, spec.dp ?? 0);

@@ -110,7 +110,7 @@ export function assembleResult(
     ...(verdict.failure ? { failure: verdict.failure } : {}),
     ...(verdict.worst ? { worst: verdict.worst } : {}),
     tears: rt.plan.tears, order: rt.plan.order, loops: rt.plan.loops,
-    feeds: rt.feeds.slice(), streams, streamOrder: rt.streamOrder, products: rt.products, units, balance,
+    feeds: rt.feeds.map(ownFeed), streams, streamOrder: rt.streamOrder, products: rt.products, units, balance,
     loop: loopFigures(rt, streams, units, balance, feedTotal),
     x: Float64Array.from(x),
     ...(verdict.jacobian ? { jacobian: verdict.jacobian } : {}),
@@ -198,4 +198,16 @@ function energyWarnings(rt: Runtime): string[] {
     out.push(`the heat-capacity correlation of ${id} covers ${range}; ${e.streams.length > 1 ? 'streams' : 'stream'} ${e.streams.map((x) => `\`${x}\``).join(', ')} at ${at} use${e.streams.length > 1 ? '' : 's'} it extrapolated`);
   }
   return out;
+}
+
+/**
+ * A feed's result of its own: the runtime keeps one per feed across solves, and its composition
+ * is the model's array (a typed array, which freezing does not reach). A caller writing into one
+ * result must change neither another result nor the model.
+ */
+function ownFeed(f: FeedResult): FeedResult {
+  return {
+    ...f, flows: Float64Array.from(f.flows), composition: Float64Array.from(f.composition), warnings: f.warnings.slice(),
+    ...(f.sensitivity ? { sensitivity: { ...f.sensitivity } } : {}),
+  };
 }

@@ -74,9 +74,20 @@ function toParameter(own: OwnerSettings, slot: ParameterSlot): Parameter {
   };
 }
 
+/**
+ * Whether an outlet written `rest` is one number: what the others leave when each of them is a
+ * fraction. Beside per-component recoveries (a separator) the rest differs by component.
+ */
+function restIsNumber(own: OwnerSettings, slot: ParameterSlot): boolean {
+  const outs = getIn(own.settings, slot.key.slice(0, -1));
+  if (!isSettingMap(outs)) return false;
+  for (const [k, v] of outs) if (k !== slot.key[slot.key.length - 1] && typeof v !== 'number') return false;
+  return true;
+}
+
 /** Every parameter of a model, in file order. */
 export function parameters(model: Model): Parameter[] {
-  return [...model.settings.values()].flatMap((own) => own.slots.map((s) => toParameter(own, s)));
+  return [...model.settings.values()].flatMap((own) => own.slots.filter((s) => !s.rest || restIsNumber(own, s)).map((s) => toParameter(own, s)));
 }
 
 /** The parameter at a path; throws InputError naming what exists nearby. */
@@ -103,6 +114,11 @@ export function parameter(model: Model, path: string): Parameter {
       throw fail(`input path \`${path}\` leads to ${typeof written === 'string' ? `\`${written}\`` : 'a group of settings'}, not a number`, `the numbers of \`${prefix}\` are: ${here.join(', ')}`);
     }
     throw fail(`input path \`${path}\`: \`${prefix}\` has no number \`${key.join('.')}\``, didYouMean(path, here) ?? `the numbers of \`${prefix}\` are: ${here.join(', ') || 'none'}`);
+  }
+  if (slot.rest && !restIsNumber(own, slot)) {
+    const other = own.slots.find((s) => s.key.length > slot.key.length && s.key[0] === slot.key[0]);
+    throw fail(`input path \`${path}\`: the outlet is written \`rest\` beside per-component recoveries, so what it takes differs by component; it is no single number to vary`,
+      `vary the recoveries of the other outlets${other ? `, e.g. \`${prefix}.${other.key.join('.')}\`` : ''}`, slot.span);
   }
   return toParameter(own, slot);
 }

@@ -85,6 +85,68 @@ describe('a model is frozen; a change is a new model', () => {
   });
 });
 
+describe('a reused runtime reports the figures of this solve only', () => {
+  // A branch that a split of 0 leaves without flow: its compressor and condenser then have no
+  // head and no vapor fraction. An invented test flowsheet; the check is the same model solved
+  // on a fresh runtime.
+  const text = [
+    'title: a branch that can be shut',
+    'components: { H2: {}, N2: {}, CO2: {} }',
+    'thermo: { eos: SRK }',
+    'feeds:',
+    '  gas: { composition: { H2: 0.7, N2: 0.05, CO2: 0.25 }, molar-flow: 10 mol/s, T: 40 degC, P: 20 bar }',
+    'units:',
+    '  split: { type: splitter, in: gas, out: { a: 0.5, b: rest } }',
+    '  comp: { type: compressor, in: a, out: a-hp, P: 40 bar, isentropic-efficiency: 0.75 }',
+    '  cond: { type: condenser, in: a-hp, T: 10 degC, dp: 0.1 bar, model: equilibrium, vapor: a-gas, liquid: a-liq }',
+    '',
+  ].join('\n');
+  const { model } = validateText('branch.yaml', text);
+  const p = parameter(model, 'split.out.a');
+  const figure = (r: ReturnType<typeof solveFlowsheet>, unit: string, key: string) => r.units.get(unit)!.figures.find((f) => f.key === key)?.value;
+
+  it('a unit left without flow has no head and no vapor fraction, after a solve where it had them', () => {
+    const rt = createRuntime(model);
+    const open = solveFlowsheet(withValues(model, [{ parameter: p, value: 0.5 }]), { runtime: rt });
+    expect(open.status).toBe('converged');
+    expect(figure(open, 'cond', 'vaporFraction')).toBeGreaterThan(0);
+    expect(Number.isFinite(figure(open, 'comp', 'isentropicHead'))).toBe(true);
+    const shutModel = withValues(model, [{ parameter: p, value: 0 }]);
+    const reused = solveFlowsheet(shutModel, { runtime: rt });
+    const fresh = solveFlowsheet(shutModel, { runtime: createRuntime(model) });
+    expect(fresh.status).toBe('converged');
+    expect(reused.status).toBe('converged');
+    for (const [unit, key] of [['cond', 'vaporFraction'], ['comp', 'isentropicHead'], ['comp', 'isentropicT'], ['comp', 'power']] as const) {
+      expect(figure(reused, unit, key), `${unit} ${key}`).toStrictEqual(figure(fresh, unit, key));
+    }
+    expect(figure(reused, 'cond', 'vaporFraction')).toBeNaN();
+    expect(figure(reused, 'comp', 'isentropicHead')).toBeNaN();
+  });
+});
+
+describe('results own their arrays', () => {
+  it('writing into a result changes neither the model nor another result (the feeds shared both)', () => {
+    const { model } = loadFlowsheet('flowsheets/methanol-pilot.yaml');
+    const p = parameter(model, 'purge-split.out.purge');
+    const rt = createRuntime(model);
+    const r1 = solveFlowsheet(withValues(model, [{ parameter: p, value: 0.01 }]), { runtime: rt });
+    const r2 = solveFlowsheet(withValues(model, [{ parameter: p, value: 0.05 }]), { runtime: rt });
+    const h2 = r2.feeds[0].flows[0];
+    const z2 = r2.feeds[0].composition[0];
+    expect(z2).toBe(0.985); // the file's fraction of H2 in `hydrogen`
+    r1.feeds[0].flows[0] = 1e6;
+    r1.feeds[0].composition[0] = 0.5;
+    r1.feeds[0].warnings.push('written by the caller');
+    expect(r2.feeds[0].flows[0]).toBe(h2);
+    expect(r2.feeds[0].composition[0]).toBe(z2);
+    expect(r2.feeds[0].warnings).not.toContain('written by the caller');
+    expect(model.feeds[0].composition[0]).toBe(0.985);
+    // the model still solves to the answer it gave before the writes, on a fresh runtime
+    const again = solveFlowsheet(withValues(model, [{ parameter: p, value: 0.05 }]), { runtime: createRuntime(model) });
+    expect(again.loop.recycleRatio).toBe(r2.loop.recycleRatio);
+  });
+});
+
 describe('parameters of every kind of feed reading', () => {
   it('a standard volume flow keeps its reference: doubled, the molar flow doubles', () => {
     const { model } = loadFlowsheet('flowsheets/ammonia-loop.yaml');

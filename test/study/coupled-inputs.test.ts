@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { cli, tempFile } from '../helpers/cli.js';
 import { loadFlowsheet } from '../../src/flowsheet/validate.js';
-import { coupled, parameter } from '../../src/study/parameters.js';
+import { InputError } from '../../src/diagnostics.js';
+import { coupled, parameter, parameters } from '../../src/study/parameters.js';
 
 // The recycle loop of test/flowsheet/loop.test.ts with built-in components: 100 mol/s of 95 %
 // n-butane and 5 % N2, isomerised at X = 0.3 per pass, all isobutane taken out, a fraction p of
@@ -30,6 +31,22 @@ describe('inputs that set each other cannot be swept and adjusted apart', () => 
     expect(coupled(m, P('feeds.fresh.composition.N2'), P('feeds.fresh.composition.nC4H10'))).toBe(true);
     expect(coupled(m, P('feeds.fresh.composition.N2'), P('feeds.fresh.molar-flow'))).toBe(false);
     expect(coupled(m, P('purge-split.out.purge'), P('reactor.reactions.0.conversion'))).toBe(false);
+  });
+
+  it('a separator outlet written `rest` beside recoveries is no single number: refused as an input, not listed (it read 1)', () => {
+    // `sep` sends all iC4H10 to product; `gas` takes the rest: all nC4H10 and N2 and no iC4H10.
+    expect(() => parameter(m, 'sep.out.gas')).toThrow(InputError);
+    expect(() => parameter(m, 'sep.out.gas')).toThrow(/differs by component/);
+    const paths = parameters(m).map((p) => p.path);
+    expect(paths).not.toContain('sep.out.gas');
+    expect(paths).toContain('sep.out.product.iC4H10');
+    // a splitter's `rest` is one number, what the other outlet leaves: 1 - 0.9
+    expect(parameter(m, 'purge-split.out.purge').value).toBeCloseTo(0.1, 15);
+    expect(paths).toContain('purge-split.out.purge');
+    const r = cli(['sweep', file, '--values', 'sep.out.gas=0.5', '--report', 'loop.recycle-ratio']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/sep\.out\.gas.*differs by component/);
+    expect(r.stdout).toBe('');
   });
 
   it('a sweep of the purge with a target adjusting the recycle share is refused (it wrote purge 0.1 and 0.2 for one state at p = 0.0804)', () => {
