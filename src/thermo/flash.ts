@@ -13,6 +13,9 @@
  *    (rachford-rice.ts); every 5th step extrapolated along the dominant eigenvector (GDEM,
  *    Michelsen 1982 Part II), kept only if the Gibbs energy falls; when substitution is slow,
  *    Newton's method on ln K with a finite-difference Jacobian and a halving line search.
+ *    When that split does not end inside the two-phase region (the trial phase can be one of the
+ *    wrong composition), once more from Wilson's K, kept only if it is a split below the feed in
+ *    Gibbs energy.
  * Convergence: max_i |ln f_i^V - ln f_i^L| = max_i |ln K_i + ln phi_i^V - ln phi_i^L| <= tol
  * (default 1e-10) over the components present in the feed. Components with z_i = 0 get
  * x_i = y_i = 0 and a K_i from the converged fugacity coefficients (infinite dilution).
@@ -472,8 +475,28 @@ export function flashTPInto(eos: Eos, T: number, P: number, z: ArrayLike<number>
 
   // 3. phase split from the stability test's K
   for (let i = 0; i < n; i++) s.lnK[i] = Math.log(st.Kout[i]);
-  const o = phaseSplit(eos, T, P, s, tol, maxIt);
+  let o = phaseSplit(eos, T, P, s, tol, maxIt);
   iterations += o.iterations;
+  if (!(o.kind === 'converged' && s.beta > 0 && s.beta < 1)) {
+    // The stability test's trial can be a phase of the wrong composition: at 313 K and 30 bar a
+    // methanol-loop effluent (71 % H2, 23 % CO2, 2.5 % each of water and methanol) is unstable
+    // towards almost pure water, while its liquid holds 43 % methanol; the split from that trial
+    // leaves the two-phase region. Once more from Wilson's K, accepted only as a split with 0 <
+    // beta < 1, away from the trivial solution and below the feed in Gibbs energy.
+    const firstIterations = o.iterations; // (phaseSplit reuses one outcome object)
+    const wilson = wilsonK(eos.components, T, P, s.wilson);
+    for (let i = 0; i < n; i++) s.lnK[i] = Math.log(wilson[i]);
+    const again = phaseSplit(eos, T, P, s, tol, maxIt);
+    iterations += again.iterations;
+    if (again.kind === 'converged' && s.beta > 0 && s.beta < 1 && trivialNorm(s) >= TRIVIAL_NORM && again.gRT < feedGibbs(eos, T, P, zz, present, s.phiZ)) {
+      o = again;
+    } else {
+      // Not better: the first attempt's outcome stands (its state is redone for the report).
+      for (let i = 0; i < n; i++) s.lnK[i] = Math.log(st.Kout[i]);
+      o = phaseSplit(eos, T, P, s, tol, maxIt);
+      o.iterations = firstIterations;
+    }
+  }
   switch (o.kind) {
     case 'converged':
       evaluateK(s);

@@ -5,6 +5,7 @@ import { flashTP, type FlashResult } from '../../src/thermo/flash.js';
 import { solveRachfordRice, rachfordRiceCompositions } from '../../src/thermo/rachford-rice.js';
 import { saturationPressure } from '../../src/thermo/pure.js';
 import type { Eos } from '../../src/thermo/types.js';
+import { findComponent } from '../../src/thermo/components.js';
 
 // Component constants: Smith, Van Ness and Abbott, Introduction to Chemical Engineering
 // Thermodynamics, 7th ed., Table B.1 (Tc K, Pc bar, omega).
@@ -321,5 +322,31 @@ describe('flash: model limits are reported, not hidden', () => {
     expect(() => flashTP(eos, 300, 1e5, [0.5, NaN])).toThrow(/mole fraction/);
     expect(() => flashTP(eos, 300, 1e5, [0, 0])).toThrow(/sum/);
     expect(() => flashTP(eos, 300, 1e5, [0.5, 0.5], { K0: new Float64Array(3) })).toThrow(/K0/);
+  });
+});
+
+describe('flash: a stability trial of the wrong composition', () => {
+  // The first pass of the methanol pilot at a conversion of 0.1 (no recycle yet): the cooler's feed
+  // at 313.15 K and 30.11 bar. The tangent-plane test finds it unstable towards almost pure water
+  // (tpd -2.37), but the liquid at equilibrium holds about 43 % methanol; the split started from that
+  // trial left the two-phase region and the flash failed, between 310 K and 314 K where it
+  // converged. Checked here by the equilibrium conditions themselves (equal fugacities, the
+  // material balance; Michelsen, Fluid Phase Equilibria 9 (1982) 21-40) and by the vapor fraction
+  // lying between its neighbours'.
+  const eos = makeEos('SRK', ['H2', 'N2', 'CO2', 'H2O', 'CH3OH'].map((id) => findComponent(id)!));
+  const z = [0.7067066493999499, 0.01320482318886297, 0.22916334060915308, 0.025462593401017013, 0.025462593401017013];
+  const P = 29e5 + 101325;
+  it('converges to the two-phase split at 313.15 K', () => {
+    const r = flashTP(eos, 313.15, P, z);
+    expect(r.status, r.note).toBe('converged');
+    expect(r.phase).toBe('two-phase');
+    checkSplit(eos, 313.15, P, z, r);
+    const below = flashTP(eos, 310, P, z);
+    const above = flashTP(eos, 314, P, z);
+    expect(below.status).toBe('converged');
+    expect(above.status).toBe('converged');
+    expect(r.beta).toBeGreaterThan(below.beta);
+    expect(r.beta).toBeLessThan(above.beta);
+    expect(r.x[4]).toBeGreaterThan(0.3);
   });
 });
