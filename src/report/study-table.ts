@@ -307,6 +307,9 @@ export function axisKind(t: StudyTable, c: StudyColumn): { kind: 'quantitative' 
     if (v === null || v === undefined) continue;
     if (typeof v === 'number') numbers++;
     else if (parseTime(v) !== undefined) times++;
+    // A failed row keeps the text it was given (reconcile writes a bad timestamp as it stands,
+    // status invalid): it has no place on the axis but does not make the column text.
+    else if (c.role === 'time' && !isAnswer(t.kind, r.status)) continue;
     else example ??= v.length > 40 ? `${v.slice(0, 40)}...` : v;
   }
   if (example !== undefined) return { kind: 'text', example };

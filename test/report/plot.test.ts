@@ -197,6 +197,21 @@ describe('plots', () => {
     }
   });
 
+  it('a row whose timestamp cannot be read (status invalid, as reconcile writes it) is a failed row, not a reason to refuse the time axis', async () => {
+    // README "A historian export": a bad timestamp makes its row `invalid`; the row keeps the text it had.
+    const text = RECONCILE_CSV.replace('2026-03-01T02:00:00Z,not-converged,,,,,"too few readings"', '2026-03-01T25:00Z,invalid,,,,,"the timestamp is not ISO 8601"');
+    const t = readStudyTable(text, 'reconcile.csv');
+    const svg = await plotSvg(t, { x: 'timestamp', y: ['closure.N'] });
+    expect(svg).toContain('timestamp (UTC)');
+    const [line] = linePaths(svg).map((d) => vertices(d));
+    // The three rows that reconciled are drawn; the invalid one has no place on a time axis.
+    expect(line.flat()).toHaveLength(3);
+    const page = await studyReportHtml(t);
+    expect(page).toContain('<h2>Failed points</h2>');
+    expect(page).toContain('2026-03-01T25:00Z');
+    expect(page).toContain('the timestamp is not ISO 8601');
+  });
+
   it('bad axes: unknown path with a suggestion, text columns, a heat map without a second axis', () => {
     const t = readStudyTable(LINE_CSV, 'line.csv');
     let e = inputErrorOf(() => plotSpec(t, { x: 'reactor.reactions.0.convrsion', y: ['streams.purge.totl'] }));
