@@ -176,6 +176,18 @@ describe('plots', () => {
     expect(crosses).toEqual([1]);
   });
 
+  it('a heat map cell of a converged point whose figure is undefined is empty but not marked as failed', async () => {
+    // README: a figure whose "in" is zero is undefined (null in JSON, an empty CSV cell) at a
+    // converged point; that point did not fail, so it gets no cross and is not counted as failed.
+    const t = readStudyTable(GRID_CSV.replace('7,3,10,converged,13,', '7,3,10,converged,,'), 'grid.csv');
+    const svg = await plotSvg(t, { x: 'a', y: ['y'], heatmap: true });
+    const rects = svg.split('<g class="mark-rect role-mark').slice(1).map((g) => (g.split('</g>')[0].match(/<path/g) ?? []).length);
+    expect(rects).toEqual([9, 7]); // the whole grid; two cells without a colour
+    const crosses = svg.split('<g class="mark-symbol role-mark').slice(1).map((g) => (g.split('</g>')[0].match(/<path/g) ?? []).length);
+    expect(crosses).toEqual([1]); // only the infeasible point
+    expect(svg).toContain('1 failed point:');
+  });
+
   it('a time axis for a reconciliation output: closure per element and a meter adjustment against time, failed row a gap', async () => {
     const t = readStudyTable(RECONCILE_CSV, 'reconcile.csv');
     expect(t.kind).toBe('reconcile');
