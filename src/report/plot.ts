@@ -207,6 +207,8 @@ function heatChart(t: StudyTable, r: Resolved, v: StudyColumn): VlSpec {
   const s = r.series[0];
   const ok: Record<string, unknown>[] = [];
   const failed: Record<string, unknown>[] = [];
+  // Converged points whose figure is undefined (an empty cell in the file): no colour, no cross.
+  const empty: Record<string, unknown>[] = [];
   const xs = new Map<string, number>();
   const ss = new Map<string, number>();
   for (const row of t.rows) {
@@ -218,8 +220,9 @@ function heatChart(t: StudyTable, r: Resolved, v: StudyColumn): VlSpec {
     xs.set(xl, x);
     ss.set(sl, sv);
     const value = row.values.get(v.path);
-    if (isAnswer(t.kind, row.status) && typeof value === 'number' && Number.isFinite(value)) ok.push({ x: xl, s: sl, v: value });
-    else failed.push({ x: xl, s: sl, status: row.status });
+    if (!isAnswer(t.kind, row.status)) failed.push({ x: xl, s: sl, status: row.status });
+    else if (typeof value === 'number' && Number.isFinite(value)) ok.push({ x: xl, s: sl, v: value });
+    else empty.push({ x: xl, s: sl });
   }
   const xOrder = [...xs.entries()].sort((a, b) => a[1] - b[1]).map((e) => e[0]);
   const sOrder = [...ss.entries()].sort((a, b) => b[1] - a[1]).map((e) => e[0]);
@@ -228,7 +231,7 @@ function heatChart(t: StudyTable, r: Resolved, v: StudyColumn): VlSpec {
   const sEnc = { field: 's', type: 'ordinal', sort: sOrder, title: axisTitle(s), scale: band };
   const layers: VlSpec[] = [
     // The whole grid, so that empty (failed) cells keep their place on both axes.
-    { data: { values: [...ok, ...failed] }, mark: { type: 'rect', fill: '#ffffff', stroke: '#d0d0d0', strokeWidth: 0.5 }, encoding: { x: xEnc, y: sEnc } },
+    { data: { values: [...ok, ...failed, ...empty] }, mark: { type: 'rect', fill: '#ffffff', stroke: '#d0d0d0', strokeWidth: 0.5 }, encoding: { x: xEnc, y: sEnc } },
     { data: { values: ok }, mark: { type: 'rect' }, encoding: { x: xEnc, y: sEnc, color: { field: 'v', type: 'quantitative', title: axisTitle(v), scale: { scheme: 'viridis' } } } },
   ];
   if (failed.length) layers.push({ data: { values: failed }, mark: { type: 'point', shape: 'cross', color: FAILED_COLOUR, filled: true, size: 70, opacity: 1 }, encoding: { x: xEnc, y: sEnc } });

@@ -206,6 +206,50 @@ function flatten(prefix: string, v: unknown, out: Map<string, number | string | 
   else out.set(prefix, null);
 }
 
+/** A finite number at a path of nested objects, else null. */
+function at(o: unknown, ...keys: string[]): number | null {
+  let v: unknown = o;
+  for (const k of keys) v = v !== null && typeof v === 'object' ? (v as Json)[k] : undefined;
+  return typeof v === 'number' && Number.isFinite(v) ? v : null;
+}
+
+/**
+ * The figure a reconciliation CSV column holds (src/plant/output.ts, rowColumns and rowCsv),
+ * read from a JSON Lines row; null when the row does not have it.
+ */
+export function reconcileFigure(o: Json, path: string): number | string | null {
+  const GLOBAL: Record<string, string> = { 'global.statistic': 'statistic', 'global.dof': 'dof', 'global.critical': 'critical', 'global.p-value': 'pValue' };
+  if (path === 'redundancy') return at(o, 'redundancy');
+  if (GLOBAL[path]) return at(o, 'globalTest', GLOBAL[path]);
+  const sigma = path.endsWith('.sigma');
+  const base = sigma ? path.slice(0, -'.sigma'.length) : path;
+  for (const table of ['parameters', 'unmeasured']) {
+    const t = o[table] as Json | undefined;
+    if (t && typeof t === 'object' && base in t) return at(t, base, sigma ? 'sigma' : 'value');
+  }
+  let m = /^closure\.(.+)\.(relative|uncertainty)$/.exec(path);
+  if (m) return m[1] === 'mass' ? at(o, 'closure', 'mass', m[2]) : at(o, 'closure', 'elements', m[1], m[2]);
+  const instruments = (o.instruments ?? {}) as Json;
+  m = /^(.+)\.(measured|reconciled|adjustment|test|bias)$/.exec(path);
+  if (!m) return null;
+  const [, head, what] = m;
+  if (head in instruments) {
+    if (what === 'test') return at(instruments, head, 'test');
+    if (what === 'bias') {
+      const s = Array.isArray(o.suspects) ? (o.suspects as Json[]).find((x) => x.tag === head && !x.component) : undefined;
+      return s ? at(s, 'bias') : null;
+    }
+    const measured = at(instruments, head, 'molarFlow', 'measured');
+    const reconciled = at(instruments, head, 'molarFlow', 'reconciled');
+    if (what === 'adjustment') return measured !== null && reconciled !== null ? reconciled - measured : null;
+    return what === 'measured' ? measured : reconciled;
+  }
+  // An analyzer's component: TAG.ID.measured, TAG.ID.reconciled.
+  const dot = head.lastIndexOf('.');
+  if (dot > 0 && head.slice(0, dot) in instruments && (what === 'measured' || what === 'reconciled')) return at(instruments, head.slice(0, dot), 'fractions', head.slice(dot + 1), what);
+  return null;
+}
+
 function readJsonl(lines: string[], file: string, kind: StudyKind): StudyTable {
   const head = JSON.parse(lines[0]) as Json;
   const cols = (x: unknown) => (Array.isArray(x) ? (x as { path?: unknown; unit?: unknown }[]) : []).map((c) => ({ path: String(c.path), unit: c.unit === undefined || c.unit === '1' ? '' : String(c.unit) }));
@@ -216,8 +260,8 @@ function readJsonl(lines: string[], file: string, kind: StudyKind): StudyTable {
   const add = (c: StudyColumn) => {
     if (!known.has(c.path)) known.set(c.path, c);
   };
-  if (kind === 'sweep') add({ path: 'point', unit: '', role: 'point' });
-  for (const c of inputs) add({ ...c, role: 'input' });
+  add({ path: 'point', unit: '', role: 'point' });
+  for (const c of inputs) add({ ...c, role: c.path === 'timestamp' || c.path === 'time' ? 'time' : 'input' });
   add({ path: 'status', unit: '', role: 'status' });
   for (const c of outputs) add({ ...c, role: 'output' });
   for (const c of adjusted) add({ path: `adjusted:${c.path}`, unit: c.unit, role: 'adjusted' });
@@ -239,6 +283,12 @@ function readJsonl(lines: string[], file: string, kind: StudyKind): StudyTable {
       for (const c of inputs) values.set(c.path, (o.inputs as Json | undefined)?.[c.path] as number ?? null);
       for (const c of outputs) values.set(c.path, (o.outputs as Json | null | undefined)?.[c.path] as number ?? null);
       for (const c of adjusted) values.set(`adjusted:${c.path}`, (o.adjusted as Json | null | undefined)?.[c.path] as number ?? null);
+    } else if (outputs.length) {
+      // A reconciliation row is the nested snapshot contract; the header names its figures by the
+      // paths and units of the CSV columns: each is read from the row as the CSV writer reads it.
+      values.set('point', typeof o.point === 'number' ? o.point : null);
+      for (const c of inputs) values.set(c.path, typeof o[c.path] === 'string' || typeof o[c.path] === 'number' ? (o[c.path] as string | number) : null);
+      for (const c of outputs) values.set(c.path, reconcileFigure(o, c.path));
     } else {
       for (const [key, v] of Object.entries(o)) if (key !== 'message') flatten(key, v, values);
       for (const key of values.keys()) add({ path: key, unit: '', role: roleOf(kind, key, new Set(inputs.map((c) => c.path)), true) });
@@ -307,6 +357,9 @@ export function axisKind(t: StudyTable, c: StudyColumn): { kind: 'quantitative' 
     if (v === null || v === undefined) continue;
     if (typeof v === 'number') numbers++;
     else if (parseTime(v) !== undefined) times++;
+    // A failed row keeps the text it was given (reconcile writes a bad timestamp as it stands,
+    // status invalid): it has no place on the axis but does not make the column text.
+    else if (c.role === 'time' && !isAnswer(t.kind, r.status)) continue;
     else example ??= v.length > 40 ? `${v.slice(0, 40)}...` : v;
   }
   if (example !== undefined) return { kind: 'text', example };

@@ -7,6 +7,7 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { cli, ROOT, tempFile } from '../helpers/cli.js';
 import { dirname, join } from 'node:path';
+import { readStudyTable } from '../../src/report/study-table.js';
 
 const DEMO = 'flowsheets/ammonia-loop.yaml';
 
@@ -174,5 +175,44 @@ describe('a reconciliation over time, plotted', () => {
     expect(text).toContain('timestamp (UTC)');
     expect(text).toContain('FI-101.adjustment [mol/s]');
     expect(text).toContain('closure.N.relative');
+  });
+
+  it('the same rows written as JSON Lines give every CSV column, with its unit and the same numbers, and plot the same', () => {
+    const year = readFileSync(join(ROOT, 'flowsheets', 'data', 'ammonia-loop-year.csv'), 'utf8').split('\n');
+    // Rows 1-12 of the demo export, and a copy of row 12 with FI-101 reading 50 % high (a gross error, with suspects).
+    const rows = year.slice(0, 15);
+    const high = rows[14].split(',');
+    high[0] = high[0].replace('T11:', 'T12:');
+    high[3] = String(Number(high[3]) * 1.5);
+    const readings = tempFile('jl.csv', `${[...rows, high.join(',')].join('\n')}\n`);
+    const csvOut = join(dirname(readings), 'jl-out.csv');
+    const jsonlOut = join(dirname(readings), 'jl-out.jsonl');
+    expect(cli(['reconcile', DEMO, '--readings', readings, '--out', csvOut]).code).toBe(0);
+    expect(cli(['reconcile', DEMO, '--readings', readings, '--out', jsonlOut, '--jsonl']).code).toBe(0);
+    const c = readStudyTable(readFileSync(csvOut, 'utf8'), 'a.csv');
+    const j = readStudyTable(readFileSync(jsonlOut, 'utf8'), 'a.jsonl');
+    expect(c.rows.map((r) => r.status)).toContain('gross-error');
+    expect(j.rows.map((r) => r.status)).toEqual(c.rows.map((r) => r.status));
+    let compared = 0;
+    for (const col of c.columns) {
+      if (col.role === 'message' || col.path === 'suspects' || col.path === 'left-out') continue;
+      const jc = j.columns.find((x) => x.path === col.path);
+      expect(jc, col.path).toBeDefined();
+      expect(jc!.unit, col.path).toBe(col.unit);
+      c.rows.forEach((r, k) => {
+        const a = r.values.get(col.path);
+        const b = j.rows[k].values.get(col.path);
+        if (typeof a === 'number') {
+          expect(typeof b, `${col.path} row ${k}`).toBe('number');
+          expect(Math.abs((b as number) - a), `${col.path} row ${k}`).toBeLessThanOrEqual(1e-12 * Math.max(1, Math.abs(a)));
+          compared++;
+        } else expect(b ?? null, `${col.path} row ${k}`).toBe(a ?? null);
+      });
+    }
+    expect(compared).toBeGreaterThan(500);
+    const svg = join(dirname(readings), 'jl.svg');
+    const p = cli(['plot', jsonlOut, '--x', 'timestamp', '--y', 'closure.N.relative,FI-101.adjustment', '--out', svg]);
+    expect(p.code, p.stderr).toBe(0);
+    expect(readFileSync(svg, 'utf8')).toContain('FI-101.adjustment [mol/s]');
   });
 });

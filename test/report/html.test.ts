@@ -50,6 +50,15 @@ describe('HTML report of the demo flowsheets', () => {
     expect(Math.abs(Number(row![1]) - (2400 / 22.41397) / 3.6) / 29.74).toBeLessThan(1e-3);
   });
 
+  it('a standard-volume flow unit says beside the numbers that it is the ideal-gas volume at its reference', async () => {
+    // The makeup is given as 2400 Nm3/h real-gas volume; shown in Nm3/h the report's flows are
+    // ideal-gas volumes (2399.0), as the text output says: the page must say so too.
+    const html = await reportHtml(inputOf('flowsheets/ammonia-loop.yaml', { flowUnit: 'Nm3/h' }));
+    expect(html).toContain('flows in Nm3/h (ideal-gas volume at 0 degC, 101.325 kPa');
+    const plain = await reportHtml(inputOf('flowsheets/ammonia-loop.yaml'));
+    expect(plain).toContain('flows in kmol/h, T in');
+  });
+
   it('a result that did not converge is shown as a diagnosis: status, message, last iterate labelled, no stream table', async () => {
     const input = inputOf('flowsheets/methanol-pilot.yaml', { maxPasses: 3 });
     expect(input.status).toBe('not-converged');

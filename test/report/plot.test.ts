@@ -176,6 +176,18 @@ describe('plots', () => {
     expect(crosses).toEqual([1]);
   });
 
+  it('a heat map cell of a converged point whose figure is undefined is empty but not marked as failed', async () => {
+    // README: a figure whose "in" is zero is undefined (null in JSON, an empty CSV cell) at a
+    // converged point; that point did not fail, so it gets no cross and is not counted as failed.
+    const t = readStudyTable(GRID_CSV.replace('7,3,10,converged,13,', '7,3,10,converged,,'), 'grid.csv');
+    const svg = await plotSvg(t, { x: 'a', y: ['y'], heatmap: true });
+    const rects = svg.split('<g class="mark-rect role-mark').slice(1).map((g) => (g.split('</g>')[0].match(/<path/g) ?? []).length);
+    expect(rects).toEqual([9, 7]); // the whole grid; two cells without a colour
+    const crosses = svg.split('<g class="mark-symbol role-mark').slice(1).map((g) => (g.split('</g>')[0].match(/<path/g) ?? []).length);
+    expect(crosses).toEqual([1]); // only the infeasible point
+    expect(svg).toContain('1 failed point:');
+  });
+
   it('a time axis for a reconciliation output: closure per element and a meter adjustment against time, failed row a gap', async () => {
     const t = readStudyTable(RECONCILE_CSV, 'reconcile.csv');
     expect(t.kind).toBe('reconcile');
@@ -195,6 +207,21 @@ describe('plots', () => {
       expect(xs[1] - xs[0]).toBeGreaterThan(0);
       expect(Math.abs(xs[2] - xs[1] - 2 * (xs[1] - xs[0]))).toBeLessThan(0.6);
     }
+  });
+
+  it('a row whose timestamp cannot be read (status invalid, as reconcile writes it) is a failed row, not a reason to refuse the time axis', async () => {
+    // README "A historian export": a bad timestamp makes its row `invalid`; the row keeps the text it had.
+    const text = RECONCILE_CSV.replace('2026-03-01T02:00:00Z,not-converged,,,,,"too few readings"', '2026-03-01T25:00Z,invalid,,,,,"the timestamp is not ISO 8601"');
+    const t = readStudyTable(text, 'reconcile.csv');
+    const svg = await plotSvg(t, { x: 'timestamp', y: ['closure.N'] });
+    expect(svg).toContain('timestamp (UTC)');
+    const [line] = linePaths(svg).map((d) => vertices(d));
+    // The three rows that reconciled are drawn; the invalid one has no place on a time axis.
+    expect(line.flat()).toHaveLength(3);
+    const page = await studyReportHtml(t);
+    expect(page).toContain('<h2>Failed points</h2>');
+    expect(page).toContain('2026-03-01T25:00Z');
+    expect(page).toContain('the timestamp is not ISO 8601');
   });
 
   it('bad axes: unknown path with a suggestion, text columns, a heat map without a second axis', () => {

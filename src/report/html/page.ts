@@ -5,6 +5,7 @@
  * diagnosis with its last iterate labelled as such, never as a stream table.
  */
 import { num, otherMethods } from '../format.js';
+import { flowNote } from '../solve.js';
 import { drawFlowsheet } from './drawing.js';
 import type { ReportInput } from './input.js';
 import { esc, scriptJson } from './markup.js';
@@ -298,7 +299,7 @@ export async function reportHtml(input: ReportInput): Promise<string> {
   const warnings = Array.isArray(input.result.warnings) ? (input.result.warnings as unknown[]).map(String) : [];
   const body: string[] = [
     `<h1>${esc(title)}</h1>`,
-    `<p class="meta">${esc(input.file)}; equation of state ${esc(input.eos)}; flows in ${esc(d.flowUnit)}, T in ${esc(d.temperatureUnit)}, P in ${esc(d.pressureUnit)}${input.generated ? `; made ${esc(input.generated)}` : ''}</p>`,
+    `<p class="meta">${esc(input.file)}; equation of state ${esc(input.eos)}; flows in ${esc(d.flowUnit)}${esc(flowNote(d.flowUnit, { atmosphere: input.display.atmosphere }))}, T in ${esc(d.temperatureUnit)}, P in ${esc(d.pressureUnit)}${input.generated ? `; made ${esc(input.generated)}` : ''}</p>`,
     statusBlock(input),
     `<p class="caution"><strong>Caution.</strong> ${esc(input.caution)}</p>`,
     '<h2>Flowsheet</h2>',
