@@ -6,7 +6,8 @@
  * close, every unit met its specification in that pass and no flow is negative.
  */
 import { solveFixedPoint } from '../solve/index.js';
-import type { MethodName, SolveResult, Status, EvaluationFailure } from '../solve/types.js';
+import type { MethodName, SolveResult, Status, EvaluationFailure, HistoryEntry } from '../solve/types.js';
+import { fixedPointTolerances, measureFixedPoint, newMeasure } from '../solve/convergence.js';
 import type { Eos } from '../thermo/types.js';
 import { computeBalance, type Balance } from './balance.js';
 import { closeBalance, mergeResults } from './closure.js';
@@ -93,14 +94,20 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
     const iterate = (from: Float64Array, used: number): SolveResult => {
       problem.x0.set(from);
       let pre = 0;
+      const warmup: HistoryEntry[] = [];
       if (method === 'newton' && !opts.start) {
         // Newton from a cold start (tears at zero) is fragile: a few direct passes first give it
-        // a physical starting point (every stream made by the plant's own units).
+        // a physical starting point (every stream made by the plant's own units). They are
+        // passes like any other: measured and kept in the history under their own numbers.
         const tmp = new Float64Array(N);
+        const { atol } = fixedPointTolerances(N, problem.atol, { rtol });
+        const m = newMeasure();
         for (let k = 0; k < NEWTON_WARMUP_PASSES && used + pre < budget - 2; k++) {
           problem.g(problem.x0, tmp);
-          problem.x0.set(tmp);
           pre++;
+          measureFixedPoint(problem.x0, tmp, rtol, atol, m);
+          warmup.push({ pass: pre, scaled: m.scaled, residual: m.residual, method: 'direct' });
+          problem.x0.set(tmp);
         }
       }
       // One pass of the budget is kept for the final pass that leaves the streams at the answer.
@@ -108,7 +115,10 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
         rtol, maxPasses: Math.max(1, budget - used - pre - 1), wegstein,
         newton: opts.jacobian ? { jacobian: opts.jacobian } : undefined,
       });
-      r.passes += pre;
+      if (pre > 0) {
+        r.passes += pre;
+        r.history = warmup.concat(r.history.map((h) => ({ ...h, pass: h.pass + pre })));
+      }
       return r;
     };
     let iterated = iterate(start0, 0);
