@@ -81,7 +81,13 @@ export function closeBalance(
     }
     if (result.status !== 'converged' || (balance.worst <= tol && !moved) || k === 3 || room < 1) {
       if (result.status === 'converged' && balance.worst > tol) {
-        result = { ...result, status: 'not-converged', message: `the tear streams meet their tolerance, but ${describeOpen(balance)}; this is not a solution`, worst: undefined };
+        // With the budget spent, the passes that would close it (a tighter tear tolerance, the
+        // temperatures of a balance left to the converged flows) were never run: that is the cause
+        // to give, not the shape of the loop.
+        const cause = room < 1 && k < 3
+          ? `(the budget of ${opts.budget} passes left no room for the passes that close it: give more passes, --max-passes)`
+          : OPEN_HINT;
+        result = { ...result, status: 'not-converged', message: `the tear streams meet their tolerance, but ${describeOpen(balance)} ${cause}; this is not a solution`, worst: undefined };
       } else if (result.status === 'converged' && moved) {
         result = { ...result, status: 'not-converged', message: `the final pass moves tear stream ${moved} beyond its tolerance (a phase appeared or vanished between the checks of the iteration); this is not a solution`, worst: undefined };
       }
@@ -158,5 +164,7 @@ function describeOpen(b: Balance): string {
       worst = `the energy balance of \`${u}\` closes only to ${Math.abs(e.closure).toExponential(2)}`;
     }
   }
-  return `${worst} (a trace component far below the others, or a split close to 0 or 1, can do this: try --method newton, a tighter --tolerance, or set such a trace to zero)`;
+  return worst;
 }
+
+const OPEN_HINT = '(a trace component far below the others, or a split close to 0 or 1, can do this: try --method newton, a tighter --tolerance, or set such a trace to zero)';
