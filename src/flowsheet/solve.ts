@@ -144,6 +144,11 @@ export function solveFlowsheet(model: Model, opts: SolveFlowsheetOptions = {}): 
     ({ result, balance, conditions } = closed);
   }
   const v = judge(rt, result, conditions, balance);
+  if (v.status === 'not-converged' && N > 0) {
+    // The method's message counts its own passes; the solve's count adds the final pass (and
+    // Newton's direct passes before it): say so, so the two numbers do not contradict.
+    v.message = `${v.message ?? 'not converged'}; ${result.passes} passes in all${result.passes > budget ? `, one more than the budget of ${budget}` : ''}, counting the final pass that leaves every stream at the last iterate`;
+  }
   return assembleResult(rt, { ...result, ...v }, result.x, balance, warnings);
 }
 

@@ -99,7 +99,8 @@ function solveAuto(problem: FixedPointProblem, options: SolveOptions): SolveResu
     }
   }
   const remaining = total - w.passes;
-  if (remaining <= 0) return w;
+  // Wegstein's own message points to 'auto', the method that is running: say what happened.
+  if (remaining <= 0) return { ...w, message: `Wegstein used the whole budget (${w.passes} passes) before Newton could start (largest scaled residual ${w.scaledResidual.toPrecision(3)}); give more passes` };
   const startScaled = w.history.length > 0 ? w.history[0].scaled : Infinity;
   const fromWegstein = Number.isFinite(w.scaledResidual) && w.scaledResidual <= startScaled;
   const x0 = fromWegstein ? w.x : problem.x0;

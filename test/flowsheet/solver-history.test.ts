@@ -57,3 +57,39 @@ describe('an open balance at the end of the budget', () => {
     expect(more.balance.worst).toBeLessThanOrEqual(1e-9);
   });
 });
+
+/**
+ * The counts in a message agree with the solve's own count of passes. The method's message
+ * counts its passes; the solve adds the final pass at the last iterate (and Newton's direct
+ * passes before it). Before, `--max-passes 3` by direct substitution printed a status of 3 passes
+ * beside "did not converge in 2 passes", and `auto` with a budget too small for Newton told the
+ * user to "use --method newton or auto".
+ */
+describe('the passes a message speaks of', () => {
+  const { model } = loadFlowsheet('flowsheets/methanol-pilot.yaml');
+
+  it('are the passes of the solve, the final pass counted', () => {
+    for (const [method, maxPasses] of [['direct', 3], ['wegstein', 5], ['newton', 5], ['anderson', 2], ['auto', 10]] as const) {
+      const r = solveFlowsheet(model, { method, maxPasses });
+      expect(r.status).toBe('not-converged');
+      expect(r.passes).toBeLessThanOrEqual(maxPasses);
+      expect(r.message).toContain(`; ${r.passes} passes in all, counting the final pass`);
+      // no Jacobian fits these budgets: every pass but the final one is in the history, in order
+      expect(r.history.map((h) => h.pass)).toEqual(Array.from({ length: r.passes - 1 }, (_, k) => k + 1));
+    }
+  });
+
+  it('says when the final pass goes beyond a budget of one pass', () => {
+    const r = solveFlowsheet(model, { method: 'direct', maxPasses: 1 });
+    expect(r.status).toBe('not-converged');
+    expect(r.passes).toBe(2);
+    expect(r.message).toContain('2 passes in all, one more than the budget of 1');
+  });
+
+  it("under 'auto', a budget spent on Wegstein asks for passes, not for the method that is running", () => {
+    const r = solveFlowsheet(model, { method: 'auto', maxPasses: 5 });
+    expect(r.status).toBe('not-converged');
+    expect(r.message).not.toMatch(/--method newton or auto/);
+    expect(r.message).toMatch(/Wegstein used the whole budget \(4 passes\) before Newton could start/);
+  });
+});
