@@ -68,22 +68,35 @@ export function saturationPressure(eos: Eos, i: number, T: number, tol = 1e-12, 
   let g = NaN;
   let zl = NaN;
   let zv = NaN;
+  // Bracket of the vapor pressure, narrowed by every evaluation: a single liquid-like root or
+  // g < 0 means P is above it, a single gas-like root or g > 0 below it (g falls with P since
+  // Z_L < Z_V). A step that would leave the bracket is replaced by its geometric mean, so
+  // near Tc, where the three-root range is narrow, P cannot cycle over it.
+  let lo = 0;
+  let hi = Infinity;
   for (let it = 1; it <= maxIterations; it++) {
     const rl = eos.lnPhi(T, P, x, 'liquid', phiL);
+    let next: number;
     if (rl.nRoots === 1) {
       // only one root: liquid-like means P is above the vapor spinodal, gas-like below the liquid one
-      P *= rl.root === 'liquid' ? 0.8 : 1.25;
-      continue;
+      if (rl.root === 'liquid') hi = Math.min(hi, P);
+      else lo = Math.max(lo, P);
+      next = P * (rl.root === 'liquid' ? 0.8 : 1.25);
+    } else {
+      const rv = eos.lnPhi(T, P, x, 'vapor', phiV);
+      zl = rl.Z;
+      zv = rv.Z;
+      g = phiL[i] - phiV[i];
+      if (Math.abs(g) <= tol) return { status: 'converged', P, zLiquid: zl, zVapor: zv, iterations: it, residual: Math.abs(g) };
+      if (g > 0) lo = Math.max(lo, P);
+      else hi = Math.min(hi, P);
+      let step = -g / (zl - zv);
+      if (step > 0.5) step = 0.5;
+      else if (step < -0.5) step = -0.5;
+      next = P * Math.exp(step);
     }
-    const rv = eos.lnPhi(T, P, x, 'vapor', phiV);
-    zl = rl.Z;
-    zv = rv.Z;
-    g = phiL[i] - phiV[i];
-    if (Math.abs(g) <= tol) return { status: 'converged', P, zLiquid: zl, zVapor: zv, iterations: it, residual: Math.abs(g) };
-    let step = -g / (zl - zv);
-    if (step > 0.5) step = 0.5;
-    else if (step < -0.5) step = -0.5;
-    P *= Math.exp(step);
+    if (!(next > lo && next < hi)) next = lo > 0 && hi < Infinity ? Math.sqrt(lo * hi) : next;
+    P = next;
   }
   return { status: 'not-converged', P, zLiquid: zl, zVapor: zv, iterations: maxIterations, residual: Math.abs(g), note: 'vapor-pressure iteration did not converge (close to Tc?)' };
 }

@@ -36,6 +36,20 @@ describe('solveCubic', () => {
     expect(Math.abs(out[2] / r3 - 1)).toBeLessThan(1e-12);
   });
 
+  it('finds two roots far below the third, where the discriminant is lost to rounding', () => {
+    // roots 2e-10, 5e-10 and 1 (coefficients from Vieta's formulas): the shape of an equation of
+    // state's cubic at a few mPa below its vapor pressure (liquid and middle roots of order B).
+    // D = -(product of squared root differences)/108 is about -1e-21 here, beneath the rounding
+    // of its two terms (about 1e-3 each), so D alone can report one root.
+    for (const [r1, r2, r3] of [[2e-10, 5e-10, 1], [1e-12, 3e-12, 0.99999], [3e-9, 4e-9, 1]]) {
+      const c2 = -(r1 + r2 + r3), c1 = r1 * r2 + r1 * r3 + r2 * r3, c0 = -r1 * r2 * r3;
+      expect(solveCubic(c2, c1, c0, out), `${r1} ${r2} ${r3}`).toBe(3);
+      expect(Math.abs(out[0] / r1 - 1)).toBeLessThan(1e-6);
+      expect(Math.abs(out[1] / r2 - 1)).toBeLessThan(1e-6);
+      expect(Math.abs(out[2] / r3 - 1)).toBeLessThan(1e-12);
+    }
+  });
+
   it('returns a triple root at the critical point of SRK and PR', () => {
     for (const [d1, d2] of [[1, 0], [1 + Math.SQRT2, 1 - Math.SQRT2]]) {
       const { omegaA, omegaB, zc } = criticalConstants(d1, d2);

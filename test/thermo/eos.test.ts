@@ -161,6 +161,52 @@ describe('low-pressure limit', () => {
   });
 });
 
+describe('vapor pressure of the model close to Tc and far below it', () => {
+  // The model's own vapor pressure is where ln phi_L = ln phi_V (no outside value); its critical
+  // point is exactly (Tc, Pc) (srk.ts, pr.ts; checked in cubic.test.ts), so P_sat -> Pc as
+  // T -> Tc, with a finite limiting slope (1 - P/Pc)/(1 - T/Tc) = d ln P/d ln T at the critical
+  // point. Close to Tc the three-root range is narrow; the iteration must not step over it.
+  for (const name of ['SRK', 'PR'] as const) {
+    for (const c of [methane, hydrogen, nitrogen]) {
+      it(`${name} ${c.id}: converges up to Tr = 0.99999 and tends to Pc`, () => {
+        const eos = makeEos(name, [c]);
+        const slope: number[] = [];
+        let last = 0;
+        for (const tr of [0.99, 0.999, 0.9999, 0.99999]) {
+          const s = saturationPressure(eos, 0, tr * c.Tc);
+          expect(s.status, `Tr ${tr}`).toBe('converged');
+          expect(s.residual).toBeLessThan(1e-12);
+          expect(s.zLiquid).toBeLessThan(s.zVapor);
+          expect(s.P).toBeGreaterThan(last);
+          expect(s.P).toBeLessThan(c.Pc);
+          last = s.P;
+          slope.push((1 - s.P / c.Pc) / (1 - tr));
+        }
+        // the limiting slope: the last two agree to 1e-3 (about 5.6 for these fluids)
+        expect(Math.abs(slope[3] / slope[2] - 1)).toBeLessThan(1e-3);
+      });
+    }
+  }
+
+  it('converges at Tr = 0.25, where the liquid root is of order 1e-10 in Z', () => {
+    // Far below any triple point (a test of the model only): P_sat is a few mPa and the liquid
+    // and middle roots of the cubic lie near B ~ 1e-10 beside the vapor root ~ 1.
+    for (const name of ['SRK', 'PR'] as const) {
+      for (const c of [nButane, carbonDioxide, water, methanol]) {
+        const eos = makeEos(name, [c]);
+        const s = saturationPressure(eos, 0, 0.25 * c.Tc);
+        expect(s.status, `${name} ${c.id}`).toBe('converged');
+        expect(s.residual).toBeLessThan(1e-12);
+        // the liquid barely changes with pressure there: the same liquid volume at P/100
+        const vL = eos.molarVolume(0.25 * c.Tc, s.P, [1], 'liquid');
+        const r = eos.z(0.25 * c.Tc, s.P / 100, [1], 'liquid');
+        expect(r.nRoots, `${name} ${c.id}`).toBe(3);
+        expect(Math.abs(eos.molarVolume(0.25 * c.Tc, s.P / 100, [1], 'liquid') / vL - 1)).toBeLessThan(1e-6);
+      }
+    }
+  });
+});
+
 describe('root selection by Gibbs energy', () => {
   it('n-butane at 350 K, 12 bar (above its vapor pressure): three roots, the liquid is stable', () => {
     // Vapor pressure at 350 K is 9.4573 bar (SVA 7th ed., Example 3.9); at 12 bar the vapor
