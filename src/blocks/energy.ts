@@ -134,6 +134,18 @@ export function phaseS(eos: Eos, T: number, P: number, x: ArrayLike<number>, roo
   return phasePropertiesInto(eos, T, P, x, root, true, p).S;
 }
 
+/** A PH or PS flash's state (T, phase, split, flash count) into `found`, at P. */
+function takeFlash(f: StateFound, r: { T: number; phase: StateFound['phase']; beta: number; x: ArrayLike<number>; y: ArrayLike<number>; flashes: number }, P: number): void {
+  f.T = r.T;
+  f.P = P;
+  f.phase = r.phase;
+  f.beta = r.beta;
+  f.x.set(r.x);
+  f.y.set(r.y);
+  f.flashes = r.flashes;
+  f.liquidLiquid = false;
+}
+
 /** The state an OutletState found: the split and the molar enthalpies. */
 export interface StateFound {
   T: number;
@@ -338,14 +350,7 @@ export class OutletState {
     if (r.status === 'invalid') {
       return { kind: 'invalid', unit: this.unit, message: `\`${this.unit}\`: ${r.message}`, help: 'add `cp:` and `hf:` to those components under `components:`' };
     }
-    f.T = r.T;
-    f.P = P;
-    f.phase = r.phase;
-    f.beta = r.beta;
-    f.x.set(r.x);
-    f.y.set(r.y);
-    f.flashes = r.flashes;
-    f.liquidLiquid = false;
+    takeFlash(f, r, P);
     if (r.phase === 'two-phase') this.keepK(r.K);
     this.enthalpies();
     if (r.status === 'converged') this.remember();
@@ -449,16 +454,9 @@ export class OutletState {
     const r = flashPS(this.eos, P, s, this.z, { T0, tol: STATE_TOL });
     if (r.status === 'converged') {
       const f = this.found;
-      f.T = r.T;
-      f.P = P;
-      f.phase = r.phase;
-      f.beta = r.beta;
-      f.x.set(r.x);
-      f.y.set(r.y);
+      takeFlash(f, r, P);
       f.h = r.H;
       f.hV = f.hL = Number.NaN;
-      f.flashes = r.flashes;
-      f.liquidLiquid = false;
       this.verified = false;
     }
     if (r.status === 'invalid') {

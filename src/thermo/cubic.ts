@@ -47,16 +47,7 @@ function deflatedRoots(c2: number, c1: number, c0: number, z0: number, out: Floa
   if (!(disc >= 0)) return false;
   const h = -0.5 * (e1 + (e1 >= 0 ? Math.sqrt(disc) : -Math.sqrt(disc)));
   if (h === 0) return false;
-  let za = polishCubicRoot(c2, c1, c0, h);
-  let zb = polishCubicRoot(c2, c1, c0, e0 / h);
-  let zc = z0;
-  let tmp: number;
-  if (za > zb) { tmp = za; za = zb; zb = tmp; }
-  if (zb > zc) { tmp = zb; zb = zc; zc = tmp; }
-  if (za > zb) { tmp = za; za = zb; zb = tmp; }
-  out[0] = za;
-  out[1] = zb;
-  out[2] = zc;
+  storeSorted(out, polishCubicRoot(c2, c1, c0, h), polishCubicRoot(c2, c1, c0, e0 / h), z0);
   return true;
 }
 
@@ -107,15 +98,18 @@ export function solveCubic(c2: number, c1: number, c0: number, out: Float64Array
   const other = Math.max(Math.abs(big === t1 ? t3 : t1), Math.abs(t2));
   if (other < 1e-2 * Math.abs(big) && deflatedRoots(c2, c1, c0, polishCubicRoot(c2, c1, c0, big), out)) return 3;
   let z3 = polishCubicRoot(c2, c1, c0, t3);
-  let z2 = polishCubicRoot(c2, c1, c0, t2);
-  let z1 = polishCubicRoot(c2, c1, c0, t1);
-  // sort ascending (polishing near a double root can swap neighbours)
-  let tmp: number;
-  if (z1 > z2) { tmp = z1; z1 = z2; z2 = tmp; }
-  if (z2 > z3) { tmp = z2; z2 = z3; z3 = tmp; }
-  if (z1 > z2) { tmp = z1; z1 = z2; z2 = tmp; }
-  out[0] = z1;
-  out[1] = z2;
-  out[2] = z3;
+  // sorted ascending (polishing near a double root can swap neighbours)
+  storeSorted(out, polishCubicRoot(c2, c1, c0, t1), polishCubicRoot(c2, c1, c0, t2), z3);
   return 3;
+}
+
+/** Three roots into out[0..2] in ascending order. */
+function storeSorted(out: Float64Array, a: number, b: number, c: number): void {
+  let tmp: number;
+  if (a > b) { tmp = a; a = b; b = tmp; }
+  if (b > c) { tmp = b; b = c; c = tmp; }
+  if (a > b) { tmp = a; a = b; b = tmp; }
+  out[0] = a;
+  out[1] = b;
+  out[2] = c;
 }
