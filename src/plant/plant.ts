@@ -297,8 +297,19 @@ export class PlantReconciliation {
       const d = network.instruments.get(tag)!.decl;
       return (d.kind === 'meter' || d.kind === 'standard') && !network.streams.get(d.stream)!.z;
     };
+    // A conversion is computed into `pending`, and taken by the readings only when applied (a
+    // settled one is not: the readings stay as the last reconciliation took them).
+    const pending: { tag: string; j: number; b: FlowBudgetResult; sigma: number }[] = [];
+    const apply = () => {
+      for (const { tag, j, b, sigma } of pending) {
+        values[j] = b.value;
+        sigmas[j] = sigma;
+        budgets.set(tag, b);
+      }
+    };
     const convert = (x: Float64Array | undefined, again = false): number => {
       let moved = 0;
+      pending.length = 0;
       for (const tag of flowTags) {
         if (again && !readsComposition(tag)) continue;
         const iv = network.instruments.get(tag)!;
@@ -323,26 +334,20 @@ export class PlantReconciliation {
         const sigma = b.sigma > 0 ? b.sigma : Math.max(1e-12, 1e-9 * Math.abs(b.value));
         if (Number.isFinite(values[j])) moved = Math.max(moved, Math.abs(b.value - values[j]) / sigma);
         else moved = Infinity;
-        values[j] = b.value;
-        sigmas[j] = sigma;
-        budgets.set(tag, b);
+        pending.push({ tag, j, b, sigma });
       }
       return moved;
     };
     convert(warm);
+    apply();
     let initial: ReconcileResult = this.prepared.solve({ values, sigmas, start });
     // A meter on a stream of unknown composition: convert again with the reconciled composition.
     const compositionDependent = flowTags.some(readsComposition);
     for (let pass = 0; compositionDependent && pass < 3 && (initial.status === 'reconciled' || initial.status === 'not-redundant'); pass++) {
       // Settled: the readings stay as this reconciliation took them, so that what is reported as
       // measured (and its sigma and budget) is what was reconciled and tested.
-      const kept = { values: Float64Array.from(values), sigmas: Float64Array.from(sigmas), budgets: new Map(budgets) };
-      if (convert(initial.x, true) <= CONVERSION_SETTLED) {
-        values.set(kept.values);
-        sigmas.set(kept.sigmas);
-        for (const [tag, b] of kept.budgets) budgets.set(tag, b);
-        break;
-      }
+      if (convert(initial.x, true) <= CONVERSION_SETTLED) break;
+      apply();
       for (let j = 0; j < n; j++) if (Number.isFinite(initial.x[j])) start[j] = initial.x[j];
       initial = this.prepared.solve({ values, sigmas, start });
     }

@@ -33,7 +33,7 @@
  *   meterBudget(meter: MeterEos, reading: BudgetReading, instrument?: InstrumentUncertainty): MeterBudget
  *   standardUncertainty(value, statedAs): the standard uncertainty of a declared figure.
  */
-import type { MeterEos, MeterEosName, MeterState } from './meter-eos.js';
+import { pctText, type MeterEos, type MeterEosName, type MeterState } from './meter-eos.js';
 
 /** One meter reading, SI. */
 export interface BudgetReading {
@@ -219,7 +219,3 @@ function inputWords(i: BudgetInput): string {
   return i === 'flow' ? 'the meter\'s own uncertainty' : i === 'pressure' ? 'the line pressure' : i === 'temperature' ? 'the line temperature' : i;
 }
 
-function pctText(v: number, sign = true): string {
-  const s = (v * 100).toPrecision(3);
-  return `${sign && v > 0 ? '+' : ''}${s} %`;
-}

@@ -389,7 +389,8 @@ const GAS_ROOT = { root: 'gas' } as const;
 const LIQUID_ROOT = { root: 'liquid' } as const;
 const NO_PHASE = { phase: false } as const;
 
-function pctText(v: number, sign = true): string {
+/** A relative figure as a percentage to 3 significant figures, signed unless `sign` is false. */
+export function pctText(v: number, sign = true): string {
   const s = (v * 100).toPrecision(3);
   return `${sign && v > 0 ? '+' : ''}${s} %`;
 }

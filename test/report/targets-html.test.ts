@@ -2,19 +2,12 @@ import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { cli, tempFile } from '../helpers/cli.js';
+import { BUTANE_LOOP } from '../helpers/butane-loop.js';
 
 // The closed-form recycle-purge loop (test/flowsheet/loop.test.ts): 100 mol/s of 95 % n-butane
 // and 5 % N2, X = 0.3 per pass, all isobutane taken out. Purge total = p (1-X) F (1-z) / (X + p - pX)
 // + F z; at 20 mol/s (72 kmol/h), p = 0.0803571.
-const FILE = `components: { nC4H10: {}, iC4H10: {}, N2: {} }
-feeds:
-  fresh: { composition: { nC4H10: 0.95, N2: 0.05 }, molar-flow: 100 mol/s, T: 400 K, P: 10 bar }
-units:
-  mix: { type: mixer, in: [fresh, recycle], out: r-in }
-  reactor: { type: reactor, in: r-in, out: r-out, T: 400 K, reactions: [ { equation: "nC4H10 -> iC4H10", key: nC4H10, conversion: 0.3 } ] }
-  sep: { type: separator, in: r-out, out: { product: { iC4H10: 1 }, gas: rest } }
-  purge-split: { type: splitter, in: gas, out: { recycle: 0.9, purge: rest } }
-targets:
+const FILE = `${BUTANE_LOOP}targets:
   - { output: streams.purge.total, value: 72 kmol/h, by: purge-split.out.purge, within: "0.01:0.5" }
 `;
 

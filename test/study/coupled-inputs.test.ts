@@ -2,21 +2,14 @@ import { describe, expect, it } from 'vitest';
 import { cli, tempFile } from '../helpers/cli.js';
 import { loadFlowsheet } from '../../src/flowsheet/validate.js';
 import { InputError } from '../../src/diagnostics.js';
+import { BUTANE_LOOP } from '../helpers/butane-loop.js';
 import { coupled, parameter, parameters } from '../../src/study/parameters.js';
 
 // The recycle loop of test/flowsheet/loop.test.ts with built-in components: 100 mol/s of 95 %
 // n-butane and 5 % N2, isomerised at X = 0.3 per pass, all isobutane taken out, a fraction p of
 // the gas purged. Closed form: y_N2 of the recycle = R_I / (R_I + R_A) with R_I = (1-p) F z / p and
 // R_A = (1-p)(1-X) F (1-z) / (1 - (1-p)(1-X)); y_N2 = 0.25 at p = 0.0803571.
-const LOOP = `components: { nC4H10: {}, iC4H10: {}, N2: {} }
-feeds:
-  fresh: { composition: { nC4H10: 0.95, N2: 0.05 }, molar-flow: 100 mol/s, T: 400 K, P: 10 bar }
-units:
-  mix: { type: mixer, in: [fresh, recycle], out: r-in }
-  reactor: { type: reactor, in: r-in, out: r-out, T: 400 K, reactions: [ { equation: "nC4H10 -> iC4H10", key: nC4H10, conversion: 0.3 } ] }
-  sep: { type: separator, in: r-out, out: { product: { iC4H10: 1 }, gas: rest } }
-  purge-split: { type: splitter, in: gas, out: { recycle: 0.9, purge: rest } }
-  tee: { type: splitter, in: product, out: { a: 0.2, b: rest, c: 0.3 } }
+const LOOP = `${BUTANE_LOOP}  tee: { type: splitter, in: product, out: { a: 0.2, b: rest, c: 0.3 } }
 `;
 
 describe('inputs that set each other cannot be swept and adjusted apart', () => {
